@@ -1,0 +1,3 @@
+export * from './auth';
+export * from './groups';
+export * from './mail';

@@ -1,0 +1,31 @@
+// Jest projects: unit (pure code), api (supertest + real PostgreSQL), e2e (playwright-core + Debian's
+// Chromium). `npm test` (scripts/test.ts) starts PostgreSQL and runs them; a single project can be
+// run by hand with `npx jest --selectProjects unit` (api/e2e need TEST_DATABASE_URL, see DEVELOPERS.md).
+const esmPackages = [
+  'd3-[a-z-]+', 'internmap', 'better-auth', '@better-auth', 'better-call', 'jose', 'nanostores',
+  '@noble', 'rou3', '@better-fetch', 'svg2pdf\\.js', '@exodus', '@asamuzakjp', '@csstools', 'parse5',
+  'entities', 'defu', 'uncrypto', 'kysely', '@standard-schema', 'fast-check', 'pure-rand',
+];
+const transformIgnorePatterns = [`node_modules/(?!(${esmPackages.join('|')})/)`];
+const base = {
+  transform: { '\\.[cm]?[jt]sx?$': 'babel-jest' },
+  transformIgnorePatterns,
+  moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
+  testEnvironment: 'node',
+};
+module.exports = {
+  projects: [
+    { ...base, displayName: 'unit', testMatch: ['<rootDir>/tests/unit/**/*.test.ts'] },
+    {
+      displayName: 'components',
+      preset: 'jest-expo',
+      transformIgnorePatterns: [
+        `node_modules/(?!((jest-)?react-native|@react-native(-community)?|expo(nent)?|@expo(nent)?/.*|@expo-google-fonts/.*|react-navigation|@react-navigation/.*|react-native-svg|${esmPackages.join('|')})/)`,
+      ],
+      moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
+      testMatch: ['<rootDir>/tests/unit/**/*.test.tsx'],
+    },
+    { ...base, displayName: 'api', testMatch: ['<rootDir>/tests/api/**/*.test.ts'] },
+    { ...base, displayName: 'e2e', testMatch: ['<rootDir>/tests/e2e/**/*.test.ts'] },
+  ],
+};

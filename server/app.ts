@@ -1,0 +1,75 @@
+import express, { type Express } from 'express';
+import { rateLimit } from 'express-rate-limit';
+import fs from 'node:fs';
+import path from 'node:path';
+import { signInSchema, signUpSchema } from '../shared/schemas/auth';
+import { authNodeHandler } from './auth';
+import type { Ctx } from './context';
+import { AppError, errorHandler } from './lib/errors';
+import { validate } from './lib/validate';
+import { devRouter } from './routes/dev';
+import { groupsRouter } from './routes/groups';
+import { healthRouter } from './routes/health';
+import { invitationsRouter } from './routes/invitations';
+import { meRouter } from './routes/me';
+
+export const DEFAULT_WEB_DIST = path.resolve(__dirname, '../dist');
+
+/**
+ * The whole HTTP surface on one port: better-auth under /api/auth, the JSON API under /api, and
+ * the exported web app for everything else.
+ */
+export function createApp(ctx: Ctx): Express {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.set('query parser', 'simple');
+
+  app.use((_req, res, next) => {
+    res.setHeader('X-Content-Type-Options', 'nosniff');
+    res.setHeader('Referrer-Policy', 'same-origin');
+    res.setHeader('X-Frame-Options', 'DENY');
+    next();
+  });
+
+  // Sign-in and sign-up: rate-limited per IP and validated with the shared schemas before
+  // better-auth sees them, so bad input gets the same error shape as the rest of the API.
+  const authLimiter = rateLimit({
+    windowMs: 60_000,
+    limit: ctx.env.AUTH_RATE_LIMIT,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, res) => {
+      res.status(429).json({ error: { code: 'rate_limited', message: 'Too many attempts; wait a minute and try again' } });
+    },
+  });
+  const authJson = express.json({ limit: '16kb' });
+  app.post('/api/auth/sign-up/email', authLimiter, authJson, validate({ body: signUpSchema }));
+  app.post('/api/auth/sign-in/email', authLimiter, authJson, validate({ body: signInSchema }));
+  app.post(['/api/auth/forget-password', '/api/auth/request-password-reset', '/api/auth/reset-password'], authLimiter);
+  app.all('/api/auth/{*any}', authNodeHandler(ctx.auth));
+
+  app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', healthRouter(ctx));
+  app.use('/api', meRouter(ctx));
+  app.use('/api', groupsRouter(ctx));
+  app.use('/api', invitationsRouter(ctx));
+  if (ctx.env.devTools) app.use('/api', devRouter(ctx));
+  app.use('/api', (req, _res, next) => next(new AppError(404, 'not_found', `No API route ${req.method} ${req.path}`)));
+
+  const dist = ctx.env.WEB_DIST ?? DEFAULT_WEB_DIST;
+  const index = path.join(dist, 'index.html');
+  app.use(express.static(dist, { extensions: ['html'], index: 'index.html', maxAge: '1h' }));
+  // Client-side routes: any other GET that wants HTML gets the single-page app.
+  app.get('/{*splat}', (req, res, next) => {
+    if (!req.accepts('html') || !fs.existsSync(index)) return next();
+    res.setHeader('Cache-Control', 'no-cache');
+    res.sendFile(index);
+  });
+  app.use((req, res) => {
+    res.status(404).json({ error: { code: 'not_found', message: `Nothing at ${req.method} ${req.path}` } });
+  });
+
+  app.use(errorHandler);
+  return app;
+}

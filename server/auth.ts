@@ -1,0 +1,46 @@
+import { betterAuth } from 'better-auth';
+import { drizzleAdapter } from 'better-auth/adapters/drizzle';
+import { toNodeHandler } from 'better-auth/node';
+import * as schema from '../db/schema';
+import type { Db } from './db';
+import type { Env } from './env';
+import { PASSWORD_MIN } from '../shared/schemas/auth';
+
+export function createAuth(db: Db, env: Env) {
+  const origin = new URL(env.PUBLIC_URL);
+  const alt = origin.hostname === '127.0.0.1' ? 'localhost' : origin.hostname === 'localhost' ? '127.0.0.1' : null;
+  return betterAuth({
+    baseURL: env.PUBLIC_URL,
+    basePath: '/api/auth',
+    secret: env.AUTH_SECRET,
+    database: drizzleAdapter(db, { provider: 'pg', schema }),
+    emailAndPassword: { enabled: true, minPasswordLength: PASSWORD_MIN, maxPasswordLength: 128, autoSignIn: true },
+    trustedOrigins: [env.PUBLIC_URL, ...(alt ? [`${origin.protocol}//${alt}${origin.port ? `:${origin.port}` : ''}`] : [])],
+    session: { expiresIn: 60 * 60 * 24 * 14, updateAge: 60 * 60 * 24 },
+    // Our own limiter (express-rate-limit in app.ts) guards sign-in and sign-up per IP.
+    rateLimit: { enabled: false },
+    advanced: {
+      defaultCookieAttributes: { httpOnly: true, sameSite: 'lax', secure: origin.protocol === 'https:' },
+    },
+    telemetry: { enabled: false },
+  });
+}
+export type Auth = ReturnType<typeof createAuth>;
+
+/**
+ * better-auth answers errors as `{ code, message }`; the API's contract is
+ * `{ error: { code, message } }`, so its error responses are rewritten here.
+ */
+export function authNodeHandler(auth: Auth) {
+  return toNodeHandler(async (request: Request) => {
+    const response = await auth.handler(request);
+    if (response.status < 400 || !response.headers.get('content-type')?.includes('json')) return response;
+    const body = (await response.clone().json().catch(() => null)) as { code?: string; message?: string; error?: unknown } | null;
+    if (!body || typeof body.error === 'object') return response;
+    const headers = new Headers(response.headers);
+    headers.delete('content-length');
+    const code = (body.code ?? 'auth_error').toLowerCase();
+    const message = body.message ?? 'Authentication failed';
+    return new Response(JSON.stringify({ error: { code, message } }), { status: response.status, headers });
+  });
+}

@@ -1,0 +1,31 @@
+import { closeContext, createContext } from './context';
+import { createApp } from './app';
+import { runMigrations } from './db';
+import { loadEnv } from './env';
+
+/** Server entry: `node --import tsx server/index.ts` (npm start runs it with its own database). */
+async function main() {
+  const env = loadEnv();
+  const ctx = createContext(env);
+  await runMigrations(ctx.db);
+  const app = createApp(ctx);
+  const server = app.listen(env.PORT, env.HOST, () => {
+    console.log(`[server] listening on http://${env.HOST}:${env.PORT} (${env.NODE_ENV})`);
+  });
+  server.on('error', (err) => {
+    console.error('[server] cannot listen:', err.message);
+    process.exit(1);
+  });
+  const stop = (signal: string) => {
+    console.log(`[server] ${signal}: closing`);
+    server.close(() => void closeContext(ctx).finally(() => process.exit(0)));
+    setTimeout(() => process.exit(0), 5000).unref();
+  };
+  process.on('SIGINT', () => stop('SIGINT'));
+  process.on('SIGTERM', () => stop('SIGTERM'));
+}
+
+main().catch((err) => {
+  console.error('[server] failed to start:', err);
+  process.exit(1);
+});

@@ -1,0 +1,40 @@
+import request from 'supertest';
+import { startTestApp, signUp, TEST_ORIGIN, type TestApp } from '../helpers/app';
+
+let t: TestApp;
+beforeAll(async () => {
+  t = await startTestApp();
+});
+afterAll(async () => t.close());
+
+test('GET /api/health answers ok with the database up', async () => {
+  const res = await request(t.app).get('/api/health');
+  expect(res.status).toBe(200);
+  expect(res.body).toEqual({ ok: true, db: 'up' });
+});
+
+test('unknown API routes answer 404 JSON in the error shape', async () => {
+  const res = await request(t.app).get('/api/nope');
+  expect(res.status).toBe(404);
+  expect(res.body.error.code).toBe('not_found');
+});
+
+test('sign-up sets an httpOnly, sameSite session cookie and /api/me knows the user', async () => {
+  const email = 'cookie@lab.example';
+  const agent = request.agent(t.app);
+  const res = await agent.post('/api/auth/sign-up/email').set('Origin', TEST_ORIGIN).send({ name: 'Cookie', email, password: 'long-enough-pw' });
+  expect(res.status).toBe(200);
+  const cookies = ([] as string[]).concat(res.headers['set-cookie'] ?? []);
+  const session = cookies.find((c) => c.includes('session_token'));
+  expect(session).toMatch(/HttpOnly/i);
+  expect(session).toMatch(/SameSite=Lax/i);
+  const me = await agent.get('/api/me');
+  expect(me.status).toBe(200);
+  expect(me.body.user.email).toBe(email);
+  expect(me.body.groups).toEqual([]);
+});
+
+test('signUp helper works', async () => {
+  const { agent } = await signUp(t.app);
+  expect((await agent.get('/api/me')).status).toBe(200);
+});

@@ -1,0 +1,42 @@
+import type { Express } from 'express';
+import request from 'supertest';
+import { createApp } from '@/server/app';
+import { closeContext, createContext, type Ctx } from '@/server/context';
+import { loadEnv } from '@/server/env';
+import { createTestDatabase } from './db';
+
+export const TEST_ORIGIN = 'http://127.0.0.1:8080';
+export const PASSWORD = 'correct-horse-battery';
+
+export type TestApp = { app: Express; ctx: Ctx; close: () => Promise<void> };
+
+/** The real app on a fresh database; `extraEnv` overrides settings (e.g. the rate limit). */
+export async function startTestApp(extraEnv: Record<string, string> = {}): Promise<TestApp> {
+  const db = await createTestDatabase();
+  const ctx = createContext(
+    loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'test', PUBLIC_URL: TEST_ORIGIN, AUTH_RATE_LIMIT: '1000', ...extraEnv }),
+  );
+  const app = createApp(ctx);
+  return {
+    app,
+    ctx,
+    close: async () => {
+      await closeContext(ctx);
+      await db.drop();
+    },
+  };
+}
+
+let seq = 0;
+/** Signs up a new user and returns a cookie-carrying agent plus the user. */
+export async function signUp(app: Express, name = 'Test User') {
+  seq += 1;
+  const email = `user${seq}-${Math.random().toString(36).slice(2, 8)}@lab.example`;
+  const agent = request.agent(app);
+  const res = await agent.post('/api/auth/sign-up/email').set('Origin', TEST_ORIGIN).send({ name, email, password: PASSWORD });
+  if (res.status !== 200) throw new Error(`sign-up failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return { agent, user: res.body.user as { id: string; email: string; name: string }, email };
+}
+
+/** An agent whose every request carries the trusted Origin header (better-auth wants it on POSTs). */
+export type Agent = ReturnType<typeof request.agent>;

@@ -1,0 +1,2 @@
+import { z } from 'zod';
+test('zod loads', () => { expect(z.number().parse(1)).toBe(1); });
