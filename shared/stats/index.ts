@@ -1,0 +1,46 @@
+/**
+ * Bandwright's statistics engine: CLs upper limits on the signal strength μ for counting models,
+ * scans over a parameter grid, and excluded ranges against a theory curve. Pure TypeScript with no
+ * platform dependency: the server's jobs and the app's previews call the same code.
+ */
+export { computeLimit, computeClsbLimit } from './limit';
+export { computeScan } from './scan';
+export { exclusionRanges, type ExcludedRange, type ExclusionRanges, type LimitCurve, type TheoryCurve } from './exclusion';
+export { StatsInputError, type InputProblem } from './errors';
+export {
+  erfc,
+  normalCdf,
+  normalSf,
+  normalPdf,
+  normalQuantile,
+  normalQuantileUpper,
+  lnGamma,
+  regularizedGammaP,
+  regularizedGammaQ,
+  poissonPmf,
+  poissonCdf,
+  poissonQuantile,
+  chiSquareCdf,
+  chiSquareSf,
+} from './distributions';
+export { Random } from './rng';
+export {
+  EXPECTED_KEYS,
+  countingModelSchema,
+  limitOptionsSchema,
+  limitResultSchema,
+  scanPointSchema,
+  scanPointResultSchema,
+  type AsimovChoice,
+  type ClsSample,
+  type CountingModel,
+  type CountingModelInput,
+  type ExpectedKey,
+  type ExpectedLimits,
+  type LimitMethod,
+  type LimitOptions,
+  type LimitResult,
+  type ScanPoint,
+  type ScanPointResult,
+  type SigmaBLimits,
+} from '../schemas/counting-model';
