@@ -53,6 +53,7 @@ export async function seedDemo(ctx: Ctx): Promise<{ created: boolean }> {
       const slug = g.name.toLowerCase().replace(/[^a-z0-9]+/g, '-');
       if (await slugTaken(tx, slug)) continue;
       const row = await insertGroup(tx, { name: g.name, slug, description: g.description, createdBy: ids[g.members[0]![0]] });
+      if (!row) continue;
       for (const [key, role] of g.members) await addMember(tx, row.id, ids[key], role);
     }
   });

@@ -3,9 +3,10 @@ import type { GroupRole } from '../../shared/access';
 import type { Executor } from '../../server/db';
 import { groups, memberships, user } from '../schema';
 
+/** Inserts a group; undefined when its slug is taken (also by a concurrent insert). */
 export async function insertGroup(db: Executor, g: { name: string; slug: string; description: string; createdBy: string }) {
-  const [row] = await db.insert(groups).values(g).returning();
-  return row!;
+  const [row] = await db.insert(groups).values(g).onConflictDoNothing({ target: groups.slug }).returning();
+  return row;
 }
 
 export async function slugTaken(db: Executor, slug: string): Promise<boolean> {

@@ -25,9 +25,14 @@ export async function listMyGroups(ctx: Ctx, userId: string): Promise<Group[]> {
 export async function createGroup(ctx: Ctx, userId: string, input: Required<CreateGroupInput>): Promise<Group> {
   return ctx.db.transaction(async (tx) => {
     const base = slugify(input.name);
-    let slug = base;
-    for (let i = 2; await q.slugTaken(tx, slug); i++) slug = `${base}-${i}`;
-    const g = await q.insertGroup(tx, { name: input.name, slug, description: input.description, createdBy: userId });
+    // A slug can be taken between the check and the insert (two groups of one name created at
+    // once): the insert then returns nothing and the next number is tried.
+    let g: Awaited<ReturnType<typeof q.insertGroup>>;
+    for (let i = 1; !g; i++) {
+      const slug = i === 1 ? base : `${base}-${i}`;
+      if (await q.slugTaken(tx, slug)) continue;
+      g = await q.insertGroup(tx, { name: input.name, slug, description: input.description, createdBy: userId });
+    }
     await q.addMember(tx, g.id, userId, 'owner');
     return toGroup({ ...g, role: 'owner', memberCount: 1 });
   });

@@ -28,12 +28,20 @@ export async function startTestApp(extraEnv: Record<string, string> = {}): Promi
 }
 
 let seq = 0;
-/** Signs up a new user and returns a cookie-carrying agent plus the user. */
-export async function signUp(app: Express, name = 'Test User') {
+/** A fresh address nobody has used yet (unique per process). */
+export function uniqueEmail(prefix = 'user'): string {
   seq += 1;
-  const email = `user${seq}-${Math.random().toString(36).slice(2, 8)}@lab.example`;
-  const agent = request.agent(app);
-  const res = await agent.post('/api/auth/sign-up/email').set('Origin', TEST_ORIGIN).send({ name, email, password: PASSWORD });
+  return `${prefix}${seq}-${Math.random().toString(36).slice(2, 8)}@lab.example`;
+}
+
+/**
+ * Signs up a new user and returns a cookie-carrying agent plus the user. The agent sends the
+ * trusted Origin header on every request (better-auth wants it on cookie POSTs such as sign-out).
+ */
+export async function signUp(app: Express, name = 'Test User', opts: { email?: string; password?: string } = {}) {
+  const email = opts.email ?? uniqueEmail();
+  const agent = request.agent(app).set('Origin', TEST_ORIGIN);
+  const res = await agent.post('/api/auth/sign-up/email').send({ name, email, password: opts.password ?? PASSWORD });
   if (res.status !== 200) throw new Error(`sign-up failed: ${res.status} ${JSON.stringify(res.body)}`);
   return { agent, user: res.body.user as { id: string; email: string; name: string }, email };
 }

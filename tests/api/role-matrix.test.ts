@@ -1,0 +1,306 @@
+import { eq } from 'drizzle-orm';
+import request from 'supertest';
+import { createApp } from '@/server/app';
+import { groups } from '@/db/schema';
+import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
+import { apiErrorSchema } from '@/shared/schemas/common';
+import { startTestApp, uniqueEmail, type Agent, type TestApp } from '../helpers/app';
+import {
+  makeCrew,
+  makeGroup,
+  makeGroupWithRoles,
+  makeInvitation,
+  makePerson,
+  probe,
+  uniqueGroupName,
+  type Crew,
+  type Person,
+} from '../helpers/factories';
+
+/**
+ * The role × route matrix: every route of the JSON API (better-auth's /api/auth/* aside, tested in
+ * auth.test.ts) with the least access it needs, called by every kind of caller. A second test walks
+ * the Express router so that a route added without an entry here fails the suite.
+ */
+
+type Method = 'get' | 'post' | 'patch' | 'delete';
+/** Who may call: anyone; any signed-in user; or members of the group with at least this role. */
+type Access = 'anonymous' | 'signed-in' | GroupRole;
+type CallerKind = GroupRole | 'non-member' | 'anonymous';
+const CALLERS: CallerKind[] = [...GROUP_ROLES, 'non-member', 'anonymous'];
+
+/** The shared people of this file; groups are made per check where a call changes state. */
+type World = { t: TestApp; crew: Crew; target: Person; outsider: Person; host: Person; sharedGroupId: string };
+type Caller = { kind: CallerKind; person?: Person };
+type Prepared = {
+  params: Record<string, string>;
+  body?: object;
+  /** For routes that change state: did the change happen? (must be true when allowed, false when refused) */
+  effect?: () => Promise<boolean>;
+};
+type Entry = {
+  method: Method;
+  path: string;
+  access: Access;
+  /** The success status. */
+  ok: number;
+  /** An allowed call changes state, so every check gets fresh fixtures. */
+  mutates: boolean;
+  /** Mounted only outside production. */
+  devOnly?: boolean;
+  /** Builds the concrete params and a valid body for one check; `groupId` is the group under test. */
+  prepare: (w: World, groupId: string, caller: Caller) => Promise<Prepared>;
+};
+
+const MATRIX: Entry[] = [
+  { method: 'get', path: '/api/health', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  { method: 'get', path: '/api/me', access: 'signed-in', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  { method: 'get', path: '/api/groups', access: 'signed-in', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  {
+    method: 'post',
+    path: '/api/groups',
+    access: 'signed-in',
+    ok: 201,
+    mutates: true,
+    prepare: async (w) => {
+      const name = uniqueGroupName('Matrix New Group');
+      return {
+        params: {},
+        body: { name, description: 'A fictional search' },
+        effect: async () => (await w.t.ctx.db.select({ id: groups.id }).from(groups).where(eq(groups.name, name))).length > 0,
+      };
+    },
+  },
+  { method: 'get', path: '/api/groups/:groupId', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    method: 'patch',
+    path: '/api/groups/:groupId',
+    access: 'owner',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const description = `changed ${Math.random()}`;
+      return {
+        params: { groupId },
+        body: { description },
+        effect: async () => {
+          const [g] = await w.t.ctx.db.select({ d: groups.description }).from(groups).where(eq(groups.id, groupId));
+          return g?.d === description;
+        },
+      };
+    },
+  },
+  {
+    method: 'delete',
+    path: '/api/groups/:groupId',
+    access: 'owner',
+    ok: 204,
+    mutates: true,
+    prepare: async (w, groupId) => ({ params: { groupId }, effect: async () => !(await probe.groupExists(w.t, groupId)) }),
+  },
+  { method: 'get', path: '/api/groups/:groupId/members', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    // Target: another member, a viewer; a curator may change roles below owner.
+    method: 'patch',
+    path: '/api/groups/:groupId/members/:userId',
+    access: 'curator',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => ({
+      params: { groupId, userId: w.target.user.id },
+      body: { role: 'editor' },
+      effect: async () => (await probe.role(w.t, groupId, w.target.user.id)) === 'editor',
+    }),
+  },
+  {
+    // Removing another member (a viewer) needs curator; leaving the group oneself is any member's
+    // right and is tested in groups.test.ts.
+    method: 'delete',
+    path: '/api/groups/:groupId/members/:userId',
+    access: 'curator',
+    ok: 204,
+    mutates: true,
+    prepare: async (w, groupId) => ({
+      params: { groupId, userId: w.target.user.id },
+      effect: async () => (await probe.role(w.t, groupId, w.target.user.id)) === undefined,
+    }),
+  },
+  { method: 'get', path: '/api/groups/:groupId/invitations', access: 'curator', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/invitations',
+    access: 'curator',
+    ok: 201,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const email = uniqueEmail('matrix-invitee');
+      return { params: { groupId }, body: { email, role: 'viewer' }, effect: () => probe.openInvitationFor(w.t, groupId, email) };
+    },
+  },
+  {
+    method: 'delete',
+    path: '/api/groups/:groupId/invitations/:invitationId',
+    access: 'curator',
+    ok: 204,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const inv = await makeInvitation(w.t, w.crew.owner, groupId);
+      return { params: { groupId, invitationId: inv.id }, effect: async () => (await probe.invitationState(w.t, inv.id)) === 'revoked' };
+    },
+  },
+  {
+    // Whoever holds the link may see whom it is for.
+    method: 'get',
+    path: '/api/invitations/:token',
+    access: 'anonymous',
+    ok: 200,
+    mutates: false,
+    prepare: async (w, groupId) => ({ params: { token: (await makeInvitation(w.t, w.crew.owner, groupId)).token } }),
+  },
+  {
+    // Any signed-in user may accept an invitation addressed to them (group roles do not matter:
+    // the invitation is to another group, whose owner is `host`).
+    method: 'post',
+    path: '/api/invitations/:token/accept',
+    access: 'signed-in',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, _groupId, caller) => {
+      const hostGroup = await makeGroup(w.t, w.host);
+      const inv = await makeInvitation(w.t, w.host, hostGroup, caller.person?.email ?? uniqueEmail('anon-invitee'), 'analyst');
+      return {
+        params: { token: inv.token },
+        effect: async () =>
+          caller.person ? (await probe.role(w.t, hostGroup, caller.person.user.id)) === 'analyst' : (await probe.invitationState(w.t, inv.id)) !== 'pending',
+      };
+    },
+  },
+  { method: 'get', path: '/api/dev/inbox', access: 'signed-in', ok: 200, mutates: false, devOnly: true, prepare: async () => ({ params: {} }) },
+];
+
+function expectedStatus(entry: Entry, caller: CallerKind): number {
+  if (entry.access === 'anonymous') return entry.ok;
+  if (caller === 'anonymous') return 401;
+  if (entry.access === 'signed-in') return entry.ok;
+  if (caller === 'non-member') return 404;
+  return ROLE_RANK[caller] >= ROLE_RANK[entry.access] ? entry.ok : 403;
+}
+
+const ERROR_CODE: Record<number, string> = { 401: 'unauthorized', 403: 'forbidden', 404: 'not_found' };
+
+function fill(path: string, params: Record<string, string>): string {
+  return path.replace(/:(\w+)/g, (_m, name: string) => {
+    const v = params[name];
+    if (v === undefined) throw new Error(`no value for :${name} in ${path}`);
+    return encodeURIComponent(v);
+  });
+}
+
+let t: TestApp;
+let w: World;
+
+beforeAll(async () => {
+  t = await startTestApp();
+  const [crew, target, outsider, host] = await Promise.all([
+    makeCrew(t),
+    makePerson(t, 'Target Member'),
+    makePerson(t, 'Outsider Owner'),
+    makePerson(t, 'Host Owner'),
+  ]);
+  // The outsider is not a stranger: they own (and so may manage) a group of their own.
+  await makeGroup(t, outsider, uniqueGroupName('Outsider Group'));
+  const { groupId } = await makeGroupWithRoles(t, { crew, extra: [[target, 'viewer']] });
+  w = { t, crew, target, outsider, host, sharedGroupId: groupId };
+}, 60_000);
+afterAll(async () => t?.close());
+
+const cells = MATRIX.flatMap((entry) =>
+  CALLERS.map((caller) => ({ entry, caller, expected: expectedStatus(entry, caller) })),
+);
+
+describe('role × route matrix', () => {
+  test.each(cells.map((c) => [`${c.entry.method.toUpperCase()} ${c.entry.path} as ${c.caller} → ${c.expected}`, c] as const))(
+    '%s',
+    async (_name, { entry, caller, expected }) => {
+      const groupId = entry.mutates ? (await makeGroupWithRoles(t, { crew: w.crew, extra: [[w.target, 'viewer']] })).groupId : w.sharedGroupId;
+      const person = caller === 'anonymous' ? undefined : caller === 'non-member' ? w.outsider : w.crew[caller];
+      const prepared = await entry.prepare(w, groupId, { kind: caller, person });
+      const agent: Agent = person?.agent ?? request.agent(t.app);
+      const url = fill(entry.path, prepared.params);
+      let call = agent[entry.method](url);
+      if (prepared.body !== undefined) call = call.send(prepared.body);
+      const res = await call;
+
+      expect({ status: res.status, body: res.body }).toMatchObject({ status: expected });
+      if (expected >= 400) {
+        expect(apiErrorSchema.safeParse(res.body).success).toBe(true);
+        expect(res.body.error.code).toBe(ERROR_CODE[expected]);
+      }
+      if (prepared.effect) expect(await prepared.effect()).toBe(expected < 400);
+    },
+  );
+});
+
+// ---------------------------------------------------------------------------------------------
+// Every registered route has an entry.
+
+/** The parts of Express 5's router layers (package `router` 2.x) that the walk reads. */
+type RouterLayer = {
+  name: string;
+  rawPath?: unknown;
+  route?: { path: string | string[]; methods: Record<string, boolean> };
+  handle?: { stack?: RouterLayer[] };
+};
+
+function joinPath(prefix: string, p: string): string {
+  const joined = `${prefix.replace(/\/$/, '')}/${p.replace(/^\//, '')}`;
+  return joined.length > 1 ? joined.replace(/\/$/, '') : joined;
+}
+
+/** `METHOD /full/path` of every route layer, descending into mounted routers. */
+function registeredRoutes(stack: RouterLayer[], prefix = ''): string[] {
+  const out: string[] = [];
+  for (const layer of stack) {
+    if (layer.route) {
+      const paths = Array.isArray(layer.route.path) ? layer.route.path : [layer.route.path];
+      for (const p of paths) {
+        for (const [m, on] of Object.entries(layer.route.methods)) if (on && m !== '_all') out.push(`${m.toUpperCase()} ${joinPath(prefix, p)}`);
+      }
+    } else if (Array.isArray(layer.handle?.stack)) {
+      // A mounted router: router 2.x keeps the mount path as `rawPath` (its matchers are functions).
+      if (typeof layer.rawPath !== 'string') throw new Error(`cannot tell where the router "${layer.name}" is mounted`);
+      out.push(...registeredRoutes(layer.handle.stack, joinPath(prefix, layer.rawPath)));
+    }
+  }
+  return out;
+}
+
+const isOurApiRoute = (r: string) => {
+  const path = r.slice(r.indexOf(' ') + 1);
+  return path.startsWith('/api/') && !path.startsWith('/api/auth/');
+};
+const key = (e: Entry) => `${e.method.toUpperCase()} ${e.path}`;
+
+function apiRoutesOf(app: unknown): string[] {
+  const stack = (app as { router: { stack: RouterLayer[] } }).router.stack;
+  return [...new Set(registeredRoutes(stack).filter(isOurApiRoute))].sort();
+}
+
+describe('the matrix covers every route', () => {
+  test('every /api route registered in the app (development mode) has a matrix entry, and every entry is registered', () => {
+    const registered = apiRoutesOf(t.app);
+    // Guard against a walk that finds nothing (e.g. if Express changed its internals).
+    expect(registered).toEqual(expect.arrayContaining(['GET /api/health', 'GET /api/groups/:groupId']));
+    expect(registered).toEqual([...new Set(MATRIX.map(key))].sort());
+  });
+
+  test('in production exactly the dev-only entries are missing', () => {
+    const prodApp = createApp({ ...t.ctx, env: { ...t.ctx.env, NODE_ENV: 'production', devTools: false } });
+    expect(apiRoutesOf(prodApp)).toEqual(MATRIX.filter((e) => !e.devOnly).map(key).sort());
+  });
+
+  test('the matrix has one entry per method and path', () => {
+    const keys = MATRIX.map(key);
+    expect(new Set(keys).size).toBe(keys.length);
+  });
+});
