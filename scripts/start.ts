@@ -14,7 +14,7 @@ import { clusterHome, ensureDatabase, startCluster, stopCluster, type Cluster } 
 const ROOT = path.resolve(__dirname, '..');
 
 async function main() {
-  const vars = { ...process.env, NODE_ENV: process.env.NODE_ENV ?? 'development' };
+  const vars: Record<string, string | undefined> = { ...process.env, NODE_ENV: process.env.NODE_ENV ?? 'development' };
   let cluster: Cluster | undefined;
   const children: ChildProcess[] = [];
   let stopping = false;
@@ -55,7 +55,7 @@ async function main() {
 
     buildWebIfChanged();
 
-    const server = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env: vars, stdio: 'inherit' });
+    const server = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], { cwd: ROOT, env: vars as NodeJS.ProcessEnv, stdio: 'inherit' });
     children.push(server);
     server.on('exit', (code) => {
       if (!stopping) {

@@ -28,12 +28,12 @@ function ensureChromium(): string | null {
 
 type JestSummary = { passed: number; failed: number };
 
-function runJest(args: string[], outFile: string, env: NodeJS.ProcessEnv): JestSummary {
+function runJest(args: string[], outFile: string, env: Record<string, string | undefined>): JestSummary {
   fs.rmSync(outFile, { force: true });
   spawnSync(process.execPath, [path.join(ROOT, 'node_modules/jest/bin/jest.js'), ...args, '--json', `--outputFile=${outFile}`], {
     cwd: ROOT,
     stdio: 'inherit',
-    env,
+    env: env as NodeJS.ProcessEnv,
   });
   if (!fs.existsSync(outFile)) return { passed: 0, failed: 1 };
   const r = JSON.parse(fs.readFileSync(outFile, 'utf8')) as {
@@ -60,7 +60,7 @@ async function main() {
     buildWebIfChanged();
 
     fs.mkdirSync(path.join(ROOT, 'tmp'), { recursive: true });
-    const env = {
+    const env: Record<string, string | undefined> = {
       ...process.env,
       NODE_ENV: 'test',
       TEST_PG_URL: cluster.url('postgres'),

@@ -1,7 +1,8 @@
 import type { ErrorRequestHandler } from 'express';
 import { ZodError } from 'zod';
 
-export type ErrorDetail = { field: string; message: string };
+import type { ErrorDetail } from '../../shared/errors';
+export type { ErrorDetail };
 
 /** The one error type of the API: mapped to `{ error: { code, message, details } }` by `errorHandler`. */
 export class AppError extends Error {

@@ -1,0 +1,2 @@
+import { AccountScreen } from '@/components/screens/account-screen';
+export default AccountScreen;

@@ -1,0 +1,2 @@
+import { CreateGroupScreen } from '@/components/screens/create-group-screen';
+export default CreateGroupScreen;

@@ -1,0 +1,2 @@
+import { InboxScreen } from '@/components/screens/inbox-screen';
+export default InboxScreen;

@@ -1,0 +1,2 @@
+import { ResultsHomeScreen } from '@/components/screens/results-home-screen';
+export default ResultsHomeScreen;

@@ -1,0 +1,2 @@
+import { MembersScreen } from '@/components/screens/members-screen';
+export default MembersScreen;

@@ -1,0 +1,2 @@
+import { SignInScreen } from '@/components/screens/sign-in-screen';
+export default SignInScreen;

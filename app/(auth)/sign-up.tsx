@@ -1,0 +1,2 @@
+import { SignUpScreen } from '@/components/screens/sign-up-screen';
+export default SignUpScreen;

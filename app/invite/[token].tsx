@@ -1,0 +1,2 @@
+import { InvitationScreen } from '@/components/screens/invitation-screen';
+export default InvitationScreen;

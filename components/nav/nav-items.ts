@@ -1,0 +1,15 @@
+import type { Href } from 'expo-router';
+
+export type NavItem = { href: Href; path: string; label: string; icon: string; devOnly?: boolean };
+
+/** The app's main sections, shared by the side navigation and the bottom tabs. */
+export const NAV_ITEMS: NavItem[] = [
+  { href: '/', path: '/', label: 'Results', icon: '▤' },
+  { href: '/members', path: '/members', label: 'Members', icon: '◉' },
+  { href: '/inbox', path: '/inbox', label: 'Inbox (development)', icon: '✉', devOnly: true },
+  { href: '/account', path: '/account', label: 'Account', icon: '☺' },
+];
+
+export function isActive(item: NavItem, pathname: string): boolean {
+  return item.path === '/' ? pathname === '/' : pathname.startsWith(item.path);
+}

@@ -1,0 +1,40 @@
+import { useRouter } from 'expo-router';
+import { useMe, useSignOut } from '@/hooks/use-session';
+import { ROLE_LABELS } from '@/shared/access';
+import { Banner } from '../ui/banner';
+import { Button } from '../ui/button';
+import { Card } from '../ui/card';
+import { errorMessage } from '../ui/form';
+import { Screen } from '../ui/screen';
+import { Text } from '../ui/text';
+
+export function AccountScreen() {
+  const me = useMe();
+  const signOut = useSignOut();
+  const router = useRouter();
+  const user = me.data?.user;
+  return (
+    <Screen title="Account">
+      <Card>
+        <Text variant="title">{user?.name}</Text>
+        <Text variant="muted">{user?.email}</Text>
+      </Card>
+      <Card>
+        <Text variant="label">Your groups</Text>
+        {(me.data?.groups ?? []).length === 0 ? <Text variant="muted">None yet.</Text> : null}
+        {(me.data?.groups ?? []).map((g) => (
+          <Text key={g.id}>
+            {g.name} — {ROLE_LABELS[g.role]}
+          </Text>
+        ))}
+      </Card>
+      {signOut.error ? <Banner tone="error" message={errorMessage(signOut.error)!} /> : null}
+      <Button
+        label="Sign out"
+        variant="secondary"
+        loading={signOut.isPending}
+        onPress={() => signOut.mutate(undefined, { onSuccess: () => router.replace('/sign-in') })}
+      />
+    </Screen>
+  );
+}

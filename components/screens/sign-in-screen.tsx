@@ -1,0 +1,56 @@
+import { Link, useLocalSearchParams, useRouter } from 'expo-router';
+import { useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import { signInSchema } from '@/shared/schemas/auth';
+import { useSignIn } from '@/hooks/use-session';
+import { colors, fonts, space } from '@/themes/tokens';
+import { Banner } from '../ui/banner';
+import { Button } from '../ui/button';
+import { checkForm, errorMessage, serverFieldErrors, type FieldErrors } from '../ui/form';
+import { Text } from '../ui/text';
+import { TextField } from '../ui/text-field';
+import { AuthFrame } from './auth-form';
+
+/** Only same-app paths are followed after sign-in (no open redirects). */
+export function safeNext(next: unknown): string {
+  return typeof next === 'string' && next.startsWith('/') && !next.startsWith('//') ? next : '/';
+}
+
+export function SignInScreen() {
+  const params = useLocalSearchParams<{ next?: string; email?: string }>();
+  const router = useRouter();
+  const signIn = useSignIn();
+  const [email, setEmail] = useState(params.email ?? '');
+  const [password, setPassword] = useState('');
+  const [errors, setErrors] = useState<FieldErrors>({});
+
+  const submit = () => {
+    const { data, errors: e } = checkForm(signInSchema, { email, password });
+    setErrors(e);
+    if (!data) return;
+    signIn.mutate(data, {
+      onSuccess: () => router.replace(safeNext(params.next) as never),
+      onError: (err) => setErrors(serverFieldErrors(err)),
+    });
+  };
+
+  return (
+    <AuthFrame title="Sign in">
+      {signIn.error && !Object.keys(errors).length ? <Banner tone="error" message={errorMessage(signIn.error)!} /> : null}
+      <TextField label="E-mail" value={email} onChangeText={setEmail} autoComplete="email" inputMode="email" autoCapitalize="none" error={errors.email} onSubmitEditing={submit} />
+      <TextField label="Password" value={password} onChangeText={setPassword} secureTextEntry autoComplete="current-password" error={errors.password} onSubmitEditing={submit} />
+      <Button label="Sign in" onPress={submit} loading={signIn.isPending} />
+      <View style={styles.row}>
+        <Text variant="muted">New here?</Text>
+        <Link href={{ pathname: '/sign-up', params: params.next ? { next: params.next, email } : { email } }} style={styles.link}>
+          Create an account
+        </Link>
+      </View>
+    </AuthFrame>
+  );
+}
+
+const styles = StyleSheet.create({
+  row: { flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' },
+  link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22 },
+});

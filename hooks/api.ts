@@ -1,0 +1,24 @@
+import { QueryClient } from '@tanstack/react-query';
+import { ApiError, createApiClient } from '@/shared/api-client';
+
+/** The app's one API client: same origin, session cookie. */
+export const api = createApiClient();
+
+export const queryClient = new QueryClient({
+  defaultOptions: {
+    queries: {
+      staleTime: 15_000,
+      // Client errors (401, 403, 404, validation) will not change on retry.
+      retry: (count, error) => !(error instanceof ApiError && error.status >= 400 && error.status < 500) && count < 2,
+    },
+  },
+});
+
+export const keys = {
+  me: ['me'] as const,
+  group: (id: string) => ['groups', id] as const,
+  members: (groupId: string) => ['groups', groupId, 'members'] as const,
+  invitations: (groupId: string) => ['groups', groupId, 'invitations'] as const,
+  invitation: (token: string) => ['invitation', token] as const,
+  inbox: ['dev', 'inbox'] as const,
+};

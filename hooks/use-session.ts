@@ -1,0 +1,47 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { ApiError } from '@/shared/api-client';
+import type { SignInInput, SignUpInput } from '@/shared/schemas/auth';
+import type { Me } from '@/shared/schemas/groups';
+import { api, keys } from './api';
+
+/** The signed-in user and their groups; `data` is null when signed out. */
+export function useMe() {
+  return useQuery<Me | null>({
+    queryKey: keys.me,
+    queryFn: async () => {
+      try {
+        return await api.me();
+      } catch (e) {
+        if (e instanceof ApiError && e.status === 401) return null;
+        throw e;
+      }
+    },
+  });
+}
+
+export function useSignIn() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: SignInInput) => api.auth.signIn(input),
+    onSuccess: () => qc.invalidateQueries({ queryKey: keys.me }),
+  });
+}
+
+export function useSignUp() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: SignUpInput) => api.auth.signUp(input),
+    onSuccess: () => qc.invalidateQueries({ queryKey: keys.me }),
+  });
+}
+
+export function useSignOut() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => api.auth.signOut(),
+    onSuccess: () => {
+      qc.clear();
+      qc.setQueryData(keys.me, null);
+    },
+  });
+}
