@@ -7,8 +7,10 @@ export async function insertInvitation(
   db: Executor,
   inv: { groupId: string; email: string; role: GroupRole; tokenHash: string; invitedBy: string; expiresAt: Date },
 ) {
-  const [row] = await db.insert(invitations).values(inv).returning();
-  return row!;
+  // Undefined when the address already has an open invitation to the group (the partial unique
+  // index), also one inserted by a concurrent request after the service's check.
+  const [row] = await db.insert(invitations).values(inv).onConflictDoNothing().returning();
+  return row;
 }
 
 export async function findPendingInvitation(db: Executor, groupId: string, email: string) {

@@ -23,12 +23,12 @@ export async function invite(ctx: Ctx, groupId: string, actor: { id: string; nam
   if (!assignableRoles(actor.role).includes(input.role)) throw forbidden(`A ${actor.role} cannot invite someone as ${input.role}`);
   const members = await gq.listMembers(ctx.db, groupId);
   if (members.some((m) => m.email.toLowerCase() === input.email)) throw conflict(`${input.email} is already a member of this group`);
-  if (await q.findPendingInvitation(ctx.db, groupId, input.email)) {
-    throw conflict(`${input.email} already has an open invitation; revoke it first to send a new one`);
-  }
+  const alreadyInvited = () => conflict(`${input.email} already has an open invitation; revoke it first to send a new one`);
+  if (await q.findPendingInvitation(ctx.db, groupId, input.email)) throw alreadyInvited();
   const token = randomBytes(24).toString('base64url');
   const expiresAt = new Date(Date.now() + INVITATION_DAYS * 86400_000);
   const row = await q.insertInvitation(ctx.db, { groupId, email: input.email, role: input.role, tokenHash: hashToken(token), invitedBy: actor.id, expiresAt });
+  if (!row) throw alreadyInvited();
   const groupName = (await gq.getGroupName(ctx.db, groupId)) ?? 'a group';
   await ctx.mail.send(
     linkMail({
