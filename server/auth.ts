@@ -34,13 +34,20 @@ export type Auth = ReturnType<typeof createAuth>;
 export function authNodeHandler(auth: Auth) {
   return toNodeHandler(async (request: Request) => {
     const response = await auth.handler(request);
-    if (response.status < 400 || !response.headers.get('content-type')?.includes('json')) return response;
-    const body = (await response.clone().json().catch(() => null)) as { code?: string; message?: string; error?: unknown } | null;
-    if (!body || typeof body.error === 'object') return response;
+    if (response.status < 400) return response;
+    const isJson = response.headers.get('content-type')?.includes('json') ?? false;
+    const body = isJson ? ((await response.clone().json().catch(() => null)) as { code?: string; message?: string; error?: unknown } | null) : null;
+    if (body && typeof body.error === 'object') return response;
+    // Unknown auth paths come back as an empty 404 without a content type: give them the API's shape too.
+    const fallback =
+      response.status === 404
+        ? { code: 'not_found', message: `No API route ${request.method} ${new URL(request.url).pathname}` }
+        : { code: 'auth_error', message: 'Authentication failed' };
     const headers = new Headers(response.headers);
     headers.delete('content-length');
-    const code = (body.code ?? 'auth_error').toLowerCase();
-    const message = body.message ?? 'Authentication failed';
+    headers.set('content-type', 'application/json; charset=utf-8');
+    const code = (body?.code ?? fallback.code).toLowerCase();
+    const message = body?.message ?? fallback.message;
     return new Response(JSON.stringify({ error: { code, message } }), { status: response.status, headers });
   });
 }
