@@ -203,17 +203,18 @@ describe('malformed requests', () => {
 
   test('unknown routes → 404 JSON, under /api and under /api/auth, and for a wrong method', async () => {
     const me = await signUp(t.app);
-    const calls = [
-      request(t.app).get('/api/no-such-thing'),
-      me.agent.get('/api/groups/00000000-0000-4000-8000-000000000000/no-such-thing'),
-      me.agent.put('/api/groups').send({ name: 'x' }),
-      request(t.app).get('/api/auth/no-such-thing'),
-      anon().post('/api/auth/no-such-thing').send({}),
-      request(t.app).get('/api/auth/sign-in/email'),
+    const calls: Array<[string, PromiseLike<request.Response>]> = [
+      ['GET /api/no-such-thing', request(t.app).get('/api/no-such-thing')],
+      ['GET below a group', me.agent.get('/api/groups/00000000-0000-4000-8000-000000000000/no-such-thing')],
+      ['PUT /api/groups', me.agent.put('/api/groups').send({ name: 'x' })],
+      ['GET /api/auth/no-such-thing', request(t.app).get('/api/auth/no-such-thing')],
+      ['POST /api/auth/no-such-thing', anon().post('/api/auth/no-such-thing').send({})],
+      ['GET /api/auth/sign-in/email', request(t.app).get('/api/auth/sign-in/email')],
     ];
-    for (const res of await Promise.all(calls)) {
-      expect({ url: res.req.path, status: res.status, type: res.headers['content-type'] }).toEqual({
-        url: res.req.path,
+    for (const [what, call] of calls) {
+      const res = await call;
+      expect({ what, status: res.status, type: res.headers['content-type'] }).toEqual({
+        what,
         status: 404,
         type: expect.stringMatching(/application\/json/),
       });
