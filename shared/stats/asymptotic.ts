@@ -11,6 +11,11 @@ import { Likelihood } from './fit';
 import type { PreparedModel } from './model';
 import { findDecreasingRoot, type RootResult } from './roots';
 
+// Module-scope aliases: cheaper than global lookups in sandboxed runtimes (test runners' VM contexts).
+const { log, max, sqrt } = Math;
+const INF = Number.POSITIVE_INFINITY;
+const isFiniteNumber = Number.isFinite;
+
 /** The profile-likelihood quantities a limit needs, on observed and Asimov data. */
 export interface ProfileSource {
   /** Unconstrained best-fit μ̂ (may be negative). */
@@ -32,8 +37,8 @@ export interface ProfileSource {
 /** 2·(ν − n − n ln(ν/n)): twice the Poisson −ln L of ν relative to its best value n. */
 function poissonDeviance(nu: number, n: number): number {
   if (n === 0) return 2 * nu;
-  if (!(nu > 0)) return Infinity;
-  return 2 * (nu - n - n * Math.log(nu / n));
+  if (!(nu > 0)) return INF;
+  return 2 * (nu - n - n * log(nu / n));
 }
 
 /**
@@ -53,7 +58,7 @@ export class OneBinProfile implements ProfileSource {
     private readonly b: number,
   ) {
     this.muHat = (n - b) / s;
-    this.muHatBounded = Math.max(0, this.muHat);
+    this.muHatBounded = max(0, this.muHat);
     this.muScale = 1 / s;
     this.qAtZero = this.muHat < 0 ? poissonDeviance(b, n) : 0;
   }
@@ -61,7 +66,7 @@ export class OneBinProfile implements ProfileSource {
   qObserved(mu: number): number {
     if (mu <= this.muHatBounded) return 0;
     // CCGV eq. (16): for μ̂ < 0 the denominator is the fit at μ = 0.
-    return Math.max(0, poissonDeviance(mu * this.s + this.b, this.n) - this.qAtZero);
+    return max(0, poissonDeviance(mu * this.s + this.b, this.n) - this.qAtZero);
   }
 
   qAsimov(mu: number): number {
@@ -106,7 +111,7 @@ export class FittedProfile implements ProfileSource {
     }
     this.muScale = 1 / sumS;
     const thetaHat = new Float64Array(nPar);
-    const bounded = obs.fitFree('zero', Math.max(0, (sumN - sumB) / sumS), thetaHat);
+    const bounded = obs.fitFree('zero', max(0, (sumN - sumB) / sumS), thetaHat);
     this.muHatBounded = bounded.mu;
     this.nllMinBounded = bounded.nll;
     if (bounded.mu > 0) {
@@ -118,7 +123,7 @@ export class FittedProfile implements ProfileSource {
     this.thetaAtZero = new Float64Array(nPar);
     const nllZero = obs.fitConditional(0, this.thetaAtZero);
     this.asimovUsed = asimov;
-    if (asimov === 'profiled' && !Number.isFinite(nllZero)) {
+    if (asimov === 'profiled' && !isFiniteNumber(nllZero)) {
       // Observed events where no background is expected: no background-only fit exists.
       this.asimovUsed = 'nominal';
       this.notes.push('The background-only fit to the observed data is impossible (events where no background is expected); the expected limits use the nominal Asimov dataset.');
@@ -139,7 +144,7 @@ export class FittedProfile implements ProfileSource {
   qObserved(mu: number): number {
     if (mu <= this.muHatBounded) return 0;
     const nll = this.observedLikelihood.fitConditional(mu, this.warmObserved);
-    return Math.max(0, 2 * (nll - this.nllMinBounded));
+    return max(0, 2 * (nll - this.nllMinBounded));
   }
 
   /** θ̂̂(μ) on the observed data, written to `out`. */
@@ -150,7 +155,7 @@ export class FittedProfile implements ProfileSource {
 
   qAsimov(mu: number): number {
     // The Asimov −ln L is 0 at its best fit (μ = 0, θ = its constraint centres).
-    return Math.max(0, 2 * this.asimovLikelihood.fitConditional(mu, this.warmAsimov));
+    return max(0, 2 * this.asimovLikelihood.fitConditional(mu, this.warmAsimov));
   }
 
   fitCounts(): { fits: number; failed: number } {
@@ -189,9 +194,9 @@ export function asymptoticCls(q: number, qA: number, out?: ClsValues): ClsValues
     res.clb = 0.5;
     return res;
   }
-  const sA = Math.sqrt(qA);
+  const sA = sqrt(qA);
   if (q <= qA) {
-    const sq = Math.sqrt(q);
+    const sq = sqrt(q);
     res.clsb = normalSf(sq);
     res.clb = normalCdf(sA - sq);
   } else {
@@ -240,7 +245,7 @@ export function asymptoticExpected(source: ProfileSource, alpha: number): { limi
   let guess = 2 * source.muScale;
   for (const key of ['0', '-1', '-2', '1', '2'] as const) {
     const z = expectedSignificance(alpha, BAND_SIGMAS[key]);
-    const result = searchLimit((mu) => z - Math.sqrt(source.qAsimov(mu)), guess, source.muScale);
+    const result = searchLimit((mu) => z - sqrt(source.qAsimov(mu)), guess, source.muScale);
     limits[key] = result.value;
     atEdge ||= result.atEdge;
     guess = result.value;
@@ -251,11 +256,11 @@ export function asymptoticExpected(source: ProfileSource, alpha: number): { limi
 /** Observed limit: CLs(μ) = α (or CLs+b(μ) = α with `clsb`), searched in ln CL for a smooth root. */
 export function asymptoticObserved(source: ProfileSource, alpha: number, guess: number, clsb = false): LimitSearch {
   const values: ClsValues = { cls: 1, clsb: 1, clb: 1 };
-  const lnAlpha = Math.log(alpha);
+  const lnAlpha = log(alpha);
   return searchLimit(
     (mu) => {
       asymptoticCls(source.qObserved(mu), source.qAsimov(mu), values);
-      return Math.log(Math.max(clsb ? values.clsb : values.cls, 1e-300)) - lnAlpha;
+      return log(max(clsb ? values.clsb : values.cls, 1e-300)) - lnAlpha;
     },
     guess,
     source.muScale,

@@ -12,6 +12,11 @@
  */
 import type { PreparedModel } from './model';
 
+// Module-scope aliases: cheaper than global lookups in sandboxed runtimes (test runners' VM contexts).
+const { abs, exp, log, max, min, sqrt } = Math;
+const INF = Number.POSITIVE_INFINITY;
+const isFiniteNumber = Number.isFinite;
+
 /**
  * How μ is bounded below in a free fit: "zero" (μ ≥ 0, the fit that defines q̃_μ in Cowan, Cranmer,
  * Gross, Vitells, Eur. Phys. J. C 71 (2011) 1554) or "feasible" (only ν_i ≥ 0 in every bin: the
@@ -39,6 +44,8 @@ export class Likelihood {
   readonly globals: Float64Array;
   fits = 0;
   failedFits = 0;
+  /** Newton iterations allowed per fit. */
+  maxIterations = MAX_ITERATIONS;
 
   private readonly y: Float64Array;
   private readonly s: Float64Array;
@@ -122,7 +129,7 @@ export class Likelihood {
           for (let i = 0; i < nBins; i++) expo[i] = (expo[i] as number) + t * (logEffects[base + i] as number);
         }
         const base = p * nBins;
-        if (any) for (let i = 0; i < nBins; i++) y[base + i] = (yields[base + i] as number) * Math.exp(expo[i] as number);
+        if (any) for (let i = 0; i < nBins; i++) y[base + i] = (yields[base + i] as number) * exp(expo[i] as number);
         else for (let i = 0; i < nBins; i++) y[base + i] = yields[base + i] as number;
       }
     }
@@ -142,11 +149,11 @@ export class Likelihood {
       const nu = mu * (s[i] as number) + (b[i] as number);
       const n = data[i] as number;
       if (n > 0) {
-        if (!(nu > 0)) return Infinity;
-        total += nu - n - n * Math.log(nu / n);
+        if (!(nu > 0)) return INF;
+        total += nu - n - n * log(nu / n);
       } else {
         // Rounding at the ν = 0 boundary can leave −1e-17: that is still ν = 0.
-        if (nu < -1e-12 * (b[i] as number) - 1e-300) return Infinity;
+        if (nu < -1e-12 * (b[i] as number) - 1e-300) return INF;
         total += nu > 0 ? nu : 0;
       }
     }
@@ -161,7 +168,7 @@ export class Likelihood {
   private muLowerBound(bound: MuBound): number {
     if (bound === 'zero') return 0;
     const { s, b } = this;
-    let lo = -Infinity;
+    let lo = -INF;
     for (let i = 0; i < s.length; i++) {
       const si = s[i] as number;
       if (si > 0) {
@@ -183,7 +190,7 @@ export class Likelihood {
     const mu = freeMu ? (x[0] as number) : fixedMu;
     const d = nPar + off;
     const f = this.nllFromYields(mu, x, off);
-    if (!Number.isFinite(f)) return f;
+    if (!isFiniteNumber(f)) return f;
     for (let i = 0; i < nBins; i++) {
       const n = data[i] as number;
       const nu = mu * (s[i] as number) + (b[i] as number);
@@ -264,11 +271,11 @@ export class Likelihood {
   private solveStep(d: number, m: number): number {
     const { hess, grad, chol, step, idx } = this;
     let maxDiag = 0;
-    for (let a = 0; a < m; a++) maxDiag = Math.max(maxDiag, Math.abs(hess[(idx[a] as number) * d + (idx[a] as number)] as number));
+    for (let a = 0; a < m; a++) maxDiag = max(maxDiag, abs(hess[(idx[a] as number) * d + (idx[a] as number)] as number));
     let lambda = 0;
     for (let attempt = 0; attempt < 60; attempt++) {
       if (cholesky(hess, d, idx, m, lambda, chol)) break;
-      lambda = lambda === 0 ? Math.max(1e-10 * maxDiag, 1e-12) : lambda * 10;
+      lambda = lambda === 0 ? max(1e-10 * maxDiag, 1e-12) : lambda * 10;
     }
     // Forward and back substitution; step[] is indexed like idx.
     for (let a = 0; a < m; a++) {
@@ -295,23 +302,23 @@ export class Likelihood {
     if (freeMu) x[0] = mu0;
     for (let k = 0; k < nPar; k++) x[off + k] = theta[k] as number;
     this.setYields(x, off);
-    if (freeMu) x[0] = Math.max(x[0] as number, this.muLowerBound(bound));
+    if (freeMu) x[0] = max(x[0] as number, this.muLowerBound(bound));
     let f = this.derivatives(x, freeMu, mu0);
-    if (!Number.isFinite(f)) {
+    if (!isFiniteNumber(f)) {
       // Restart from the nominal θ, where every yield is positive.
       for (let k = 0; k < nPar; k++) x[off + k] = 0;
       this.setYields(x, off);
-      if (freeMu) x[0] = Math.max(x[0] as number, this.muLowerBound(bound));
+      if (freeMu) x[0] = max(x[0] as number, this.muLowerBound(bound));
       f = this.derivatives(x, freeMu, mu0);
     }
     let converged = false;
-    if (Number.isFinite(f)) {
-      for (let iter = 0; iter < MAX_ITERATIONS; iter++) {
+    if (isFiniteNumber(f)) {
+      for (let iter = 0; iter < this.maxIterations; iter++) {
         let m = 0;
         let muFixedAtBound = false;
         if (freeMu) {
           const lo = this.muLowerBound(bound);
-          muFixedAtBound = (x[0] as number) <= lo + 1e-12 * (1 + Math.abs(lo)) && (grad[0] as number) > 0;
+          muFixedAtBound = (x[0] as number) <= lo + 1e-12 * (1 + abs(lo)) && (grad[0] as number) > 0;
           if (!muFixedAtBound) idx[m++] = 0;
         }
         for (let k = 0; k < nPar; k++) idx[m++] = off + k;
@@ -326,7 +333,7 @@ export class Likelihood {
         }
         let scale = 1;
         for (let a = 0; a < m; a++) {
-          if ((idx[a] as number) >= off) scale = Math.max(scale, Math.abs(step[a] as number) / MAX_THETA_STEP);
+          if ((idx[a] as number) >= off) scale = max(scale, abs(step[a] as number) / MAX_THETA_STEP);
         }
         let t = 1 / scale;
         let accepted = false;
@@ -334,12 +341,12 @@ export class Likelihood {
           trial.set(x);
           for (let a = 0; a < m; a++) trial[idx[a] as number] = (x[idx[a] as number] as number) + t * (step[a] as number);
           this.setYields(trial, off);
-          if (freeMu) trial[0] = Math.max(trial[0] as number, this.muLowerBound(bound));
+          if (freeMu) trial[0] = max(trial[0] as number, this.muLowerBound(bound));
           const fTrial = this.nllFromYields(freeMu ? (trial[0] as number) : mu0, trial, off);
           // Armijo condition on the (possibly projected) step actually taken.
           let slope = 0;
           for (let j = 0; j < d; j++) slope += (grad[j] as number) * ((trial[j] as number) - (x[j] as number));
-          if (fTrial <= f + 1e-4 * Math.min(slope, 0) && fTrial <= f) {
+          if (fTrial <= f + 1e-4 * min(slope, 0) && fTrial <= f) {
             accepted = true;
             break;
           }
@@ -353,7 +360,7 @@ export class Likelihood {
         }
         x.set(trial);
         f = this.derivatives(x, freeMu, mu0);
-        if (!Number.isFinite(f)) break;
+        if (!isFiniteNumber(f)) break;
       }
     }
     if (!converged) this.failedFits++;
@@ -374,8 +381,8 @@ function cholesky(h: Float64Array, d: number, idx: Int32Array, m: number, lambda
       let sum = (h[ia * d + ic] as number) + (a === c ? lambda : 0);
       for (let e = 0; e < c; e++) sum -= (out[a * m + e] as number) * (out[c * m + e] as number);
       if (a === c) {
-        if (!(sum > 1e-14 * Math.abs(h[ia * d + ia] as number)) || !(sum > 0)) return false;
-        out[a * m + a] = Math.sqrt(sum);
+        if (!(sum > 1e-14 * abs(h[ia * d + ia] as number)) || !(sum > 0)) return false;
+        out[a * m + a] = sqrt(sum);
       } else {
         out[a * m + c] = sum / (out[c * m + c] as number);
       }

@@ -36,7 +36,7 @@ export interface ResolvedOptions {
   curvePoints: number;
 }
 
-export const DEFAULT_TOYS = 2000;
+export const DEFAULT_TOYS = 5000;
 export const DEFAULT_CURVE_POINTS = 40;
 /** Below this many expected background events in a bin that carries signal, asymptotics are doubtful. */
 export const FEW_EVENTS = 5;
@@ -167,7 +167,8 @@ function edgeWarning(): string {
   return 'A limit sits at the edge of the range of μ searched: the data barely constrain μ; treat that limit as a bound of the search, not a result.';
 }
 
-function fitFailureWarning(counts: { fits: number; failed: number }): string | undefined {
+/** The warning for fits that did not converge, or undefined when all did. */
+export function fitFailureWarning(counts: { fits: number; failed: number }): string | undefined {
   if (counts.failed === 0) return undefined;
   return `${counts.failed} of ${counts.fits} likelihood fits did not converge; the result uses the best point each of them reached.`;
 }

@@ -4,12 +4,15 @@
  */
 import { lnFactorial } from './distributions';
 
+// Module-scope aliases: cheaper than global lookups in sandboxed runtimes (test runners' VM contexts).
+const { abs, exp, floor, imul, log, sqrt, trunc } = Math;
+
 /** splitmix32 step: spreads a small seed over the whole generator state. */
 function splitmix32(state: { s: number }): number {
   state.s = (state.s + 0x9e3779b9) | 0;
   let z = state.s;
-  z = Math.imul(z ^ (z >>> 16), 0x85ebca6b);
-  z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35);
+  z = imul(z ^ (z >>> 16), 0x85ebca6b);
+  z = imul(z ^ (z >>> 13), 0xc2b2ae35);
   return (z ^ (z >>> 16)) >>> 0;
 }
 
@@ -22,12 +25,13 @@ export class Random {
   private b: number;
   private c: number;
   private d: number;
-  private spareNormal = NaN;
+  private spareNormal = 0;
+  private hasSpare = false;
 
   constructor(seed: number) {
-    const state = { s: Math.trunc(seed) | 0 };
+    const state = { s: trunc(seed) | 0 };
     // Mix the high part of seeds above 2^32 as well.
-    state.s ^= Math.trunc(seed / 4294967296) | 0;
+    state.s ^= trunc(seed / 4294967296) | 0;
     this.a = splitmix32(state);
     this.b = splitmix32(state);
     this.c = splitmix32(state);
@@ -37,7 +41,7 @@ export class Random {
 
   /** Next 32-bit unsigned integer. */
   nextUint32(): number {
-    const result = Math.imul(rotl(Math.imul(this.b, 5), 7), 9) >>> 0;
+    const result = imul(rotl(imul(this.b, 5), 7), 9) >>> 0;
     const t = this.b << 9;
     this.c ^= this.a;
     this.d ^= this.b;
@@ -57,10 +61,9 @@ export class Random {
 
   /** Standard normal deviate (Marsaglia's polar method; the second deviate is kept for the next call). */
   normal(): number {
-    if (!Number.isNaN(this.spareNormal)) {
-      const v = this.spareNormal;
-      this.spareNormal = NaN;
-      return v;
+    if (this.hasSpare) {
+      this.hasSpare = false;
+      return this.spareNormal;
     }
     let u: number;
     let v: number;
@@ -70,8 +73,9 @@ export class Random {
       v = 2 * this.uniform() - 1;
       s = u * u + v * v;
     } while (s >= 1 || s === 0);
-    const factor = Math.sqrt((-2 * Math.log(s)) / s);
+    const factor = sqrt((-2 * log(s)) / s);
     this.spareNormal = v * factor;
+    this.hasSpare = true;
     return u * factor;
   }
 
@@ -83,7 +87,7 @@ export class Random {
   poisson(lambda: number): number {
     if (!(lambda > 0)) return 0;
     if (lambda < 10) {
-      let p = Math.exp(-lambda);
+      let p = exp(-lambda);
       let cdf = p;
       const u = this.uniform();
       let k = 0;
@@ -96,8 +100,8 @@ export class Random {
       }
       return k;
     }
-    const slam = Math.sqrt(lambda);
-    const logLam = Math.log(lambda);
+    const slam = sqrt(lambda);
+    const logLam = log(lambda);
     const b = 0.931 + 2.53 * slam;
     const a = -0.059 + 0.02483 * b;
     const invAlpha = 1.1239 + 1.1328 / (b - 3.4);
@@ -105,11 +109,11 @@ export class Random {
     for (;;) {
       const u = this.uniform() - 0.5;
       const v = this.uniform();
-      const us = 0.5 - Math.abs(u);
-      const k = Math.floor(((2 * a) / us + b) * u + lambda + 0.43);
+      const us = 0.5 - abs(u);
+      const k = floor(((2 * a) / us + b) * u + lambda + 0.43);
       if (us >= 0.07 && v <= vr) return k;
       if (k < 0 || (us < 0.013 && v > us)) continue;
-      if (Math.log(v) + Math.log(invAlpha) - Math.log(a / (us * us) + b) <= -lambda + k * logLam - lnFactorial(k)) return k;
+      if (log(v) + log(invAlpha) - log(a / (us * us) + b) <= -lambda + k * logLam - lnFactorial(k)) return k;
     }
   }
 }

@@ -16,6 +16,10 @@ import { Likelihood } from './fit';
 import type { PreparedModel } from './model';
 import { Random } from './rng';
 
+// Module-scope aliases: cheaper than global lookups in sandboxed runtimes (test runners' VM contexts).
+const { ceil, log, max, min, round, sqrt } = Math;
+const INF = Number.POSITIVE_INFINITY;
+
 /** q̃_μ of one bin without systematics, closed form (μ̂ = (n − b)/s). */
 function oneBinQ(n: number, mu: number, s: number, b: number): number {
   const muHat = (n - b) / s;
@@ -23,8 +27,8 @@ function oneBinQ(n: number, mu: number, s: number, b: number): number {
   const nu = mu * s + b;
   let q: number;
   if (n === 0) q = 2 * nu;
-  else q = 2 * (nu - n - n * Math.log(nu / n));
-  if (muHat < 0) q -= n === 0 ? 2 * b : 2 * (b - n - n * Math.log(b / n));
+  else q = 2 * (nu - n - n * log(nu / n));
+  if (muHat < 0) q -= n === 0 ? 2 * b : 2 * (b - n - n * log(b / n));
   return q > 0 ? q : 0;
 }
 
@@ -86,21 +90,21 @@ export class ToyCalculator {
     const fill = (slot: number, q: number) => {
       // Pseudo-experiments tie with the observed value when their data are the same: compare with
       // a tolerance above the fits' precision so that ties count as "at least as extreme".
-      const threshold = q - 1e-7 * Math.max(1, q);
+      const threshold = q - 1e-7 * max(1, q);
       const clsb = countAtLeast(this.qsb, threshold) / n;
       const kb = countAtLeast(this.qb, threshold);
       // No background-only pseudo-experiment as extreme: CLb is below 1/n; take half a count.
       const clb = (kb > 0 ? kb : 0.5) / n;
       point.clsb[slot] = clsb;
       point.clb[slot] = clb;
-      point.cls[slot] = Math.min(1, clsb / clb);
+      point.cls[slot] = min(1, clsb / clb);
     };
     fill(0, qObs);
     EXPECTED_KEYS.forEach((key, j) => {
       // Band N: the background-only q̃_μ exceeded with probability Φ(N) (a deficit, N < 0, gives a
       // large q̃_μ and the stronger limit).
       const p = 1 - normalCdf(BAND_SIGMAS[key]);
-      const index = Math.min(n - 1, Math.max(0, Math.ceil(p * n) - 1));
+      const index = min(n - 1, max(0, ceil(p * n) - 1));
       fill(j + 1, this.qb[index] as number);
     });
     this.cache.set(mu, point);
@@ -173,24 +177,24 @@ export interface ToyLimits {
  * measured between 0.9 and 1.1 times the limit.
  */
 export function toyLimits(calc: ToyCalculator, alpha: number, guesses: { observed: number; expected: ExpectedLimits }, muScale: number): ToyLimits {
-  const lnAlpha = Math.log(alpha);
+  const lnAlpha = log(alpha);
   const n = calc.toys;
   let atEdge = false;
-  let fewestInTail = Infinity;
+  let fewestInTail = INF;
   const solve = (slot: number, guess: number): { value: number; error: number } => {
-    const result = searchLimit((mu) => Math.log(Math.max(calc.evaluate(mu).cls[slot] as number, 1e-300)) - lnAlpha, guess, muScale, 1e-4);
+    const result = searchLimit((mu) => log(max(calc.evaluate(mu).cls[slot] as number, 1e-300)) - lnAlpha, guess, muScale, 1e-4);
     atEdge ||= result.atEdge;
     const mu = result.value;
     const at = calc.evaluate(mu);
     const clsb = at.clsb[slot] as number;
     const clb = at.clb[slot] as number;
-    fewestInTail = Math.min(fewestInTail, Math.round(clsb * n), Math.round(clb * n));
+    fewestInTail = min(fewestInTail, round(clsb * n), round(clb * n));
     const cls = at.cls[slot] as number;
     const relVar = (clsb > 0 ? (1 - clsb) / (n * clsb) : 1) + (clb > 0 ? (1 - clb) / (n * clb) : 1);
-    const sigmaCls = cls * Math.sqrt(relVar);
+    const sigmaCls = cls * sqrt(relVar);
     const slope = ((calc.evaluate(0.9 * mu).cls[slot] as number) - (calc.evaluate(1.1 * mu).cls[slot] as number)) / (0.2 * mu);
     // A flat CLs over ±10% means the limit is not resolved better than that.
-    const error = slope > 0 ? Math.min(sigmaCls / slope, mu) : 0.1 * mu;
+    const error = slope > 0 ? min(sigmaCls / slope, mu) : 0.1 * mu;
     return { value: mu, error };
   };
   const obs = solve(0, guesses.observed);
