@@ -54,7 +54,7 @@ export const systematicSchema = z.object({
   effects: z.record(
     z.string(),
     z.union([effectSize(), z.array(effectSize()).min(1, { error: 'must have at least one bin' })], {
-      error: 'must be a number or a list of numbers, one per bin',
+      error: 'must be a finite number greater than -1, or a list of them (one per bin)',
     }),
     { error: 'must be an object mapping process names to relative effects' },
   ),

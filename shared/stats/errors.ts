@@ -42,9 +42,22 @@ export function formatPath(path: ReadonlyArray<PropertyKey>, prefix = ''): strin
   return out;
 }
 
+type Issue = z.core.$ZodIssue;
+
+/**
+ * A union (number or list of numbers) that fails reports one issue for the whole value; the
+ * branch whose type matched holds the precise problem (e.g. which element is not finite).
+ */
+function unwrapUnion(issue: Issue): Issue[] {
+  if (issue.code !== 'invalid_union' || issue.errors.length === 0) return [issue];
+  const matching = issue.errors.find((branch) => branch.length > 0 && !branch.some((i) => i.code === 'invalid_type' && i.path.length === 0));
+  if (!matching) return [issue];
+  return matching.flatMap((inner) => unwrapUnion({ ...inner, path: [...issue.path, ...inner.path] } as Issue));
+}
+
 /** Turns zod issues into a StatsInputError (field paths optionally prefixed, e.g. "model"). */
 export function errorFromZod(error: z.ZodError, prefix = ''): StatsInputError {
-  const problems = error.issues.map((issue) => ({
+  const problems = error.issues.flatMap(unwrapUnion).map((issue) => ({
     field: formatPath(issue.path, prefix) || prefix || 'input',
     reason: issue.message,
   }));
