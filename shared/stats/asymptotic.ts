@@ -117,8 +117,13 @@ export class FittedProfile implements ProfileSource {
     if (bounded.mu > 0) {
       this.muHat = bounded.mu;
     } else {
+      // μ̂ < 0 is reported but used by nothing: q̃_μ takes the μ = 0 fit then. With empty bins its
+      // minimum can sit on the ν_i = 0 boundary, which a Newton fit approaches without meeting the
+      // convergence test; that is not a fit the limits depend on, so it is not counted as failed.
+      const failedBefore = obs.failedFits;
       const thetaFree = Float64Array.from(thetaHat);
       this.muHat = obs.fitFree('feasible', 0, thetaFree).mu;
+      obs.failedFits = failedBefore;
     }
     this.thetaAtZero = new Float64Array(nPar);
     const nllZero = obs.fitConditional(0, this.thetaAtZero);

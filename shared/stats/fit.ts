@@ -311,6 +311,16 @@ export class Likelihood {
       if (freeMu) x[0] = max(x[0] as number, this.muLowerBound(bound));
       f = this.derivatives(x, freeMu, mu0);
     }
+    if (!isFiniteNumber(f) && freeMu) {
+      // Events in a bin with no background need signal there: start with enough μ to explain them.
+      const { data, s, b } = this;
+      let need = x[0] as number;
+      for (let i = 0; i < data.length; i++) {
+        if ((data[i] as number) > 0 && !((b[i] as number) > 0) && (s[i] as number) > 0) need = max(need, (data[i] as number) / (s[i] as number));
+      }
+      x[0] = need;
+      f = this.derivatives(x, freeMu, mu0);
+    }
     let converged = false;
     if (isFiniteNumber(f)) {
       for (let iter = 0; iter < this.maxIterations; iter++) {
@@ -363,7 +373,9 @@ export class Likelihood {
         if (!isFiniteNumber(f)) break;
       }
     }
-    if (!converged) this.failedFits++;
+    // A likelihood that is zero everywhere (events where this μ allows no expectation) is an
+    // answer, not a failure to converge: the caller sees −ln L = +∞.
+    if (!converged && isFiniteNumber(f)) this.failedFits++;
     for (let k = 0; k < nPar; k++) theta[k] = x[off + k] as number;
     return { nll: f, mu: freeMu ? (x[0] as number) : mu0, converged };
   }
