@@ -8,6 +8,8 @@ import normal from '@stdlib/stats-base-dists-normal';
 import chisquare from '@stdlib/stats-base-dists-chisquare';
 import poisson from '@stdlib/stats-base-dists-poisson';
 import { computeLimit, EXPECTED_KEYS, type CountingModelInput, type LimitResult } from '@/shared/stats';
+import { FittedProfile } from '@/shared/stats/asymptotic';
+import { prepareModel } from '@/shared/stats/model';
 
 const ALPHA = 0.05;
 const Phi = (x: number) => normal.cdf(x, 0, 1);
@@ -202,6 +204,31 @@ describe.each([
       expect(Math.sqrt(ref.qA(r.expected[key])) / z).toBeCloseTo(1, 3);
     }
     expectOrderedBands(r);
+  });
+});
+
+describe('the profiled Asimov dataset', () => {
+  test('a fit to it returns μ = 0 and the nuisance parameters of the background-only fit to the data', () => {
+    // CCGV sect. 3.1 with the constraint centres moved to θ̂̂(0): the Asimov data reproduce their own parameters.
+    const profile = new FittedProfile(
+      prepareModel({
+        observed: [19, 4, 11],
+        signal: [1, 2, 1],
+        backgrounds: [{ name: 'flat', yields: [14, 6, 9] }],
+        systematics: [
+          { name: 'norm', effects: { flat: 0.15 } },
+          { name: 'tilt', effects: { flat: [-0.1, 0, 0.1] } },
+        ],
+      }),
+      'profiled',
+    );
+    const theta = new Float64Array(2);
+    const fit = profile.asimovLikelihood.fitFree('feasible', 0.5, theta);
+    expect(fit.mu).toBeCloseTo(0, 6);
+    expect(theta[0]).toBeCloseTo(profile.thetaAtZero[0] as number, 6);
+    expect(theta[1]).toBeCloseTo(profile.thetaAtZero[1] as number, 6);
+    expect(Math.abs(profile.thetaAtZero[0] as number)).toBeGreaterThan(0.1); // the data did pull it
+    expect(fit.nll).toBeCloseTo(0, 9);
   });
 });
 
