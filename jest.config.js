@@ -20,7 +20,8 @@ module.exports = {
       displayName: 'components',
       preset: 'jest-expo',
       transformIgnorePatterns: [
-        `node_modules/(?!((jest-)?react-native|@react-native(-community)?|expo(nent)?|@expo(nent)?/.*|@expo-google-fonts/.*|react-navigation|@react-navigation/.*|react-native-svg|${esmPackages.join('|')})/)`,
+        // jest-expo's documented pattern plus the ESM-only packages above.
+        `node_modules/(?!((jest-)?react-native|@react-native(-community)?)|expo(nent)?|@expo(nent)?/.*|@expo-google-fonts/.*|react-navigation|@react-navigation/.*|react-native-svg|${esmPackages.join('|')})`,
       ],
       moduleNameMapper: { '^@/(.*)$': '<rootDir>/$1' },
       testMatch: ['<rootDir>/tests/unit/**/*.test.tsx'],

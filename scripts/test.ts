@@ -30,7 +30,7 @@ type JestSummary = { passed: number; failed: number };
 
 function runJest(args: string[], outFile: string, env: Record<string, string | undefined>): JestSummary {
   fs.rmSync(outFile, { force: true });
-  spawnSync(process.execPath, [path.join(ROOT, 'node_modules/jest/bin/jest.js'), ...args, '--json', `--outputFile=${outFile}`], {
+  spawnSync(process.execPath, [path.join(ROOT, 'node_modules/jest/bin/jest.js'), '--forceExit', ...args, '--json', `--outputFile=${outFile}`], {
     cwd: ROOT,
     stdio: 'inherit',
     env: env as NodeJS.ProcessEnv,

@@ -16,7 +16,7 @@ const schema = z
     /** Requests per minute per IP on /api/auth sign-in and sign-up. */
     AUTH_RATE_LIMIT: z.coerce.number().int().positive().default(20),
     /** "outbox": mail is stored in the dev_mail table (the local mail fake); "smtp": sent via SMTP_URL. */
-    MAIL_MODE: z.enum(['outbox', 'smtp']).default('outbox'),
+    MAIL_MODE: z.enum(['outbox', 'smtp']).optional(),
     SMTP_URL: z.string().optional(),
     MAIL_FROM: z.string().default('Bandwright <no-reply@bandwright.invalid>'),
     WEB_DIST: z.string().optional(),
@@ -25,12 +25,14 @@ const schema = z
     if (v.NODE_ENV === 'production' && !v.AUTH_SECRET) {
       ctx.addIssue({ code: 'custom', path: ['AUTH_SECRET'], message: 'AUTH_SECRET (32+ characters) is required in production' });
     }
-    if (v.MAIL_MODE === 'smtp' && !v.SMTP_URL) {
-      ctx.addIssue({ code: 'custom', path: ['SMTP_URL'], message: 'SMTP_URL is required when MAIL_MODE=smtp' });
+    // Production sends real mail unless told otherwise; elsewhere mail stays in the local outbox.
+    const mode = v.MAIL_MODE ?? (v.NODE_ENV === 'production' ? 'smtp' : 'outbox');
+    if (mode === 'smtp' && !v.SMTP_URL) {
+      ctx.addIssue({ code: 'custom', path: ['SMTP_URL'], message: 'SMTP_URL is required when mail is sent by SMTP (MAIL_MODE=smtp, the production default)' });
     }
   });
 
-export type Env = z.infer<typeof schema> & { PUBLIC_URL: string; AUTH_SECRET: string; devTools: boolean };
+export type Env = z.infer<typeof schema> & { PUBLIC_URL: string; AUTH_SECRET: string; MAIL_MODE: 'outbox' | 'smtp'; devTools: boolean };
 
 /** Parses and checks the environment (process.env by default; tests pass their own). */
 export function loadEnv(vars: Record<string, string | undefined> = process.env): Env {
@@ -42,6 +44,7 @@ export function loadEnv(vars: Record<string, string | undefined> = process.env):
   const v = parsed.data;
   return {
     ...v,
+    MAIL_MODE: v.MAIL_MODE ?? (v.NODE_ENV === 'production' ? 'smtp' : 'outbox'),
     PUBLIC_URL: (v.PUBLIC_URL ?? `http://127.0.0.1:${v.PORT}`).replace(/\/$/, ''),
     // A fixed development secret is fine: it only signs cookies of a loopback-only dev server.
     AUTH_SECRET: v.AUTH_SECRET ?? 'bandwright-development-secret-not-for-production-use',

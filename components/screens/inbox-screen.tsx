@@ -1,5 +1,6 @@
 import { useState } from 'react';
-import { Linking, Pressable, StyleSheet, View } from 'react-native';
+import { useRouter } from 'expo-router';
+import { Linking, Platform, Pressable, StyleSheet, View } from 'react-native';
 import { useInbox } from '@/hooks/use-groups';
 import { useMe } from '@/hooks/use-session';
 import { colors, space } from '@/themes/tokens';
@@ -15,12 +16,19 @@ const URL_RE = /(https?:\/\/[^\s]+)/g;
 
 /** Mail text with its links made pressable (the text itself is never interpreted as HTML). */
 function MailText({ text }: { text: string }) {
+  const router = useRouter();
   const parts = text.split(URL_RE);
+  // Links into this app open in place; anything else goes to the browser.
+  const open = (url: string) => {
+    const here = Platform.OS === 'web' && typeof window !== 'undefined' ? window.location.origin : null;
+    if (here && url.startsWith(`${here}/`)) router.push(url.slice(here.length) as never);
+    else void Linking.openURL(url);
+  };
   return (
     <Text>
       {parts.map((p, i) =>
         /^https?:\/\//.test(p) ? (
-          <Text key={i} role="link" style={styles.link} onPress={() => void Linking.openURL(p)}>
+          <Text key={i} role="link" style={styles.link} onPress={() => open(p)}>
             {p}
           </Text>
         ) : (

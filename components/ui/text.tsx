@@ -5,8 +5,8 @@ type Variant = 'body' | 'label' | 'caption' | 'title' | 'heading' | 'muted';
 
 /** Text in the app's type scale. Headings get the header role for screen readers. */
 export function Text({ variant = 'body', style, ...rest }: TextProps & { variant?: Variant }) {
-  const isHeader = variant === 'title' || variant === 'heading';
-  return <RNText role={isHeader ? 'heading' : undefined} style={[styles.base, styles[variant], style]} {...rest} />;
+  const level = variant === 'heading' ? 1 : variant === 'title' ? 2 : undefined;
+  return <RNText role={level ? 'heading' : undefined} aria-level={level} style={[styles.base, styles[variant], style]} {...rest} />;
 }
 
 const styles = StyleSheet.create({

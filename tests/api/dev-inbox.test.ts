@@ -53,7 +53,7 @@ describe('the development inbox', () => {
 describe('in production', () => {
   let prod: TestApp;
   beforeAll(async () => {
-    prod = await startTestApp({ NODE_ENV: 'production', AUTH_SECRET: 'x'.repeat(40) });
+    prod = await startTestApp({ NODE_ENV: 'production', AUTH_SECRET: 'x'.repeat(40), MAIL_MODE: 'outbox' });
   });
   afterAll(async () => prod?.close());
 

@@ -1,0 +1,88 @@
+import fs from 'node:fs';
+import type { Server } from 'node:http';
+import type { AddressInfo } from 'node:net';
+import path from 'node:path';
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { createApp } from '@/server/app';
+import { closeContext, createContext, type Ctx } from '@/server/context';
+import { loadEnv } from '@/server/env';
+import { createTestDatabase } from './db';
+
+export const SCREENSHOT_DIR = path.resolve(__dirname, '../../test-results/screenshots');
+export const VIEWPORTS = { phone: { width: 390, height: 844 }, wide: { width: 1280, height: 800 } } as const;
+export type ViewportName = keyof typeof VIEWPORTS;
+
+export type E2E = { base: string; ctx: Ctx; browser: Browser; close: () => Promise<void> };
+
+/**
+ * The real server (API + exported web app from dist/) on a free port with a fresh database, and
+ * Debian's Chromium driven by playwright-core. `npm test` builds dist/ before running these.
+ */
+export async function startE2E(): Promise<E2E> {
+  if (process.env.CHROMIUM_PROBLEM) throw new Error(process.env.CHROMIUM_PROBLEM);
+  const db = await createTestDatabase();
+  // Port first, so PUBLIC_URL (trusted origin, links in mail) is the real address.
+  const probe = await new Promise<Server>((resolve) => {
+    const s = require('node:http').createServer();
+    s.listen(0, '127.0.0.1', () => resolve(s));
+  });
+  const port = (probe.address() as AddressInfo).port;
+  await new Promise((r) => probe.close(r));
+  const base = `http://127.0.0.1:${port}`;
+  const ctx = createContext(loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'development', PUBLIC_URL: base, PORT: String(port), AUTH_RATE_LIMIT: '1000' }));
+  const server = await new Promise<Server>((resolve) => {
+    const s = createApp(ctx).listen(port, '127.0.0.1', () => resolve(s));
+  });
+  const stopServer = async () => {
+    await new Promise((r) => server.close(r));
+    await closeContext(ctx);
+    await db.drop();
+  };
+  // playwright-core gives every launch a fresh temporary profile of its own.
+  const browser = await chromium
+    .launch({
+    executablePath: '/usr/bin/chromium',
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
+    })
+    .catch(async (err: unknown) => {
+      await stopServer();
+      throw err;
+    });
+  fs.mkdirSync(SCREENSHOT_DIR, { recursive: true });
+  return {
+    base,
+    ctx,
+    browser,
+    close: async () => {
+      await browser.close();
+      await stopServer();
+    },
+  };
+}
+
+export async function newPage(e: E2E, viewport: ViewportName): Promise<{ context: BrowserContext; page: Page }> {
+  const context = await e.browser.newContext({ viewport: VIEWPORTS[viewport], baseURL: e.base });
+  const page = await context.newPage();
+  page.setDefaultTimeout(15_000);
+  const errors: string[] = [];
+  page.on('pageerror', (err) => errors.push(err.message));
+  uncaught.set(page, errors);
+  return { context, page };
+}
+
+/** Uncaught errors the page threw so far (a screen that crashed fails its test). */
+export const pageErrors = (page: Page): string[] => uncaught.get(page) ?? [];
+const uncaught = new WeakMap<Page, string[]>();
+
+export async function shot(page: Page, viewport: ViewportName, name: string) {
+  await page.screenshot({ path: path.join(SCREENSHOT_DIR, `${viewport}-${name}.png`), fullPage: true });
+}
