@@ -12,6 +12,24 @@ import type {
   UpdateGroupInput,
 } from './schemas/groups';
 import type { ErrorDetail } from './errors';
+import type {
+  ApiTokenSummary,
+  CreateResultInput,
+  CreateVersionInput,
+  ResultDetail,
+  ResultListQuery,
+  ResultPage,
+  ResultVersion,
+  UpdateDraftInput,
+} from './schemas/results';
+
+/** `?a=1&b=x` from the defined entries of a query object ('' when none). */
+function qs(query: Record<string, string | number | boolean | undefined>): string {
+  const parts = Object.entries(query)
+    .filter(([, v]) => v !== undefined && v !== '')
+    .map(([k, v]) => `${encodeURIComponent(k)}=${encodeURIComponent(String(v))}`);
+  return parts.length ? `?${parts.join('&')}` : '';
+}
 
 /** An error answered by the API, with its code, message and per-field details. */
 export class ApiError extends Error {
@@ -48,12 +66,14 @@ export function createApiClient(opts: ApiClientOptions = {}) {
 
   async function call<T>(method: Method, path: string, body?: unknown): Promise<T> {
     let res: Response;
+    const isForm = typeof FormData !== 'undefined' && body instanceof FormData;
     try {
       res = await doFetch(`${base}${path}`, {
         method,
         credentials: 'include',
-        headers: { Accept: 'application/json', ...(body !== undefined ? { 'Content-Type': 'application/json' } : {}), ...opts.headers },
-        body: body !== undefined ? JSON.stringify(body) : undefined,
+        // A FormData body sets its own multipart content type (with the boundary).
+        headers: { Accept: 'application/json', ...(body !== undefined && !isForm ? { 'Content-Type': 'application/json' } : {}), ...opts.headers },
+        body: body === undefined ? undefined : isForm ? (body as FormData) : JSON.stringify(body),
       });
     } catch {
       throw new ApiError(0, 'network', 'Cannot reach the server; check your connection and try again');
@@ -104,6 +124,45 @@ export function createApiClient(opts: ApiClientOptions = {}) {
     },
     dev: {
       inbox: () => call<{ messages: MailMessage[] }>('GET', '/api/dev/inbox'),
+    },
+    results: {
+      /** Results visible to the caller: their groups' (all states) and everyone's public published ones. */
+      list: (query: ResultListQuery = {}) => call<ResultPage>('GET', `/api/results${qs(query)}`),
+      listInGroup: (groupId: string, query: Omit<ResultListQuery, 'groupId'> = {}) =>
+        call<ResultPage>('GET', `/api/groups/${enc(groupId)}/results${qs(query)}`),
+      /** JSON body, or FormData with `file` (CSV or the project's JSON), `meta` (JSON text) and optional `mapping` (JSON text). */
+      create: (groupId: string, input: CreateResultInput | FormData) => call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results`, input),
+      get: (groupId: string, resultId: string) => call<ResultDetail>('GET', `/api/groups/${enc(groupId)}/results/${enc(resultId)}`),
+      setVisibility: (groupId: string, resultId: string, isPublic: boolean) =>
+        call<ResultDetail>('PATCH', `/api/groups/${enc(groupId)}/results/${enc(resultId)}`, { public: isPublic }),
+      remove: (groupId: string, resultId: string) => call<void>('DELETE', `/api/groups/${enc(groupId)}/results/${enc(resultId)}`),
+      addVersion: (groupId: string, resultId: string, input: CreateVersionInput | FormData) =>
+        call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions`, input),
+      version: (groupId: string, resultId: string, version: number) =>
+        call<ResultVersion>('GET', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}`),
+      updateDraft: (groupId: string, resultId: string, version: number, input: UpdateDraftInput) =>
+        call<ResultVersion>('PATCH', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}`, input),
+      deleteDraft: (groupId: string, resultId: string, version: number) =>
+        call<void>('DELETE', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}`),
+      publish: (groupId: string, resultId: string, version: number, input: { public?: boolean } = {}) =>
+        call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/publish`, input),
+      retract: (groupId: string, resultId: string, version: number, reason: string) =>
+        call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/retract`, { reason }),
+      /** A version by its permanent link, for anyone allowed to see it (public, or a member of its group). */
+      byLink: (slug: string, version: number) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/v${version}`),
+      exportUrl: (groupId: string, resultId: string, version: number, format: 'csv' | 'json') =>
+        `${base}/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/export.${format}`,
+    },
+    publicResults: {
+      list: (query: { q?: string; page?: number; pageSize?: number } = {}) => call<ResultPage>('GET', `/api/public/results${qs(query)}`),
+      get: (slug: string, version: number) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/v${version}`),
+      exportUrl: (slug: string, version: number, format: 'csv' | 'json') => `${base}/api/public/results/${enc(slug)}/v${version}/export.${format}`,
+    },
+    tokens: {
+      list: () => call<{ tokens: ApiTokenSummary[] }>('GET', '/api/tokens'),
+      /** The token text is in the answer once and never again. */
+      create: (name: string) => call<ApiTokenSummary & { token: string }>('POST', '/api/tokens', { name }),
+      revoke: (tokenId: string) => call<void>('DELETE', `/api/tokens/${enc(tokenId)}`),
     },
   };
 }

@@ -1,0 +1,242 @@
+/**
+ * CSV limit tables: decoding, parsing (comma, semicolon or tab; decimal commas in semicolon and tab
+ * files), auto-detection of which column holds what, and conversion to a curve with every problem
+ * named by line and column. Used by the app (preview before upload) and the server (the authority).
+ */
+import Papa from 'papaparse';
+import type { Curve, Theory } from '../schemas/results';
+import { checkCurve, type CurveProblem } from './check';
+
+export const COLUMN_ROLES = [
+  'x',
+  'observed',
+  'expected',
+  'expectedMinus2',
+  'expectedMinus1',
+  'expectedPlus1',
+  'expectedPlus2',
+  'theory',
+  'theoryLower',
+  'theoryUpper',
+] as const;
+export type ColumnRole = (typeof COLUMN_ROLES)[number];
+
+export const ROLE_TITLES: Record<ColumnRole, string> = {
+  x: 'Parameter (x)',
+  observed: 'Observed limit',
+  expected: 'Expected median',
+  expectedMinus2: 'Expected −2σ',
+  expectedMinus1: 'Expected −1σ',
+  expectedPlus1: 'Expected +1σ',
+  expectedPlus2: 'Expected +2σ',
+  theory: 'Theory',
+  theoryLower: 'Theory lower edge',
+  theoryUpper: 'Theory upper edge',
+};
+
+/** Column index per role; a role absent from the map is not in the file. */
+export type ColumnMapping = Partial<Record<ColumnRole, number>>;
+
+export type CsvTable = { headers: string[]; rows: string[][]; delimiter: ',' | ';' | '\t'; /** file line of each data row */ lines: number[] };
+
+export class CsvFileError extends Error {
+  constructor(readonly problems: CurveProblem[]) {
+    super(problems[0] ? `${problems[0].row ? `line ${problems[0].row}, ` : ''}${problems[0].column}: ${problems[0].reason}` : 'invalid file');
+  }
+}
+
+/**
+ * Bytes → text. UTF-8 (with or without BOM) and UTF-16 with BOM are accepted; anything else is
+ * refused with a message that says how to fix it, rather than guessed.
+ */
+export function decodeText(bytes: Uint8Array): string {
+  if (bytes.length >= 2 && bytes[0] === 0xff && bytes[1] === 0xfe) return new TextDecoder('utf-16le').decode(bytes.subarray(2));
+  if (bytes.length >= 2 && bytes[0] === 0xfe && bytes[1] === 0xff) return new TextDecoder('utf-16be').decode(bytes.subarray(2));
+  try {
+    const text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
+    return text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+  } catch {
+    throw new CsvFileError([{ column: 'file', reason: 'is not UTF-8 text; save it as "CSV UTF-8" and upload again' }]);
+  }
+}
+
+/** Parses CSV text, detecting the delimiter among comma, semicolon and tab. */
+export function parseCsv(text: string): CsvTable {
+  if (!text.trim()) throw new CsvFileError([{ column: 'file', reason: 'is empty' }]);
+  if (text.includes('\u0000')) throw new CsvFileError([{ column: 'file', reason: 'looks binary, not like a text table' }]);
+  const firstLine = text.split(/\r?\n/, 1)[0] ?? '';
+  const counts = { ',': 0, ';': 0, '\t': 0 } as Record<',' | ';' | '\t', number>;
+  for (const ch of firstLine) if (ch in counts) counts[ch as keyof typeof counts]++;
+  const delimiter = (Object.entries(counts).sort((a, b) => b[1] - a[1])[0]![1] > 0
+    ? Object.entries(counts).sort((a, b) => b[1] - a[1])[0]![0]
+    : ',') as CsvTable['delimiter'];
+  const parsed = Papa.parse<string[]>(text, { delimiter, skipEmptyLines: false });
+  const all = parsed.data;
+  // Keep file line numbers; skip blank lines and comment lines starting with '#'.
+  const kept: { cells: string[]; line: number }[] = [];
+  all.forEach((cells, i) => {
+    if (cells.every((c) => c.trim() === '')) return;
+    if ((cells[0] ?? '').trim().startsWith('#')) return;
+    kept.push({ cells: cells.map((c) => c.trim()), line: i + 1 });
+  });
+  if (kept.length === 0) throw new CsvFileError([{ column: 'file', reason: 'has no rows' }]);
+  const header = kept[0]!;
+  const headerLooksNumeric = header.cells.every((c) => parseNumber(c, delimiter) !== null);
+  if (headerLooksNumeric) throw new CsvFileError([{ row: header.line, column: 'header', reason: 'the first row must name the columns (e.g. mass, observed, expected)' }]);
+  if (header.cells.length < 2) {
+    throw new CsvFileError([{ row: header.line, column: 'header', reason: 'has one column only; use commas, semicolons or tabs between columns' }]);
+  }
+  const body = kept.slice(1);
+  if (body.length === 0) throw new CsvFileError([{ column: 'file', reason: 'has a header but no data rows' }]);
+  return { headers: header.cells, rows: body.map((r) => r.cells), lines: body.map((r) => r.line), delimiter };
+}
+
+/** A cell as a number, or null. Semicolon and tab files may use a decimal comma ("1,25"). */
+export function parseNumber(cell: string, delimiter: CsvTable['delimiter']): number | null {
+  let s = cell.trim().replace(/\u2212/g, '-');
+  if (delimiter !== ',' && /^[-+]?\d+,\d+([eE][-+]?\d+)?$/.test(s)) s = s.replace(',', '.');
+  if (!/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(s)) return null;
+  const v = Number(s);
+  return Number.isFinite(v) ? v : null;
+}
+
+/** Lower-cased header with σ, minus signs, spaces and separators normalised for matching. */
+function norm(h: string): string {
+  return h
+    .toLowerCase()
+    .replace(/σ/g, 'sigma')
+    .replace(/[\u2212\u2013]/g, '-')
+    .replace(/[\s_.:()[\]]+/g, '');
+}
+
+const DOWN = /(-|minus|down|dn|lo(w|wer)?)/;
+const UP = /(\+|plus|up|hi(gh|gher)?|upper)/;
+
+/** Guesses the role of each column from its header; the user confirms or changes it. */
+export function detectRoles(headers: string[]): ColumnMapping {
+  const mapping: ColumnMapping = {};
+  const take = (role: ColumnRole, i: number) => {
+    if (mapping[role] === undefined && !Object.values(mapping).includes(i)) mapping[role] = i;
+  };
+  headers.forEach((raw, i) => {
+    const h = norm(raw);
+    const sigma = /(2sigma|2s$|2sd|95)/.test(h) ? 2 : /(1sigma|1s$|1sd|68)/.test(h) ? 1 : 0;
+    if (/^(theo|th$|thxs|prediction|xsecth|sigmath|nominal)/.test(h) || h.includes('theory')) {
+      if (DOWN.test(h.replace(/^theo(ry)?/, ''))) take('theoryLower', i);
+      else if (UP.test(h.replace(/^theo(ry)?/, ''))) take('theoryUpper', i);
+      else take('theory', i);
+    } else if (h.includes('obs')) take('observed', i);
+    else if (h.includes('exp') || h.includes('median') || sigma > 0) {
+      if (sigma === 0) take('expected', i);
+      else {
+        const rest = h.replace(/expected|exp|limit|median/g, '');
+        const down = /(^-|minus|down|dn|lo(w|wer)?)/.test(rest) || /-[12]/.test(rest);
+        const up = /(^\+|plus|up|hi(gh|gher)?)/.test(rest) || /\+[12]/.test(rest);
+        if (down && !up) take(sigma === 2 ? 'expectedMinus2' : 'expectedMinus1', i);
+        else if (up && !down) take(sigma === 2 ? 'expectedPlus2' : 'expectedPlus1', i);
+      }
+    } else if (/^(x|m|mass|param|parameter)$/.test(h) || /^m[a-z]*$/.test(h) || h.startsWith('mass') || h.startsWith('m(') || h.startsWith('m_')) take('x', i);
+  });
+  if (mapping.x === undefined) {
+    const firstFree = headers.findIndex((_, i) => !Object.values(mapping).includes(i));
+    if (firstFree >= 0) mapping.x = firstFree;
+  }
+  return mapping;
+}
+
+/**
+ * Builds the curve (and the theory curve, on the same grid) from a table and a mapping. Every
+ * problem is named by file line and column header; nothing is returned unless all is valid.
+ */
+export function tableToCurve(table: CsvTable, mapping: ColumnMapping): { curve: Curve; theory: Theory | null } {
+  const problems: CurveProblem[] = [];
+  const seen = new Map<number, ColumnRole>();
+  for (const [role, idx] of Object.entries(mapping) as [ColumnRole, number][]) {
+    if (idx < 0 || idx >= table.headers.length) problems.push({ column: ROLE_TITLES[role], reason: `points at column ${idx + 1}, but the file has ${table.headers.length}` });
+    else if (seen.has(idx)) problems.push({ column: table.headers[idx] ?? `column ${idx + 1}`, reason: `is mapped twice (${ROLE_TITLES[seen.get(idx)!]} and ${ROLE_TITLES[role]})` });
+    else seen.set(idx, role);
+  }
+  if (mapping.x === undefined) problems.push({ column: 'mapping', reason: 'choose the column that holds the parameter (x)' });
+  if (mapping.observed === undefined && mapping.expected === undefined) {
+    problems.push({ column: 'mapping', reason: 'choose at least an observed or an expected median column' });
+  }
+  if (problems.length) throw new CsvFileError(problems);
+
+  const col = (role: ColumnRole): number[] | undefined => {
+    const idx = mapping[role];
+    if (idx === undefined) return undefined;
+    const name = table.headers[idx] ?? `column ${idx + 1}`;
+    return table.rows.map((row, r) => {
+      const cell = row[idx];
+      if (cell === undefined || cell === '') {
+        problems.push({ row: table.lines[r], column: name, reason: 'is empty' });
+        return NaN;
+      }
+      const v = parseNumber(cell, table.delimiter);
+      if (v === null) problems.push({ row: table.lines[r], column: name, reason: `"${cell.slice(0, 40)}" is not a number` });
+      return v ?? NaN;
+    });
+  };
+  table.rows.forEach((row, r) => {
+    if (row.length !== table.headers.length) {
+      problems.push({ row: table.lines[r], column: 'row', reason: `has ${row.length} cells but the header has ${table.headers.length} (wrong delimiter or a stray separator?)` });
+    }
+  });
+  const x = col('x')!;
+  const expected = {
+    '-2': col('expectedMinus2'),
+    '-1': col('expectedMinus1'),
+    '0': col('expected'),
+    '1': col('expectedPlus1'),
+    '2': col('expectedPlus2'),
+  };
+  const curve: Curve = { x, observed: col('observed') };
+  const exp = Object.fromEntries(Object.entries(expected).filter(([, v]) => v)) as Curve['expected'];
+  if (exp && Object.keys(exp).length) curve.expected = exp;
+  if (!curve.observed) delete curve.observed;
+  const central = col('theory');
+  const lower = col('theoryLower');
+  const upper = col('theoryUpper');
+  if ((lower || upper) && !central) problems.push({ column: 'mapping', reason: 'a theory band needs the central theory column too' });
+  const theory: Theory | null = central ? { x: [...x], central, ...(lower ? { lower } : {}), ...(upper ? { upper } : {}) } : null;
+  if (problems.length) throw new CsvFileError(problems);
+
+  // Semantic checks, reported with file lines and the user's own column names.
+  const headerOf = (role: ColumnRole) => (mapping[role] !== undefined ? table.headers[mapping[role]!] : undefined);
+  const columnNames: Record<string, string | undefined> = {
+    parameter: headerOf('x'),
+    observed: headerOf('observed'),
+    'expected median': headerOf('expected'),
+    'expected −2σ': headerOf('expectedMinus2'),
+    'expected −1σ': headerOf('expectedMinus1'),
+    'expected +1σ': headerOf('expectedPlus1'),
+    'expected +2σ': headerOf('expectedPlus2'),
+    theory: headerOf('theory'),
+    'theory lower edge': headerOf('theoryLower'),
+    'theory upper edge': headerOf('theoryUpper'),
+    'theory parameter': headerOf('x'),
+  };
+  const semantic = checkCurve(curve, theory, (i) => table.lines[i] ?? i + 1).map((p) => ({
+    ...p,
+    column: columnNames[p.column] ?? p.column,
+    // Theory rows share the table's grid: map their point number to the file line too.
+    row: p.column.startsWith('theory') && p.row !== undefined ? table.lines[p.row - 1] : p.row,
+  }));
+  if (semantic.length) throw new CsvFileError(semantic);
+  return { curve, theory };
+}
+
+/** Curve (and theory on the same grid) → CSV text with plain headers, for downloads. */
+export function curveToCsv(curve: Curve, theory: Theory | null, headers: { x: string }): string {
+  const cols: [string, number[]][] = [[headers.x, curve.x]];
+  if (curve.observed) cols.push(['observed', curve.observed]);
+  const names: Record<string, string> = { '-2': 'expected_minus_2sigma', '-1': 'expected_minus_1sigma', '0': 'expected', '1': 'expected_plus_1sigma', '2': 'expected_plus_2sigma' };
+  for (const k of ['0', '-2', '-1', '1', '2'] as const) if (curve.expected?.[k]) cols.push([names[k]!, curve.expected[k]!]);
+  const sameGrid = theory && theory.x.length === curve.x.length && theory.x.every((v, i) => v === curve.x[i]);
+  if (theory && sameGrid) {
+    cols.push(['theory', theory.central]);
+    if (theory.lower) cols.push(['theory_lower', theory.lower]);
+    if (theory.upper) cols.push(['theory_upper', theory.upper]);
+  }
+  return Papa.unparse({ fields: cols.map((c) => c[0]), data: curve.x.map((_, i) => cols.map((c) => c[1][i])) }, { newline: '\n' }) + '\n';
+}
