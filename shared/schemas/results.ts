@@ -114,7 +114,7 @@ export const resultListQuery = z.object({
   page: z.coerce.number().int().min(1).default(1),
   pageSize: z.coerce.number().int().min(1).max(100).default(20),
 });
-export type ResultListQuery = z.input<typeof resultListQuery>;
+export type ResultListQuery = Partial<z.output<typeof resultListQuery>>;
 
 /** One row of a results list: the result with its latest visible version. */
 export type ResultSummary = {
