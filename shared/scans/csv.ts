@@ -1,0 +1,156 @@
+/**
+ * The scan CSV layout: one row per grid point and bin.
+ *
+ *   x, sigma_nominal, bin, observed, signal, background:<name>…, systematic:<name>:<process>…
+ *
+ * - `x` is the parameter value of the grid point (rows with the same x form one point, in file order);
+ * - `sigma_nominal` (optional) the nominal σ×B of the point (same on all its rows), for σ×B limits;
+ * - `bin` a label of the bin (kept for reading; bins are taken in row order);
+ * - `observed`, `signal` the observed count and the signal yield at μ = 1;
+ * - `background:<name>` the yield of one background process (one column per process);
+ * - `systematic:<name>:<process>` the relative effect δ of nuisance parameter <name> on <process>
+ *   ("signal" or a background name) in that bin; empty means no effect there.
+ * Comma, semicolon or tab separated; lines starting with '#' are comments.
+ */
+import { countingModelSchema, type CountingModelInput } from '../schemas/counting-model';
+import type { ScanInputPoint } from '../schemas/scans';
+import { CsvFileError, parseCsv, parseNumber } from '../curves/csv';
+import type { CurveProblem } from '../curves/check';
+
+type Column =
+  | { kind: 'x' | 'sigma' | 'bin' | 'observed' | 'signal'; index: number }
+  | { kind: 'background'; name: string; index: number }
+  | { kind: 'systematic'; name: string; process: string; index: number };
+
+const FIXED: Record<string, Column['kind']> = { x: 'x', sigma_nominal: 'sigma', bin: 'bin', observed: 'observed', signal: 'signal' };
+
+function classify(headers: string[]): { columns: Column[]; problems: CurveProblem[] } {
+  const columns: Column[] = [];
+  const problems: CurveProblem[] = [];
+  headers.forEach((raw, index) => {
+    const h = raw.trim();
+    const fixed = FIXED[h.toLowerCase()];
+    if (fixed) return void columns.push({ kind: fixed, index } as Column);
+    const bg = /^background:(.+)$/i.exec(h);
+    if (bg) return void columns.push({ kind: 'background', name: bg[1]!.trim(), index });
+    const sy = /^systematic:([^:]+):(.+)$/i.exec(h);
+    if (sy) return void columns.push({ kind: 'systematic', name: sy[1]!.trim(), process: sy[2]!.trim(), index });
+    problems.push({ column: h || `column ${index + 1}`, reason: 'is not a column of the scan layout (x, sigma_nominal, bin, observed, signal, background:<name>, systematic:<name>:<process>)' });
+  });
+  for (const k of ['x', 'observed', 'signal'] as const) {
+    if (!columns.some((c) => c.kind === k)) problems.push({ column: k, reason: 'is a required column and is missing' });
+  }
+  return { columns, problems };
+}
+
+/**
+ * Scan CSV text → grid points with counting models. Every problem names the file line and the
+ * column; the models are also checked with the engine's own schema (unknown processes, bin counts).
+ */
+export function parseScanCsv(text: string): ScanInputPoint[] {
+  const table = parseCsv(text);
+  const { columns, problems } = classify(table.headers);
+  if (problems.length) throw new CsvFileError(problems);
+
+  type Acc = { x: number; sigma?: number; sigmaLine: number; rows: number[]; model: Required<Pick<CountingModelInput, 'observed' | 'signal'>> & { backgrounds: { name: string; yields: number[] }[]; systematics: Map<string, Map<string, number[]>> } };
+  const points: Acc[] = [];
+  const byX = new Map<number, Acc>();
+  const bgNames = columns.filter((c): c is Extract<Column, { kind: 'background' }> => c.kind === 'background').map((c) => c.name);
+
+  table.rows.forEach((row, r) => {
+    const line = table.lines[r]!;
+    const num = (c: Column, required: boolean): number | undefined => {
+      const cell = row[c.index] ?? '';
+      if (cell === '') {
+        if (required) problems.push({ row: line, column: table.headers[c.index]!, reason: 'is empty' });
+        return undefined;
+      }
+      const v = parseNumber(cell, table.delimiter);
+      if (v === null) problems.push({ row: line, column: table.headers[c.index]!, reason: `"${cell.slice(0, 40)}" is not a number` });
+      return v ?? undefined;
+    };
+    if (row.length !== table.headers.length) {
+      problems.push({ row: line, column: 'row', reason: `has ${row.length} cells but the header has ${table.headers.length}` });
+      return;
+    }
+    const xCol = columns.find((c) => c.kind === 'x')!;
+    const x = num(xCol, true);
+    if (x === undefined) return;
+    let p = byX.get(x);
+    if (!p) {
+      p = { x, sigmaLine: line, rows: [], model: { observed: [], signal: [], backgrounds: bgNames.map((name) => ({ name, yields: [] })), systematics: new Map() } };
+      byX.set(x, p);
+      points.push(p);
+    } else if (points[points.length - 1] !== p) {
+      problems.push({ row: line, column: table.headers[xCol.index]!, reason: `x = ${x} appeared earlier and again here; keep the rows of one grid point together` });
+    }
+    const bin = p.rows.length;
+    p.rows.push(line);
+    for (const c of columns) {
+      if (c.kind === 'observed') p.model.observed.push(num(c, true) ?? NaN);
+      else if (c.kind === 'signal') p.model.signal.push(num(c, true) ?? NaN);
+      else if (c.kind === 'background') p.model.backgrounds.find((b) => b.name === c.name)!.yields.push(num(c, true) ?? NaN);
+      else if (c.kind === 'sigma') {
+        const s = num(c, false);
+        if (s !== undefined) {
+          if (p.sigma !== undefined && p.sigma !== s) problems.push({ row: line, column: table.headers[c.index]!, reason: `differs from line ${p.sigmaLine} of the same grid point (${p.sigma})` });
+          else if (p.sigma === undefined) {
+            p.sigma = s;
+            p.sigmaLine = line;
+          }
+        }
+      } else if (c.kind === 'systematic') {
+        const d = num(c, false) ?? 0;
+        const perProcess = p.model.systematics.get(c.name) ?? new Map<string, number[]>();
+        p.model.systematics.set(c.name, perProcess);
+        const arr = perProcess.get(c.process) ?? [];
+        arr[bin] = d;
+        perProcess.set(c.process, arr);
+      }
+    }
+  });
+  if (problems.length) throw new CsvFileError(problems);
+
+  const result: ScanInputPoint[] = points.map((p) => {
+    const bins = p.rows.length;
+    const systematics = [...p.model.systematics.entries()].map(([name, per]) => ({
+      name,
+      effects: Object.fromEntries([...per.entries()].map(([proc, arr]) => [proc, Array.from({ length: bins }, (_, i) => arr[i] ?? 0)])),
+    }));
+    const model: CountingModelInput = { observed: p.model.observed, signal: p.model.signal, backgrounds: p.model.backgrounds, systematics };
+    return p.sigma !== undefined ? { x: p.x, sigmaNominal: p.sigma, model } : { x: p.x, model };
+  });
+
+  // The engine's own checks, reported against the point's first line.
+  result.forEach((pt, i) => {
+    const r = countingModelSchema.safeParse(pt.model);
+    if (!r.success) {
+      for (const issue of r.error.issues.slice(0, 5)) {
+        problems.push({ row: points[i]!.rows[0], column: `model of x = ${pt.x}: ${issue.path.join('.')}`, reason: issue.message });
+      }
+    }
+  });
+  if (problems.length) throw new CsvFileError(problems);
+  return result;
+}
+
+/** Grid points → scan CSV text (the inverse of parseScanCsv, for downloads of stored inputs). */
+export function scanToCsv(points: ScanInputPoint[]): string {
+  const bgNames = [...new Set(points.flatMap((p) => (p.model.backgrounds ?? []).map((b) => b.name)))];
+  const systCols = [...new Set(points.flatMap((p) => (p.model.systematics ?? []).flatMap((s) => Object.keys(s.effects).map((proc) => `${s.name}:${proc}`))))];
+  const header = ['x', 'sigma_nominal', 'bin', 'observed', 'signal', ...bgNames.map((n) => `background:${n}`), ...systCols.map((c) => `systematic:${c}`)];
+  const lines = [header.join(',')];
+  for (const p of points) {
+    p.model.observed.forEach((obs, i) => {
+      const cells: (string | number)[] = [p.x, p.sigmaNominal ?? '', i + 1, obs, p.model.signal[i] ?? ''];
+      for (const n of bgNames) cells.push((p.model.backgrounds ?? []).find((b) => b.name === n)?.yields[i] ?? 0);
+      for (const c of systCols) {
+        const [name, proc] = [c.slice(0, c.indexOf(':')), c.slice(c.indexOf(':') + 1)];
+        const eff = (p.model.systematics ?? []).find((s) => s.name === name)?.effects[proc];
+        cells.push(eff === undefined ? '' : Array.isArray(eff) ? (eff[i] ?? '') : eff);
+      }
+      lines.push(cells.map((v) => (typeof v === 'string' && /[",\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : String(v))).join(','));
+    });
+  }
+  return lines.join('\n') + '\n';
+}

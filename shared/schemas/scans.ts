@@ -1,0 +1,47 @@
+/**
+ * Scan jobs: a grid of counting models whose limits are computed in the job queue and stored as a
+ * draft result. Shared by the server (validation) and the app (forms, previews).
+ */
+import { z } from 'zod';
+import { asimovChoiceSchema, countingModelSchema } from './counting-model';
+import { versionMetaSchema } from './results';
+
+/** One grid point: the parameter value, an optional nominal σ×B, and its counting model. */
+export const scanInputPointSchema = z.object({
+  x: z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number'),
+  sigmaNominal: z.number({ error: 'must be a number' }).positive('must be positive').refine(Number.isFinite, 'must be finite').optional(),
+  model: countingModelSchema,
+});
+export type ScanInputPoint = z.input<typeof scanInputPointSchema>;
+
+export const SCAN_METHODS = ['asymptotic', 'toys'] as const;
+
+/** How every point is computed. */
+export const scanOptionsSchema = z
+  .object({
+    cl: z.number({ error: 'must be a number' }).gt(0, 'must be between 0 and 1').lt(1, 'must be between 0 and 1').default(0.95),
+    method: z.enum(SCAN_METHODS, { error: 'must be "asymptotic" or "toys"' }).default('asymptotic'),
+    asimov: asimovChoiceSchema.default('profiled'),
+    toys: z.number({ error: 'must be a number' }).int('must be a whole number').min(100, 'must be at least 100').max(1_000_000, 'must be at most 1,000,000').default(5000),
+    seed: z.number({ error: 'must be a number' }).int('must be a whole number').min(0).max(2 ** 31 - 1).default(1),
+  })
+  .default({ cl: 0.95, method: 'asymptotic', asimov: 'profiled', toys: 5000, seed: 1 });
+export type ScanOptions = z.output<typeof scanOptionsSchema>;
+
+/** The project's JSON scan file, also the JSON body of "start a scan". */
+export const SCAN_FILE_FORMAT = 'bandwright-scan/1';
+export const scanFileSchema = z.object({
+  format: z.literal(SCAN_FILE_FORMAT, { error: `must be "${SCAN_FILE_FORMAT}"` }).optional(),
+  points: z.array(scanInputPointSchema, { error: 'must be a list of grid points' }).min(1, 'must have at least one grid point'),
+});
+export type ScanFile = z.input<typeof scanFileSchema>;
+
+/** Start a scan from JSON: the points, the options and the provenance of the draft it becomes. */
+export const createScanSchema = z.object({
+  points: scanFileSchema.shape.points,
+  options: scanOptionsSchema,
+  meta: versionMetaSchema,
+  /** Add the scan as a new draft version of this result instead of creating a result. */
+  resultId: z.uuid('must be a valid id').optional(),
+});
+export type CreateScanInput = z.input<typeof createScanSchema>;

@@ -1,0 +1,56 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { CsvFileError } from '@/shared/curves/csv';
+import { parseScanCsv, scanToCsv } from '@/shared/scans/csv';
+import { scanFileSchema } from '@/shared/schemas/scans';
+import { computeScan } from '@/shared/stats';
+
+const example = (name: string) => fs.readFileSync(path.resolve(__dirname, '../../assets/examples', name), 'utf8');
+const problemsOf = (text: string) => {
+  try {
+    parseScanCsv(text);
+  } catch (e) {
+    if (e instanceof CsvFileError) return e.problems;
+    throw e;
+  }
+  return [];
+};
+
+test('the example scan CSV and JSON describe the same grid', () => {
+  const fromCsv = parseScanCsv(example('scan-example.csv'));
+  const fromJson = scanFileSchema.parse(JSON.parse(example('scan-example.json'))).points;
+  expect(fromCsv).toHaveLength(6);
+  expect(fromCsv.map((p) => p.x)).toEqual([1000, 1500, 2000, 2500, 3000, 3500]);
+  expect(fromCsv[0]!.model.observed).toHaveLength(3);
+  // Same limits from both inputs (uniform effects in JSON, per-bin arrays from CSV).
+  const a = computeScan(fromCsv);
+  const b = computeScan(fromJson);
+  a.forEach((p, i) => {
+    expect('error' in p).toBe(false);
+    if ('error' in p || 'error' in b[i]!) return;
+    expect(p.observed).toBeCloseTo((b[i] as typeof p).observed, 6);
+    expect(p.sigmaB?.observed).toBeCloseTo((b[i] as typeof p).sigmaB!.observed, 6);
+  });
+});
+
+test('scan CSV → text → scan CSV round-trips', () => {
+  const points = parseScanCsv(example('scan-example.csv'));
+  expect(parseScanCsv(scanToCsv(points))).toEqual(points);
+});
+
+test('problems name the file line and the column', () => {
+  const text = 'x,bin,observed,signal,background:qcd,systematic:lumi:ghost\n1000,1,5,1.2,4,0.02\n1000,2,x,1.0,3,0.02\n';
+  const problems = problemsOf(text);
+  expect(problems).toEqual(expect.arrayContaining([{ row: 3, column: 'observed', reason: '"x" is not a number' }]));
+  const unknown = problemsOf('x,bin,observed,signal,background:qcd,systematic:lumi:ghost\n1000,1,5,1.2,4,0.02\n');
+  expect(unknown[0]).toEqual(expect.objectContaining({ row: 2, column: expect.stringContaining('systematics.0.effects.ghost'), reason: expect.stringContaining('unknown process') }));
+});
+
+test('missing required columns, unknown columns and split grid points are refused', () => {
+  expect(problemsOf('x,bin,observed\n1,1,2\n').map((p) => p.column)).toContain('signal');
+  expect(problemsOf('x,observed,signal,bkg\n1,2,3,4\n')[0]).toEqual(expect.objectContaining({ column: 'bkg' }));
+  const split = problemsOf('x,observed,signal\n1,2,3\n2,2,3\n1,2,3\n');
+  expect(split[0]).toEqual(expect.objectContaining({ row: 4, reason: expect.stringContaining('keep the rows of one grid point together') }));
+  const sigma = problemsOf('x,sigma_nominal,observed,signal\n1,5,2,3\n1,6,2,3\n');
+  expect(sigma[0]).toEqual(expect.objectContaining({ row: 3, column: 'sigma_nominal' }));
+});
