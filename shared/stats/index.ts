@@ -44,3 +44,4 @@ export {
   type ScanPointResult,
   type SigmaBLimits,
 } from '../schemas/counting-model';
+export { fitNuisanceParameters, type NuisanceFit, type NuisancePull } from './pulls';
