@@ -3,16 +3,20 @@
  * draft result. Shared by the server (validation) and the app (forms, previews).
  */
 import { z } from 'zod';
-import { asimovChoiceSchema, countingModelSchema } from './counting-model';
+import { asimovChoiceSchema, type CountingModelInput } from './counting-model';
 import { versionMetaSchema } from './results';
 
-/** One grid point: the parameter value, an optional nominal σ×B, and its counting model. */
+/**
+ * One grid point: the parameter value, an optional nominal σ×B, and its counting model. The model
+ * is only required to be an object here: the statistics engine checks it when the point is
+ * computed, so one bad point fails alone with its field-level error instead of the whole scan.
+ */
 export const scanInputPointSchema = z.object({
   x: z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number'),
   sigmaNominal: z.number({ error: 'must be a number' }).positive('must be positive').refine(Number.isFinite, 'must be finite').optional(),
-  model: countingModelSchema,
+  model: z.record(z.string(), z.unknown(), { error: 'must be a counting model (an object with observed, signal, backgrounds, systematics)' }),
 });
-export type ScanInputPoint = z.input<typeof scanInputPointSchema>;
+export type ScanInputPoint = { x: number; sigmaNominal?: number; model: CountingModelInput };
 
 export const SCAN_METHODS = ['asymptotic', 'toys'] as const;
 

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { CsvFileError } from '@/shared/curves/csv';
 import { parseScanCsv, scanToCsv } from '@/shared/scans/csv';
-import { scanFileSchema } from '@/shared/schemas/scans';
+import { scanFileSchema, type ScanInputPoint } from '@/shared/schemas/scans';
 import { computeScan } from '@/shared/stats';
 
 const example = (name: string) => fs.readFileSync(path.resolve(__dirname, '../../assets/examples', name), 'utf8');
@@ -18,7 +18,7 @@ const problemsOf = (text: string) => {
 
 test('the example scan CSV and JSON describe the same grid', () => {
   const fromCsv = parseScanCsv(example('scan-example.csv'));
-  const fromJson = scanFileSchema.parse(JSON.parse(example('scan-example.json'))).points;
+  const fromJson = scanFileSchema.parse(JSON.parse(example('scan-example.json'))).points as ScanInputPoint[];
   expect(fromCsv).toHaveLength(6);
   expect(fromCsv.map((p) => p.x)).toEqual([1000, 1500, 2000, 2500, 3000, 3500]);
   expect(fromCsv[0]!.model.observed).toHaveLength(3);
@@ -42,8 +42,13 @@ test('problems name the file line and the column', () => {
   const text = 'x,bin,observed,signal,background:qcd,systematic:lumi:ghost\n1000,1,5,1.2,4,0.02\n1000,2,x,1.0,3,0.02\n';
   const problems = problemsOf(text);
   expect(problems).toEqual(expect.arrayContaining([{ row: 3, column: 'observed', reason: '"x" is not a number' }]));
-  const unknown = problemsOf('x,bin,observed,signal,background:qcd,systematic:lumi:ghost\n1000,1,5,1.2,4,0.02\n');
-  expect(unknown[0]).toEqual(expect.objectContaining({ row: 2, column: expect.stringContaining('systematics.0.effects.ghost'), reason: expect.stringContaining('unknown process') }));
+});
+
+test('a model the engine refuses fails only its own point when computed', () => {
+  const points = parseScanCsv('x,bin,observed,signal,background:qcd,systematic:lumi:ghost\n1000,1,5,1.2,4,0.02\n2000,1,5,1.2,4,\n');
+  const results = computeScan(points);
+  expect(results[0]).toEqual(expect.objectContaining({ error: expect.objectContaining({ field: expect.stringContaining('ghost'), reason: expect.stringContaining('unknown process') }) }));
+  expect('error' in results[1]!).toBe(false);
 });
 
 test('missing required columns, unknown columns and split grid points are refused', () => {
