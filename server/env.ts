@@ -20,6 +20,16 @@ const schema = z
     SMTP_URL: z.string().optional(),
     MAIL_FROM: z.string().default('Bandwright <no-reply@bandwright.invalid>'),
     WEB_DIST: z.string().optional(),
+    /** Job workers started inside the server process (npm run worker starts more elsewhere). */
+    WORKERS: z.coerce.number().int().min(0).max(16).default(1),
+    /** A task running longer than this is taken for dead (its worker crashed) and retried. */
+    JOB_EXPIRE_SECONDS: z.coerce.number().int().min(1).default(900),
+    /** How often the queue looks for expired tasks. */
+    JOB_MAINTENANCE_SECONDS: z.coerce.number().int().min(1).default(30),
+    /** Largest scan accepted, in points × bins × pseudo-experiments (1 per point when asymptotic). */
+    SCAN_COST_LIMIT: z.coerce.number().positive().default(200_000_000),
+    /** Largest result upload accepted (file or JSON body), in bytes; larger ones get 413. */
+    UPLOAD_LIMIT_BYTES: z.coerce.number().int().positive().default(5 * 1024 * 1024),
   })
   .superRefine((v, ctx) => {
     if (v.NODE_ENV === 'production' && !v.AUTH_SECRET) {
