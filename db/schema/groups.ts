@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { index, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { bigint, index, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import { GROUP_ROLES } from '../../shared/access';
 import { user } from './auth';
 
@@ -13,6 +13,8 @@ export const groups = pgTable('groups', {
   description: text().notNull().default(''),
   createdBy: text().references(() => user.id, { onDelete: 'set null' }),
   createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  /** Bytes of every stored result version (uploaded files and normalized data); plans enforce a quota on it. */
+  storageBytes: bigint({ mode: 'number' }).notNull().default(0),
 });
 
 export const memberships = pgTable(

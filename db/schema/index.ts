@@ -1,3 +1,5 @@
 export * from './auth';
 export * from './groups';
 export * from './mail';
+export * from './results';
+export * from './tokens';

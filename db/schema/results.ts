@@ -1,0 +1,83 @@
+import { sql } from 'drizzle-orm';
+import { bigint, boolean, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { QUANTITIES, RESULT_METHODS, RESULT_STATES, type Curve, type Theory } from '../../shared/schemas/results';
+import { user } from './auth';
+import { groups } from './groups';
+
+export const resultState = pgEnum('result_state', RESULT_STATES);
+export const resultMethod = pgEnum('result_method', RESULT_METHODS);
+export const resultQuantity = pgEnum('result_quantity', QUANTITIES);
+
+const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' });
+
+/**
+ * A limit result: the permanent identity (slug) of a series of versions, owned by one group.
+ * `lastVersion` is the highest version number ever given out; numbers are never reused, so a
+ * permanent link never points at other numbers than it did.
+ */
+export const results = pgTable(
+  'results',
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    groupId: uuid()
+      .notNull()
+      .references(() => groups.id, { onDelete: 'cascade' }),
+    slug: text().notNull().unique(),
+    isPublic: boolean().notNull().default(false),
+    lastVersion: integer().notNull().default(0),
+    createdBy: text().references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index().on(t.groupId, t.updatedAt), index('results_public').on(t.id).where(sql`${t.isPublic}`)],
+);
+
+/**
+ * One version of a result. The provenance fields that lists filter and search on are columns;
+ * the curves are JSON. Once a version leaves the draft state its numbers and provenance never
+ * change (the services refuse it); only the state moves on (superseded, retracted).
+ */
+export const resultVersions = pgTable(
+  'result_versions',
+  {
+    id: uuid().primaryKey().defaultRandom(),
+    resultId: uuid()
+      .notNull()
+      .references(() => results.id, { onDelete: 'cascade' }),
+    version: integer().notNull(),
+    state: resultState().notNull().default('draft'),
+    title: text().notNull(),
+    model: text().notNull().default(''),
+    parameterName: text().notNull(),
+    parameterUnit: text().notNull().default(''),
+    quantity: resultQuantity().notNull(),
+    quantityUnit: text().notNull().default(''),
+    sqrtS: doublePrecision().notNull(),
+    luminosity: doublePrecision().notNull(),
+    cl: doublePrecision().notNull(),
+    method: resultMethod().notNull(),
+    reference: text().notNull().default(''),
+    notes: text().notNull().default(''),
+    curve: jsonb().$type<Curve>().notNull(),
+    theory: jsonb().$type<Theory>(),
+    changeNote: text().notNull().default(''),
+    /** The uploaded file as received (kept for audit), with its name; null for JSON bodies. */
+    sourceName: text(),
+    sourceData: bytea(),
+    /** Bytes this version counts toward its group's storage use (upload + normalized JSON). */
+    storedBytes: bigint({ mode: 'number' }).notNull(),
+    createdBy: text().references(() => user.id, { onDelete: 'set null' }),
+    createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+    publishedAt: timestamp({ withTimezone: true }),
+    retractedAt: timestamp({ withTimezone: true }),
+    retractionReason: text(),
+  },
+  (t) => [
+    uniqueIndex().on(t.resultId, t.version),
+    index().on(t.state),
+    index().on(t.parameterName),
+    index().on(t.sqrtS),
+    index().on(t.method),
+  ],
+);
