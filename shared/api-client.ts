@@ -22,6 +22,8 @@ import type {
   ResultVersion,
   UpdateDraftInput,
 } from './schemas/results';
+import type { ScanDetail, ScanPointDetail, ScanSummary } from './schemas/scan-views';
+import type { CreateScanInput } from './schemas/scans';
 
 /** `?a=1&b=x` from the defined entries of a query object ('' when none). */
 function qs(query: Record<string, string | number | boolean | undefined>): string {
@@ -157,6 +159,16 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       list: (query: { q?: string; page?: number; pageSize?: number } = {}) => call<ResultPage>('GET', `/api/public/results${qs(query)}`),
       get: (slug: string, version: number) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/v${version}`),
       exportUrl: (slug: string, version: number, format: 'csv' | 'json') => `${base}/api/public/results/${enc(slug)}/v${version}/export.${format}`,
+    },
+    scans: {
+      list: (groupId: string) => call<{ scans: ScanSummary[] }>('GET', `/api/groups/${enc(groupId)}/scans`),
+      /** JSON body, or FormData with `file` (scan CSV or JSON), `meta` and `options` (JSON text), optional `resultId`. */
+      start: (groupId: string, input: CreateScanInput | FormData) => call<ScanDetail>('POST', `/api/groups/${enc(groupId)}/scans`, input),
+      get: (groupId: string, scanId: string) => call<ScanDetail>('GET', `/api/groups/${enc(groupId)}/scans/${enc(scanId)}`),
+      cancel: (groupId: string, scanId: string) => call<ScanDetail>('POST', `/api/groups/${enc(groupId)}/scans/${enc(scanId)}/cancel`, {}),
+      point: (groupId: string, scanId: string, index: number) =>
+        call<ScanPointDetail>('GET', `/api/groups/${enc(groupId)}/scans/${enc(scanId)}/points/${index}`),
+      inputsUrl: (groupId: string, scanId: string) => `${base}/api/groups/${enc(groupId)}/scans/${enc(scanId)}/inputs.json`,
     },
     tokens: {
       list: () => call<{ tokens: ApiTokenSummary[] }>('GET', '/api/tokens'),

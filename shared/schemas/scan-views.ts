@@ -1,0 +1,73 @@
+/** What the scan routes answer (read models), shared by server and app. */
+import type { ClsSample, ExpectedLimits } from './counting-model';
+import type { VersionMeta } from './results';
+import type { ScanOptions } from './scans';
+
+export type ScanState = 'queued' | 'running' | 'done' | 'failed' | 'cancelled';
+export type ScanPointState = 'queued' | 'done' | 'failed' | 'cancelled';
+
+export type ScanSummary = {
+  id: string;
+  state: ScanState;
+  title: string;
+  totalPoints: number;
+  donePoints: number;
+  failedPoints: number;
+  resultId: string | null;
+  resultVersion: number | null;
+  createdAt: string;
+  startedAt: string | null;
+  finishedAt: string | null;
+};
+
+export type ScanPointSummary = {
+  index: number;
+  x: number;
+  sigmaNominal: number | null;
+  state: ScanPointState;
+  observed: number | null;
+  expected: ExpectedLimits | null;
+  sigmaB: { observed: number; expected: ExpectedLimits } | null;
+  warnings: string[] | null;
+  error: { field: string; reason: string } | null;
+  computeMs: number | null;
+};
+
+export type ScanDetail = Omit<ScanSummary, 'title'> & {
+  groupId: string;
+  title: string;
+  meta: VersionMeta;
+  options: ScanOptions;
+  elapsedSeconds: number;
+  /** Estimated seconds left while running (null before the first point finishes). */
+  etaSeconds: number | null;
+  error: string | null;
+  sourceName: string | null;
+  points: ScanPointSummary[];
+};
+
+/** One point with its diagnostics: the CLs curve, μ̂ and the fitted nuisance parameters. */
+export type ScanPointDetail = {
+  index: number;
+  x: number;
+  sigmaNominal: number | null;
+  state: ScanPointState;
+  model: Record<string, unknown>;
+  result:
+    | {
+        observed: number;
+        expected: ExpectedLimits;
+        muHat: number;
+        cls?: ClsSample[];
+        warnings: string[];
+        cl: number;
+        method: string;
+        observedError?: number;
+        sigmaB?: { observed: number; expected: ExpectedLimits };
+        fit?: { muHat: number; muError: number; converged: boolean; pulls: { name: string; value: number; error: number; valueAtZero: number }[] } | null;
+      }
+    | null;
+  error: { field: string; reason: string } | null;
+  attempts: number;
+  computeMs: number | null;
+};
