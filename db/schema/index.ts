@@ -3,3 +3,4 @@ export * from './groups';
 export * from './mail';
 export * from './results';
 export * from './tokens';
+export * from './scans';

@@ -32,6 +32,8 @@ export const scans = pgTable(
     /** Bytes of stored inputs, counted toward the group's storage use. */
     storedBytes: bigint({ mode: 'number' }).notNull(),
     resultId: uuid().references(() => results.id, { onDelete: 'set null' }),
+    /** Set by the one process that turns the scan into a draft (claimed before, so never twice). */
+    draftClaimedAt: timestamp({ withTimezone: true }),
     resultVersion: integer(),
     error: text(),
     createdBy: text().references(() => user.id, { onDelete: 'set null' }),

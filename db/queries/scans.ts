@@ -1,0 +1,177 @@
+import { and, asc, desc, eq, sql } from 'drizzle-orm';
+import type { ExpectedLimits } from '../../shared/schemas/counting-model';
+import type { Executor } from '../../server/db';
+import { scanPoints, scans } from '../schema/scans';
+
+export type ScanRow = typeof scans.$inferSelect;
+export type ScanPointRow = typeof scanPoints.$inferSelect;
+
+export async function insertScan(db: Executor, scan: typeof scans.$inferInsert) {
+  const [row] = await db.insert(scans).values(scan).returning();
+  return row!;
+}
+
+export async function insertScanPoints(db: Executor, points: (typeof scanPoints.$inferInsert)[]) {
+  // Large grids go in slices to stay under PostgreSQL's bind-parameter limit.
+  for (let i = 0; i < points.length; i += 500) await db.insert(scanPoints).values(points.slice(i, i + 500));
+}
+
+export async function listScans(db: Executor, groupId: string, limit = 50) {
+  return db
+    .select({
+      id: scans.id,
+      state: scans.state,
+      title: sql<string>`${scans.meta}->>'title'`,
+      totalPoints: scans.totalPoints,
+      donePoints: scans.donePoints,
+      failedPoints: scans.failedPoints,
+      resultId: scans.resultId,
+      resultVersion: scans.resultVersion,
+      createdAt: scans.createdAt,
+      startedAt: scans.startedAt,
+      finishedAt: scans.finishedAt,
+    })
+    .from(scans)
+    .where(eq(scans.groupId, groupId))
+    .orderBy(desc(scans.createdAt))
+    .limit(limit);
+}
+
+/** A scan of a group (undefined when it is another group's or does not exist). */
+export async function getScan(db: Executor, groupId: string, scanId: string, lock = false) {
+  const q = db.select().from(scans).where(and(eq(scans.id, scanId), eq(scans.groupId, groupId)));
+  const rows = lock ? await q.for('update') : await q;
+  return rows[0];
+}
+
+/** The scan behind a queued task, for the worker (tasks carry only ids). */
+export async function getScanById(db: Executor, scanId: string, lock = false) {
+  const q = db.select().from(scans).where(eq(scans.id, scanId));
+  const rows = lock ? await q.for('update') : await q;
+  return rows[0];
+}
+
+/** Points of a scan without their models and diagnostics (for progress views). */
+export async function listPointSummaries(db: Executor, scanId: string) {
+  return db
+    .select({
+      index: scanPoints.index,
+      x: scanPoints.x,
+      sigmaNominal: scanPoints.sigmaNominal,
+      state: scanPoints.state,
+      observed: sql<number | null>`(${scanPoints.result}->>'observed')::float8`,
+      expected: sql<ExpectedLimits | null>`${scanPoints.result}->'expected'`,
+      sigmaB: sql<{ observed: number; expected: ExpectedLimits } | null>`${scanPoints.result}->'sigmaB'`,
+      warnings: sql<string[] | null>`${scanPoints.result}->'warnings'`,
+      error: scanPoints.error,
+      computeMs: scanPoints.computeMs,
+    })
+    .from(scanPoints)
+    .where(eq(scanPoints.scanId, scanId))
+    .orderBy(asc(scanPoints.index));
+}
+
+export async function getPoint(db: Executor, scanId: string, index: number) {
+  const rows = await db.select().from(scanPoints).where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.index, index)));
+  return rows[0];
+}
+
+export async function listFinishedPoints(db: Executor, scanId: string) {
+  return db
+    .select()
+    .from(scanPoints)
+    .where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.state, 'done')))
+    .orderBy(asc(scanPoints.x));
+}
+
+export async function listPointInputs(db: Executor, scanId: string) {
+  return db
+    .select({ x: scanPoints.x, sigmaNominal: scanPoints.sigmaNominal, model: scanPoints.model })
+    .from(scanPoints)
+    .where(eq(scanPoints.scanId, scanId))
+    .orderBy(asc(scanPoints.index));
+}
+
+export async function markScanRunning(db: Executor, scanId: string) {
+  await db
+    .update(scans)
+    .set({ state: 'running', startedAt: sql`coalesce(${scans.startedAt}, now())` })
+    .where(and(eq(scans.id, scanId), eq(scans.state, 'queued')));
+}
+
+export async function countAttempt(db: Executor, scanId: string, index: number) {
+  await db
+    .update(scanPoints)
+    .set({ attempts: sql`${scanPoints.attempts} + 1` })
+    .where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.index, index)));
+}
+
+/**
+ * Stores a point's outcome once: only a point still queued changes, so a task that runs twice
+ * (a retry after a worker died) never counts or overwrites a finished point. Returns whether it did.
+ */
+export async function finishPoint(
+  db: Executor,
+  p: { scanId: string; index: number; state: 'done' | 'failed'; result?: Record<string, unknown>; error?: { field: string; reason: string }; computeMs: number },
+): Promise<boolean> {
+  const rows = await db
+    .update(scanPoints)
+    .set({ state: p.state, result: p.result ?? null, error: p.error ?? null, computeMs: p.computeMs, finishedAt: new Date() })
+    .where(and(eq(scanPoints.scanId, p.scanId), eq(scanPoints.index, p.index), eq(scanPoints.state, 'queued')))
+    .returning({ index: scanPoints.index });
+  if (rows.length === 0) return false;
+  await db
+    .update(scans)
+    .set(p.state === 'done' ? { donePoints: sql`${scans.donePoints} + 1` } : { failedPoints: sql`${scans.failedPoints} + 1` })
+    .where(eq(scans.id, p.scanId));
+  return true;
+}
+
+/**
+ * Claims the right to save the scan's draft; true for exactly one caller. A claim older than
+ * `staleSeconds` without a saved result (its process died) may be taken again.
+ */
+export async function claimDraft(db: Executor, scanId: string, staleSeconds = 300): Promise<boolean> {
+  const rows = await db
+    .update(scans)
+    .set({ draftClaimedAt: new Date() })
+    .where(
+      and(
+        eq(scans.id, scanId),
+        sql`${scans.resultId} is null`,
+        sql`(${scans.draftClaimedAt} is null or ${scans.draftClaimedAt} < now() - make_interval(secs => ${staleSeconds}))`,
+      ),
+    )
+    .returning({ id: scans.id });
+  return rows.length > 0;
+}
+
+/** Scans whose points have all finished but whose draft was never saved (a worker died at the end). */
+export async function listUnsavedFinishedScans(db: Executor, staleSeconds = 300) {
+  return db
+    .select({ id: scans.id, state: scans.state })
+    .from(scans)
+    .where(
+      and(
+        sql`${scans.resultId} is null`,
+        sql`${scans.error} is null`,
+        sql`(${scans.state} = 'cancelled' or ${scans.donePoints} + ${scans.failedPoints} = ${scans.totalPoints})`,
+        sql`(${scans.draftClaimedAt} is null or ${scans.draftClaimedAt} < now() - make_interval(secs => ${staleSeconds}))`,
+      ),
+    );
+}
+
+export async function cancelQueuedPoints(db: Executor, scanId: string) {
+  await db.update(scanPoints).set({ state: 'cancelled' }).where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.state, 'queued')));
+}
+
+export async function setScanOutcome(
+  db: Executor,
+  scanId: string,
+  outcome: { state: 'done' | 'failed' | 'cancelled'; resultId?: string | null; resultVersion?: number | null; error?: string | null },
+) {
+  await db
+    .update(scans)
+    .set({ state: outcome.state, resultId: outcome.resultId ?? null, resultVersion: outcome.resultVersion ?? null, error: outcome.error ?? null, finishedAt: new Date() })
+    .where(eq(scans.id, scanId));
+}
