@@ -5,6 +5,7 @@ import { uuidParam } from '../shared/schemas/common';
 import { getRole } from '../db/queries/groups';
 import type { Ctx } from './context';
 import { AppError, forbidden, notFound, unauthorized } from './lib/errors';
+import { userForToken } from './services/tokens';
 
 /**
  * The access-control module: who is calling, and what their role in a group allows. Every group
@@ -21,13 +22,27 @@ const ACTION_WORDS: Record<GroupAction, string> = {
   'billing.manage': 'manage the storage plan and billing',
 };
 
+/**
+ * The caller: from `Authorization: Bearer <API token>` when that header is sent (an unknown or
+ * revoked token is refused, never treated as anonymous), else from the session cookie.
+ */
 async function resolveUser(ctx: Ctx, req: Request) {
+  const header = req.headers.authorization;
+  if (header !== undefined) {
+    const token = /^Bearer\s+(\S+)\s*$/i.exec(header)?.[1];
+    if (!token) throw unauthorized('The Authorization header must be "Bearer <API token>"');
+    const u = await userForToken(ctx, token);
+    if (!u) throw unauthorized('This API token is not valid: it was revoked or mistyped. Create a new one under Account, API tokens');
+    req.authVia = 'token';
+    return u;
+  }
   const session = await ctx.auth.api.getSession({ headers: fromNodeHeaders(req.headers) });
   if (!session) return undefined;
+  req.authVia = 'session';
   return { id: session.user.id, name: session.user.name, email: session.user.email };
 }
 
-/** 401 unless the request carries a valid session. */
+/** 401 unless the request carries a valid session or API token. */
 export function requireUser(ctx: Ctx): RequestHandler {
   return async (req, _res, next) => {
     const u = await resolveUser(ctx, req);
@@ -37,7 +52,21 @@ export function requireUser(ctx: Ctx): RequestHandler {
   };
 }
 
-/** Sets req.user when signed in; never refuses. For routes that also serve anonymous callers. */
+/**
+ * A signed-in session, not an API token: for managing tokens, so that a leaked token cannot mint,
+ * list or revoke tokens.
+ */
+export function requireSession(ctx: Ctx): RequestHandler {
+  return async (req, _res, next) => {
+    const u = await resolveUser(ctx, req);
+    if (!u) return next(unauthorized());
+    if (req.authVia === 'token') return next(forbidden('API tokens cannot manage tokens; sign in to the app to do that'));
+    req.user = u;
+    next();
+  };
+}
+
+/** Sets req.user when signed in; refuses only a bad API token. For routes that also serve anonymous callers. */
 export function optionalUser(ctx: Ctx): RequestHandler {
   return async (req, _res, next) => {
     req.user = await resolveUser(ctx, req);

@@ -6,12 +6,15 @@ import { signInSchema, signUpSchema } from '../shared/schemas/auth';
 import { authNodeHandler } from './auth';
 import type { Ctx } from './context';
 import { AppError, errorHandler } from './lib/errors';
+import { resultJson } from './lib/upload';
 import { validate } from './lib/validate';
 import { devRouter } from './routes/dev';
 import { groupsRouter } from './routes/groups';
 import { healthRouter } from './routes/health';
 import { invitationsRouter } from './routes/invitations';
 import { meRouter } from './routes/me';
+import { resultsRouter } from './routes/results';
+import { tokensRouter } from './routes/tokens';
 
 export const DEFAULT_WEB_DIST = path.resolve(__dirname, '../dist');
 
@@ -49,11 +52,15 @@ export function createApp(ctx: Ctx): Express {
   app.post(['/api/auth/forget-password', '/api/auth/request-password-reset', '/api/auth/reset-password'], authLimiter);
   app.all('/api/auth/{*any}', authNodeHandler(ctx.auth));
 
+  // Result uploads sent as JSON may be as large as uploaded files.
+  app.use('/api/groups/:groupId/results', resultJson(ctx.env.UPLOAD_LIMIT_BYTES));
   app.use('/api', express.json({ limit: '1mb' }));
   app.use('/api', healthRouter(ctx));
   app.use('/api', meRouter(ctx));
   app.use('/api', groupsRouter(ctx));
   app.use('/api', invitationsRouter(ctx));
+  app.use('/api', resultsRouter(ctx));
+  app.use('/api', tokensRouter(ctx));
   if (ctx.env.devTools) app.use('/api', devRouter(ctx));
   app.use('/api', (req, _res, next) => next(new AppError(404, 'not_found', `No API route ${req.method} ${req.path}`)));
 

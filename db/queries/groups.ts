@@ -27,6 +27,7 @@ export async function listGroupsOfUser(db: Executor, userId: string) {
       createdAt: groups.createdAt,
       role: memberships.role,
       memberCount,
+      storageBytes: groups.storageBytes,
     })
     .from(memberships)
     .innerJoin(groups, eq(groups.id, memberships.groupId))
@@ -45,6 +46,7 @@ export async function getGroupOfMember(db: Executor, groupId: string, userId: st
       createdAt: groups.createdAt,
       role: memberships.role,
       memberCount,
+      storageBytes: groups.storageBytes,
     })
     .from(memberships)
     .innerJoin(groups, eq(groups.id, memberships.groupId))

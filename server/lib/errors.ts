@@ -1,5 +1,6 @@
 import type { ErrorRequestHandler } from 'express';
 import { ZodError } from 'zod';
+import { StatsInputError } from '../../shared/stats/errors';
 
 import type { ErrorDetail } from '../../shared/errors';
 export type { ErrorDetail };
@@ -40,6 +41,12 @@ export function validationError(error: ZodError, where: string): AppError {
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   if (err instanceof AppError) {
     res.status(err.status).json({ error: { code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}) } });
+    return;
+  }
+  if (err instanceof StatsInputError) {
+    res.status(400).json({
+      error: { code: 'validation_failed', message: err.message, details: err.problems.map((p) => ({ field: p.field, message: p.reason })) },
+    });
     return;
   }
   if (err instanceof ZodError) {

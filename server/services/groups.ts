@@ -7,15 +7,16 @@ import { conflict, forbidden, notFound } from '../lib/errors';
 type GroupRow = Awaited<ReturnType<typeof q.listGroupsOfUser>>[number];
 const toGroup = (g: GroupRow): Group => ({ ...g, createdAt: g.createdAt.toISOString() });
 
-export function slugify(name: string): string {
+/** Lowercase a-z0-9 words joined by hyphens (accents dropped), at most `max` characters. */
+export function slugify(name: string, fallback = 'group', max = 48): string {
   const base = name
     .normalize('NFKD')
     .replace(/[\u0300-\u036f]/g, '')
     .toLowerCase()
     .replace(/[^a-z0-9]+/g, '-')
-    .replace(/^-+|-+$/g, '')
-    .slice(0, 48);
-  return base || 'group';
+    .slice(0, max)
+    .replace(/^-+|-+$/g, '');
+  return base || fallback;
 }
 
 export async function listMyGroups(ctx: Ctx, userId: string): Promise<Group[]> {

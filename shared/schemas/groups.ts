@@ -37,6 +37,8 @@ export const groupSchema = z.object({
   role: groupRoleSchema,
   memberCount: z.number(),
   createdAt: z.string(),
+  /** Bytes the group's stored results use (uploaded files and normalized data). */
+  storageBytes: z.number(),
 });
 export type Group = z.infer<typeof groupSchema>;
 

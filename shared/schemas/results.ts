@@ -91,7 +91,8 @@ export const updateDraftSchema = z
   .refine((v) => Object.keys(v).length > 0, 'give something to change');
 export type UpdateDraftInput = z.input<typeof updateDraftSchema>;
 
-export const publishSchema = z.object({ public: z.boolean({ error: 'must be true or false' }).default(false) });
+/** `public` makes the result public (true) or group-only (false) at the same time; left out, its visibility stays as it is. */
+export const publishSchema = z.object({ public: z.boolean({ error: 'must be true or false' }).optional() });
 export const retractSchema = z.object({ reason: z.string().trim().min(5, 'give a reason (at least 5 characters); it is shown to everyone who opens the result').max(1000) });
 export const visibilitySchema = z.object({ public: z.boolean({ error: 'must be true or false' }) });
 

@@ -1,7 +1,7 @@
 import { eq } from 'drizzle-orm';
 import request from 'supertest';
 import { createApp } from '@/server/app';
-import { groups } from '@/db/schema';
+import { apiTokens, groups, results, resultVersions } from '@/db/schema';
 import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
 import { startTestApp, uniqueEmail, type Agent, type TestApp } from '../helpers/app';
@@ -11,7 +11,12 @@ import {
   makeGroupWithRoles,
   makeInvitation,
   makePerson,
+  makeResult,
+  makeVersion,
   probe,
+  publishVersion,
+  sampleCurve,
+  sampleMeta,
   uniqueGroupName,
   type Crew,
   type Person,
@@ -176,7 +181,211 @@ const MATRIX: Entry[] = [
     },
   },
   { method: 'get', path: '/api/dev/inbox', access: 'signed-in', ok: 200, mutates: false, devOnly: true, prepare: async () => ({ params: {} }) },
+
+  // --- Results registry ---
+  { method: 'get', path: '/api/groups/:groupId/results', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/results',
+    access: 'analyst',
+    ok: 201,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const title = uniqueGroupName('Matrix Result');
+      return {
+        params: { groupId },
+        body: { meta: sampleMeta({ title }), curve: sampleCurve(3).curve },
+        effect: async () => (await versionsOf(w, groupId)).some((v) => v.title === title),
+      };
+    },
+  },
+  { method: 'get', path: '/api/groups/:groupId/results/:resultId', access: 'viewer', ok: 200, mutates: false, prepare: async (w, groupId) => ({ params: { groupId, resultId: (await sharedResult(w, groupId)).resultId } }) },
+  {
+    method: 'patch',
+    path: '/api/groups/:groupId/results/:resultId',
+    access: 'curator',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const v = await makeResult(w.crew.analyst, groupId);
+      return {
+        params: { groupId, resultId: v.resultId },
+        body: { public: true },
+        effect: async () => (await w.t.ctx.db.select({ p: results.isPublic }).from(results).where(eq(results.id, v.resultId)))[0]?.p === true,
+      };
+    },
+  },
+  {
+    // A result that was never published: analysts may delete it (publishing roles may delete any; see results-versions.test.ts).
+    method: 'delete',
+    path: '/api/groups/:groupId/results/:resultId',
+    access: 'analyst',
+    ok: 204,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const v = await makeResult(w.crew.analyst, groupId);
+      return { params: { groupId, resultId: v.resultId }, effect: async () => (await w.t.ctx.db.select().from(results).where(eq(results.id, v.resultId))).length === 0 };
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/results/:resultId/versions',
+    access: 'analyst',
+    ok: 201,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const v = await makeResult(w.crew.analyst, groupId);
+      return {
+        params: { groupId, resultId: v.resultId },
+        body: { meta: sampleMeta(), curve: sampleCurve(3).curve, changeNote: 'Matrix version' },
+        effect: async () => (await versionsOf(w, groupId)).some((x) => x.resultId === v.resultId && x.version === 2),
+      };
+    },
+  },
+  {
+    method: 'get',
+    path: '/api/groups/:groupId/results/:resultId/versions/:version',
+    access: 'viewer',
+    ok: 200,
+    mutates: false,
+    prepare: async (w, groupId) => ({ params: { groupId, resultId: (await sharedResult(w, groupId)).resultId, version: '1' } }),
+  },
+  {
+    method: 'patch',
+    path: '/api/groups/:groupId/results/:resultId/versions/:version',
+    access: 'analyst',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const v = await makeResult(w.crew.analyst, groupId);
+      return {
+        params: { groupId, resultId: v.resultId, version: '1' },
+        body: { changeNote: 'Edited by the matrix' },
+        effect: async () => (await versionsOf(w, groupId)).some((x) => x.resultId === v.resultId && x.changeNote === 'Edited by the matrix'),
+      };
+    },
+  },
+  {
+    method: 'delete',
+    path: '/api/groups/:groupId/results/:resultId/versions/:version',
+    access: 'analyst',
+    ok: 204,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const v = await makeResult(w.crew.analyst, groupId);
+      await makeVersion(w.crew.analyst, groupId, v.resultId);
+      return { params: { groupId, resultId: v.resultId, version: '2' }, effect: async () => !(await versionsOf(w, groupId)).some((x) => x.resultId === v.resultId && x.version === 2) };
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/results/:resultId/versions/:version/publish',
+    access: 'curator',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const v = await makeResult(w.crew.analyst, groupId);
+      return {
+        params: { groupId, resultId: v.resultId, version: '1' },
+        body: {},
+        effect: async () => (await versionsOf(w, groupId)).some((x) => x.resultId === v.resultId && x.state === 'published'),
+      };
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/results/:resultId/versions/:version/retract',
+    access: 'curator',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const v = await makeResult(w.crew.analyst, groupId);
+      await publishVersion(w.crew.owner, groupId, v.resultId, 1);
+      return {
+        params: { groupId, resultId: v.resultId, version: '1' },
+        body: { reason: 'Retracted by the matrix' },
+        effect: async () => (await versionsOf(w, groupId)).some((x) => x.resultId === v.resultId && x.state === 'retracted'),
+      };
+    },
+  },
+  ...(['csv', 'json'] as const).map(
+    (format): Entry => ({
+      method: 'get',
+      path: `/api/groups/:groupId/results/:resultId/versions/:version/export.${format}`,
+      access: 'viewer',
+      ok: 200,
+      mutates: false,
+      prepare: async (w, groupId) => ({ params: { groupId, resultId: (await sharedResult(w, groupId)).resultId, version: '1' } }),
+    }),
+  ),
+  // Open to anyone: what they see depends on who they are (results-visibility.test.ts).
+  { method: 'get', path: '/api/results', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  { method: 'get', path: '/api/results/:slug/v:version', access: 'anonymous', ok: 200, mutates: false, prepare: async (w) => ({ params: { slug: (await publicResult(w)).slug, version: '1' } }) },
+  { method: 'get', path: '/api/public/results', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  ...(['', '/export.csv', '/export.json'] as const).map(
+    (suffix): Entry => ({
+      method: 'get',
+      path: `/api/public/results/:slug/v:version${suffix}`,
+      access: 'anonymous',
+      ok: 200,
+      mutates: false,
+      prepare: async (w) => ({ params: { slug: (await publicResult(w)).slug, version: '1' } }),
+    }),
+  ),
+
+  // --- API tokens (a session's own; tokens themselves cannot manage tokens, see tokens.test.ts) ---
+  { method: 'get', path: '/api/tokens', access: 'signed-in', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  {
+    method: 'post',
+    path: '/api/tokens',
+    access: 'signed-in',
+    ok: 201,
+    mutates: true,
+    prepare: async (w) => {
+      const name = uniqueGroupName('Matrix Token');
+      return { params: {}, body: { name }, effect: async () => (await w.t.ctx.db.select().from(apiTokens).where(eq(apiTokens.name, name))).length > 0 };
+    },
+  },
+  {
+    // The caller's own token (an anonymous caller aims at the owner's).
+    method: 'delete',
+    path: '/api/tokens/:tokenId',
+    access: 'signed-in',
+    ok: 204,
+    mutates: true,
+    prepare: async (w, _groupId, caller) => {
+      const res = await (caller.person ?? w.crew.owner).agent.post('/api/tokens').send({ name: 'to revoke' });
+      const id = res.body.id as string;
+      return { params: { tokenId: id }, effect: async () => (await w.t.ctx.db.select().from(apiTokens).where(eq(apiTokens.id, id))).length === 0 };
+    },
+  },
 ];
+
+/** Every version in a group, for effect checks. */
+async function versionsOf(w: World, groupId: string) {
+  return w.t.ctx.db
+    .select({ resultId: resultVersions.resultId, version: resultVersions.version, state: resultVersions.state, title: resultVersions.title, changeNote: resultVersions.changeNote })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(eq(results.groupId, groupId));
+}
+
+/** One draft result per group for the read-only checks, made on first use. */
+const shared = new Map<string, Promise<{ resultId: string; slug: string }>>();
+function sharedResult(w: World, groupId: string) {
+  if (!shared.has(groupId)) shared.set(groupId, makeResult(w.crew.analyst, groupId));
+  return shared.get(groupId)!;
+}
+/** One public published result (in a group of the host) for the anonymous routes. */
+let publicOne: Promise<{ slug: string }> | undefined;
+function publicResult(w: World) {
+  publicOne ??= (async () => {
+    const groupId = await makeGroup(w.t, w.host);
+    const v = await makeResult(w.host, groupId);
+    return publishVersion(w.host, groupId, v.resultId, 1, true);
+  })();
+  return publicOne;
+}
 
 function expectedStatus(entry: Entry, caller: CallerKind): number {
   if (entry.access === 'anonymous') return entry.ok;

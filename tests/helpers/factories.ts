@@ -1,8 +1,10 @@
-import { and, eq } from 'drizzle-orm';
+import { and, count, eq } from 'drizzle-orm';
 import { addMember, getGroupName, getRole } from '@/db/queries/groups';
 import { listMailTo } from '@/db/queries/mail';
-import { invitations } from '@/db/schema';
+import { getStorage } from '@/db/queries/results';
+import { invitations, results, resultVersions } from '@/db/schema';
 import { GROUP_ROLES, type GroupRole } from '@/shared/access';
+import type { Curve, ResultVersion, Theory, VersionMetaInput } from '@/shared/schemas/results';
 import { signUp, uniqueEmail, type Agent, type TestApp } from './app';
 
 /**
@@ -95,5 +97,104 @@ export const probe = {
       .from(invitations)
       .where(and(eq(invitations.groupId, groupId), eq(invitations.email, email), eq(invitations.state, 'pending')));
     return rows.length > 0;
+  },
+};
+
+// ---------------------------------------------------------------------------------------------
+// Results
+
+/** Provenance of an invented σ×B search at the fictional 18 TeV collider; `over` replaces fields. */
+export function sampleMeta(over: Partial<VersionMetaInput> = {}): VersionMetaInput {
+  return {
+    title: 'Search for a fictional vector boson Z* decaying to two jets',
+    model: 'Sequential Z* benchmark',
+    parameterName: 'm(Z*)',
+    parameterUnit: 'GeV',
+    quantity: 'xsec',
+    quantityUnit: 'fb',
+    sqrtS: 18,
+    luminosity: 140,
+    cl: 0.95,
+    method: 'asymptotic',
+    reference: 'LF-NOTE-2031-007',
+    notes: '',
+    ...over,
+  };
+}
+
+/**
+ * An invented limit curve with full bands and a theory curve on the same grid: limits fall with
+ * mass more slowly than the theory, so the theory crosses them inside the range.
+ */
+export function sampleCurve(n = 8): { curve: Curve; theory: Theory } {
+  const x = Array.from({ length: n }, (_, i) => 1000 + 500 * i);
+  const r = (v: number) => Number(v.toPrecision(6));
+  const exp = x.map((m) => r(40 * Math.exp(-m / 1500)));
+  const curve: Curve = {
+    x,
+    observed: exp.map((e, i) => r(e * (1 + 0.15 * Math.sin(i)))),
+    expected: { '-2': exp.map((e) => r(e * 0.55)), '-1': exp.map((e) => r(e * 0.75)), '0': exp, '1': exp.map((e) => r(e * 1.4)), '2': exp.map((e) => r(e * 1.9)) },
+  };
+  const central = x.map((m) => r(900 * Math.exp(-m / 600)));
+  return { curve, theory: { x: [...x], central, lower: central.map((c) => r(c * 0.8)), upper: central.map((c) => r(c * 1.2)) } };
+}
+
+/** The curve (and theory on the same grid) as CSV text with the given delimiter and headers. */
+export function sampleCsv(opts: { n?: number; delimiter?: ',' | ';' | '\t'; decimalComma?: boolean; headers?: string[] } = {}): string {
+  const { curve, theory } = sampleCurve(opts.n);
+  const d = opts.delimiter ?? ',';
+  const headers = opts.headers ?? ['mass', 'observed', 'expected', 'exp_minus_2sigma', 'exp_minus_1sigma', 'exp_plus_1sigma', 'exp_plus_2sigma', 'theory', 'theory_low', 'theory_up'];
+  const e = curve.expected!;
+  const cols = [curve.x, curve.observed!, e['0']!, e['-2']!, e['-1']!, e['1']!, e['2']!, theory.central, theory.lower!, theory.upper!];
+  const cell = (v: number) => (opts.decimalComma ? String(v).replace('.', ',') : String(v));
+  const lines = [headers.join(d), ...curve.x.map((_, i) => cols.map((c) => cell(c[i]!)).join(d))];
+  return `${lines.join('\n')}\n`;
+}
+
+/** Creates a result (version 1, a draft) through the API as `person` from a JSON body. */
+export async function makeResult(
+  person: Person,
+  groupId: string,
+  opts: { meta?: Partial<VersionMetaInput>; n?: number; theory?: boolean } = {},
+): Promise<ResultVersion> {
+  const { curve, theory } = sampleCurve(opts.n);
+  const res = await person.agent
+    .post(`/api/groups/${groupId}/results`)
+    .send({ meta: sampleMeta(opts.meta), curve, ...(opts.theory === false ? {} : { theory }) });
+  if (res.status !== 201) throw new Error(`result creation failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body as ResultVersion;
+}
+
+/** Adds a draft version through the API as `person`. */
+export async function makeVersion(person: Person, groupId: string, resultId: string, changeNote = 'Recomputed with a finer grid', meta: Partial<VersionMetaInput> = {}): Promise<ResultVersion> {
+  const { curve, theory } = sampleCurve();
+  const res = await person.agent.post(`/api/groups/${groupId}/results/${resultId}/versions`).send({ meta: sampleMeta(meta), curve, theory, changeNote });
+  if (res.status !== 201) throw new Error(`version creation failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body as ResultVersion;
+}
+
+/** Publishes a version through the API as `curator` (public or group-only). */
+export async function publishVersion(curator: Person, groupId: string, resultId: string, version: number, isPublic?: boolean): Promise<ResultVersion> {
+  const res = await curator.agent
+    .post(`/api/groups/${groupId}/results/${resultId}/versions/${version}/publish`)
+    .send(isPublic === undefined ? {} : { public: isPublic });
+  if (res.status !== 200) throw new Error(`publishing failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body as ResultVersion;
+}
+
+/** Database probes of the registry (what a refused call must have left unchanged). */
+export const registryProbe = {
+  storageBytes: async (t: TestApp, groupId: string) => (await getStorage(t.ctx.db, groupId)) ?? NaN,
+  resultCount: async (t: TestApp, groupId: string) => {
+    const [row] = await t.ctx.db.select({ n: count() }).from(results).where(eq(results.groupId, groupId));
+    return row?.n ?? 0;
+  },
+  versionCount: async (t: TestApp, groupId: string) => {
+    const [row] = await t.ctx.db
+      .select({ n: count() })
+      .from(resultVersions)
+      .innerJoin(results, eq(results.id, resultVersions.resultId))
+      .where(eq(results.groupId, groupId));
+    return row?.n ?? 0;
   },
 };

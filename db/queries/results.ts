@@ -1,0 +1,326 @@
+import { and, asc, count, desc, eq, exists, getTableColumns, ilike, max, ne, or, sql, type SQL } from 'drizzle-orm';
+import type { ResultListQuery } from '../../shared/schemas/results';
+import type { Executor } from '../../server/db';
+import { groups, memberships, results, resultVersions, user } from '../schema';
+
+/**
+ * Data access of the results registry. Every function is scoped: by the group (routes that have
+ * checked membership), or by a `Viewer` whose visibility rule is applied here in SQL, so no caller
+ * can forget it.
+ */
+
+/**
+ * Whose eyes a read is for:
+ * - `group`: a member of that group (the route checked it): every result of the group, any state;
+ * - `user`: a signed-in user (or nobody, `userId: null`): their groups' results in any state, and
+ *   other groups' public results without drafts;
+ * - `public`: public results without drafts, whoever asks.
+ */
+export type Viewer = { kind: 'group'; groupId: string } | { kind: 'user'; userId: string | null } | { kind: 'public' };
+
+const notDraft = ne(resultVersions.state, 'draft');
+
+function isMember(userId: string): SQL {
+  return exists(
+    sql`(select 1 from ${memberships} where ${memberships.groupId} = ${results.groupId} and ${memberships.userId} = ${userId})`,
+  );
+}
+
+/** The versions `viewer` may see (used with `results` and `resultVersions` in scope). */
+function versionVisible(viewer: Viewer): SQL {
+  switch (viewer.kind) {
+    case 'group':
+      return eq(results.groupId, viewer.groupId);
+    case 'public':
+      return and(eq(results.isPublic, true), notDraft)!;
+    case 'user': {
+      const open = and(eq(results.isPublic, true), notDraft)!;
+      return viewer.userId ? or(isMember(viewer.userId), open)! : open;
+    }
+  }
+}
+
+/** `%text%` for ILIKE with the pattern characters of the text escaped. */
+function containsPattern(text: string): string {
+  return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Results
+
+export async function insertResult(db: Executor, r: { groupId: string; slug: string; isPublic?: boolean; createdBy: string | null }) {
+  // Undefined when the slug is taken (also by a concurrent insert).
+  const [row] = await db
+    .insert(results)
+    .values({ ...r, lastVersion: 1 })
+    .onConflictDoNothing({ target: results.slug })
+    .returning();
+  return row;
+}
+
+export async function slugExists(db: Executor, slug: string): Promise<boolean> {
+  const rows = await db.select({ id: results.id }).from(results).where(eq(results.slug, slug)).limit(1);
+  return rows.length > 0;
+}
+
+/**
+ * Locks the result row for the rest of the transaction (version numbers, publishing and deleting
+ * are decided under this lock, so concurrent requests queue instead of colliding).
+ */
+export async function lockResult(db: Executor, groupId: string, resultId: string) {
+  const rows = await db
+    .select()
+    .from(results)
+    .where(and(eq(results.id, resultId), eq(results.groupId, groupId)))
+    .for('update');
+  return rows[0];
+}
+
+/** Gives out the next version number of a locked result. */
+export async function takeNextVersion(db: Executor, resultId: string): Promise<number> {
+  const [row] = await db
+    .update(results)
+    .set({ lastVersion: sql`${results.lastVersion} + 1`, updatedAt: sql`now()` })
+    .where(eq(results.id, resultId))
+    .returning({ n: results.lastVersion });
+  if (!row) throw new Error(`result ${resultId} vanished while locked`);
+  return row.n;
+}
+
+export async function touchResult(db: Executor, resultId: string) {
+  await db.update(results).set({ updatedAt: sql`now()` }).where(eq(results.id, resultId));
+}
+
+export async function setResultPublic(db: Executor, groupId: string, resultId: string, isPublic: boolean) {
+  await db
+    .update(results)
+    .set({ isPublic, updatedAt: sql`now()` })
+    .where(and(eq(results.id, resultId), eq(results.groupId, groupId)));
+}
+
+export async function deleteResult(db: Executor, groupId: string, resultId: string) {
+  await db.delete(results).where(and(eq(results.id, resultId), eq(results.groupId, groupId)));
+}
+
+/** The result with its group's name, or undefined when it is not in the group. */
+export async function getResultInGroup(db: Executor, groupId: string, resultId: string) {
+  const rows = await db
+    .select({ id: results.id, slug: results.slug, groupId: results.groupId, groupName: groups.name, isPublic: results.isPublic })
+    .from(results)
+    .innerJoin(groups, eq(groups.id, results.groupId))
+    .where(and(eq(results.id, resultId), eq(results.groupId, groupId)));
+  return rows[0];
+}
+
+// ---------------------------------------------------------------------------------------------
+// Versions
+
+export type NewVersion = Omit<typeof resultVersions.$inferInsert, 'id' | 'createdAt' | 'updatedAt' | 'state' | 'publishedAt' | 'retractedAt' | 'retractionReason'>;
+
+export async function insertVersion(db: Executor, v: NewVersion) {
+  const [row] = await db.insert(resultVersions).values(v).returning({ id: resultVersions.id });
+  return row!;
+}
+
+/** The history of a result in its group, newest first, with the creators' names. */
+export async function listVersions(db: Executor, groupId: string, resultId: string) {
+  return db
+    .select({
+      version: resultVersions.version,
+      state: resultVersions.state,
+      changeNote: resultVersions.changeNote,
+      createdBy: user.name,
+      createdAt: resultVersions.createdAt,
+      publishedAt: resultVersions.publishedAt,
+      retractionReason: resultVersions.retractionReason,
+    })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .leftJoin(user, eq(user.id, resultVersions.createdBy))
+    .where(and(eq(results.id, resultId), eq(results.groupId, groupId)))
+    .orderBy(desc(resultVersions.version));
+}
+
+/** Version states and stored bytes of a result in its group (for delete rules and storage). */
+export async function versionStates(db: Executor, groupId: string, resultId: string) {
+  return db
+    .select({ version: resultVersions.version, state: resultVersions.state, storedBytes: resultVersions.storedBytes })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(and(eq(results.id, resultId), eq(results.groupId, groupId)));
+}
+
+const { sourceData: _sourceData, ...versionColumns } = getTableColumns(resultVersions);
+const fullVersion = {
+  ...versionColumns,
+  sourceBytes: sql<number | null>`octet_length(${resultVersions.sourceData})`.mapWith((v: string | number | null) => (v === null ? null : Number(v))),
+  slug: results.slug,
+  groupId: results.groupId,
+  groupName: groups.name,
+  isPublic: results.isPublic,
+  createdByName: user.name,
+};
+
+function selectFullVersion(db: Executor) {
+  return db
+    .select(fullVersion)
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .innerJoin(groups, eq(groups.id, results.groupId))
+    .leftJoin(user, eq(user.id, resultVersions.createdBy));
+}
+export type VersionRow = Awaited<ReturnType<typeof getVersion>> & object;
+
+/** One version of a result in a group, with everything a reader sees (not the uploaded bytes). */
+export async function getVersion(db: Executor, groupId: string, resultId: string, version: number) {
+  const rows = await selectFullVersion(db).where(
+    and(eq(results.id, resultId), eq(results.groupId, groupId), eq(resultVersions.version, version)),
+  );
+  return rows[0];
+}
+
+/** A version by its permanent link (`slug`, `version`), if `viewer` may see it. */
+export async function getVersionByLink(db: Executor, viewer: Viewer, slug: string, version: number) {
+  const rows = await selectFullVersion(db).where(and(eq(results.slug, slug), eq(resultVersions.version, version), versionVisible(viewer)));
+  return rows[0];
+}
+
+export async function updateVersion(
+  db: Executor,
+  resultId: string,
+  version: number,
+  patch: Partial<Pick<typeof resultVersions.$inferInsert, 'state' | 'publishedAt' | 'retractedAt' | 'retractionReason' | 'storedBytes' | 'curve' | 'theory' | 'changeNote' | 'title' | 'model' | 'parameterName' | 'parameterUnit' | 'quantity' | 'quantityUnit' | 'sqrtS' | 'luminosity' | 'cl' | 'method' | 'reference' | 'notes'>>,
+) {
+  await db
+    .update(resultVersions)
+    .set({ ...patch, updatedAt: sql`now()` })
+    .where(and(eq(resultVersions.resultId, resultId), eq(resultVersions.version, version)));
+}
+
+/** Marks the result's published version(s) superseded (before another is published). */
+export async function supersedePublished(db: Executor, resultId: string) {
+  await db
+    .update(resultVersions)
+    .set({ state: 'superseded', updatedAt: sql`now()` })
+    .where(and(eq(resultVersions.resultId, resultId), eq(resultVersions.state, 'published')));
+}
+
+export async function deleteVersion(db: Executor, resultId: string, version: number) {
+  await db.delete(resultVersions).where(and(eq(resultVersions.resultId, resultId), eq(resultVersions.version, version)));
+}
+
+/** The uploaded file of a version, as received. */
+export async function getSourceFile(db: Executor, groupId: string, resultId: string, version: number) {
+  const rows = await db
+    .select({ name: resultVersions.sourceName, data: resultVersions.sourceData })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(and(eq(results.id, resultId), eq(results.groupId, groupId), eq(resultVersions.version, version)));
+  return rows[0];
+}
+
+// ---------------------------------------------------------------------------------------------
+// Lists
+
+type ListFilters = Omit<ResultListQuery, 'page' | 'pageSize' | 'sort'> & Pick<Required<ResultListQuery>, 'page' | 'pageSize' | 'sort'>;
+
+/**
+ * One row per result visible to `viewer`, showing its latest version that `viewer` may see (a
+ * member sees the newest version in any state; others the newest that is not a draft). Filters
+ * and search apply to that version. Paged.
+ */
+export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) {
+  const latest = db
+    .select({ resultId: resultVersions.resultId, version: max(resultVersions.version).as('latest_version') })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(versionVisible(viewer))
+    .groupBy(resultVersions.resultId)
+    .as('latest');
+
+  const conditions: (SQL | undefined)[] = [];
+  if (f.q) {
+    const p = containsPattern(f.q);
+    conditions.push(or(ilike(resultVersions.title, p), ilike(resultVersions.model, p), ilike(resultVersions.reference, p)));
+  }
+  if (f.groupId) conditions.push(eq(results.groupId, f.groupId));
+  if (f.parameter) conditions.push(sql`lower(${resultVersions.parameterName}) = lower(${f.parameter})`);
+  if (f.sqrtS !== undefined) conditions.push(eq(resultVersions.sqrtS, f.sqrtS));
+  if (f.method) conditions.push(eq(resultVersions.method, f.method));
+  if (f.state) conditions.push(eq(resultVersions.state, f.state));
+  const where = and(...conditions);
+
+  const base = () =>
+    db
+      .select({
+        id: results.id,
+        slug: results.slug,
+        groupId: results.groupId,
+        groupName: groups.name,
+        isPublic: results.isPublic,
+        version: resultVersions.version,
+        state: resultVersions.state,
+        title: resultVersions.title,
+        model: resultVersions.model,
+        parameterName: resultVersions.parameterName,
+        parameterUnit: resultVersions.parameterUnit,
+        quantity: resultVersions.quantity,
+        quantityUnit: resultVersions.quantityUnit,
+        sqrtS: resultVersions.sqrtS,
+        luminosity: resultVersions.luminosity,
+        method: resultVersions.method,
+        reference: resultVersions.reference,
+        updatedAt: resultVersions.updatedAt,
+      })
+      .from(latest)
+      .innerJoin(results, eq(results.id, latest.resultId))
+      .innerJoin(resultVersions, and(eq(resultVersions.resultId, latest.resultId), eq(resultVersions.version, latest.version)))
+      .innerJoin(groups, eq(groups.id, results.groupId));
+
+  const order =
+    f.sort === 'title'
+      ? [asc(sql`lower(${resultVersions.title})`), asc(results.id)]
+      : f.sort === 'sqrtS'
+        ? [desc(resultVersions.sqrtS), asc(sql`lower(${resultVersions.title})`), asc(results.id)]
+        : [desc(resultVersions.updatedAt), asc(results.id)];
+  const items = await base()
+    .where(where)
+    .orderBy(...order)
+    .limit(f.pageSize)
+    .offset((f.page - 1) * f.pageSize);
+  const [total] = await db
+    .select({ n: count() })
+    .from(latest)
+    .innerJoin(results, eq(results.id, latest.resultId))
+    .innerJoin(resultVersions, and(eq(resultVersions.resultId, latest.resultId), eq(resultVersions.version, latest.version)))
+    .where(where);
+  return { items, total: total?.n ?? 0 };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Storage
+
+/** Adds (or, negative, subtracts) bytes to the group's storage use. */
+export async function addStorage(db: Executor, groupId: string, bytes: number) {
+  if (bytes === 0) return;
+  await db
+    .update(groups)
+    .set({ storageBytes: sql`greatest(${groups.storageBytes} + ${bytes}, 0)` })
+    .where(eq(groups.id, groupId));
+}
+
+export async function getStorage(db: Executor, groupId: string): Promise<number | undefined> {
+  const rows = await db.select({ bytes: groups.storageBytes }).from(groups).where(eq(groups.id, groupId));
+  return rows[0]?.bytes;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Figures
+
+/**
+ * Figures of the group that use the result (or one of its versions): a result in use must not be
+ * deleted. Figures do not exist yet; the figures issue extends this query with its layers table.
+ */
+export async function listFiguresUsing(_db: Executor, _target: { groupId: string; resultId: string; version?: number }): Promise<{ id: string; name: string }[]> {
+  return [];
+}

@@ -1,0 +1,50 @@
+import express, { type RequestHandler } from 'express';
+import multer from 'multer';
+import { AppError } from './errors';
+
+/** "5 MB", "0.002 MB": the upload limit as users read it. */
+export function formatMegabytes(bytes: number): string {
+  const mb = bytes / (1024 * 1024);
+  return `${Number(mb.toPrecision(mb >= 1 ? 3 : 2))} MB`;
+}
+
+const tooLarge = (limit: number) =>
+  new AppError(413, 'too_large', `The upload is larger than the limit of ${formatMegabytes(limit)}; split the file or ask the administrator to raise the limit`);
+
+/**
+ * JSON bodies of result uploads may be as large as files (the API-wide JSON limit is smaller).
+ * Mounted before the API-wide parser, which then leaves the parsed body alone.
+ */
+export function resultJson(limitBytes: number): RequestHandler {
+  const parse = express.json({ limit: limitBytes });
+  return (req, res, next) =>
+    parse(req, res, (err?: unknown) => {
+      if ((err as { status?: number } | undefined)?.status === 413) return next(tooLarge(limitBytes));
+      next(err);
+    });
+}
+
+/**
+ * `multipart/form-data` with one file in the field `file` (kept in memory, at most `limitBytes`)
+ * and text fields; other content types pass through untouched (JSON was parsed already).
+ */
+export function multipartUpload(limitBytes: number): RequestHandler {
+  const parse = multer({
+    storage: multer.memoryStorage(),
+    limits: { fileSize: limitBytes, files: 1, fields: 20, fieldSize: 256 * 1024 },
+  }).single('file');
+  return (req, res, next) => {
+    if (!req.is('multipart/form-data')) return next();
+    parse(req, res, (err?: unknown) => {
+      if (!err) return next();
+      if (err instanceof multer.MulterError) {
+        if (err.code === 'LIMIT_FILE_SIZE') return next(tooLarge(limitBytes));
+        if (err.code === 'LIMIT_UNEXPECTED_FILE' || err.code === 'LIMIT_FILE_COUNT') {
+          return next(new AppError(400, 'validation_failed', 'Send one file, in the form field "file"', [{ field: err.field ?? 'file', message: 'send one file, in the form field "file"' }]));
+        }
+        return next(new AppError(400, 'bad_request', `The upload could not be read: ${err.message}`));
+      }
+      next(new AppError(400, 'bad_request', `The upload could not be read: ${(err as Error).message ?? 'malformed multipart body'}`));
+    });
+  };
+}

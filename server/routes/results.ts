@@ -1,0 +1,152 @@
+import { Router, type Request, type Response } from 'express';
+import type { ZodType, z } from 'zod';
+import { groupParams } from '../../shared/schemas/groups';
+import {
+  createResultSchema,
+  createVersionSchema,
+  permalinkParams,
+  publishSchema,
+  resultListQuery,
+  resultParams,
+  retractSchema,
+  updateDraftSchema,
+  versionParams,
+  visibilitySchema,
+} from '../../shared/schemas/results';
+import { optionalUser, requireGroup } from '../access';
+import type { Ctx } from '../context';
+import { validationError } from '../lib/errors';
+import { handle } from '../lib/validate';
+import { multipartUpload } from '../lib/upload';
+import { fromFileUpload, fromJsonBody, type FileUpload } from '../services/result-upload';
+import * as results from '../services/results';
+
+const groupListQuery = resultListQuery.omit({ groupId: true });
+const publicListQuery = resultListQuery.pick({ q: true, page: true, pageSize: true });
+const MAX_FILE_NAME = 200;
+
+/** The multipart parts of a request (multer put them on req.file and req.body), or undefined for JSON. */
+function fileUploadOf(req: Request): FileUpload | undefined {
+  if (!req.is('multipart/form-data')) return undefined;
+  const fields = (req.body ?? {}) as Record<string, unknown>;
+  const f = req.file;
+  return { fields, file: f ? { name: (f.originalname || 'upload').slice(0, MAX_FILE_NAME), data: f.buffer } : undefined };
+}
+
+/** A JSON body parsed by its schema (400 with every field otherwise). */
+function parseBody<S extends ZodType>(schema: S, body: unknown): z.output<S> {
+  const parsed = schema.safeParse(body ?? {});
+  if (!parsed.success) throw validationError(parsed.error, 'body');
+  return parsed.data;
+}
+
+function sendExport(res: Response, file: results.ExportFile) {
+  res.setHeader('Content-Type', file.contentType);
+  res.attachment(file.fileName);
+  res.setHeader('Cache-Control', 'no-store');
+  res.send(file.body);
+}
+
+/**
+ * The results registry: group routes (members, by role), the caller-aware list and permanent
+ * links (anyone; what they see depends on who they are), and the public routes (public results
+ * only, whoever asks).
+ */
+export function resultsRouter(ctx: Ctx) {
+  const r = Router();
+  const upload = multipartUpload(ctx.env.UPLOAD_LIMIT_BYTES);
+  const actor = (req: Request): results.Actor => ({ id: req.user!.id, role: req.groupRole! });
+
+  // --- Group routes -------------------------------------------------------------------------
+
+  r.get('/groups/:groupId/results', requireGroup(ctx, 'group.read'), handle({ params: groupParams, query: groupListQuery }, async ({ params, query }, _req, res) => {
+    res.json(await results.listInGroup(ctx, params.groupId, query));
+  }));
+
+  r.post('/groups/:groupId/results', requireGroup(ctx, 'result.write'), upload, handle({ params: groupParams }, async ({ params }, req, res) => {
+    const file = fileUploadOf(req);
+    const input = file ? fromFileUpload(file, { changeNote: false }) : fromJsonBody(parseBody(createResultSchema, req.body));
+    res.status(201).json(await results.createResult(ctx, params.groupId, actor(req), input));
+  }));
+
+  r.get('/groups/:groupId/results/:resultId', requireGroup(ctx, 'group.read'), handle({ params: resultParams }, async ({ params }, _req, res) => {
+    res.json(await results.getDetail(ctx, params.groupId, params.resultId));
+  }));
+
+  r.patch('/groups/:groupId/results/:resultId', requireGroup(ctx, 'result.publish'), handle({ params: resultParams, body: visibilitySchema }, async ({ params, body }, _req, res) => {
+    res.json(await results.setVisibility(ctx, params.groupId, params.resultId, body.public));
+  }));
+
+  r.delete('/groups/:groupId/results/:resultId', requireGroup(ctx, 'result.write'), handle({ params: resultParams }, async ({ params }, req, res) => {
+    await results.deleteResult(ctx, params.groupId, actor(req), params.resultId);
+    res.status(204).end();
+  }));
+
+  r.post('/groups/:groupId/results/:resultId/versions', requireGroup(ctx, 'result.write'), upload, handle({ params: resultParams }, async ({ params }, req, res) => {
+    const file = fileUploadOf(req);
+    let input: Parameters<typeof results.addVersion>[4];
+    if (file) {
+      const { changeNote = '', ...parsed } = fromFileUpload(file, { changeNote: true });
+      input = { ...parsed, changeNote };
+    } else {
+      const body = parseBody(createVersionSchema, req.body);
+      input = { ...fromJsonBody(body), changeNote: body.changeNote };
+    }
+    res.status(201).json(await results.addVersion(ctx, params.groupId, actor(req), params.resultId, input));
+  }));
+
+  r.get('/groups/:groupId/results/:resultId/versions/:version', requireGroup(ctx, 'group.read'), handle({ params: versionParams }, async ({ params }, _req, res) => {
+    res.json(await results.getVersion(ctx, params.groupId, params.resultId, params.version));
+  }));
+
+  r.patch('/groups/:groupId/results/:resultId/versions/:version', requireGroup(ctx, 'result.write'), handle({ params: versionParams, body: updateDraftSchema }, async ({ params, body }, _req, res) => {
+    res.json(await results.updateDraft(ctx, params.groupId, params.resultId, params.version, body));
+  }));
+
+  r.delete('/groups/:groupId/results/:resultId/versions/:version', requireGroup(ctx, 'result.write'), handle({ params: versionParams }, async ({ params }, _req, res) => {
+    await results.deleteDraft(ctx, params.groupId, params.resultId, params.version);
+    res.status(204).end();
+  }));
+
+  r.post('/groups/:groupId/results/:resultId/versions/:version/publish', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: publishSchema }, async ({ params, body }, _req, res) => {
+    res.json(await results.publish(ctx, params.groupId, params.resultId, params.version, body));
+  }));
+
+  r.post('/groups/:groupId/results/:resultId/versions/:version/retract', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: retractSchema }, async ({ params, body }, _req, res) => {
+    res.json(await results.retract(ctx, params.groupId, params.resultId, params.version, body.reason));
+  }));
+
+  for (const format of ['csv', 'json'] as const) {
+    r.get(`/groups/:groupId/results/:resultId/versions/:version/export.${format}`, requireGroup(ctx, 'group.read'), handle({ params: versionParams }, async ({ params }, _req, res) => {
+      sendExport(res, await results.exportVersion(ctx, params.groupId, params.resultId, params.version, format));
+    }));
+  }
+
+  // --- Everything the caller may see (members: their groups; everyone: public results) ------
+
+  r.get('/results', optionalUser(ctx), handle({ query: resultListQuery }, async ({ query }, req, res) => {
+    res.json(await results.listVisible(ctx, req.user?.id ?? null, query));
+  }));
+
+  r.get('/results/:slug/v:version', optionalUser(ctx), handle({ params: permalinkParams }, async ({ params }, req, res) => {
+    res.json(await results.getByLink(ctx, { kind: 'user', userId: req.user?.id ?? null }, params.slug, params.version));
+  }));
+
+  // --- Public results, whoever asks ----------------------------------------------------------
+
+  r.get('/public/results', handle({ query: publicListQuery }, async ({ query }, _req, res) => {
+    res.json(await results.listPublic(ctx, query));
+  }));
+
+  r.get('/public/results/:slug/v:version', handle({ params: permalinkParams }, async ({ params }, _req, res) => {
+    res.json(await results.getByLink(ctx, { kind: 'public' }, params.slug, params.version));
+  }));
+
+  for (const format of ['csv', 'json'] as const) {
+    r.get(`/public/results/:slug/v:version/export.${format}`, handle({ params: permalinkParams }, async ({ params }, _req, res) => {
+      sendExport(res, await results.exportByLink(ctx, { kind: 'public' }, params.slug, params.version, format));
+    }));
+  }
+
+  return r;
+}

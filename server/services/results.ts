@@ -1,0 +1,364 @@
+import { randomBytes } from 'node:crypto';
+import { can, type GroupRole } from '../../shared/access';
+import { curveToCsv } from '../../shared/curves/csv';
+import type {
+  ResultDetail,
+  ResultListQuery,
+  ResultPage,
+  ResultState,
+  ResultVersion,
+  Theory,
+  UpdateDraftInput,
+  VersionMeta,
+} from '../../shared/schemas/results';
+import { exclusionRanges } from '../../shared/stats/exclusion';
+import { StatsInputError } from '../../shared/stats/errors';
+import * as q from '../../db/queries/results';
+import type { Ctx } from '../context';
+import { AppError, conflict, forbidden, notFound } from '../lib/errors';
+import { slugify } from './groups';
+import { assertCurveValid, canonicalCurve, canonicalMeta, canonicalTheory, limitFileOf, storedBytesOf, type NormalizedVersion } from './result-upload';
+
+/**
+ * The results registry's rules: versions are numbered under a lock on the result, only drafts
+ * change, publishing supersedes the previous published version, retraction keeps the version
+ * readable with its reason, and every stored byte is counted toward the group's storage.
+ */
+
+export type Actor = { id: string; role: GroupRole };
+type ListQuery = Required<Pick<ResultListQuery, 'sort' | 'page' | 'pageSize'>> & Omit<ResultListQuery, 'sort' | 'page' | 'pageSize'>;
+
+const SLUG_SUFFIX_LENGTH = 5;
+
+function newSlug(title: string): string {
+  const suffix = Array.from(randomBytes(SLUG_SUFFIX_LENGTH), (b) => 'abcdefghijklmnopqrstuvwxyz0123456789'[b % 36]).join('');
+  return `${slugify(title, 'result', 80 - SLUG_SUFFIX_LENGTH - 1)}-${suffix}`;
+}
+
+const immutable = (version: number, state: ResultState) =>
+  new AppError(
+    409,
+    'immutable',
+    state === 'published'
+      ? `Version ${version} is published and cannot change; create a new version`
+      : `Version ${version} is ${state} and cannot change; create a new version`,
+  );
+
+/** The columns of a version from its provenance and numbers. */
+function versionColumns(v: { meta: VersionMeta; curve: NormalizedVersion['curve']; theory: Theory | null }) {
+  const m = v.meta;
+  return {
+    title: m.title,
+    model: m.model,
+    parameterName: m.parameterName,
+    parameterUnit: m.parameterUnit,
+    quantity: m.quantity,
+    quantityUnit: m.quantityUnit,
+    sqrtS: m.sqrtS,
+    luminosity: m.luminosity,
+    cl: m.cl,
+    method: m.method,
+    reference: m.reference,
+    notes: m.notes,
+    curve: canonicalCurve(v.curve),
+    theory: canonicalTheory(v.theory),
+  };
+}
+
+function metaOf(row: q.VersionRow): VersionMeta {
+  return canonicalMeta({
+    title: row.title,
+    model: row.model,
+    parameterName: row.parameterName,
+    parameterUnit: row.parameterUnit,
+    quantity: row.quantity,
+    quantityUnit: row.quantityUnit as VersionMeta['quantityUnit'],
+    sqrtS: row.sqrtS,
+    luminosity: row.luminosity,
+    cl: row.cl,
+    method: row.method,
+    reference: row.reference,
+    notes: row.notes,
+  });
+}
+
+/**
+ * Excluded ranges against the stored theory curve (which is in the version's own unit), or why
+ * there are none.
+ */
+export function exclusionOf(curve: NormalizedVersion['curve'], theory: Theory | null): ResultVersion['exclusion'] {
+  if (!theory) return { ranges: null, problem: 'No theory curve is stored with this version, so no excluded range can be derived' };
+  try {
+    return { ranges: exclusionRanges(curve, theory), problem: null };
+  } catch (e) {
+    if (e instanceof StatsInputError) return { ranges: null, problem: `The limit cannot be compared with the theory curve: ${e.message}` };
+    throw e;
+  }
+}
+
+function toVersion(ctx: Ctx, row: q.VersionRow): ResultVersion {
+  const curve = row.curve;
+  const theory = row.theory ?? null;
+  return {
+    resultId: row.resultId,
+    slug: row.slug,
+    groupId: row.groupId,
+    groupName: row.groupName,
+    isPublic: row.isPublic,
+    version: row.version,
+    state: row.state,
+    changeNote: row.changeNote,
+    createdBy: row.createdByName,
+    createdAt: row.createdAt.toISOString(),
+    publishedAt: row.publishedAt?.toISOString() ?? null,
+    retractionReason: row.retractionReason,
+    meta: metaOf(row),
+    curve,
+    theory,
+    exclusion: exclusionOf(curve, theory),
+    permalink: row.state === 'draft' ? null : `${ctx.env.PUBLIC_URL}/r/${row.slug}/v${row.version}`,
+    sourceFile: row.sourceName !== null && row.sourceBytes !== null ? { name: row.sourceName, bytes: row.sourceBytes } : null,
+  };
+}
+
+function toPage(rows: Awaited<ReturnType<typeof q.listResults>>, query: ListQuery): ResultPage {
+  return {
+    items: rows.items.map((r) => ({ ...r, updatedAt: r.updatedAt.toISOString() })),
+    total: rows.total,
+    page: query.page,
+    pageSize: query.pageSize,
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Reads
+
+export async function listInGroup(ctx: Ctx, groupId: string, query: ListQuery): Promise<ResultPage> {
+  return toPage(await q.listResults(ctx.db, { kind: 'group', groupId }, { ...query, groupId: undefined }), query);
+}
+
+/** Results the caller may see: their groups' (any state) and public ones (no drafts). */
+export async function listVisible(ctx: Ctx, userId: string | null, query: ListQuery): Promise<ResultPage> {
+  return toPage(await q.listResults(ctx.db, { kind: 'user', userId }, query), query);
+}
+
+export async function listPublic(ctx: Ctx, query: Pick<ListQuery, 'q' | 'page' | 'pageSize'>): Promise<ResultPage> {
+  const full: ListQuery = { ...query, sort: 'updated' };
+  return toPage(await q.listResults(ctx.db, { kind: 'public' }, full), full);
+}
+
+export async function getDetail(ctx: Ctx, groupId: string, resultId: string): Promise<ResultDetail> {
+  const r = await q.getResultInGroup(ctx.db, groupId, resultId);
+  if (!r) throw notFound('Result');
+  const versions = await q.listVersions(ctx.db, groupId, resultId);
+  return {
+    ...r,
+    versions: versions.map((v) => ({
+      ...v,
+      createdAt: v.createdAt.toISOString(),
+      publishedAt: v.publishedAt?.toISOString() ?? null,
+    })),
+  };
+}
+
+async function versionRow(ctx: Ctx, groupId: string, resultId: string, version: number) {
+  const row = await q.getVersion(ctx.db, groupId, resultId, version);
+  if (!row) throw notFound(`Version ${version} of this result`);
+  return row;
+}
+
+export async function getVersion(ctx: Ctx, groupId: string, resultId: string, version: number): Promise<ResultVersion> {
+  return toVersion(ctx, await versionRow(ctx, groupId, resultId, version));
+}
+
+/** A version by its permanent link; 404 (revealing nothing) when the caller may not see it. */
+export async function getByLink(ctx: Ctx, viewer: q.Viewer, slug: string, version: number): Promise<ResultVersion> {
+  const row = await q.getVersionByLink(ctx.db, viewer, slug, version);
+  if (!row) throw notFound('Result');
+  return toVersion(ctx, row);
+}
+
+export type ExportFile = { fileName: string; contentType: string; body: string };
+
+function exportOf(row: q.VersionRow, format: 'csv' | 'json'): ExportFile {
+  const meta = metaOf(row);
+  const fileName = `${row.slug}-v${row.version}.${format}`;
+  if (format === 'json') {
+    return { fileName, contentType: 'application/json; charset=utf-8', body: JSON.stringify(limitFileOf(meta, row.curve, row.theory ?? null)) };
+  }
+  const x = meta.parameterUnit ? `${meta.parameterName} [${meta.parameterUnit}]` : meta.parameterName;
+  return { fileName, contentType: 'text/csv; charset=utf-8', body: curveToCsv(row.curve, row.theory ?? null, { x }) };
+}
+
+export async function exportVersion(ctx: Ctx, groupId: string, resultId: string, version: number, format: 'csv' | 'json'): Promise<ExportFile> {
+  return exportOf(await versionRow(ctx, groupId, resultId, version), format);
+}
+
+export async function exportByLink(ctx: Ctx, viewer: q.Viewer, slug: string, version: number, format: 'csv' | 'json'): Promise<ExportFile> {
+  const row = await q.getVersionByLink(ctx.db, viewer, slug, version);
+  if (!row) throw notFound('Result');
+  return exportOf(row, format);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Writes
+
+/** Creates a result with version 1 as a draft. `opts.slug` is for the demo seed's fixed links. */
+export async function createResult(
+  ctx: Ctx,
+  groupId: string,
+  actor: Actor,
+  input: NormalizedVersion,
+  opts: { slug?: string } = {},
+): Promise<ResultVersion> {
+  const resultId = await ctx.db.transaction(async (tx) => {
+    let result: Awaited<ReturnType<typeof q.insertResult>>;
+    for (let attempt = 0; !result; attempt++) {
+      if (attempt >= 5) throw new Error('could not find a free result slug');
+      if (opts.slug && attempt > 0) throw conflict(`The link name ${opts.slug} is taken`);
+      result = await q.insertResult(tx, { groupId, slug: opts.slug ?? newSlug(input.meta.title), createdBy: actor.id });
+    }
+    const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
+    await q.insertVersion(tx, {
+      resultId: result.id,
+      version: 1,
+      ...versionColumns(input),
+      changeNote: '',
+      sourceName: input.source?.name ?? null,
+      sourceData: input.source?.data ?? null,
+      storedBytes,
+      createdBy: actor.id,
+    });
+    await q.addStorage(tx, groupId, storedBytes);
+    return result.id;
+  });
+  return getVersion(ctx, groupId, resultId, 1);
+}
+
+/** A new draft version with the next number; concurrent calls queue on the result's row lock. */
+export async function addVersion(ctx: Ctx, groupId: string, actor: Actor, resultId: string, input: NormalizedVersion & { changeNote: string }): Promise<ResultVersion> {
+  const version = await ctx.db.transaction(async (tx) => {
+    if (!(await q.lockResult(tx, groupId, resultId))) throw notFound('Result');
+    const n = await q.takeNextVersion(tx, resultId);
+    const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
+    await q.insertVersion(tx, {
+      resultId,
+      version: n,
+      ...versionColumns(input),
+      changeNote: input.changeNote,
+      sourceName: input.source?.name ?? null,
+      sourceData: input.source?.data ?? null,
+      storedBytes,
+      createdBy: actor.id,
+    });
+    await q.addStorage(tx, groupId, storedBytes);
+    return n;
+  });
+  return getVersion(ctx, groupId, resultId, version);
+}
+
+/** Locks the result and reads one of its versions (404 when either is not in the group). */
+async function lockedVersion(tx: Parameters<Parameters<Ctx['db']['transaction']>[0]>[0], groupId: string, resultId: string, version: number) {
+  if (!(await q.lockResult(tx, groupId, resultId))) throw notFound('Result');
+  const row = await q.getVersion(tx, groupId, resultId, version);
+  if (!row) throw notFound(`Version ${version} of this result`);
+  return row;
+}
+
+/** Changes a draft; any other state is immutable. */
+export async function updateDraft(ctx: Ctx, groupId: string, resultId: string, version: number, patch: UpdateDraftInput & { meta?: VersionMeta }): Promise<ResultVersion> {
+  await ctx.db.transaction(async (tx) => {
+    const row = await lockedVersion(tx, groupId, resultId, version);
+    if (row.state !== 'draft') throw immutable(version, row.state);
+    const meta = patch.meta ? canonicalMeta(patch.meta) : metaOf(row);
+    const curve = patch.curve ?? row.curve;
+    const theory = patch.theory === undefined ? (row.theory ?? null) : canonicalTheory(patch.theory);
+    if (patch.curve !== undefined || patch.theory !== undefined) assertCurveValid(curve, theory);
+    const storedBytes = storedBytesOf({ meta, curve, theory, sourceBytes: row.sourceBytes ?? 0 });
+    await q.updateVersion(tx, resultId, version, {
+      ...versionColumns({ meta, curve, theory }),
+      ...(patch.changeNote !== undefined ? { changeNote: patch.changeNote } : {}),
+      storedBytes,
+    });
+    await q.addStorage(tx, groupId, storedBytes - row.storedBytes);
+    await q.touchResult(tx, resultId);
+  });
+  return getVersion(ctx, groupId, resultId, version);
+}
+
+async function refuseIfUsedByFigures(tx: Parameters<typeof q.listFiguresUsing>[0], target: { groupId: string; resultId: string; version?: number }) {
+  const figures = await q.listFiguresUsing(tx, target);
+  if (figures.length) {
+    const names = figures.map((f) => `"${f.name}"`).join(', ');
+    throw new AppError(409, 'in_use', `${target.version ? `Version ${target.version}` : 'This result'} is used by ${figures.length === 1 ? 'the figure' : 'the figures'} ${names}; remove it from ${figures.length === 1 ? 'that figure' : 'those figures'} first`);
+  }
+}
+
+/** Deletes a draft version (the result too when it was its only version). */
+export async function deleteDraft(ctx: Ctx, groupId: string, resultId: string, version: number): Promise<void> {
+  await ctx.db.transaction(async (tx) => {
+    const row = await lockedVersion(tx, groupId, resultId, version);
+    if (row.state !== 'draft') throw immutable(version, row.state);
+    await refuseIfUsedByFigures(tx, { groupId, resultId, version });
+    await q.deleteVersion(tx, resultId, version);
+    await q.addStorage(tx, groupId, -row.storedBytes);
+    if ((await q.versionStates(tx, groupId, resultId)).length === 0) await q.deleteResult(tx, groupId, resultId);
+    else await q.touchResult(tx, resultId);
+  });
+}
+
+/**
+ * Deletes a result with all its versions. Analysts may delete results that were never published;
+ * publishing roles any result. A result that a figure uses is kept.
+ */
+export async function deleteResult(ctx: Ctx, groupId: string, actor: Actor, resultId: string): Promise<void> {
+  await ctx.db.transaction(async (tx) => {
+    if (!(await q.lockResult(tx, groupId, resultId))) throw notFound('Result');
+    const versions = await q.versionStates(tx, groupId, resultId);
+    if (!can(actor.role, 'result.publish') && versions.some((v) => v.state !== 'draft')) {
+      throw forbidden(`Your role in this group (${actor.role}) can delete only results that were never published; ask a curator or owner`);
+    }
+    await refuseIfUsedByFigures(tx, { groupId, resultId });
+    await q.deleteResult(tx, groupId, resultId);
+    await q.addStorage(tx, groupId, -versions.reduce((sum, v) => sum + v.storedBytes, 0));
+  });
+}
+
+/**
+ * Publishes a draft: the previously published version becomes superseded in the same
+ * transaction. A draft older than an already released version cannot be published (the newest
+ * released version is the current one).
+ */
+export async function publish(ctx: Ctx, groupId: string, resultId: string, version: number, opts: { public?: boolean }): Promise<ResultVersion> {
+  await ctx.db.transaction(async (tx) => {
+    const row = await lockedVersion(tx, groupId, resultId, version);
+    if (row.state !== 'draft') throw conflict(`Version ${version} is ${row.state}; only drafts can be published`);
+    const newer = (await q.versionStates(tx, groupId, resultId)).filter((v) => v.version > version && v.state !== 'draft');
+    if (newer.length) {
+      throw conflict(`Version ${newer[0]!.version} is newer and already ${newer[0]!.state}; create a new version from this draft's data instead`);
+    }
+    await q.supersedePublished(tx, resultId);
+    await q.updateVersion(tx, resultId, version, { state: 'published', publishedAt: new Date() });
+    if (opts.public !== undefined) await q.setResultPublic(tx, groupId, resultId, opts.public);
+    else await q.touchResult(tx, resultId);
+  });
+  return getVersion(ctx, groupId, resultId, version);
+}
+
+/** Retracts a published or superseded version; the reason is shown to everyone who opens it. */
+export async function retract(ctx: Ctx, groupId: string, resultId: string, version: number, reason: string): Promise<ResultVersion> {
+  await ctx.db.transaction(async (tx) => {
+    const row = await lockedVersion(tx, groupId, resultId, version);
+    if (row.state === 'draft') throw conflict(`Version ${version} is a draft and was never published; delete it instead`);
+    if (row.state === 'retracted') throw conflict(`Version ${version} is already retracted`);
+    await q.updateVersion(tx, resultId, version, { state: 'retracted', retractedAt: new Date(), retractionReason: reason });
+    await q.touchResult(tx, resultId);
+  });
+  return getVersion(ctx, groupId, resultId, version);
+}
+
+export async function setVisibility(ctx: Ctx, groupId: string, resultId: string, isPublic: boolean): Promise<ResultDetail> {
+  if (!(await q.getResultInGroup(ctx.db, groupId, resultId))) throw notFound('Result');
+  await q.setResultPublic(ctx.db, groupId, resultId, isPublic);
+  return getDetail(ctx, groupId, resultId);
+}
