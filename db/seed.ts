@@ -1,13 +1,19 @@
 import { eq } from 'drizzle-orm';
 import type { GroupRole } from '../shared/access';
+import { curveToCsv } from '../shared/curves/csv';
 import type { Ctx } from '../server/context';
-import { addMember, insertGroup, slugTaken } from './queries/groups';
-import { user } from './schema';
+import * as resultsService from '../server/services/results';
+import { DEMO_RESULTS } from './demo-results';
+import { addMember, getRole, insertGroup, slugTaken } from './queries/groups';
+import { slugExists } from './queries/results';
+import { groups, user } from './schema';
 
 /**
  * Demo data, all invented: the Halcyon Ring (a fictional 18 TeV collider) and the Lanternfish
  * experiment on it, with an analysis team, a combination board and an outreach office.
- * Idempotent: a second run finds the demo users and changes nothing.
+ * Idempotent: a second run finds the demo users and results and changes nothing. The results have
+ * their own marker (their fixed link names), so a database seeded before the registry existed
+ * gets them added once.
  */
 export const DEMO_PASSWORD = 'halcyon-demo-2026';
 
@@ -39,9 +45,17 @@ export const DEMO_GROUPS: { name: string; description: string; members: [DemoKey
 ];
 
 export async function seedDemo(ctx: Ctx): Promise<{ created: boolean }> {
+  const people = await seedDemoPeople(ctx);
+  const results = await seedDemoResults(ctx);
+  return { created: people || results > 0 };
+}
+
+const groupSlug = (name: string) => name.toLowerCase().replace(/[^a-z0-9]+/g, '-');
+
+async function seedDemoPeople(ctx: Ctx): Promise<boolean> {
   const first = DEMO_USERS[0];
   const existing = await ctx.db.select({ id: user.id }).from(user).where(eq(user.email, first.email));
-  if (existing.length > 0) return { created: false };
+  if (existing.length > 0) return false;
 
   const ids = {} as Record<DemoKey, string>;
   for (const u of DEMO_USERS) {
@@ -50,12 +64,51 @@ export async function seedDemo(ctx: Ctx): Promise<{ created: boolean }> {
   }
   await ctx.db.transaction(async (tx) => {
     for (const g of DEMO_GROUPS) {
-      const slug = g.name.toLowerCase().replace(/[^a-z0-9]+/g, '-');
+      const slug = groupSlug(g.name);
       if (await slugTaken(tx, slug)) continue;
       const row = await insertGroup(tx, { name: g.name, slug, description: g.description, createdBy: ids[g.members[0]![0]] });
       if (!row) continue;
       for (const [key, role] of g.members) await addMember(tx, row.id, ids[key], role);
     }
   });
-  return { created: true };
+  return true;
+}
+
+/**
+ * Adds the invented results (see db/demo-results.ts) through the registry's own services, so
+ * versions, states and storage use are what the app would have made. Skips each result whose link
+ * name exists, and any whose group or people are missing. Returns how many were added.
+ */
+export async function seedDemoResults(ctx: Ctx): Promise<number> {
+  let added = 0;
+  for (const demo of DEMO_RESULTS) {
+    if (await slugExists(ctx.db, demo.slug)) continue;
+    const [group] = await ctx.db.select({ id: groups.id }).from(groups).where(eq(groups.slug, groupSlug(demo.group)));
+    if (!group) continue;
+    const actorOf = async (email: string) => {
+      const [u] = await ctx.db.select({ id: user.id }).from(user).where(eq(user.email, email));
+      const role = u && (await getRole(ctx.db, group.id, u.id));
+      return u && role ? { id: u.id, role } : undefined;
+    };
+    const uploader = await actorOf(demo.uploader);
+    const publisher = await actorOf(demo.publisher);
+    if (!uploader || !publisher) continue;
+
+    let resultId: string | undefined;
+    for (const [i, v] of demo.versions.entries()) {
+      // Stored as if uploaded as a CSV file, so the provenance shows a source file.
+      const x = v.meta.parameterUnit ? `${v.meta.parameterName} [${v.meta.parameterUnit}]` : v.meta.parameterName;
+      const source = { name: `${demo.slug}-v${i + 1}.csv`, data: Buffer.from(curveToCsv(v.curve, v.theory, { x })) };
+      const input = { meta: v.meta, curve: v.curve, theory: v.theory, source };
+      const stored = resultId
+        ? await resultsService.addVersion(ctx, group.id, uploader, resultId, { ...input, changeNote: v.changeNote ?? '' })
+        : await resultsService.createResult(ctx, group.id, uploader, input, { slug: demo.slug });
+      resultId = stored.resultId;
+      if (v.then === 'draft') continue;
+      await resultsService.publish(ctx, group.id, resultId, stored.version, i === 0 ? { public: demo.isPublic } : {});
+      if (typeof v.then === 'object') await resultsService.retract(ctx, group.id, resultId, stored.version, v.then.retract);
+    }
+    added += 1;
+  }
+  return added;
 }
