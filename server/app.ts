@@ -13,6 +13,7 @@ import { groupsRouter } from './routes/groups';
 import { healthRouter } from './routes/health';
 import { invitationsRouter } from './routes/invitations';
 import { meRouter } from './routes/me';
+import { scansRouter } from './routes/scans';
 import { resultsRouter } from './routes/results';
 import { tokensRouter } from './routes/tokens';
 
@@ -53,7 +54,7 @@ export function createApp(ctx: Ctx): Express {
   app.all('/api/auth/{*any}', authNodeHandler(ctx.auth));
 
   // Result uploads sent as JSON may be as large as uploaded files.
-  app.use('/api/groups/:groupId/results', resultJson(ctx.env.UPLOAD_LIMIT_BYTES));
+  app.use(['/api/groups/:groupId/results', '/api/groups/:groupId/scans'], resultJson(ctx.env.UPLOAD_LIMIT_BYTES));
   app.use('/api', express.json({ limit: '1mb' }));
   app.use('/api', healthRouter(ctx));
   app.use('/api', meRouter(ctx));
@@ -61,6 +62,7 @@ export function createApp(ctx: Ctx): Express {
   app.use('/api', invitationsRouter(ctx));
   app.use('/api', resultsRouter(ctx));
   app.use('/api', tokensRouter(ctx));
+  app.use('/api', scansRouter(ctx));
   if (ctx.env.devTools) app.use('/api', devRouter(ctx));
   app.use('/api', (req, _res, next) => next(new AppError(404, 'not_found', `No API route ${req.method} ${req.path}`)));
 

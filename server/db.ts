@@ -1,7 +1,7 @@
 import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres';
 import { migrate } from 'drizzle-orm/node-postgres/migrator';
 import path from 'node:path';
-import { Pool } from 'pg';
+import { Pool, type PoolClient } from 'pg';
 import * as schema from '../db/schema';
 
 export type Db = NodePgDatabase<typeof schema> & { $client: Pool };
@@ -21,3 +21,8 @@ export async function runMigrations(db: Db): Promise<void> {
 
 /** A database or an open transaction: data-layer functions accept either. */
 export type Executor = Db | Parameters<Parameters<Db['transaction']>[0]>[0];
+
+/** Drizzle on one checked-out client, for work that must share that client's transaction. */
+export function dbOnClient(client: PoolClient): Executor {
+  return drizzle(client, { schema, casing: 'snake_case' }) as unknown as Executor;
+}

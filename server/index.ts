@@ -2,12 +2,19 @@ import { closeContext, createContext } from './context';
 import { createApp } from './app';
 import { runMigrations } from './db';
 import { loadEnv } from './env';
+import { startQueue } from './jobs/queue';
+import { startScanWorkers } from './jobs/scan-worker';
 
 /** Server entry: `node --import tsx server/index.ts` (npm start runs it with its own database). */
 async function main() {
   const env = loadEnv();
   const ctx = createContext(env);
   await runMigrations(ctx.db);
+  ctx.jobs = await startQueue(env);
+  if (env.WORKERS > 0) {
+    await startScanWorkers(ctx, ctx.jobs, env.WORKERS);
+    console.log(`[server] ${env.WORKERS} scan worker(s) running in this process`);
+  }
   const app = createApp(ctx);
   const server = app.listen(env.PORT, env.HOST, () => {
     console.log(`[server] listening on http://${env.HOST}:${env.PORT} (${env.NODE_ENV})`);
@@ -19,7 +26,7 @@ async function main() {
   const stop = (signal: string) => {
     console.log(`[server] ${signal}: closing`);
     server.close(() => void closeContext(ctx).finally(() => process.exit(0)));
-    setTimeout(() => process.exit(0), 5000).unref();
+    setTimeout(() => process.exit(0), 12_000).unref();
   };
   process.on('SIGINT', () => stop('SIGINT'));
   process.on('SIGTERM', () => stop('SIGTERM'));

@@ -1,7 +1,8 @@
 import { eq } from 'drizzle-orm';
 import request from 'supertest';
 import { createApp } from '@/server/app';
-import { apiTokens, groups, results, resultVersions } from '@/db/schema';
+import { apiTokens, groups, results, resultVersions, scans } from '@/db/schema';
+import { startQueue } from '@/server/jobs/queue';
 import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
 import { startTestApp, uniqueEmail, type Agent, type TestApp } from '../helpers/app';
@@ -359,7 +360,75 @@ const MATRIX: Entry[] = [
       return { params: { tokenId: id }, effect: async () => (await w.t.ctx.db.select().from(apiTokens).where(eq(apiTokens.id, id))).length === 0 };
     },
   },
+
+  // --- Scans (computed by workers; no worker runs here, so scans stay queued) ---
+  { method: 'get', path: '/api/groups/:groupId/scans', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/scans',
+    access: 'analyst',
+    ok: 201,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const title = uniqueGroupName('Matrix Scan');
+      return {
+        params: { groupId },
+        body: scanBody(title),
+        effect: async () => (await w.t.ctx.db.select({ id: scans.id }).from(scans).where(eq(scans.groupId, groupId))).some(() => true) && (await scanTitled(w, groupId, title)),
+      };
+    },
+  },
+  { method: 'get', path: '/api/groups/:groupId/scans/:scanId', access: 'viewer', ok: 200, mutates: false, prepare: async (w, groupId) => ({ params: { groupId, scanId: await sharedScan(w, groupId) } }) },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/scans/:scanId/cancel',
+    access: 'analyst',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const scanId = await startScan(w, groupId, uniqueGroupName('Matrix Cancel'));
+      return { params: { groupId, scanId }, effect: async () => (await w.t.ctx.db.select({ s: scans.state }).from(scans).where(eq(scans.id, scanId)))[0]?.s === 'cancelled' };
+    },
+  },
+  {
+    method: 'get',
+    path: '/api/groups/:groupId/scans/:scanId/points/:index',
+    access: 'viewer',
+    ok: 200,
+    mutates: false,
+    prepare: async (w, groupId) => ({ params: { groupId, scanId: await sharedScan(w, groupId), index: '1' } }),
+  },
+  {
+    method: 'get',
+    path: '/api/groups/:groupId/scans/:scanId/inputs.json',
+    access: 'viewer',
+    ok: 200,
+    mutates: false,
+    prepare: async (w, groupId) => ({ params: { groupId, scanId: await sharedScan(w, groupId) } }),
+  },
 ];
+
+const scanModel = (n: number) => ({ observed: [n, n + 2], signal: [1, 2], backgrounds: [{ name: 'continuum', yields: [n, n + 1] }] });
+const scanBody = (title: string) => ({
+  points: [{ x: 1000, model: scanModel(10) }, { x: 1500, model: scanModel(6) }],
+  options: {},
+  meta: { ...sampleMeta(), title, quantity: 'mu', quantityUnit: '', method: 'asymptotic' },
+});
+/** Starts a scan in the group as its analyst; returns its id. */
+async function startScan(w: World, groupId: string, title: string): Promise<string> {
+  const res = await w.crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send(scanBody(title));
+  if (res.status !== 201) throw new Error(`scan start failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body.id as string;
+}
+async function scanTitled(w: World, groupId: string, title: string) {
+  const rows = await w.t.ctx.db.select({ meta: scans.meta }).from(scans).where(eq(scans.groupId, groupId));
+  return rows.some((r) => r.meta.title === title);
+}
+const sharedScans = new Map<string, Promise<string>>();
+function sharedScan(w: World, groupId: string) {
+  if (!sharedScans.has(groupId)) sharedScans.set(groupId, startScan(w, groupId, uniqueGroupName('Matrix Shared Scan')));
+  return sharedScans.get(groupId)!;
+}
 
 /** Every version in a group, for effect checks. */
 async function versionsOf(w: World, groupId: string) {
@@ -410,6 +479,7 @@ let w: World;
 
 beforeAll(async () => {
   t = await startTestApp();
+  t.ctx.jobs = await startQueue(t.ctx.env);
   const [crew, target, outsider, host] = await Promise.all([
     makeCrew(t),
     makePerson(t, 'Target Member'),

@@ -1,0 +1,275 @@
+import type PgBoss from 'pg-boss';
+import { z } from 'zod';
+import { CsvFileError, decodeText } from '../../shared/curves/csv';
+import { parseScanCsv } from '../../shared/scans/csv';
+import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
+import { createScanSchema, scanFileSchema, scanOptionsSchema, type ScanInputPoint, type ScanOptions } from '../../shared/schemas/scans';
+import { versionMetaSchema, type Curve, type VersionMeta } from '../../shared/schemas/results';
+import type { ScanDetail, ScanPointDetail, ScanSummary } from '../../shared/schemas/scan-views';
+import * as q from '../../db/queries/scans';
+import { getRole } from '../../db/queries/groups';
+import type { Ctx } from '../context';
+import { dbOnClient } from '../db';
+import { AppError, notFound, validationError, type ErrorDetail } from '../lib/errors';
+import { SCAN_POINT_QUEUE, type ScanPointTask } from '../jobs/queue';
+import { addVersion, createResult, getDetail } from './results';
+import { addStorage } from '../../db/queries/results';
+
+/**
+ * Scans: a grid of counting models queued as one task per point, computed by workers, and turned
+ * into a draft result version when the last point finishes (or the scan is cancelled).
+ */
+
+export type ScanRequest = { points: ScanInputPoint[]; options: ScanOptions; meta: VersionMeta; resultId?: string; sourceName: string | null; sourceBytes: number };
+
+function invalid(details: ErrorDetail[]): never {
+  const first = details[0]!;
+  throw new AppError(400, 'validation_failed', `The scan cannot be started: ${first.field}: ${first.message}`, details.slice(0, 200));
+}
+
+/** A JSON body (createScanSchema) as a scan request. */
+export function scanFromJson(body: unknown): ScanRequest {
+  const parsed = createScanSchema.safeParse(body);
+  if (!parsed.success) throw validationError(parsed.error, 'body');
+  const { points, options, meta, resultId } = parsed.data;
+  return { points: points as ScanInputPoint[], options, meta, resultId, sourceName: null, sourceBytes: Buffer.byteLength(JSON.stringify(body)) };
+}
+
+/** A multipart upload: `file` (scan CSV or the project's scan JSON), `meta` and `options` as JSON text, optional `resultId`. */
+export function scanFromUpload(file: { name: string; data: Buffer } | undefined, fields: Record<string, unknown>): ScanRequest {
+  const details: ErrorDetail[] = [];
+  if (!file) invalid([{ field: 'file', message: 'choose a scan file (CSV or JSON)' }]);
+  const json = (name: string): unknown => {
+    const raw = fields[name];
+    if (raw === undefined || raw === '') return undefined;
+    try {
+      return JSON.parse(String(raw));
+    } catch {
+      details.push({ field: name, message: 'must be JSON text' });
+      return undefined;
+    }
+  };
+  const meta = versionMetaSchema.safeParse(json('meta') ?? {});
+  if (!meta.success) details.push(...meta.error.issues.map((i) => ({ field: ['meta', ...i.path].join('.'), message: i.message })));
+  const options = scanOptionsSchema.safeParse(json('options'));
+  if (!options.success) details.push(...options.error.issues.map((i) => ({ field: ['options', ...i.path].join('.'), message: i.message })));
+  const resultId = z.uuid().optional().safeParse(fields.resultId || undefined);
+  if (!resultId.success) details.push({ field: 'resultId', message: 'must be a valid id' });
+
+  let points: ScanInputPoint[] = [];
+  try {
+    const text = decodeText(new Uint8Array(file.data));
+    if (/\.json$/i.test(file.name) || text.trimStart().startsWith('{')) {
+      let raw: unknown;
+      try {
+        raw = JSON.parse(text);
+      } catch (e) {
+        throw new CsvFileError([{ column: 'file', reason: `is not valid JSON (${(e as Error).message})` }]);
+      }
+      const r = scanFileSchema.safeParse(raw);
+      if (!r.success) details.push(...r.error.issues.map((i) => ({ field: ['file', ...i.path].join('.'), message: i.message })));
+      else points = r.data.points as ScanInputPoint[];
+    } else {
+      points = parseScanCsv(text);
+    }
+  } catch (e) {
+    if (!(e instanceof CsvFileError)) throw e;
+    details.push(...e.problems.map((p) => ({ field: p.row !== undefined ? `line ${p.row}, ${p.column}` : p.column, message: p.reason })));
+  }
+  if (details.length) invalid(details);
+  return { points, options: options.data!, meta: meta.data!, resultId: resultId.data, sourceName: file.name, sourceBytes: file.data.length };
+}
+
+function bins(model: Record<string, unknown>): number {
+  return Array.isArray(model.observed) ? model.observed.length : 1;
+}
+
+/** Checks that apply to the scan as a whole, before anything is queued. */
+function checkScan(ctx: Ctx, req: ScanRequest) {
+  const details: ErrorDetail[] = [];
+  const seen = new Map<number, number>();
+  req.points.forEach((p, i) => {
+    if (seen.has(p.x)) details.push({ field: `points.${i}.x`, message: `repeats x = ${p.x} of point ${seen.get(p.x)! + 1}` });
+    seen.set(p.x, i);
+    if (req.meta.quantity === 'xsec' && p.sigmaNominal === undefined) {
+      details.push({ field: `points.${i}.sigmaNominal`, message: 'is needed for σ×B limits (or choose μ as the limited quantity)' });
+    }
+  });
+  if (req.points.length < 2) details.push({ field: 'points', message: 'a scan needs at least two grid points' });
+  if (details.length) invalid(details);
+  const perPoint = req.options.method === 'toys' ? req.options.toys : 1;
+  const cost = req.points.reduce((sum, p) => sum + bins(p.model as Record<string, unknown>) * perPoint, 0);
+  if (cost > ctx.env.SCAN_COST_LIMIT) {
+    throw new AppError(
+      413,
+      'scan_too_large',
+      `This scan is too large: ${req.points.length} points × bins × ${perPoint === 1 ? '1' : `${perPoint} pseudo-experiments`} = ${cost.toLocaleString('en')} exceeds the limit of ${ctx.env.SCAN_COST_LIMIT.toLocaleString('en')} (SCAN_COST_LIMIT); split the scan or use fewer pseudo-experiments`,
+    );
+  }
+}
+
+function requireQueue(ctx: Ctx): PgBoss {
+  if (!ctx.jobs) throw new AppError(503, 'no_queue', 'The job queue is not running on this server');
+  return ctx.jobs;
+}
+
+/**
+ * Stores the scan and its points and queues one task per point, in one transaction (pg-boss
+ * inserts its tasks through the same connection), so a scan is either fully queued or absent.
+ */
+export async function startScan(ctx: Ctx, groupId: string, userId: string, req: ScanRequest): Promise<ScanDetail> {
+  checkScan(ctx, req);
+  const boss = requireQueue(ctx);
+  if (req.resultId) {
+    await getDetail(ctx, groupId, req.resultId); // 404 unless the result is this group's
+  }
+  const client = await ctx.db.$client.connect();
+  let scanId: string;
+  try {
+    await client.query('begin');
+    const tx = dbOnClient(client);
+    const storedBytes = req.sourceBytes + Buffer.byteLength(JSON.stringify(req.points));
+    const scan = await q.insertScan(tx, {
+      groupId,
+      options: req.options,
+      meta: req.meta,
+      targetResultId: req.resultId ?? null,
+      totalPoints: req.points.length,
+      sourceName: req.sourceName,
+      storedBytes,
+      createdBy: userId,
+    });
+    scanId = scan.id;
+    await q.insertScanPoints(
+      tx,
+      req.points.map((p, index) => ({ scanId: scan.id, index, x: p.x, sigmaNominal: p.sigmaNominal ?? null, model: p.model as Record<string, unknown> })),
+    );
+    await addStorage(tx, groupId, storedBytes);
+    const tasks = req.points.map((_, index) => ({ name: SCAN_POINT_QUEUE, data: { scanId: scan.id, index } satisfies ScanPointTask }));
+    await boss.insert(tasks, { db: { executeSql: (text: string, values: unknown[]) => client.query(text, values) } });
+    await client.query('commit');
+  } catch (e) {
+    await client.query('rollback').catch(() => undefined);
+    throw e;
+  } finally {
+    client.release();
+  }
+  return getScan(ctx, groupId, scanId);
+}
+
+export async function listScans(ctx: Ctx, groupId: string): Promise<ScanSummary[]> {
+  return (await q.listScans(ctx.db, groupId)).map((s) => ({
+    ...s,
+    title: s.title ?? '',
+    createdAt: s.createdAt.toISOString(),
+    startedAt: s.startedAt?.toISOString() ?? null,
+    finishedAt: s.finishedAt?.toISOString() ?? null,
+  }));
+}
+
+export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promise<ScanDetail> {
+  const s = await q.getScan(ctx.db, groupId, scanId);
+  if (!s) throw notFound('Scan');
+  const points = await q.listPointSummaries(ctx.db, scanId);
+  const finished = s.donePoints + s.failedPoints;
+  const end = s.finishedAt ?? new Date();
+  const elapsed = s.startedAt ? (end.getTime() - s.startedAt.getTime()) / 1000 : 0;
+  const eta = s.state === 'running' && finished > 0 ? (elapsed / finished) * (s.totalPoints - finished) : null;
+  return {
+    id: s.id,
+    groupId: s.groupId,
+    state: s.state,
+    title: s.meta.title,
+    meta: s.meta,
+    options: s.options,
+    totalPoints: s.totalPoints,
+    donePoints: s.donePoints,
+    failedPoints: s.failedPoints,
+    elapsedSeconds: elapsed,
+    etaSeconds: eta,
+    resultId: s.resultId,
+    resultVersion: s.resultVersion,
+    error: s.error,
+    sourceName: s.sourceName,
+    createdAt: s.createdAt.toISOString(),
+    startedAt: s.startedAt?.toISOString() ?? null,
+    finishedAt: s.finishedAt?.toISOString() ?? null,
+    points: points.map((p) => ({ ...p, sigmaNominal: p.sigmaNominal ?? null })),
+  };
+}
+
+export async function getPointDetail(ctx: Ctx, groupId: string, scanId: string, index: number): Promise<ScanPointDetail> {
+  const s = await q.getScan(ctx.db, groupId, scanId);
+  if (!s) throw notFound('Scan');
+  const p = await q.getPoint(ctx.db, scanId, index);
+  if (!p) throw notFound('Grid point');
+  return { index: p.index, x: p.x, sigmaNominal: p.sigmaNominal, state: p.state, model: p.model, result: p.result as ScanPointDetail['result'], error: p.error, attempts: p.attempts, computeMs: p.computeMs };
+}
+
+export async function scanInputs(ctx: Ctx, groupId: string, scanId: string) {
+  const s = await q.getScan(ctx.db, groupId, scanId);
+  if (!s) throw notFound('Scan');
+  const points = await q.listPointInputs(ctx.db, scanId);
+  return { format: 'bandwright-scan/1', options: s.options, meta: s.meta, points: points.map((p) => ({ x: p.x, ...(p.sigmaNominal !== null ? { sigmaNominal: p.sigmaNominal } : {}), model: p.model })) };
+}
+
+/** Cancels a scan: queued points are dropped, finished ones are kept and become the draft. */
+export async function cancelScan(ctx: Ctx, groupId: string, scanId: string): Promise<ScanDetail> {
+  const outcome = await ctx.db.transaction(async (tx) => {
+    const s = await q.getScan(tx, groupId, scanId, true);
+    if (!s) throw notFound('Scan');
+    if (s.state !== 'queued' && s.state !== 'running') throw new AppError(409, 'finished', `This scan is already ${s.state}`);
+    await q.cancelQueuedPoints(tx, scanId);
+    await q.setScanOutcome(tx, scanId, { state: 'cancelled' });
+    return s;
+  });
+  await saveDraft(ctx, outcome.id, 'cancelled');
+  return getScan(ctx, groupId, scanId);
+}
+
+/**
+ * The scan's finished points as a limit curve: σ×B when the scan's quantity is σ×B (every point
+ * then has a nominal cross-section), μ otherwise. Failed points are left out and named in the notes.
+ */
+export function curveOfPoints(points: q.ScanPointRow[], quantity: VersionMeta['quantity']): Curve {
+  const done = points.filter((p) => p.state === 'done' && p.result).sort((a, b) => a.x - b.x);
+  const pick = (p: q.ScanPointRow) => {
+    const r = p.result as { observed: number; expected: Record<string, number>; sigmaB?: { observed: number; expected: Record<string, number> } };
+    return quantity === 'xsec' && r.sigmaB ? r.sigmaB : r;
+  };
+  return {
+    x: done.map((p) => p.x),
+    observed: done.map((p) => pick(p).observed),
+    expected: Object.fromEntries(EXPECTED_KEYS.map((k) => [k, done.map((p) => pick(p).expected[k]!)])) as Curve['expected'],
+  };
+}
+
+/**
+ * Turns a finished or cancelled scan into a draft result version, at most once: the caller must
+ * first win the claim on the scan (another finisher, or a canceller at the same moment, backs off).
+ */
+export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancelled'): Promise<void> {
+  if (!(await q.claimDraft(ctx.db, scanId))) return;
+  const scan = await q.getScanById(ctx.db, scanId);
+  if (!scan || scan.resultId) return;
+  const points = await q.listFinishedPoints(ctx.db, scanId);
+  const failed = scan.failedPoints;
+  if (points.length < 2) {
+    if (why === 'done') await q.setScanOutcome(ctx.db, scanId, { state: 'failed', error: `Only ${points.length} of ${scan.totalPoints} points could be computed; no draft was made` });
+    return;
+  }
+  const role = scan.createdBy ? await getRole(ctx.db, scan.groupId, scan.createdBy) : undefined;
+  const actor = { id: scan.createdBy ?? '', role: role ?? 'analyst' };
+  const curve = curveOfPoints(points, scan.meta.quantity);
+  const opts = scan.options;
+  const how = `Computed by Bandwright from event counts: ${opts.method === 'toys' ? `pseudo-experiment CLs (${opts.toys} per hypothesis, seed ${opts.seed})` : `asymptotic CLs (${opts.asimov} Asimov dataset)`}, ${Math.round(opts.cl * 100)}% CL, scan ${scan.id}.`;
+  const notes = [scan.meta.notes, how, failed ? `${failed} grid point(s) failed and are not in the curve.` : '', why === 'cancelled' ? `The scan was cancelled after ${points.length} of ${scan.totalPoints} points.` : '']
+    .filter(Boolean)
+    .join('\n');
+  const meta: VersionMeta = { ...scan.meta, method: opts.method, cl: opts.cl, notes: notes.slice(0, 5000) };
+  const input = { meta, curve, theory: null, source: null };
+  const version = scan.targetResultId
+    ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: `Recomputed by scan ${scan.id.slice(0, 8)}` })
+    : await createResult(ctx, scan.groupId, actor, input);
+  await q.setScanOutcome(ctx.db, scanId, { state: why, resultId: version.resultId, resultVersion: version.version });
+}

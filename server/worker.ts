@@ -1,0 +1,34 @@
+import { closeContext, createContext } from './context';
+import { runMigrations } from './db';
+import { loadEnv } from './env';
+import { startQueue } from './jobs/queue';
+import { startScanWorkers } from './jobs/scan-worker';
+
+/**
+ * A stand-alone scan worker (`npm run worker`): point it at the same DATABASE_URL as the server,
+ * on this machine or another, to compute scans in parallel. Ctrl-C lets the current point finish.
+ */
+async function main() {
+  const env = loadEnv();
+  const ctx = createContext(env);
+  await runMigrations(ctx.db);
+  ctx.jobs = await startQueue(env);
+  const stopSweep = await startScanWorkers(ctx, ctx.jobs, Math.max(1, env.WORKERS));
+  console.log(`[worker] ready (pid ${process.pid}); waiting for scan points`);
+  let stopping = false;
+  const stop = (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    console.log(`[worker] ${signal}: finishing the current point`);
+    stopSweep();
+    void closeContext(ctx).finally(() => process.exit(0));
+    setTimeout(() => process.exit(0), 15_000).unref();
+  };
+  process.on('SIGINT', () => stop('SIGINT'));
+  process.on('SIGTERM', () => stop('SIGTERM'));
+}
+
+main().catch((err) => {
+  console.error('[worker] failed to start:', err);
+  process.exit(1);
+});

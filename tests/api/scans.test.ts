@@ -1,0 +1,219 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import path from 'node:path';
+import { eq } from 'drizzle-orm';
+import { scanPoints } from '@/db/schema/scans';
+import { startQueue } from '@/server/jobs/queue';
+import { runScanPoint, startScanWorkers } from '@/server/jobs/scan-worker';
+import type { CountingModelInput } from '@/shared/schemas/counting-model';
+import type { ScanDetail } from '@/shared/schemas/scan-views';
+import { computeScan } from '@/shared/stats';
+import { startTestApp, type TestApp } from '../helpers/app';
+import { makeGroupWithRoles, type Crew } from '../helpers/factories';
+
+jest.setTimeout(120_000);
+
+const META = { title: 'Fictional heavy scalar scan', parameterName: 'm(S)', parameterUnit: 'GeV', quantity: 'xsec', quantityUnit: 'fb', sqrtS: 18, luminosity: 140, method: 'asymptotic' };
+
+/** An invented grid: background falling with mass, a small excess or deficit per point. */
+function grid(n: number, bins = 3, opts: { syst?: boolean } = {}) {
+  return Array.from({ length: n }, (_, k) => {
+    const m = 1000 + 100 * k;
+    const b = Array.from({ length: bins }, (_, i) => 200 * Math.exp(-(m + 50 * i) / 800));
+    const model: CountingModelInput = {
+      observed: b.map((v, i) => Math.round(v * (1 + 0.05 * Math.sin(k + i)))),
+      signal: b.map((_, i) => 2 + i),
+      backgrounds: [{ name: 'continuum', yields: b }],
+      systematics: opts.syst === false ? [] : [{ name: 'luminosity', effects: { signal: 0.02, continuum: 0.02 } }],
+    };
+    return { x: m, sigmaNominal: 10 * Math.exp(-m / 1000), model };
+  });
+}
+
+async function waitFor(t: TestApp, agent: Crew['analyst']['agent'], groupId: string, scanId: string, done: (s: ScanDetail) => boolean, ms = 60_000) {
+  const until = Date.now() + ms;
+  for (;;) {
+    const res = await agent.get(`/api/groups/${groupId}/scans/${scanId}`);
+    if (done(res.body)) return res.body as ScanDetail;
+    if (Date.now() > until) throw new Error(`scan did not get there: ${JSON.stringify({ state: res.body.state, done: res.body.donePoints })}`);
+    await new Promise((r) => setTimeout(r, 200));
+  }
+}
+
+describe('scans with an in-process worker', () => {
+  let t: TestApp;
+  let crew: Crew;
+  let groupId: string;
+  let stopSweep: () => void;
+  beforeAll(async () => {
+    t = await startTestApp({ JOB_MAINTENANCE_SECONDS: '1', JOB_EXPIRE_SECONDS: '30' });
+    t.ctx.jobs = await startQueue(t.ctx.env);
+    stopSweep = await startScanWorkers(t.ctx, t.ctx.jobs, 1);
+    ({ groupId, crew } = await makeGroupWithRoles(t));
+  });
+  afterAll(async () => {
+    stopSweep?.();
+    await t?.close();
+  });
+
+  test('submit → progress → a draft result whose limits match the statistics engine', async () => {
+    const points = grid(8);
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points, options: { method: 'asymptotic' }, meta: META });
+    expect(res.status).toBe(201);
+    expect(res.body.totalPoints).toBe(8);
+    const done = await waitFor(t, crew.analyst.agent, groupId, res.body.id, (s) => s.state === 'done');
+    expect(done.donePoints).toBe(8);
+    expect(done.etaSeconds).toBeNull();
+    expect(done.resultId).toBeTruthy();
+    const version = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${done.resultId}/versions/${done.resultVersion}`);
+    expect(version.status).toBe(200);
+    expect(version.body.state).toBe('draft');
+    expect(version.body.meta.method).toBe('asymptotic');
+    expect(version.body.meta.notes).toContain(`scan ${done.id}`);
+    // Same numbers as the engine computes directly (σ×B = μ_up × σ_nominal); seeds do not matter here.
+    const direct = computeScan(points);
+    expect(version.body.curve.x).toEqual(points.map((p) => p.x));
+    version.body.curve.observed.forEach((v: number, i: number) => {
+      const d = direct[i]!;
+      if ('error' in d) throw new Error('engine failed');
+      expect(v).toBeCloseTo(d.sigmaB!.observed, 8);
+    });
+    // Inputs are stored beside the draft and can be downloaded to re-run it.
+    const inputs = await crew.viewer.agent.get(`/api/groups/${groupId}/scans/${done.id}/inputs.json`);
+    expect(inputs.status).toBe(200);
+    expect(inputs.body.points).toHaveLength(8);
+    expect(inputs.body.points[3].model).toEqual(points[3]!.model);
+  });
+
+  test('a bad grid point fails alone with the engine error; the others make the draft', async () => {
+    const points = grid(4);
+    (points[2]!.model as { signal: number[] }).signal = [0, 0, 0];
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points, options: {}, meta: META });
+    expect(res.status).toBe(201);
+    const done = await waitFor(t, crew.analyst.agent, groupId, res.body.id, (s) => s.state === 'done');
+    expect(done.failedPoints).toBe(1);
+    const bad = done.points.find((p) => p.index === 2)!;
+    expect(bad.state).toBe('failed');
+    expect(bad.error?.field).toContain('signal');
+    const version = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${done.resultId}/versions/${done.resultVersion}`);
+    expect(version.body.curve.x).toEqual([1000, 1100, 1300]);
+    expect(version.body.meta.notes).toContain('1 grid point(s) failed');
+  });
+
+  test('diagnostics of a point: CLs curve, μ̂ and pulls', async () => {
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(2), options: {}, meta: META });
+    const done = await waitFor(t, crew.analyst.agent, groupId, res.body.id, (s) => s.state === 'done');
+    const p = await crew.viewer.agent.get(`/api/groups/${groupId}/scans/${done.id}/points/0`);
+    expect(p.status).toBe(200);
+    expect(p.body.result.cls.length).toBeGreaterThan(10);
+    expect(p.body.result.fit.pulls[0].name).toBe('luminosity');
+    expect(Number.isFinite(p.body.result.muHat)).toBe(true);
+  });
+
+  test('bad inputs are refused before queuing, naming the field', async () => {
+    const noSigma = grid(3).map(({ sigmaNominal: _s, ...p }) => p);
+    const a = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: noSigma, options: {}, meta: META });
+    expect(a.status).toBe(400);
+    expect(a.body.error.details[0].field).toBe('points.0.sigmaNominal');
+    const b = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(3), options: { method: 'toys', toys: 10 }, meta: { ...META, sqrtS: -1 } });
+    expect(b.status).toBe(400);
+    expect(b.body.error.details.map((d: { field: string }) => d.field)).toEqual(expect.arrayContaining(['options.toys', 'meta.sqrtS']));
+    const csv = 'x,bin,observed,signal\n1000,1,5,abc\n';
+    const c = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).attach('file', Buffer.from(csv), 'scan.csv').field('meta', JSON.stringify(META));
+    expect(c.status).toBe(400);
+    expect(c.body.error.details[0]).toEqual({ field: 'line 2, signal', message: '"abc" is not a number' });
+  });
+
+  test('roles: analysts and up start and cancel scans; editors and viewers cannot; other groups see nothing', async () => {
+    for (const role of ['editor', 'viewer'] as const) {
+      const r = await crew[role].agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(2), options: {}, meta: META });
+      expect(r.status).toBe(403);
+    }
+    const started = await crew.curator.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(2), options: {}, meta: META });
+    expect(started.status).toBe(201);
+    const other = await makeGroupWithRoles(t);
+    expect((await other.crew.owner.agent.get(`/api/groups/${groupId}/scans/${started.body.id}`)).status).toBe(404);
+    expect((await other.crew.owner.agent.get(`/api/groups/${other.groupId}/scans/${started.body.id}`)).status).toBe(404);
+    expect((await crew.viewer.agent.post(`/api/groups/${groupId}/scans/${started.body.id}/cancel`)).status).toBe(403);
+  });
+});
+
+describe('cancel, and workers that crash', () => {
+  let t: TestApp;
+  let crew: Crew;
+  let groupId: string;
+  const children: ChildProcess[] = [];
+  const workerEnv = () => ({ ...process.env, DATABASE_URL: t.ctx.env.DATABASE_URL, NODE_ENV: 'test', JOB_EXPIRE_SECONDS: '3', JOB_MAINTENANCE_SECONDS: '1', WORKERS: '1' }) as NodeJS.ProcessEnv;
+  const startWorker = () => {
+    const c = spawn(process.execPath, ['--import', 'tsx', path.resolve(__dirname, '../../server/worker.ts')], { env: workerEnv(), stdio: 'ignore' });
+    children.push(c);
+    return c;
+  };
+  beforeAll(async () => {
+    t = await startTestApp({ JOB_MAINTENANCE_SECONDS: '1', JOB_EXPIRE_SECONDS: '3', SCAN_COST_LIMIT: '8000' });
+    t.ctx.jobs = await startQueue(t.ctx.env); // the API only queues here; workers are separate processes
+    ({ groupId, crew } = await makeGroupWithRoles(t));
+  });
+  afterAll(async () => {
+    for (const c of children) if (c.exitCode === null) c.kill('SIGKILL');
+    await t?.close();
+  });
+
+  test('a scan over the size limit (points × bins × pseudo-experiments) is refused before queuing, naming the limit', async () => {
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(3, 3), options: { method: 'toys', toys: 1000 }, meta: META });
+    expect(res.status).toBe(413);
+    expect(res.body.error.code).toBe('scan_too_large');
+    expect(res.body.error.message).toContain('9,000 exceeds the limit of 8,000');
+    expect((await crew.analyst.agent.get(`/api/groups/${groupId}/scans`)).body.scans).toHaveLength(0);
+  });
+
+  test('cancelling keeps the finished points and makes them the draft', async () => {
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(6), options: {}, meta: META });
+    // Compute two points by hand (as a worker would), then cancel.
+    await runScanPoint(t.ctx, { scanId: res.body.id, index: 0 });
+    await runScanPoint(t.ctx, { scanId: res.body.id, index: 1 });
+    const cancelled = await crew.analyst.agent.post(`/api/groups/${groupId}/scans/${res.body.id}/cancel`);
+    expect(cancelled.status).toBe(200);
+    expect(cancelled.body.state).toBe('cancelled');
+    expect(cancelled.body.donePoints).toBe(2);
+    expect(cancelled.body.resultId).toBeTruthy();
+    const v = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${cancelled.body.resultId}/versions/${cancelled.body.resultVersion}`);
+    expect(v.body.curve.x).toEqual([1000, 1100]);
+    expect(v.body.meta.notes).toContain('cancelled after 2 of 6 points');
+    // A task that runs after the cancel changes nothing.
+    await runScanPoint(t.ctx, { scanId: res.body.id, index: 3 });
+    expect((await crew.analyst.agent.get(`/api/groups/${groupId}/scans/${res.body.id}`)).body.donePoints).toBe(2);
+    expect((await crew.analyst.agent.post(`/api/groups/${groupId}/scans/${res.body.id}/cancel`)).status).toBe(409);
+  });
+
+  test('a worker killed mid-scan loses no point and computes none twice into the result', async () => {
+    // Pseudo-experiments on a multi-bin model with systematics: long enough per point to kill mid-way.
+    const points = grid(6, 3);
+    const res = await crew.analyst.agent
+      .post(`/api/groups/${groupId}/scans`)
+      .send({ points, options: { method: 'toys', toys: 400, seed: 7 }, meta: { ...META, method: 'toys' } });
+    expect(res.status).toBe(201);
+    const first = startWorker();
+    await waitFor(t, crew.analyst.agent, groupId, res.body.id, (s) => s.donePoints >= 1);
+    // Kill it while it is inside a point: one has been started (attempt counted) but not finished.
+    for (let i = 0; ; i++) {
+      const rows = await t.ctx.db.select().from(scanPoints).where(eq(scanPoints.scanId, res.body.id));
+      if (rows.some((r) => r.state === 'queued' && r.attempts === 1)) break;
+      if (i > 600) throw new Error('the worker never started a second point');
+      await new Promise((r) => setTimeout(r, 20));
+    }
+    first.kill('SIGKILL');
+    const afterKill = (await crew.analyst.agent.get(`/api/groups/${groupId}/scans/${res.body.id}`)).body as ScanDetail;
+    expect(afterKill.state).toBe('running');
+    startWorker();
+    const done = await waitFor(t, crew.analyst.agent, groupId, res.body.id, (s) => s.state === 'done', 90_000);
+    expect(done.donePoints).toBe(6);
+    expect(done.failedPoints).toBe(0);
+    const rows = await t.ctx.db.select().from(scanPoints).where(eq(scanPoints.scanId, res.body.id));
+    expect(rows.every((r) => r.state === 'done')).toBe(true);
+    // The point that was running when the worker died was tried again.
+    expect(rows.some((r) => r.attempts >= 2)).toBe(true);
+    const v = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${done.resultId}/versions/${done.resultVersion}`);
+    expect(v.body.curve.x).toEqual(points.map((p) => p.x));
+    expect(v.body.meta.method).toBe('toys');
+  });
+});
