@@ -62,6 +62,9 @@ export type DemoResult = {
   versions: DemoVersion[];
 };
 
+/** The full 2031 run of the Halcyon Ring: 140 fb⁻¹ at 18 TeV, limits at 95 % CL. */
+const RUN_2031 = { sqrtS: 18, luminosity: 140, cl: 0.95 } as const;
+
 const VPRIME = {
   title: 'Search for a heavy vector boson V′ → two jets',
   model: 'Sequential V′ benchmark with quark couplings g_q = 0.25',
@@ -69,8 +72,7 @@ const VPRIME = {
   parameterUnit: 'TeV',
   quantity: 'xsec',
   quantityUnit: 'fb',
-  sqrtS: 18,
-  cl: 0.95,
+  ...RUN_2031,
   method: 'asymptotic',
 } as const;
 
@@ -92,7 +94,7 @@ export const DEMO_RESULTS: DemoResult[] = [
         then: 'publish',
       },
       {
-        meta: { ...VPRIME, luminosity: 140, reference: 'LF-EXO-2031-04', notes: 'Dijet invariant mass spectrum fitted with a four-parameter background function.' },
+        meta: { ...VPRIME, reference: 'LF-EXO-2031-04', notes: 'Dijet invariant mass spectrum fitted with a four-parameter background function.' },
         curve: limitCurve(grid(1, 0.2, 30), { scale: 120, slope: -0.85, wiggle: 0.22, phase: 1.1 }),
         theory: vprimeTheory(grid(1, 0.2, 30)),
         changeNote: 'Full 2031 dataset (140 fb⁻¹); mass range extended to 6.8 TeV; jet energy scale uncertainty halved',
@@ -115,9 +117,7 @@ export const DEMO_RESULTS: DemoResult[] = [
           parameterUnit: 'TeV',
           quantity: 'mu',
           quantityUnit: '',
-          sqrtS: 18,
-          luminosity: 140,
-          cl: 0.95,
+          ...RUN_2031,
           method: 'toys',
           reference: 'LF-EXO-2031-09 (internal)',
           notes: 'Two b-tagged jets; pseudo-experiments above 2.5 TeV where few events remain.',
@@ -143,9 +143,7 @@ export const DEMO_RESULTS: DemoResult[] = [
           parameterUnit: 'TeV',
           quantity: 'xsec',
           quantityUnit: 'pb',
-          sqrtS: 18,
-          luminosity: 140,
-          cl: 0.95,
+          ...RUN_2031,
           method: 'asymptotic',
           reference: '',
           notes: 'Not yet reviewed: the jet-timing cleaning is still being validated.',
@@ -171,9 +169,7 @@ export const DEMO_RESULTS: DemoResult[] = [
           parameterUnit: 'TeV',
           quantity: 'xsec',
           quantityUnit: 'fb',
-          sqrtS: 18,
-          luminosity: 140,
-          cl: 0.95,
+          ...RUN_2031,
           method: 'asymptotic',
           reference: 'LF-EXO-2031-02',
           notes: '',
@@ -198,8 +194,6 @@ export const DEMO_RESULTS: DemoResult[] = [
         meta: {
           ...VPRIME,
           title: 'Combined limits on the V′ benchmark from dijet and dilepton searches',
-          luminosity: 140,
-          method: 'asymptotic',
           reference: 'LF-COMB-2031-01',
           notes: 'Joint likelihood of the dijet and dilepton channels; lepton and jet energy scales correlated.',
         },
@@ -224,9 +218,7 @@ export const DEMO_RESULTS: DemoResult[] = [
           parameterUnit: 'GeV',
           quantity: 'mu',
           quantityUnit: '',
-          sqrtS: 18,
-          luminosity: 140,
-          cl: 0.95,
+          ...RUN_2031,
           method: 'imported',
           reference: 'LF-COMB-2031-03',
           notes: 'Best expected channel per mass point (bb̄, WW, ZZ).',

@@ -67,6 +67,15 @@ function jsonField(fields: Record<string, unknown>, name: string, details: Error
   }
 }
 
+/** `raw` parsed by `schema` (undefined stays undefined); problems go to `details` under `field`. */
+function parseWith<T>(schema: z.ZodType<T>, raw: unknown, field: string, details: ErrorDetail[]): T | undefined {
+  if (raw === undefined) return undefined;
+  const parsed = schema.safeParse(raw);
+  if (parsed.success) return parsed.data;
+  details.push(...zodDetails(parsed.error, field));
+  return undefined;
+}
+
 /** The curve in a fixed key order (so that its stored size is the same however it was sent). */
 export function canonicalCurve(c: Curve): Curve {
   const out: Curve = { x: c.x };
@@ -136,25 +145,9 @@ export function fromFileUpload(upload: FileUpload, opts: { changeNote: boolean }
   let fileProblem = false;
 
   const metaRaw = jsonField(fields, 'meta', details);
-  let meta: VersionMeta | undefined;
-  if (metaRaw !== undefined) {
-    const parsed = versionMetaSchema.safeParse(metaRaw);
-    if (parsed.success) meta = parsed.data;
-    else details.push(...zodDetails(parsed.error, 'meta'));
-  }
-  const mappingRaw = jsonField(fields, 'mapping', details);
-  let mapping: ColumnMapping | undefined;
-  if (mappingRaw !== undefined) {
-    const parsed = mappingSchema.safeParse(mappingRaw);
-    if (parsed.success) mapping = parsed.data;
-    else details.push(...zodDetails(parsed.error, 'mapping'));
-  }
-  let changeNote: string | undefined;
-  if (opts.changeNote) {
-    const parsed = changeNoteSchema.safeParse(fields.changeNote ?? '');
-    if (parsed.success) changeNote = parsed.data;
-    else details.push(...zodDetails(parsed.error, 'changeNote'));
-  }
+  let meta = parseWith(versionMetaSchema, metaRaw, 'meta', details);
+  const mapping = parseWith(mappingSchema, jsonField(fields, 'mapping', details), 'mapping', details);
+  const changeNote = opts.changeNote ? parseWith(changeNoteSchema, fields.changeNote ?? '', 'changeNote', details) : undefined;
 
   let curve: Curve | undefined;
   let theory: Theory | null = null;

@@ -44,43 +44,12 @@ const immutable = (version: number, state: ResultState) =>
       : `Version ${version} is ${state} and cannot change; create a new version`,
   );
 
-/** The columns of a version from its provenance and numbers. */
+/** The columns of a version from its provenance and numbers (the meta keys are column names). */
 function versionColumns(v: { meta: VersionMeta; curve: NormalizedVersion['curve']; theory: Theory | null }) {
-  const m = v.meta;
-  return {
-    title: m.title,
-    model: m.model,
-    parameterName: m.parameterName,
-    parameterUnit: m.parameterUnit,
-    quantity: m.quantity,
-    quantityUnit: m.quantityUnit,
-    sqrtS: m.sqrtS,
-    luminosity: m.luminosity,
-    cl: m.cl,
-    method: m.method,
-    reference: m.reference,
-    notes: m.notes,
-    curve: canonicalCurve(v.curve),
-    theory: canonicalTheory(v.theory),
-  };
+  return { ...canonicalMeta(v.meta), curve: canonicalCurve(v.curve), theory: canonicalTheory(v.theory) };
 }
 
-function metaOf(row: q.VersionRow): VersionMeta {
-  return canonicalMeta({
-    title: row.title,
-    model: row.model,
-    parameterName: row.parameterName,
-    parameterUnit: row.parameterUnit,
-    quantity: row.quantity,
-    quantityUnit: row.quantityUnit as VersionMeta['quantityUnit'],
-    sqrtS: row.sqrtS,
-    luminosity: row.luminosity,
-    cl: row.cl,
-    method: row.method,
-    reference: row.reference,
-    notes: row.notes,
-  });
-}
+const metaOf = (row: q.VersionRow): VersionMeta => canonicalMeta({ ...row, quantityUnit: row.quantityUnit as VersionMeta['quantityUnit'] });
 
 /**
  * Excluded ranges against the stored theory curve (which is in the version's own unit), or why
@@ -187,7 +156,9 @@ function exportOf(row: q.VersionRow, format: 'csv' | 'json'): ExportFile {
     return { fileName, contentType: 'application/json; charset=utf-8', body: JSON.stringify(limitFileOf(meta, row.curve, row.theory ?? null)) };
   }
   const x = meta.parameterUnit ? `${meta.parameterName} [${meta.parameterUnit}]` : meta.parameterName;
-  return { fileName, contentType: 'text/csv; charset=utf-8', body: curveToCsv(row.curve, row.theory ?? null, { x }) };
+  // The header is the uploader's text: keep spreadsheets from reading it as a formula.
+  const header = /^[=+\-@\t\r]/.test(x) ? `'${x}` : x;
+  return { fileName, contentType: 'text/csv; charset=utf-8', body: curveToCsv(row.curve, row.theory ?? null, { x: header }) };
 }
 
 export async function exportVersion(ctx: Ctx, groupId: string, resultId: string, version: number, format: 'csv' | 'json'): Promise<ExportFile> {

@@ -147,6 +147,17 @@ describe('good uploads', () => {
     expect(v.body.meta).toMatchObject({ title, parameterName: '<i>m</i>' });
     expect(res.body.slug).toMatch(/^script-alert-1-script-search-quotes-[a-z0-9]{5}$/);
   });
+
+  test('a parameter name that a spreadsheet would run as a formula is neutralised in the CSV download', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    const { curve } = sampleCurve(3);
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/results`).send({ meta: sampleMeta({ parameterName: '=HYPERLINK("http://x.invalid")', parameterUnit: '' }), curve });
+    expect(res.status).toBe(201);
+    const csv = await crew.viewer.agent.get(`/api/groups/${groupId}/results/${res.body.resultId}/versions/1/export.csv`);
+    expect(csv.text.split('\n')[0]).toMatch(/^"'=HYPERLINK\(""http:\/\/x\.invalid""\)",observed/);
+    // The stored name itself is unchanged.
+    expect(res.body.meta.parameterName).toBe('=HYPERLINK("http://x.invalid")');
+  });
 });
 
 describe('bad files are refused with line, column and reason, and nothing is stored', () => {
