@@ -209,16 +209,6 @@ export async function deleteVersion(db: Executor, resultId: string, version: num
   await db.delete(resultVersions).where(and(eq(resultVersions.resultId, resultId), eq(resultVersions.version, version)));
 }
 
-/** The uploaded file of a version, as received. */
-export async function getSourceFile(db: Executor, groupId: string, resultId: string, version: number) {
-  const rows = await db
-    .select({ name: resultVersions.sourceName, data: resultVersions.sourceData })
-    .from(resultVersions)
-    .innerJoin(results, eq(results.id, resultVersions.resultId))
-    .where(and(eq(results.id, resultId), eq(results.groupId, groupId), eq(resultVersions.version, version)));
-  return rows[0];
-}
-
 // ---------------------------------------------------------------------------------------------
 // Lists
 
@@ -249,41 +239,39 @@ export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) 
   if (f.method) conditions.push(eq(resultVersions.method, f.method));
   if (f.state) conditions.push(eq(resultVersions.state, f.state));
   const where = and(...conditions);
-
-  const base = () =>
-    db
-      .select({
-        id: results.id,
-        slug: results.slug,
-        groupId: results.groupId,
-        groupName: groups.name,
-        isPublic: results.isPublic,
-        version: resultVersions.version,
-        state: resultVersions.state,
-        title: resultVersions.title,
-        model: resultVersions.model,
-        parameterName: resultVersions.parameterName,
-        parameterUnit: resultVersions.parameterUnit,
-        quantity: resultVersions.quantity,
-        quantityUnit: resultVersions.quantityUnit,
-        sqrtS: resultVersions.sqrtS,
-        luminosity: resultVersions.luminosity,
-        method: resultVersions.method,
-        reference: resultVersions.reference,
-        updatedAt: resultVersions.updatedAt,
-      })
-      .from(latest)
-      .innerJoin(results, eq(results.id, latest.resultId))
-      .innerJoin(resultVersions, and(eq(resultVersions.resultId, latest.resultId), eq(resultVersions.version, latest.version)))
-      .innerJoin(groups, eq(groups.id, results.groupId));
-
+  // Newest first; by title A–Z; by energy, highest first. The id makes pages stable.
   const order =
     f.sort === 'title'
       ? [asc(sql`lower(${resultVersions.title})`), asc(results.id)]
       : f.sort === 'sqrtS'
         ? [desc(resultVersions.sqrtS), asc(sql`lower(${resultVersions.title})`), asc(results.id)]
         : [desc(resultVersions.updatedAt), asc(results.id)];
-  const items = await base()
+
+  const items = await db
+    .select({
+      id: results.id,
+      slug: results.slug,
+      groupId: results.groupId,
+      groupName: groups.name,
+      isPublic: results.isPublic,
+      version: resultVersions.version,
+      state: resultVersions.state,
+      title: resultVersions.title,
+      model: resultVersions.model,
+      parameterName: resultVersions.parameterName,
+      parameterUnit: resultVersions.parameterUnit,
+      quantity: resultVersions.quantity,
+      quantityUnit: resultVersions.quantityUnit,
+      sqrtS: resultVersions.sqrtS,
+      luminosity: resultVersions.luminosity,
+      method: resultVersions.method,
+      reference: resultVersions.reference,
+      updatedAt: resultVersions.updatedAt,
+    })
+    .from(latest)
+    .innerJoin(results, eq(results.id, latest.resultId))
+    .innerJoin(resultVersions, and(eq(resultVersions.resultId, latest.resultId), eq(resultVersions.version, latest.version)))
+    .innerJoin(groups, eq(groups.id, results.groupId))
     .where(where)
     .orderBy(...order)
     .limit(f.pageSize)

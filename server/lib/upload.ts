@@ -31,6 +31,8 @@ export function resultJson(limitBytes: number): RequestHandler {
 export function multipartUpload(limitBytes: number): RequestHandler {
   const parse = multer({
     storage: multer.memoryStorage(),
+    // Browsers and curl send file names as UTF-8 without saying so.
+    defParamCharset: 'utf8',
     limits: { fileSize: limitBytes, files: 1, fields: 20, fieldSize: 256 * 1024 },
   }).single('file');
   return (req, res, next) => {

@@ -146,6 +146,9 @@ describe('good uploads', () => {
     expect(v.headers['content-type']).toMatch(/^application\/json/);
     expect(v.body.meta).toMatchObject({ title, parameterName: '<i>m</i>' });
     expect(res.body.slug).toMatch(/^script-alert-1-script-search-quotes-[a-z0-9]{5}$/);
+
+    const named = await uploadCsv(crew.analyst, groupId, sampleCsv(), { name: 'grenzen m(V′) σ×B.csv' });
+    expect(named.body.sourceFile.name).toBe('grenzen m(V′) σ×B.csv');
   });
 
   test('a parameter name that a spreadsheet would run as a formula is neutralised in the CSV download', async () => {
