@@ -11,8 +11,9 @@ async function main() {
   const ctx = createContext(env);
   await runMigrations(ctx.db);
   ctx.jobs = await startQueue(env);
+  let stopWorkers = () => {};
   if (env.WORKERS > 0) {
-    await startScanWorkers(ctx, ctx.jobs, env.WORKERS);
+    stopWorkers = await startScanWorkers(ctx, ctx.jobs, env.WORKERS);
     console.log(`[server] ${env.WORKERS} scan worker(s) running in this process`);
   }
   const app = createApp(ctx);
@@ -25,6 +26,7 @@ async function main() {
   });
   const stop = (signal: string) => {
     console.log(`[server] ${signal}: closing`);
+    stopWorkers();
     server.close(() => void closeContext(ctx).finally(() => process.exit(0)));
     setTimeout(() => process.exit(0), 12_000).unref();
   };

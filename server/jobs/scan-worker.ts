@@ -54,19 +54,47 @@ export async function sweepUnsavedScans(ctx: Ctx): Promise<void> {
 }
 
 /**
- * Starts `count` workers on the scan queue in this process. Each takes one task at a time; the
- * computation is synchronous, so more workers means more processes (npm run worker), not more here.
+ * Starts `count` worker loops on the scan queue in this process. Each loop takes one task, runs
+ * it, and asks for the next at once (waiting 0.5 s only when the queue is empty), so a worker is
+ * never idle while points wait and several workers share a scan point by point. The computation is
+ * synchronous: more workers means more processes (npm run worker), not more loops in one.
+ * Returns a function that stops the loops after their current task.
  */
 export async function startScanWorkers(ctx: Ctx, boss: PgBoss, count: number): Promise<() => void> {
-  for (let i = 0; i < count; i++) {
-    await boss.work<ScanPointTask>(SCAN_POINT_QUEUE, { batchSize: 1, pollingIntervalSeconds: 0.5 }, async ([job]) => {
-      if (job) await runScanPoint(ctx, job.data);
-    });
-  }
+  let stopped = false;
+  const idle = () => new Promise((r) => setTimeout(r, 500));
+  const loop = async () => {
+    while (!stopped) {
+      let jobs: PgBoss.Job<ScanPointTask>[] = [];
+      try {
+        jobs = await boss.fetch<ScanPointTask>(SCAN_POINT_QUEUE, { batchSize: 1 });
+      } catch (e) {
+        if (stopped) return;
+        console.error('[worker] cannot fetch a task:', (e as Error).message);
+      }
+      const job = jobs?.[0];
+      if (!job) {
+        await idle();
+        continue;
+      }
+      try {
+        await runScanPoint(ctx, job.data);
+        await boss.complete(SCAN_POINT_QUEUE, job.id);
+      } catch (e) {
+        // The point stays queued in our tables; pg-boss retries the task (retryLimit on the queue).
+        console.error(`[worker] point ${job.data.index} of scan ${job.data.scanId} failed:`, (e as Error).message);
+        await boss.fail(SCAN_POINT_QUEUE, job.id, { message: (e as Error).message }).catch(() => undefined);
+      }
+    }
+  };
+  for (let i = 0; i < count; i++) void loop();
   await sweepUnsavedScans(ctx).catch((e) => console.error('[worker] sweep failed:', (e as Error).message));
   const timer = setInterval(() => {
     sweepUnsavedScans(ctx).catch((e) => console.error('[worker] sweep failed:', (e as Error).message));
   }, ctx.env.JOB_MAINTENANCE_SECONDS * 1000);
   timer.unref();
-  return () => clearInterval(timer);
+  return () => {
+    stopped = true;
+    clearInterval(timer);
+  };
 }

@@ -1,0 +1,109 @@
+/**
+ * `npm run bench:scans`: end-to-end scan timings on a throwaway PostgreSQL.
+ * 1. A 200-point, 30-bin, 3-systematic asymptotic scan, from the HTTP request to the stored draft,
+ *    with one worker process (median of 3 runs; target < 5 s).
+ * 2. A toy-heavy scan with one and with two worker processes (the speed-up; target close to 2×).
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
+import request from 'supertest';
+import { createApp } from '../../server/app';
+import { closeContext, createContext } from '../../server/context';
+import { runMigrations } from '../../server/db';
+import { loadEnv } from '../../server/env';
+import { startQueue } from '../../server/jobs/queue';
+import type { CountingModelInput } from '../../shared/schemas/counting-model';
+import { ensureDatabase, startCluster, stopCluster, tmpRoot } from '../lib/postgres';
+
+const ROOT = path.resolve(__dirname, '../..');
+const ORIGIN = 'http://127.0.0.1:8080';
+
+function model(k: number, bins: number): CountingModelInput {
+  const b = Array.from({ length: bins }, (_, i) => 500 * Math.exp(-(k * 40 + i * 25) / 900) + 5);
+  return {
+    observed: b.map((v, i) => Math.max(0, Math.round(v * (1 + 0.04 * Math.sin(k + 3 * i))))),
+    signal: b.map((_, i) => 3 * Math.exp(-((i - bins / 2) ** 2) / 20) + 0.1),
+    backgrounds: [
+      { name: 'continuum', yields: b.map((v) => 0.8 * v) },
+      { name: 'misidentified', yields: b.map((v) => 0.2 * v) },
+    ],
+    systematics: [
+      { name: 'luminosity', effects: { signal: 0.02, continuum: 0.02 } },
+      { name: 'continuum shape', effects: { continuum: b.map((_, i) => 0.03 + 0.002 * i) } },
+      { name: 'misidentification rate', effects: { misidentified: 0.3 } },
+    ],
+  };
+}
+const grid = (n: number, bins: number) => Array.from({ length: n }, (_, k) => ({ x: 500 + 25 * k, sigmaNominal: 50 * Math.exp(-k / 40), model: model(k, bins) }));
+const META = { title: 'Benchmark scan', parameterName: 'm(X)', parameterUnit: 'GeV', quantity: 'xsec', quantityUnit: 'fb', sqrtS: 18, luminosity: 140, method: 'asymptotic' };
+const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
+
+async function main() {
+  const home = tmpRoot();
+  const cluster = await startCluster({ home, throwaway: true });
+  const workers: ChildProcess[] = [];
+  try {
+    await ensureDatabase(cluster, 'bench');
+    const env = loadEnv({ DATABASE_URL: cluster.url('bench'), NODE_ENV: 'test', PUBLIC_URL: ORIGIN, AUTH_RATE_LIMIT: '1000', WORKERS: '0' });
+    const ctx = createContext(env);
+    await runMigrations(ctx.db);
+    ctx.jobs = await startQueue(env);
+    const app = createApp(ctx);
+    const agent = request.agent(app);
+    await agent.post('/api/auth/sign-up/email').set('Origin', ORIGIN).send({ name: 'Bench', email: 'bench@lab.example', password: 'bench-password-1' });
+    const group = await agent.post('/api/groups').set('Origin', ORIGIN).send({ name: 'Bench group' });
+    const gid = group.body.id as string;
+
+    const startWorkers = async (n: number) => {
+      for (let i = 0; i < n; i++) {
+        const c = spawn(process.execPath, ['--import', 'tsx', path.join(ROOT, 'server/worker.ts')], {
+          env: { ...process.env, DATABASE_URL: env.DATABASE_URL, NODE_ENV: 'test', WORKERS: '1' } as NodeJS.ProcessEnv,
+          stdio: ['ignore', 'pipe', 'inherit'],
+        });
+        workers.push(c);
+        await new Promise<void>((resolve) => c.stdout!.on('data', (d: Buffer) => d.toString().includes('ready') && resolve()));
+      }
+    };
+    const stopWorkers = async () => {
+      await Promise.all(workers.splice(0).map((c) => new Promise((r) => (c.once('exit', r), c.kill('SIGTERM')))));
+    };
+    const runScan = async (body: object): Promise<number> => {
+      const t0 = performance.now();
+      const res = await agent.post(`/api/groups/${gid}/scans`).set('Origin', ORIGIN).send(body);
+      if (res.status !== 201) throw new Error(`scan refused: ${JSON.stringify(res.body)}`);
+      for (;;) {
+        const s = await agent.get(`/api/groups/${gid}/scans/${res.body.id}`);
+        if (s.body.resultId) return (performance.now() - t0) / 1000;
+        if (s.body.state === 'failed') throw new Error(s.body.error);
+        await new Promise((r) => setTimeout(r, 25));
+      }
+    };
+
+    console.log('Scan benchmark (medians, 2-core machine)\n');
+    await startWorkers(1);
+    const asym = { points: grid(200, 30), options: { method: 'asymptotic' }, meta: META };
+    const times: number[] = [];
+    for (let i = 0; i < 3; i++) times.push(await runScan(asym));
+    const a = median(times);
+    console.log(`200-point, 30-bin, 3-systematic asymptotic scan, upload → draft, 1 worker: ${a.toFixed(2)} s  target < 5 s  ${a < 5 ? 'met' : 'NOT met'}`);
+
+    const toyBody = { points: grid(12, 4), options: { method: 'toys', toys: 600, seed: 3 }, meta: { ...META, method: 'toys' } };
+    const one = await runScan(toyBody);
+    await startWorkers(1);
+    const two = await runScan(toyBody);
+    await stopWorkers();
+    const speedup = one / two;
+    console.log(`toy-heavy scan (12 points × 4 bins × 600 pseudo-experiments per hypothesis): 1 worker ${one.toFixed(1)} s, 2 workers ${two.toFixed(1)} s, speed-up ${speedup.toFixed(2)}×  target close to 2×`);
+    await closeContext(ctx);
+  } finally {
+    for (const c of workers) c.kill('SIGKILL');
+    stopCluster(cluster);
+    fs.rmSync(home, { recursive: true, force: true });
+  }
+}
+
+main().catch((e) => {
+  console.error(e);
+  process.exit(1);
+});
