@@ -120,6 +120,13 @@ export function detectRoles(headers: string[]): ColumnMapping {
   };
   headers.forEach((raw, i) => {
     const h = norm(raw);
+    // Short band names such as exp_m1 / exp_p2 (m = minus, p = plus, then the number of σ).
+    const short = /^exp(ected)?(limit)?([mp])([12])(sigma|s)?$/.exec(h);
+    if (short) {
+      const n = short[4] === '2' ? 2 : 1;
+      take(short[3] === 'm' ? (n === 2 ? 'expectedMinus2' : 'expectedMinus1') : n === 2 ? 'expectedPlus2' : 'expectedPlus1', i);
+      return;
+    }
     const sigma = /(2sigma|2s$|2sd|95)/.test(h) ? 2 : /(1sigma|1s$|1sd|68)/.test(h) ? 1 : 0;
     if (/^(theo|th$|thxs|prediction|xsecth|sigmath|nominal)/.test(h) || h.includes('theory')) {
       if (DOWN.test(h.replace(/^theo(ry)?/, ''))) take('theoryLower', i);

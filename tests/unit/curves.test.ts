@@ -23,6 +23,11 @@ describe('column auto-detection from header names', () => {
       x: 0, observed: 1, expected: 2, expectedMinus1: 3, expectedPlus1: 4, expectedMinus2: 5, expectedPlus2: 6,
     });
   });
+  test('short band names exp_m1 / exp_p1 / exp_m2 / exp_p2 are recognised', () => {
+    expect(detectRoles(['m', 'obs', 'exp', 'exp_m1', 'exp_p1', 'exp_m2', 'exp_p2'])).toEqual({
+      x: 0, observed: 1, expected: 2, expectedMinus1: 3, expectedPlus1: 4, expectedMinus2: 5, expectedPlus2: 6,
+    });
+  });
   test('without a recognisable parameter header, the first free column is the parameter', () => {
     expect(detectRoles(['point', 'obs'])).toEqual({ observed: 1, x: 0 });
   });
