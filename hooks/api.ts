@@ -21,4 +21,12 @@ export const keys = {
   invitations: (groupId: string) => ['groups', groupId, 'invitations'] as const,
   invitation: (token: string) => ['invitation', token] as const,
   inbox: ['dev', 'inbox'] as const,
+  /** Every results list (group, all, public) starts with 'results', so one invalidation refreshes them. */
+  results: ['results'] as const,
+  resultList: (query: object) => ['results', 'list', query] as const,
+  publicResults: (query: object) => ['results', 'public', query] as const,
+  result: (groupId: string, resultId: string) => ['results', 'detail', groupId, resultId] as const,
+  resultVersion: (groupId: string, resultId: string, version: number) => ['results', 'detail', groupId, resultId, 'v', version] as const,
+  permalink: (slug: string, version: number) => ['results', 'link', slug, version] as const,
+  tokens: ['tokens'] as const,
 };

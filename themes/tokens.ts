@@ -34,6 +34,8 @@ export const fonts = {
   medium: 'Inter_500Medium',
   semibold: 'Inter_600SemiBold',
   bold: 'Inter_700Bold',
+  /** Tokens and other text that must be read character by character. */
+  mono: 'monospace',
 } as const;
 
 export const type = {
@@ -56,3 +58,19 @@ export const bottomTabHeight = 60;
  * and in greyscale (lightness alternates); figure themes take layer colours from here.
  */
 export const chartPalette = ['#1b3f8b', '#c2571a', '#2e8b57', '#7b3f99', '#b8860b', '#4a4a4a'] as const;
+
+/**
+ * The quick plot's colours (app preview only; publication figures take theirs from the figure
+ * themes). Bands in two blues stay apart from the orange theory curve, also in greyscale.
+ */
+export const plotColors = {
+  observed: '#16191d',
+  expected: '#1b3f8b',
+  band1: '#9fb7e3',
+  band2: '#dbe5f6',
+  theory: '#c2571a',
+  theoryBand: '#f5dccc',
+  grid: '#e6e9ee',
+  axis: '#5a6270',
+  background: '#ffffff',
+} as const;

@@ -1,2 +1,2 @@
-import { ResultsHomeScreen } from '@/components/screens/results-home-screen';
-export default ResultsHomeScreen;
+import { ResultsListScreen } from '@/components/screens/results-list-screen';
+export default ResultsListScreen;

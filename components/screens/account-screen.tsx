@@ -1,4 +1,6 @@
-import { useRouter } from 'expo-router';
+import { Link, useRouter } from 'expo-router';
+import { StyleSheet } from 'react-native';
+import { colors, fonts } from '@/themes/tokens';
 import { useMe, useSignOut } from '@/hooks/use-session';
 import { ROLE_LABELS } from '@/shared/access';
 import { Banner } from '../ui/banner';
@@ -28,6 +30,13 @@ export function AccountScreen() {
           </Text>
         ))}
       </Card>
+      <Card>
+        <Text variant="label">API tokens</Text>
+        <Text variant="muted">Personal tokens let your scripts and pipelines push results as you.</Text>
+        <Link href="/tokens" style={styles.link}>
+          Manage API tokens
+        </Link>
+      </Card>
       {signOut.error ? <Banner tone="error" message={errorMessage(signOut.error)!} /> : null}
       <Button
         label="Sign out"
@@ -38,3 +47,7 @@ export function AccountScreen() {
     </Screen>
   );
 }
+
+const styles = StyleSheet.create({
+  link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22, alignSelf: 'flex-start' },
+});

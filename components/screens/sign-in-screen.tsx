@@ -46,6 +46,9 @@ export function SignInScreen() {
           Create an account
         </Link>
       </View>
+      <Link href="/public" style={styles.link}>
+        Browse public results
+      </Link>
     </AuthFrame>
   );
 }

@@ -1,0 +1,2 @@
+import { ResultScreen } from '@/components/screens/result-screen';
+export default ResultScreen;

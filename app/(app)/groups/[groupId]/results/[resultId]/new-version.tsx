@@ -1,0 +1,2 @@
+import { NewVersionScreen } from '@/components/screens/upload-screen';
+export default NewVersionScreen;

@@ -1,0 +1,2 @@
+import { NewResultScreen } from '@/components/screens/upload-screen';
+export default NewResultScreen;

@@ -1,0 +1,2 @@
+import { TokensScreen } from '@/components/screens/tokens-screen';
+export default TokensScreen;

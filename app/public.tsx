@@ -1,0 +1,2 @@
+import { PublicResultsScreen } from '@/components/screens/public-results-screen';
+export default PublicResultsScreen;

@@ -1,0 +1,2 @@
+import { PermalinkScreen } from '@/components/screens/permalink-screen';
+export default PermalinkScreen;

@@ -1,0 +1,152 @@
+import type { ReactNode } from 'react';
+import { Platform, StyleSheet, View } from 'react-native';
+import type { ResultVersion } from '@/shared/schemas/results';
+import { useIsWide } from '@/hooks/use-layout';
+import { space } from '@/themes/tokens';
+import { QuickPlot } from '../plot/quick-plot';
+import { Anchor } from '../ui/anchor';
+import { Banner } from '../ui/banner';
+import { Card } from '../ui/card';
+import { CopyButton } from '../ui/copy-button';
+import { Text } from '../ui/text';
+import { axisLabels, parameterLabel, permalinkPath } from './format';
+import { ExclusionSummary } from './exclusion-summary';
+import { PointsTable } from './points-table';
+import { Provenance } from './provenance';
+import { PublicBadge, StateBadge } from './state-badge';
+
+/** The address of a permanent link as people will paste it. */
+export function absoluteUrl(path: string): string {
+  if (/^https?:\/\//.test(path)) return path;
+  const origin = Platform.OS === 'web' && typeof window !== 'undefined' ? window.location.origin : '';
+  return `${origin}${path}`;
+}
+
+export function PermanentLink({ version }: { version: ResultVersion }) {
+  if (version.state === 'draft') return null;
+  const url = absoluteUrl(version.permalink ?? permalinkPath(version.slug, version.version));
+  return (
+    <View style={styles.gapSm}>
+      <Text variant="label">Permanent link</Text>
+      <Text selectable style={styles.url} aria-label="Permanent link address">
+        {url}
+      </Text>
+      <CopyButton text={url} label="Copy link" accessibilityLabel="Copy the permanent link" />
+    </View>
+  );
+}
+
+/** CSV and JSON of one version, as plain links. */
+export function Downloads({ csv, json, version }: { csv: string; json: string; version: number }) {
+  return (
+    <View style={styles.downloads}>
+      <Anchor href={csv} download label={`Download version ${version} as CSV`}>
+        Download CSV
+      </Anchor>
+      <Anchor href={json} download label={`Download version ${version} as JSON`}>
+        Download JSON
+      </Anchor>
+    </View>
+  );
+}
+
+/**
+ * One version, read-only: state, retraction notice, quick plot, derived numbers, provenance, the
+ * points and the downloads. The result page adds its versions and actions through `side`.
+ */
+export function ResultView({ version, downloads, side, top }: { version: ResultVersion; downloads: { csv: string; json: string }; side?: ReactNode; top?: ReactNode }) {
+  const wide = useIsWide();
+  const labels = axisLabels(version.meta);
+  const plot = (
+    <Card>
+      <Text variant="title">Limit curve</Text>
+      <QuickPlot curve={version.curve} theory={version.theory} xLabel={labels.x} yLabel={labels.y} height={wide ? 340 : 280} />
+    </Card>
+  );
+  const derived = (
+    <Card>
+      <Text variant="title">Excluded ranges</Text>
+      <ExclusionSummary version={version} />
+    </Card>
+  );
+  const provenance = (
+    <Card>
+      <Text variant="title">Provenance</Text>
+      <Provenance version={version} />
+    </Card>
+  );
+  const points = (
+    <Card>
+      <Text variant="title">Points</Text>
+      <PointsTable curve={version.curve} theory={version.theory} xTitle={parameterLabel(version.meta)} />
+    </Card>
+  );
+  const files = (
+    <Card>
+      <Text variant="title">Downloads</Text>
+      <Downloads csv={downloads.csv} json={downloads.json} version={version.version} />
+      <PermanentLink version={version} />
+    </Card>
+  );
+  const status = (
+    <View style={styles.status}>
+      <StateBadge state={version.state} />
+      <PublicBadge isPublic={version.isPublic} />
+      <Text variant="caption">
+        Version {version.version} · {version.groupName}
+      </Text>
+    </View>
+  );
+  const retraction =
+    version.state === 'retracted' ? (
+      <Banner tone="error" message={`This version was retracted${version.retractionReason ? `: ${version.retractionReason}` : '.'} Do not use its numbers.`} />
+    ) : version.state === 'superseded' ? (
+      <Banner tone="warning" message="A newer version of this result has been published; this one is kept for reference." />
+    ) : null;
+
+  if (wide) {
+    return (
+      <View style={styles.gap}>
+        {status}
+        {retraction}
+        {top}
+        <View style={styles.columns}>
+          <View style={styles.main}>
+            {plot}
+            {derived}
+            {points}
+          </View>
+          <View style={styles.side}>
+            {side}
+            {provenance}
+            {files}
+          </View>
+        </View>
+      </View>
+    );
+  }
+  return (
+    <View style={styles.gap}>
+      {status}
+      {retraction}
+      {top}
+      {plot}
+      {derived}
+      {side}
+      {provenance}
+      {points}
+      {files}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  gap: { gap: space.lg },
+  gapSm: { gap: space.sm },
+  status: { flexDirection: 'row', alignItems: 'center', gap: space.sm, flexWrap: 'wrap' },
+  columns: { flexDirection: 'row', gap: space.lg, alignItems: 'flex-start' },
+  main: { flex: 3, gap: space.lg, minWidth: 0 },
+  side: { flex: 2, gap: space.lg, minWidth: 0 },
+  downloads: { flexDirection: 'row', gap: space.xl, flexWrap: 'wrap' },
+  url: { fontSize: 13, lineHeight: 18 },
+});

@@ -1,0 +1,34 @@
+import { StyleSheet, View } from 'react-native';
+import type { ResultState } from '@/shared/schemas/results';
+import { colors, fonts, radii, space } from '@/themes/tokens';
+import { Text } from '../ui/text';
+import { STATE_LABELS } from './format';
+
+const tones: Record<ResultState, { bg: string; fg: string }> = {
+  draft: { bg: colors.surfaceAlt, fg: colors.textMuted },
+  published: { bg: colors.successSoft, fg: colors.success },
+  superseded: { bg: colors.warningSoft, fg: colors.warning },
+  retracted: { bg: colors.dangerSoft, fg: colors.danger },
+};
+
+export function StateBadge({ state }: { state: ResultState }) {
+  const t = tones[state];
+  return (
+    <View style={[styles.badge, { backgroundColor: t.bg }]} aria-label={`State: ${STATE_LABELS[state]}`}>
+      <Text style={[styles.text, { color: t.fg }]}>{STATE_LABELS[state]}</Text>
+    </View>
+  );
+}
+
+export function PublicBadge({ isPublic }: { isPublic: boolean }) {
+  return (
+    <View style={[styles.badge, { backgroundColor: isPublic ? colors.primarySoft : colors.surfaceAlt }]}>
+      <Text style={[styles.text, { color: isPublic ? colors.primary : colors.textMuted }]}>{isPublic ? 'Public' : 'Group only'}</Text>
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  badge: { alignSelf: 'flex-start', borderRadius: radii.pill, paddingHorizontal: space.sm, paddingVertical: 2 },
+  text: { fontFamily: fonts.semibold, fontSize: 12, lineHeight: 16 },
+});

@@ -1,0 +1,188 @@
+import { Link, useLocalSearchParams, useRouter, type Href } from 'expo-router';
+import { useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import { can, type GroupRole } from '@/shared/access';
+import { ApiError } from '@/shared/api-client';
+import { retractSchema, type ResultDetail, type ResultVersion } from '@/shared/schemas/results';
+import { api } from '@/hooks/api';
+import { useDeleteDraft, usePublishVersion, useResult, useResultVersion, useRetractVersion, useSetVisibility } from '@/hooks/use-results';
+import { useMe } from '@/hooks/use-session';
+import { colors, fonts, space } from '@/themes/tokens';
+import { ResultView } from '../results/result-view';
+import { VersionHistory } from '../results/version-history';
+import { Banner } from '../ui/banner';
+import { Button } from '../ui/button';
+import { Card } from '../ui/card';
+import { Checkbox } from '../ui/checkbox';
+import { EmptyState } from '../ui/empty-state';
+import { checkForm, errorMessage, serverFieldErrors, type FieldErrors } from '../ui/form';
+import { Loading } from '../ui/loading';
+import { Screen } from '../ui/screen';
+import { Text } from '../ui/text';
+import { TextField } from '../ui/text-field';
+
+/** What the caller's role in the result's group lets them do with the shown version. */
+function ResultActions({ detail, version, role }: { detail: ResultDetail; version: ResultVersion; role: GroupRole | undefined }) {
+  const router = useRouter();
+  const { groupId, id: resultId } = detail;
+  const publish = usePublishVersion(groupId, resultId);
+  const retract = useRetractVersion(groupId, resultId);
+  const visibility = useSetVisibility(groupId, resultId);
+  const remove = useDeleteDraft(groupId, resultId);
+  const [makePublic, setMakePublic] = useState(detail.isPublic);
+  const [retracting, setRetracting] = useState(false);
+  const [reason, setReason] = useState('');
+  const [errors, setErrors] = useState<FieldErrors>({});
+  const [confirmDelete, setConfirmDelete] = useState(false);
+  const mayWrite = can(role, 'result.write');
+  const mayPublish = can(role, 'result.publish');
+  const hasPublished = detail.versions.some((v) => v.state === 'published' || v.state === 'superseded');
+  if (!mayWrite) return null;
+
+  const submitRetract = () => {
+    const { data, errors: e } = checkForm(retractSchema, { reason });
+    setErrors(e);
+    if (!data) return;
+    retract.mutate(
+      { version: version.version, reason: data.reason },
+      { onSuccess: () => setRetracting(false), onError: (err) => setErrors(serverFieldErrors(err)) },
+    );
+  };
+  const error = publish.error ?? retract.error ?? visibility.error ?? remove.error;
+  return (
+    <Card>
+      <Text variant="title">Actions</Text>
+      {version.state === 'draft' && mayPublish ? (
+        <View style={styles.block}>
+          <Checkbox label="Make the result public" hint="Anyone, signed in or not, can then open and download its published versions." checked={makePublic} onChange={setMakePublic} />
+          <Button label={`Publish version ${version.version}`} loading={publish.isPending} onPress={() => publish.mutate({ version: version.version, isPublic: makePublic })} />
+          <Text variant="caption">Published versions never change; a later version supersedes this one.</Text>
+        </View>
+      ) : null}
+      {version.state === 'draft' && !mayPublish ? <Text variant="muted">A curator or owner of the group publishes drafts.</Text> : null}
+      {version.state === 'published' && mayPublish ? (
+        retracting ? (
+          <View style={styles.block}>
+            <TextField
+              label="Reason for the retraction"
+              hint="Shown to everyone who opens this result."
+              value={reason}
+              onChangeText={setReason}
+              multiline
+              numberOfLines={3}
+              error={errors.reason}
+            />
+            <View style={styles.row}>
+              <Button variant="danger" label={`Retract version ${version.version}`} loading={retract.isPending} onPress={submitRetract} />
+              <Button variant="ghost" label="Cancel" onPress={() => setRetracting(false)} />
+            </View>
+          </View>
+        ) : (
+          <Button variant="secondary" label={`Retract version ${version.version}…`} accessibilityLabel={`Retract version ${version.version}`} onPress={() => setRetracting(true)} />
+        )
+      ) : null}
+      {mayPublish && hasPublished ? (
+        <Button
+          variant="secondary"
+          label={detail.isPublic ? 'Make group-only' : 'Make public'}
+          loading={visibility.isPending}
+          onPress={() => visibility.mutate(!detail.isPublic)}
+        />
+      ) : null}
+      <Button variant="secondary" label="Upload a new version" onPress={() => router.push(`/groups/${groupId}/results/${resultId}/new-version` as Href)} />
+      {version.state === 'draft' ? (
+        confirmDelete ? (
+          <View style={styles.block}>
+            <Text>
+              Delete draft version {version.version}
+              {detail.versions.length === 1 ? ' and with it the result' : ''}? This cannot be undone.
+            </Text>
+            <View style={styles.row}>
+              <Button
+                variant="danger"
+                label="Delete draft"
+                loading={remove.isPending}
+                onPress={() =>
+                  remove.mutate(
+                    { version: version.version, onlyVersion: detail.versions.length === 1 },
+                    {
+                      onSuccess: () => {
+                        setConfirmDelete(false);
+                        if (detail.versions.length === 1) router.replace('/');
+                        else router.setParams({ v: undefined });
+                      },
+                    },
+                  )
+                }
+              />
+              <Button variant="ghost" label="Keep it" onPress={() => setConfirmDelete(false)} />
+            </View>
+          </View>
+        ) : (
+          <Button variant="ghost" label="Delete this draft…" accessibilityLabel={`Delete draft version ${version.version}`} onPress={() => setConfirmDelete(true)} />
+        )
+      ) : null}
+      {error && !Object.keys(errors).length ? <Banner tone="error" message={errorMessage(error)!} /> : null}
+    </Card>
+  );
+}
+
+/** A result of one of the caller's groups, at `/groups/<group>/results/<result>?v=<version>`. */
+export function ResultScreen() {
+  const params = useLocalSearchParams<{ groupId: string; resultId: string; v?: string }>();
+  const groupId = String(params.groupId ?? '');
+  const resultId = String(params.resultId ?? '');
+  const router = useRouter();
+  const me = useMe();
+  const role = me.data?.groups.find((g) => g.id === groupId)?.role;
+  const detail = useResult(groupId, resultId);
+  const versions = detail.data?.versions ?? [];
+  const latest = versions.reduce((m, v) => Math.max(m, v.version), 0);
+  const asked = Number(params.v);
+  const selected = versions.some((v) => v.version === asked) ? asked : latest;
+  const version = useResultVersion(groupId, resultId, selected || undefined);
+
+  const back = (
+    <Link href="/" style={styles.back}>
+      ← All results
+    </Link>
+  );
+  const notFound = [detail.error, version.error].some((e) => e instanceof ApiError && (e.status === 404 || e.status === 400));
+  if (notFound) {
+    return (
+      <Screen title="Result not found">
+        {back}
+        <EmptyState title="No such result" message="It may have been deleted, or it belongs to a group you are not in." />
+      </Screen>
+    );
+  }
+  const v = version.data;
+  return (
+    <Screen title={v?.meta.title ?? 'Result'} subtitle={v?.meta.model || undefined}>
+      {back}
+      {detail.error || version.error ? <Banner tone="error" message={errorMessage(detail.error ?? version.error)!} /> : null}
+      {detail.isPending || (version.isPending && !!selected) ? <Loading label="Loading the result…" /> : null}
+      {detail.data && v ? (
+        <ResultView
+          version={v}
+          downloads={{ csv: api.results.exportUrl(groupId, resultId, v.version, 'csv'), json: api.results.exportUrl(groupId, resultId, v.version, 'json') }}
+          side={
+            <>
+              <ResultActions detail={detail.data} version={v} role={role} />
+              <Card>
+                <Text variant="title">Versions</Text>
+                <VersionHistory versions={versions} selected={v.version} onSelect={(n) => router.setParams({ v: String(n) })} />
+              </Card>
+            </>
+          }
+        />
+      ) : null}
+    </Screen>
+  );
+}
+
+const styles = StyleSheet.create({
+  block: { gap: space.sm },
+  row: { flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' },
+  back: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22, alignSelf: 'flex-start' },
+});

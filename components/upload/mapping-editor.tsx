@@ -1,0 +1,69 @@
+import { StyleSheet, View } from 'react-native';
+import { COLUMN_ROLES, ROLE_TITLES, type ColumnMapping, type ColumnRole, type CsvTable } from '@/shared/curves/csv';
+import { useIsWide } from '@/hooks/use-layout';
+import { colors, fonts, radii, space } from '@/themes/tokens';
+import { Select } from '../ui/select';
+import { Text } from '../ui/text';
+import { assignRole, roleOfColumn, type Problem } from './upload-model';
+
+const NONE = 'none';
+type RoleChoice = ColumnRole | typeof NONE;
+const OPTIONS = [{ value: NONE as RoleChoice, label: 'Not used' }, ...COLUMN_ROLES.map((r) => ({ value: r as RoleChoice, label: ROLE_TITLES[r] }))];
+
+/**
+ * One row per file column: its header, its first values and the role it plays. Detection from the
+ * headers fills the roles in; the user confirms or changes them.
+ */
+export function MappingEditor({ table, mapping, onChange, problems }: { table: CsvTable; mapping: ColumnMapping; onChange: (m: ColumnMapping) => void; problems: Problem[] }) {
+  const wide = useIsWide();
+  return (
+    <View style={styles.list} role="list" aria-label="Columns of the file">
+      {table.headers.map((header, i) => {
+        const role = roleOfColumn(mapping, i);
+        const first = table.rows.slice(0, 3).map((r) => r[i] ?? '');
+        const lines = problems.filter((p) => p.column === header && p.row !== undefined).map((p) => p.row!);
+        return (
+          <View key={i} role="listitem" style={[styles.row, wide && styles.rowWide, lines.length > 0 && styles.rowProblem]}>
+            <View style={[styles.info, wide && styles.infoWide]}>
+              <Text style={styles.header} numberOfLines={2}>
+                {header || `Column ${i + 1}`}
+              </Text>
+              <Text variant="caption" numberOfLines={1}>
+                {first.join(' · ')}
+                {table.rows.length > 3 ? ' …' : ''}
+              </Text>
+              {lines.length ? (
+                <Text variant="caption" style={styles.problem}>
+                  {lines.length === 1 ? `Problem in line ${lines[0]}` : `Problems in lines ${[...new Set(lines)].slice(0, 6).join(', ')}${lines.length > 6 ? '…' : ''}`}
+                </Text>
+              ) : null}
+            </View>
+            <View style={[styles.pick, wide && styles.pickWide]}>
+              <Select
+                label="Role"
+                showLabel={false}
+                accessibilityLabel={`Role of column “${header || i + 1}”`}
+                value={role ?? NONE}
+                options={OPTIONS}
+                onChange={(v) => onChange(assignRole(mapping, i, v === NONE ? null : v))}
+              />
+            </View>
+          </View>
+        );
+      })}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  list: { gap: space.sm },
+  row: { gap: space.sm, padding: space.sm, borderRadius: radii.md, borderWidth: 1, borderColor: colors.border, backgroundColor: colors.surface },
+  rowWide: { flexDirection: 'row', alignItems: 'flex-start' },
+  rowProblem: { borderColor: colors.danger },
+  info: { gap: 2, minWidth: 0 },
+  infoWide: { flex: 1 },
+  header: { fontFamily: fonts.semibold, fontSize: 14, lineHeight: 20 },
+  problem: { color: colors.danger },
+  pick: {},
+  pickWide: { width: 220 },
+});

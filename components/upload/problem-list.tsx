@@ -1,0 +1,36 @@
+import { StyleSheet, View } from 'react-native';
+import { colors, fonts, radii, space } from '@/themes/tokens';
+import { Text } from '../ui/text';
+import type { Problem } from './upload-model';
+
+/** "Line 5, column “exp+1s”: …" — where a problem is, in the file's own words. */
+export function problemText(p: Problem, rowWord = 'Line'): string {
+  const where = [p.row !== undefined ? `${rowWord} ${p.row}` : null, p.column === 'file' ? 'the file' : `column “${p.column}”`].filter(Boolean).join(', ');
+  return `${where.charAt(0).toUpperCase()}${where.slice(1)}: ${p.reason}`;
+}
+
+/** Every problem of a file, each with its line (or point), column and reason. */
+export function ProblemList({ problems, title, rowWord = 'Line', max = 50 }: { problems: Problem[]; title?: string; rowWord?: string; max?: number }) {
+  if (problems.length === 0) return null;
+  const heading = title ?? (problems.length === 1 ? '1 problem to fix' : `${problems.length} problems to fix`);
+  return (
+    <View style={styles.box} role="alert" aria-label={heading}>
+      <Text style={styles.title}>{heading}</Text>
+      <View role="list" style={styles.list}>
+        {problems.slice(0, max).map((p, i) => (
+          <Text key={i} role="listitem" style={styles.item}>
+            • {problemText(p, rowWord)}
+          </Text>
+        ))}
+      </View>
+      {problems.length > max ? <Text variant="caption">…and {problems.length - max} more.</Text> : null}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  box: { gap: space.sm, padding: space.md, borderRadius: radii.md, borderWidth: 1, borderColor: colors.danger, backgroundColor: colors.dangerSoft },
+  title: { fontFamily: fonts.semibold, color: colors.danger },
+  list: { gap: space.xs },
+  item: { color: colors.text, fontSize: 14, lineHeight: 20 },
+});

@@ -1,0 +1,89 @@
+import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import type { ResultListQuery } from '@/shared/schemas/results';
+import { api, keys } from './api';
+
+/** A page of results visible to the caller (their groups' and everyone's public ones). */
+export function useResults(query: ResultListQuery, enabled = true) {
+  return useQuery({
+    queryKey: keys.resultList(query),
+    queryFn: () => api.results.list(query),
+    placeholderData: keepPreviousData,
+    enabled,
+  });
+}
+
+/** Public published results, for anyone (signed in or not). */
+export function usePublicResults(query: { q?: string; page?: number; pageSize?: number }) {
+  return useQuery({
+    queryKey: keys.publicResults(query),
+    queryFn: () => api.publicResults.list(query),
+    placeholderData: keepPreviousData,
+  });
+}
+
+export function useResult(groupId: string, resultId: string) {
+  return useQuery({ queryKey: keys.result(groupId, resultId), queryFn: () => api.results.get(groupId, resultId), enabled: !!groupId && !!resultId });
+}
+
+export function useResultVersion(groupId: string, resultId: string, version: number | undefined) {
+  return useQuery({
+    queryKey: keys.resultVersion(groupId, resultId, version ?? 0),
+    queryFn: () => api.results.version(groupId, resultId, version!),
+    enabled: !!groupId && !!resultId && !!version,
+  });
+}
+
+/** A version by its permanent link; works signed out for public results. */
+export function usePermalink(slug: string, version: number | null) {
+  return useQuery({ queryKey: keys.permalink(slug, version ?? 0), queryFn: () => api.results.byLink(slug, version!), enabled: !!slug && !!version });
+}
+
+/** After any change to a result, every list and detail of results may be stale. */
+function useRefreshResults() {
+  const qc = useQueryClient();
+  return () => qc.invalidateQueries({ queryKey: keys.results });
+}
+
+export function useCreateResult(groupId: string) {
+  const refresh = useRefreshResults();
+  return useMutation({ mutationFn: (form: FormData) => api.results.create(groupId, form), onSuccess: () => refresh() });
+}
+
+export function useAddVersion(groupId: string, resultId: string) {
+  const refresh = useRefreshResults();
+  return useMutation({ mutationFn: (form: FormData) => api.results.addVersion(groupId, resultId, form), onSuccess: () => refresh() });
+}
+
+export function usePublishVersion(groupId: string, resultId: string) {
+  const refresh = useRefreshResults();
+  return useMutation({
+    mutationFn: (v: { version: number; isPublic: boolean }) => api.results.publish(groupId, resultId, v.version, { public: v.isPublic }),
+    onSuccess: () => refresh(),
+  });
+}
+
+export function useRetractVersion(groupId: string, resultId: string) {
+  const refresh = useRefreshResults();
+  return useMutation({
+    mutationFn: (v: { version: number; reason: string }) => api.results.retract(groupId, resultId, v.version, v.reason),
+    onSuccess: () => refresh(),
+  });
+}
+
+export function useSetVisibility(groupId: string, resultId: string) {
+  const refresh = useRefreshResults();
+  return useMutation({ mutationFn: (isPublic: boolean) => api.results.setVisibility(groupId, resultId, isPublic), onSuccess: () => refresh() });
+}
+
+/** Deletes a draft version; a result whose only version is that draft goes with it. */
+export function useDeleteDraft(groupId: string, resultId: string) {
+  const refresh = useRefreshResults();
+  return useMutation({
+    mutationFn: async (v: { version: number; onlyVersion: boolean }) => {
+      if (v.onlyVersion) await api.results.remove(groupId, resultId);
+      else await api.results.deleteDraft(groupId, resultId, v.version);
+    },
+    onSuccess: () => refresh(),
+  });
+}
+
