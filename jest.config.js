@@ -19,6 +19,8 @@ module.exports = {
     {
       displayName: 'components',
       preset: 'jest-expo',
+      // d3-* ship ESM as .mjs, which the preset's transform does not cover (the quick plot uses them).
+      transform: { '\\.mjs$': 'babel-jest' },
       transformIgnorePatterns: [
         // jest-expo's documented pattern plus the ESM-only packages above.
         `node_modules/(?!((jest-)?react-native|@react-native(-community)?)|expo(nent)?|@expo(nent)?/.*|@expo-google-fonts/.*|react-navigation|@react-navigation/.*|react-native-svg|${esmPackages.join('|')})`,

@@ -23,9 +23,10 @@ export function ExclusionSummary({ version }: { version: ResultVersion }) {
   if (ranges.observed) rows.push(['Observed', formatRanges(ranges.observed, unit)]);
   if (ranges.observedTheoryLower) rows.push(['Observed, theory lower edge', formatRanges(ranges.observedTheoryLower, unit)]);
   if (ranges.observedTheoryUpper) rows.push(['Observed, theory upper edge', formatRanges(ranges.observedTheoryUpper, unit)]);
-  if (e['0']) rows.push(['Expected median', formatRanges(e['0'], unit)]);
-  if (e['-1'] && e['1']) rows.push(['Expected ±1σ', `${formatRanges(e['-1'], unit)} (−1σ); ${formatRanges(e['1'], unit)} (+1σ)`]);
-  if (e['-2'] && e['2']) rows.push(['Expected ±2σ', `${formatRanges(e['-2'], unit)} (−2σ); ${formatRanges(e['2'], unit)} (+2σ)`]);
+  for (const [k, label] of [['0', 'Expected median'], ['-1', 'Expected −1σ'], ['1', 'Expected +1σ'], ['-2', 'Expected −2σ'], ['2', 'Expected +2σ']] as const) {
+    const r = e[k];
+    if (r) rows.push([label, formatRanges(r, unit)]);
+  }
   return (
     <View style={styles.list}>
       {rows.map(([k, v]) => (
@@ -44,7 +45,7 @@ export function ExclusionSummary({ version }: { version: ResultVersion }) {
 
 const styles = StyleSheet.create({
   list: { gap: space.sm },
-  row: { gap: 2 },
-  key: { fontFamily: fonts.semibold, fontSize: 13, color: colors.textMuted },
-  value: { fontSize: 15 },
+  row: { flexDirection: 'row', flexWrap: 'wrap', columnGap: space.md, rowGap: 2, alignItems: 'baseline' },
+  key: { width: 190, fontFamily: fonts.semibold, fontSize: 13, color: colors.textMuted },
+  value: { flexGrow: 1, flexBasis: 200, fontSize: 15 },
 });

@@ -114,7 +114,6 @@ export function ResultView({ version, downloads, side, top }: { version: ResultV
           <View style={styles.main}>
             {plot}
             {derived}
-            {points}
           </View>
           <View style={styles.side}>
             {side}
@@ -122,6 +121,7 @@ export function ResultView({ version, downloads, side, top }: { version: ResultV
             {files}
           </View>
         </View>
+        {points}
       </View>
     );
   }

@@ -22,7 +22,7 @@ import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
 
 /** What the caller's role in the result's group lets them do with the shown version. */
-function ResultActions({ detail, version, role }: { detail: ResultDetail; version: ResultVersion; role: GroupRole | undefined }) {
+export function ResultActions({ detail, version, role }: { detail: ResultDetail; version: ResultVersion; role: GroupRole | undefined }) {
   const router = useRouter();
   const { groupId, id: resultId } = detail;
   const publish = usePublishVersion(groupId, resultId);

@@ -157,7 +157,11 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const missing: string[] = [];
   if (!picked) missing.push('choose a file');
   else if (!fileOk) missing.push('fix the problems in the file or the column roles');
-  for (const [k, msg] of Object.entries(allErrors)) missing.push(`${META_FIELD_LABELS[k as keyof typeof META_FIELD_LABELS] ?? k}: ${msg.charAt(0).toLowerCase()}${msg.slice(1)}`);
+  for (const [k, msg] of Object.entries(allErrors)) {
+    const typed = k === 'changeNote' ? changeNote : meta[k as keyof MetaDraft];
+    const why = typed === undefined || String(typed).trim() === '' ? 'required' : `${msg.charAt(0).toLowerCase()}${msg.slice(1)}`;
+    missing.push(`${META_FIELD_LABELS[k as keyof typeof META_FIELD_LABELS] ?? k}: ${why}`);
+  }
 
   const submit = () => {
     if (!ready || !picked?.file || !metaCheck.data) return;
@@ -268,6 +272,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
           {fileStep}
           {mappingStep}
           {metaStep}
+          {saveCard}
         </View>
         <View style={styles.side}>
           {previewCard ?? (
@@ -276,7 +281,6 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
               <Text variant="muted">The plot and the first rows appear here once a file is chosen.</Text>
             </Card>
           )}
-          {saveCard}
         </View>
       </View>
     );

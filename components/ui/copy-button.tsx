@@ -1,5 +1,5 @@
 import { useEffect, useState } from 'react';
-import { Platform } from 'react-native';
+import { Platform, StyleSheet } from 'react-native';
 import { Button } from './button';
 
 async function copyText(text: string): Promise<boolean> {
@@ -27,6 +27,9 @@ export function CopyButton({ text, label = 'Copy', accessibilityLabel }: { text:
       label={state === 'copied' ? 'Copied' : state === 'failed' ? 'Select and copy it' : label}
       accessibilityLabel={state === 'idle' ? accessibilityLabel ?? label : undefined}
       onPress={() => void copyText(text).then((ok) => setState(ok ? 'copied' : 'failed'))}
+      style={styles.button}
     />
   );
 }
+
+const styles = StyleSheet.create({ button: { alignSelf: 'flex-start' } });
