@@ -132,7 +132,7 @@ const styles = StyleSheet.create({
   table: { backgroundColor: colors.surface, borderWidth: 1, borderColor: colors.border, borderRadius: radii.lg, overflow: 'hidden' },
   row: { flexDirection: 'row', alignItems: 'center', paddingHorizontal: space.md, gap: space.sm },
   headRow: { backgroundColor: colors.surfaceAlt, minHeight: 36 },
-  head: { fontFamily: fonts.semibold, fontSize: 12, color: colors.textMuted, textTransform: 'uppercase', letterSpacing: 0.4 },
+  head: { fontFamily: fonts.semibold, fontSize: 13, color: colors.textMuted },
   cell: { minWidth: 0 },
   cellText: { fontSize: 13, lineHeight: 18 },
   titleCell: { gap: 2 },

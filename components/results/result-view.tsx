@@ -99,7 +99,7 @@ export function ResultView({ version, downloads, side, top }: { version: ResultV
   );
   const retraction =
     version.state === 'retracted' ? (
-      <Banner tone="error" message={`This version was retracted${version.retractionReason ? `: ${version.retractionReason}` : '.'} Do not use its numbers.`} />
+      <Banner tone="error" message={`This version was retracted${version.retractionReason ? `: ${version.retractionReason.replace(/[.!]?\s*$/, '.')}` : '.'} Do not use its numbers.`} />
     ) : version.state === 'superseded' ? (
       <Banner tone="warning" message="A newer version of this result has been published; this one is kept for reference." />
     ) : null;

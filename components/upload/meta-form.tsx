@@ -84,8 +84,8 @@ export function MetaForm({ value, onChange, errors, onTouch }: Props) {
       <View style={[styles.pair, wide && styles.pairWide]}>
         <View style={styles.grow}>{field('sqrtS', { inputMode: 'decimal', placeholder: 'e.g. 18' })}</View>
         <View style={styles.grow}>{field('luminosity', { inputMode: 'decimal', placeholder: 'e.g. 140' })}</View>
-        <View style={styles.grow}>{field('cl', { inputMode: 'decimal', hint: '0.95 for 95% CL' })}</View>
       </View>
+      <View style={wide ? styles.half : undefined}>{field('cl', { inputMode: 'decimal', hint: '0.95 for 95% CL' })}</View>
       <View style={styles.group}>
         <Text variant="label">{META_FIELD_LABELS.method}</Text>
         <ChoiceGroup
@@ -115,6 +115,7 @@ const styles = StyleSheet.create({
   pairWide: { flexDirection: 'row' },
   grow: { flex: 1, minWidth: 0 },
   small: { minWidth: 120 },
+  half: { width: '50%', paddingRight: space.sm },
   group: { gap: space.xs },
   error: { color: colors.danger },
 });

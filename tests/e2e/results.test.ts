@@ -141,13 +141,62 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     const permalink = (await linkText.textContent())!;
     expect(permalink).toMatch(new RegExp(`^${e.base}/r/[a-z0-9-]+/v1$`));
     await fullShot(o, vp, 'result-published');
+    const resultUrl = o.url();
+
+    // A second version from the project's own JSON (the download of v1): no mapping step, provenance
+    // from the file, a note on what changed. Publishing it supersedes v1.
+    const jsonHref = await o.getByRole('link', { name: 'Download version 1 as JSON', exact: true }).getAttribute('href');
+    const exported = await o.request.get(jsonHref!);
+    expect(exported.status()).toBe(200);
+    const limitFile = JSON.parse(await exported.text());
+    limitFile.meta.luminosity = 300;
+    await o.getByRole('button', { name: 'Upload a new version', exact: true }).click();
+    await o.getByRole('heading', { name: 'New version', exact: true }).waitFor();
+    const chooser2 = o.waitForEvent('filechooser');
+    await o.getByRole('button', { name: 'Choose a file', exact: true }).click();
+    await (await chooser2).setFiles({ name: 'zprime-v2.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(limitFile)) });
+    await o.getByText('All 6 points are valid.').waitFor();
+    await expect(o.getByRole('heading', { name: 'Map the columns', exact: true }).count()).resolves.toBe(0);
+    await expect(o.getByLabel('Integrated luminosity (fb⁻¹)', { exact: true }).inputValue()).resolves.toBe('300');
+    await o.getByLabel('What changed in this version', { exact: true }).fill('Full dataset: 300 fb⁻¹');
+    await fullShot(o, vp, 'upload-new-version');
+    await o.getByRole('button', { name: 'Save the new version', exact: true }).click();
+    await o.getByRole('button', { name: 'Version 2, draft, shown', exact: true }).waitFor();
+    await o.getByRole('button', { name: 'Publish version 2', exact: true }).click();
+    await o.getByLabel('Permanent link address').waitFor();
+    await o.getByRole('button', { name: 'Version 1, superseded', exact: true }).click();
+    await o.getByText('A newer version of this result has been published', { exact: false }).waitFor();
+
+    // Retracting v2 asks for a reason, which everyone who opens it then reads.
+    await o.getByRole('button', { name: 'Version 2, published', exact: true }).click();
+    await o.getByRole('button', { name: 'Retract version 2', exact: true }).click();
+    await o.getByRole('button', { name: 'Retract version 2', exact: true }).click();
+    await o.getByText('Give a reason', { exact: false }).waitFor();
+    await o.getByLabel('Reason for the retraction', { exact: true }).fill('The luminosity of the new dataset was applied twice');
+    await o.getByRole('button', { name: 'Retract version 2', exact: true }).click();
+    await o.getByText('This version was retracted: The luminosity of the new dataset was applied twice', { exact: false }).first().waitFor();
+    await fullShot(o, vp, 'result-retracted');
+    expect(o.url()).toContain(resultUrl.replace(e.base, '').split('?')[0]!);
 
     // The list shows it (table on wide screens, a card on phones); a search that matches nothing says so.
     await o.goto('/');
-    await o.getByRole('link', { name: `${title}, published, version 1`, exact: true }).waitFor();
+    // The list shows the newest version: v2, retracted.
+    await o.getByRole('link', { name: `${title}, retracted, version 2`, exact: true }).waitFor();
     await fullShot(o, vp, 'results-list');
     await o.getByLabel('Search results', { exact: true }).fill('no-such-analysis');
     await o.getByRole('region', { name: 'No results match these filters' }).waitFor();
+    await o.getByRole('button', { name: 'Clear filters', exact: true }).click();
+    await o.getByRole('link', { name: `${title}, retracted, version 2`, exact: true }).waitFor();
+    // Filters (behind a button on phones) go to the server with the query.
+    if (vp === 'phone') await o.getByRole('button', { name: 'Filters and sort', exact: true }).click();
+    await o.getByRole('button', { name: 'State: Any state', exact: true }).click();
+    await o.getByRole('radiogroup', { name: 'State' }).getByRole('radio', { name: 'Draft', exact: true }).click();
+    await o.getByRole('region', { name: 'No results match these filters' }).waitFor();
+    await fullShot(o, vp, 'results-filtered');
+    await o.getByRole('button', { name: 'State: Draft', exact: true }).click();
+    await o.getByRole('radiogroup', { name: 'State' }).getByRole('radio', { name: 'Retracted', exact: true }).click();
+    await o.getByRole('link', { name: `${title}, retracted, version 2`, exact: true }).waitFor();
+    expect(o.url()).toContain('state=retracted');
 
     // API tokens: created once, shown once, revoked after confirmation.
     await o.goto('/account');
@@ -179,6 +228,10 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     expect(await download.text()).toMatch(/^M_Z'|^"?M_Z'|observed/m);
     await fullShot(v, vp, 'permalink-signed-out');
 
+    // The retracted v2 says why, to anyone.
+    await v.goto(permalink.replace(/v1$/, 'v2'));
+    await v.getByText('This version was retracted: The luminosity of the new dataset was applied twice', { exact: false }).first().waitFor();
+
     // A link that does not exist says so plainly.
     await v.goto('/r/no-such-result/v3');
     await v.getByRole('region', { name: 'Not found or not public' }).waitFor();
@@ -187,9 +240,10 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await v.goto('/sign-in');
     await v.getByRole('link', { name: 'Browse public results', exact: true }).click();
     await v.getByRole('heading', { name: 'Public results', exact: true }).waitFor();
-    await v.getByRole('link', { name: `${title}, published, version 1`, exact: true }).waitFor();
+    const listed = v.getByRole('link', { name: new RegExp(`^${title.replace(/[()+.[\]<>/]/g, '\\$&')}, `) });
+    await listed.waitFor();
     await fullShot(v, vp, 'public-list');
-    await v.getByRole('link', { name: `${title}, published, version 1`, exact: true }).click();
+    await listed.click();
     await v.getByRole('heading', { name: title, exact: true }).waitFor();
 
     expect(pageErrors(o)).toEqual([]);
