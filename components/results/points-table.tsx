@@ -1,7 +1,8 @@
 import { useState } from 'react';
 import { ScrollView, StyleSheet, View } from 'react-native';
 import type { Curve, Theory } from '@/shared/schemas/results';
-import { colors, fonts, space } from '@/themes/tokens';
+import { space } from '@/themes/tokens';
+import { tableStyles as t } from '../ui/table-styles';
 import { Button } from '../ui/button';
 import { Text } from '../ui/text';
 import { formatValue } from './format';
@@ -35,19 +36,19 @@ export function NumberTable({ columns, label, rows: rowLimit = FIRST_ROWS }: { c
   const shown = all ? n : Math.min(n, rowLimit);
   return (
     <View style={styles.wrap}>
-      <ScrollView horizontal contentContainerStyle={styles.scroll}>
-        <View role="table" aria-label={label} style={styles.table}>
-          <View role="row" style={[styles.row, styles.head]}>
+      <ScrollView horizontal contentContainerStyle={t.scroll}>
+        <View role="table" aria-label={label} style={t.table}>
+          <View role="row" style={[t.row, t.head]}>
             {columns.map((c, i) => (
-              <Text key={i} role="columnheader" style={[styles.cell, styles.headText]} numberOfLines={2}>
+              <Text key={i} role="columnheader" style={[t.cell, t.headText, styles.right]} numberOfLines={2}>
                 {c.title}
               </Text>
             ))}
           </View>
           {Array.from({ length: shown }, (_, r) => (
-            <View key={r} role="row" style={[styles.row, r % 2 === 1 && styles.zebra]}>
+            <View key={r} role="row" style={[t.row, r % 2 === 1 && t.zebra]}>
               {columns.map((c, i) => (
-                <Text key={i} role="cell" style={[styles.cell, styles.num]}>
+                <Text key={i} role="cell" style={[t.cell, t.num]}>
                   {formatValue(c.values[r] ?? NaN)}
                 </Text>
               ))}
@@ -88,13 +89,6 @@ export function PointsTable({ curve, theory, xTitle }: { curve: Curve; theory: T
 
 const styles = StyleSheet.create({
   wrap: { gap: space.sm },
-  scroll: { flexGrow: 1 },
-  table: { flexGrow: 1, borderWidth: 1, borderColor: colors.border, borderRadius: 6 },
-  row: { flexDirection: 'row' },
-  head: { backgroundColor: colors.surfaceAlt, borderBottomWidth: 1, borderBottomColor: colors.border },
-  zebra: { backgroundColor: colors.bg },
-  cell: { width: 92, flexGrow: 1, paddingHorizontal: space.sm, paddingVertical: 6, fontSize: 13, lineHeight: 18 },
-  headText: { fontFamily: fonts.semibold, fontSize: 12, color: colors.textMuted, textAlign: 'right' },
-  num: { fontVariant: ['tabular-nums'], textAlign: 'right' },
+  right: { textAlign: 'right' },
   more: { alignSelf: 'flex-start' },
 });

@@ -1,6 +1,7 @@
 import { ScrollView, StyleSheet, View } from 'react-native';
 import { COLUMN_ROLES, ROLE_TITLES, type ColumnMapping, type CsvTable } from '@/shared/curves/csv';
 import { colors, fonts, space } from '@/themes/tokens';
+import { tableStyles as t } from '../ui/table-styles';
 import { Text } from '../ui/text';
 import type { Problem } from './upload-model';
 
@@ -15,15 +16,15 @@ export function PreviewTable({ table, mapping, problems }: { table: CsvTable; ma
   const rowIdx = table.rows.map((_, i) => i).filter((i) => i < ROWS || problemLines.has(table.lines[i]!)).slice(0, ROWS + 6);
   return (
     <View style={styles.wrap}>
-      <ScrollView horizontal contentContainerStyle={styles.scroll}>
-        <View role="table" aria-label="First rows of the file" style={styles.table}>
-          <View role="row" style={[styles.row, styles.head]}>
-            <Text role="columnheader" style={[styles.cell, styles.lineCell, styles.headText]}>
+      <ScrollView horizontal contentContainerStyle={t.scroll}>
+        <View role="table" aria-label="First rows of the file" style={t.table}>
+          <View role="row" style={[t.row, t.head]}>
+            <Text role="columnheader" style={[t.cell, styles.lineCell, t.headText]}>
               Line
             </Text>
             {cols.map((c) => (
-              <View key={c.role} role="columnheader" style={styles.cell}>
-                <Text style={styles.headText} numberOfLines={1}>
+              <View key={c.role} role="columnheader" style={t.cell}>
+                <Text style={t.headText} numberOfLines={1}>
                   {ROLE_TITLES[c.role]}
                 </Text>
                 <Text variant="caption" numberOfLines={1}>
@@ -35,14 +36,14 @@ export function PreviewTable({ table, mapping, problems }: { table: CsvTable; ma
           {rowIdx.map((i) => {
             const line = table.lines[i]!;
             return (
-              <View key={i} role="row" style={[styles.row, problemLines.has(line) && styles.badRow]}>
-                <Text role="cell" style={[styles.cell, styles.lineCell, styles.lineText]}>
+              <View key={i} role="row" style={[t.row, problemLines.has(line) && styles.badRow]}>
+                <Text role="cell" style={[t.cell, styles.lineCell, styles.lineText]}>
                   {line}
                 </Text>
                 {cols.map((c) => {
                   const isBad = bad.has(`${line}|${c.header}`);
                   return (
-                    <Text key={c.role} role="cell" style={[styles.cell, styles.num, isBad && styles.badCell]} aria-invalid={isBad || undefined}>
+                    <Text key={c.role} role="cell" style={[t.cell, t.num, styles.left, isBad && styles.badCell]} aria-invalid={isBad || undefined}>
                       {table.rows[i]![c.index] ?? ''}
                     </Text>
                   );
@@ -62,15 +63,9 @@ export function PreviewTable({ table, mapping, problems }: { table: CsvTable; ma
 
 const styles = StyleSheet.create({
   wrap: { gap: space.xs },
-  scroll: { flexGrow: 1 },
-  table: { flexGrow: 1, borderWidth: 1, borderColor: colors.border, borderRadius: 6 },
-  row: { flexDirection: 'row' },
-  head: { backgroundColor: colors.surfaceAlt, borderBottomWidth: 1, borderBottomColor: colors.border },
   badRow: { backgroundColor: colors.dangerSoft },
-  cell: { width: 96, flexGrow: 1, paddingHorizontal: space.sm, paddingVertical: 5, fontSize: 13, lineHeight: 18 },
   lineCell: { width: 48, flexGrow: 0 },
-  headText: { fontFamily: fonts.semibold, fontSize: 12, color: colors.textMuted },
   lineText: { color: colors.textMuted, fontSize: 12 },
-  num: { fontVariant: ['tabular-nums'] },
+  left: { textAlign: 'left' },
   badCell: { color: colors.danger, fontFamily: fonts.bold },
 });
