@@ -182,6 +182,7 @@ export function fewEventsWarning(model: PreparedModel): string | undefined {
     if ((model.signal[i] as number) >= 0.01 * totalSignal && (model.background[i] as number) < FEW_EVENTS) bins.push(i);
   }
   if (bins.length === 0) return undefined;
-  const shown = bins.slice(0, 5).join(', ') + (bins.length > 5 ? ` and ${bins.length - 5} more` : '');
-  return `Few expected events: bin${bins.length === 1 ? '' : 's'} ${shown} (counting from 0) expect fewer than ${FEW_EVENTS} background events, where the asymptotic formulae may be inaccurate; consider the "toys" method${model.nBins === 1 && model.nPar === 0 ? ' or "exact"' : ''}.`;
+  // Bins are numbered from 1 here, as people count them (field paths elsewhere count from 0).
+  const shown = bins.slice(0, 5).map((i) => i + 1).join(', ') + (bins.length > 5 ? ` and ${bins.length - 5} more` : '');
+  return `Few expected events: bin${bins.length === 1 ? '' : 's'} ${shown} expect${bins.length === 1 ? 's' : ''} fewer than ${FEW_EVENTS} background events, where the asymptotic formulae may be inaccurate; consider pseudo-experiments (method "toys")${model.nBins === 1 && model.nPar === 0 ? ' or the exact method' : ''}.`;
 }

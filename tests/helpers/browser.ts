@@ -6,6 +6,8 @@ import { chromium, type Browser, type BrowserContext, type Page } from 'playwrig
 import { createApp } from '@/server/app';
 import { closeContext, createContext, type Ctx } from '@/server/context';
 import { loadEnv } from '@/server/env';
+import { startQueue } from '@/server/jobs/queue';
+import { startScanWorkers } from '@/server/jobs/scan-worker';
 import { createTestDatabase } from './db';
 
 export const SCREENSHOT_DIR = path.resolve(__dirname, '../../test-results/screenshots');
@@ -18,7 +20,7 @@ export type E2E = { base: string; ctx: Ctx; browser: Browser; close: () => Promi
  * The real server (API + exported web app from dist/) on a free port with a fresh database, and
  * Debian's Chromium driven by playwright-core. `npm test` builds dist/ before running these.
  */
-export async function startE2E(): Promise<E2E> {
+export async function startE2E(opts: { jobs?: boolean } = {}): Promise<E2E> {
   if (process.env.CHROMIUM_PROBLEM) throw new Error(process.env.CHROMIUM_PROBLEM);
   const db = await createTestDatabase();
   // Port first, so PUBLIC_URL (trusted origin, links in mail) is the real address.
@@ -30,10 +32,17 @@ export async function startE2E(): Promise<E2E> {
   await new Promise((r) => probe.close(r));
   const base = `http://127.0.0.1:${port}`;
   const ctx = createContext(loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'development', PUBLIC_URL: base, PORT: String(port), AUTH_RATE_LIMIT: '1000' }));
+  // Scans need the job queue and a worker, as `npm start` runs them.
+  let stopWorkers = () => {};
+  if (opts.jobs) {
+    ctx.jobs = await startQueue(ctx.env);
+    stopWorkers = await startScanWorkers(ctx, ctx.jobs, 1);
+  }
   const server = await new Promise<Server>((resolve) => {
     const s = createApp(ctx).listen(port, '127.0.0.1', () => resolve(s));
   });
   const stopServer = async () => {
+    stopWorkers();
     await new Promise((r) => server.close(r));
     await closeContext(ctx);
     await db.drop();
@@ -85,4 +94,23 @@ const uncaught = new WeakMap<Page, string[]>();
 
 export async function shot(page: Page, viewport: ViewportName, name: string) {
   await page.screenshot({ path: path.join(SCREENSHOT_DIR, `${viewport}-${name}.png`), fullPage: true });
+}
+
+/**
+ * A screenshot of the whole screen: the app scrolls inside its own frame, so the window is made as
+ * tall as the content for the picture, then put back.
+ */
+export async function fullShot(page: Page, vp: ViewportName, name: string) {
+  const extra = await page.evaluate(() => {
+    let el: HTMLElement | null = document.querySelector('[role="main"]');
+    while (el && !/(auto|scroll)/.test(getComputedStyle(el).overflowY)) el = el.parentElement;
+    return el ? el.scrollHeight - el.clientHeight : 0;
+  });
+  const size = VIEWPORTS[vp];
+  if (extra > 0) {
+    await page.setViewportSize({ width: size.width, height: Math.min(size.height + extra, 8000) });
+    await page.waitForTimeout(200);
+  }
+  await shot(page, vp, name);
+  if (extra > 0) await page.setViewportSize(size);
 }

@@ -1,0 +1,2 @@
+import { ComputeScreen } from '@/components/screens/compute-screen';
+export default ComputeScreen;

@@ -1,0 +1,2 @@
+import { ScanScreen } from '@/components/screens/scan-screen';
+export default ScanScreen;

@@ -1,0 +1,190 @@
+import { Link, useLocalSearchParams } from 'expo-router';
+import { useState } from 'react';
+import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
+import { EXPECTED_KEYS } from '@/shared/schemas/counting-model';
+import type { ScanDetail, ScanPointSummary } from '@/shared/schemas/scan-views';
+import { api } from '@/hooks/api';
+import { useCurrentGroup } from '@/hooks/use-current-group';
+import { useIsWide } from '@/hooks/use-layout';
+import { useCancelScan, useScan, useScanPoint } from '@/hooks/use-scans';
+import { colors, fonts, radii, space } from '@/themes/tokens';
+import { ClsPlot } from '../compute/cls-plot';
+import { fmt, LimitSummary } from '../compute/limit-summary';
+import { PullsTable } from '../compute/pulls-table';
+import { QuickPlot } from '../plot/quick-plot';
+import { Anchor } from '../ui/anchor';
+import { Banner } from '../ui/banner';
+import { Button } from '../ui/button';
+import { Card } from '../ui/card';
+import { errorMessage } from '../ui/form';
+import { Loading } from '../ui/loading';
+import { Screen } from '../ui/screen';
+import { Text } from '../ui/text';
+
+const seconds = (s: number | null) => (s === null ? '—' : s < 90 ? `${Math.round(s)} s` : `${Math.floor(s / 60)} min ${Math.round(s % 60)} s`);
+
+function Progress({ scan }: { scan: ScanDetail }) {
+  const finished = scan.donePoints + scan.failedPoints;
+  const pct = scan.totalPoints ? Math.round((100 * finished) / scan.totalPoints) : 0;
+  return (
+    <View style={styles.progressBox}>
+      <View role="progressbar" aria-label="Points computed" aria-valuemin={0} aria-valuemax={scan.totalPoints} aria-valuenow={finished} aria-valuetext={`${finished} of ${scan.totalPoints} points, ${pct}%`} style={styles.track}>
+        <View style={[styles.fill, { width: `${pct}%` }]} />
+      </View>
+      <Text>
+        {finished} of {scan.totalPoints} points ({pct}%){scan.failedPoints ? ` · ${scan.failedPoints} failed` : ''} · elapsed {seconds(scan.elapsedSeconds)}
+        {scan.state === 'running' ? ` · about ${seconds(scan.etaSeconds)} left` : ''}
+      </Text>
+    </View>
+  );
+}
+
+function Diagnostics({ groupId, scanId, index, unit }: { groupId: string; scanId: string; index: number; unit: string }) {
+  const p = useScanPoint(groupId, scanId, index);
+  if (p.isPending) return <Loading label="Loading diagnostics…" />;
+  if (p.error) return <Banner tone="error" message={errorMessage(p.error)!} />;
+  const d = p.data!;
+  return (
+    <Card>
+      <Text variant="title">Grid point x = {fmt(d.x, 6)}</Text>
+      {d.error ? <Banner tone="error" message={`${d.error.field}: ${d.error.reason}`} /> : null}
+      {d.result ? (
+        <>
+          <LimitSummary observed={d.result.observed} expected={d.result.expected} unit="" on="μ" muHat={d.result.muHat} observedError={d.result.observedError} />
+          {d.result.sigmaB ? <Text variant="caption">σ×B: observed {fmt(d.result.sigmaB.observed)} {unit}, expected {fmt(d.result.sigmaB.expected['0'])} {unit}</Text> : null}
+          {d.result.warnings.map((w) => (
+            <Banner key={w} tone="warning" message={w} />
+          ))}
+          {d.result.cls ? <ClsPlot samples={d.result.cls} cl={d.result.cl} limit={d.result.observed} /> : null}
+          {d.result.fit ? (
+            <>
+              <Text variant="label">
+                Fit: μ̂ = {fmt(d.result.fit.muHat)} ± {fmt(d.result.fit.muError, 2)}
+                {d.result.fit.converged ? '' : ' (did not converge)'}
+              </Text>
+              <PullsTable pulls={d.result.fit.pulls} />
+            </>
+          ) : null}
+        </>
+      ) : null}
+      <Text variant="caption">
+        Attempts: {d.attempts}
+        {d.computeMs !== null ? ` · computed in ${fmt(d.computeMs, 3)} ms` : ''}
+      </Text>
+    </Card>
+  );
+}
+
+function PointsTable({ points, onPick, picked, xsec }: { points: ScanPointSummary[]; onPick: (i: number) => void; picked: number | null; xsec: boolean }) {
+  const cols = ['x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${k}σ`))];
+  return (
+    <ScrollView horizontal>
+      <View role="table" aria-label="Grid points">
+        <View role="row" style={[styles.tr, styles.th]}>
+          {cols.map((c) => (
+            <Text key={c} variant="label" style={styles.td}>
+              {c}
+            </Text>
+          ))}
+        </View>
+        {points.map((p) => {
+          const v = xsec && p.sigmaB ? p.sigmaB : p.observed !== null ? { observed: p.observed, expected: p.expected } : null;
+          return (
+            <Pressable key={p.index} role="row" aria-label={`Show diagnostics of x = ${p.x}`} onPress={() => onPick(p.index)} style={[styles.tr, picked === p.index && styles.picked]}>
+              <Text style={styles.td}>{fmt(p.x, 6)}</Text>
+              <Text style={[styles.td, p.state === 'failed' && styles.failed]}>{p.state}</Text>
+              <Text style={styles.td}>{fmt(v?.observed)}</Text>
+              {EXPECTED_KEYS.map((k) => (
+                <Text key={k} style={styles.td}>
+                  {fmt(v?.expected?.[k])}
+                </Text>
+              ))}
+            </Pressable>
+          );
+        })}
+      </View>
+    </ScrollView>
+  );
+}
+
+/** A scan's live progress, its limits filling in, and the diagnostics of any point. */
+export function ScanScreen() {
+  const { groupId, scanId } = useLocalSearchParams<{ groupId: string; scanId: string }>();
+  const scan = useScan(groupId!, scanId!);
+  const cancel = useCancelScan(groupId!, scanId!);
+  const { can } = useCurrentGroup();
+  const wide = useIsWide();
+  const [picked, setPicked] = useState<number | null>(null);
+  if (scan.isPending) return <Screen title="Scan"><Loading label="Loading the scan…" /></Screen>;
+  if (scan.error) return <Screen title="Scan"><Banner tone="error" message={errorMessage(scan.error)!} /></Screen>;
+  const s = scan.data!;
+  const xsec = s.meta.quantity === 'xsec';
+  const unit = xsec ? s.meta.quantityUnit : '';
+  const done = s.points.filter((p) => p.state === 'done' && (xsec ? p.sigmaB : p.observed !== null));
+  const curve = {
+    x: done.map((p) => p.x),
+    observed: done.map((p) => (xsec ? p.sigmaB!.observed : p.observed!)),
+    expected: Object.fromEntries(EXPECTED_KEYS.map((k) => [k, done.map((p) => (xsec ? p.sigmaB!.expected[k] : p.expected![k]))])),
+  };
+  const running = s.state === 'queued' || s.state === 'running';
+  const xLabel = `${s.meta.parameterName}${s.meta.parameterUnit ? ` [${s.meta.parameterUnit}]` : ''}`;
+  const yLabel = xsec ? `σ×B [${unit}]` : 'μ';
+  return (
+    <Screen
+      title={s.title}
+      subtitle={`Scan · ${s.state} · ${s.options.method === 'toys' ? `pseudo-experiments (${s.options.toys})` : 'asymptotic CLs'} · ${Math.round(s.options.cl * 100)}% CL`}
+      actions={running && can('result.write') ? <Button variant="danger" label="Cancel scan" loading={cancel.isPending} onPress={() => cancel.mutate()} /> : null}
+    >
+      <Card>
+        <Progress scan={s} />
+        {s.state === 'cancelled' ? <Banner tone="warning" message="This scan was cancelled; the points that finished are kept." /> : null}
+        {s.error ? <Banner tone="error" message={s.error} /> : null}
+        {s.resultId ? (
+          <Banner tone="success" message={`The limits are stored as draft version ${s.resultVersion} of a result.`} />
+        ) : null}
+        <View style={styles.links}>
+          {s.resultId ? (
+            <Link href={`/groups/${groupId}/results/${s.resultId}?v=${s.resultVersion}`} style={styles.link}>
+              Open the draft result
+            </Link>
+          ) : null}
+          <Anchor href={api.scans.inputsUrl(groupId!, scanId!)}>Download the inputs (JSON)</Anchor>
+        </View>
+        {cancel.error ? <Banner tone="error" message={errorMessage(cancel.error)!} /> : null}
+      </Card>
+      <View style={wide ? styles.row : styles.col}>
+        <View style={[styles.col, wide && styles.main]}>
+          <Card>
+            <Text variant="title">Limits so far</Text>
+            {curve.x.length >= 2 ? <QuickPlot curve={curve} xLabel={xLabel} yLabel={yLabel} /> : <Text variant="muted">The plot appears when two points have finished.</Text>}
+          </Card>
+          <Card>
+            <Text variant="title">Grid points</Text>
+            <Text variant="caption">Choose a point to see its CLs curve, fit and warnings. {xsec ? `Limits on σ×B in ${unit}.` : 'Limits on μ.'}</Text>
+            <PointsTable points={s.points} picked={picked} onPick={setPicked} xsec={xsec} />
+          </Card>
+        </View>
+        <View style={[styles.col, wide && styles.side]}>
+          {picked !== null ? <Diagnostics groupId={groupId!} scanId={scanId!} index={picked} unit={unit} /> : <Banner tone="info" message="Choose a grid point to see its diagnostics." />}
+        </View>
+      </View>
+    </Screen>
+  );
+}
+
+const styles = StyleSheet.create({
+  progressBox: { gap: space.sm },
+  track: { height: 14, borderRadius: radii.pill, backgroundColor: colors.surfaceAlt, overflow: 'hidden' },
+  fill: { height: 14, backgroundColor: colors.primary },
+  links: { flexDirection: 'row', flexWrap: 'wrap', gap: space.lg },
+  link: { color: colors.primary, fontFamily: fonts.semibold },
+  row: { flexDirection: 'row', gap: space.lg, alignItems: 'flex-start' },
+  col: { gap: space.lg },
+  main: { flex: 3 },
+  side: { flex: 2 },
+  tr: { flexDirection: 'row', borderBottomWidth: 1, borderBottomColor: colors.border, minHeight: 36, alignItems: 'center' },
+  th: { borderBottomColor: colors.borderStrong },
+  td: { width: 86, paddingHorizontal: space.xs, fontSize: 13 },
+  picked: { backgroundColor: colors.primarySoft },
+  failed: { color: colors.danger },
+});
