@@ -155,8 +155,8 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const ready = fileOk && !!metaCheck.data && Object.keys(noteCheck.errors).length === 0;
 
   const missing: string[] = [];
-  if (!picked) missing.push('choose a file');
-  else if (!fileOk) missing.push('fix the problems in the file or the column roles');
+  if (!picked) missing.push('Choose a file');
+  else if (!fileOk) missing.push('Fix the problems in the file or the column roles');
   for (const [k, msg] of Object.entries(allErrors)) {
     const typed = k === 'changeNote' ? changeNote : meta[k as keyof MetaDraft];
     const why = typed === undefined || String(typed).trim() === '' ? 'required' : `${msg.charAt(0).toLowerCase()}${msg.slice(1)}`;

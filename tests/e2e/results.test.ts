@@ -77,9 +77,14 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await o.getByRole('heading', { name: 'Upload a result', exact: true }).waitFor();
     await fullShot(o, vp, 'upload-start');
 
-    // The picker is expo-document-picker's hidden file input on the web.
-    const chooser = o.waitForEvent('filechooser');
+    // The picker is expo-document-picker's hidden file input on the web. Too large a file is
+    // refused before it is read, with the limit named.
+    const tooBig = o.waitForEvent('filechooser');
     await o.getByRole('button', { name: 'Choose a file', exact: true }).click();
+    await (await tooBig).setFiles({ name: 'everything.csv', mimeType: 'text/csv', buffer: Buffer.alloc(6 * 1024 * 1024, 'a') });
+    await o.getByText('The file: is 6.0 MB; the limit is 5 MB', { exact: false }).waitFor();
+    const chooser = o.waitForEvent('filechooser');
+    await o.getByRole('button', { name: 'Choose another file', exact: true }).click();
     await (await chooser).setFiles({ name: 'zprime-dijet-limits.csv', mimeType: 'text/csv', buffer: Buffer.from(CSV, 'utf8') });
     await o.getByText('zprime-dijet-limits.csv').waitFor();
 
