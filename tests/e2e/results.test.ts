@@ -1,5 +1,5 @@
 import type { Page } from 'playwright-core';
-import { newPage, pageErrors, shot, startE2E, VIEWPORTS, type E2E, type ViewportName } from '../helpers/browser';
+import { fullShot, newPage, pageErrors, startE2E, VIEWPORTS, type E2E, type ViewportName } from '../helpers/browser';
 
 jest.setTimeout(240_000);
 
@@ -33,25 +33,6 @@ async function signUp(page: Page, name: string, email: string) {
   await page.getByLabel('Password').fill(PASSWORD);
   await page.getByRole('button', { name: 'Create account', exact: true }).click();
   await page.getByRole('region', { name: 'You are not in a group yet' }).waitFor();
-}
-
-/**
- * A screenshot of the whole screen: the app scrolls inside its own frame, so the window is made as
- * tall as the content for the picture, then put back.
- */
-async function fullShot(page: Page, vp: ViewportName, name: string) {
-  const extra = await page.evaluate(() => {
-    let el: HTMLElement | null = document.querySelector('[role="main"]');
-    while (el && !/(auto|scroll)/.test(getComputedStyle(el).overflowY)) el = el.parentElement;
-    return el ? el.scrollHeight - el.clientHeight : 0;
-  });
-  const size = VIEWPORTS[vp];
-  if (extra > 0) {
-    await page.setViewportSize({ width: size.width, height: Math.min(size.height + extra, 8000) });
-    await page.waitForTimeout(200);
-  }
-  await shot(page, vp, name);
-  if (extra > 0) await page.setViewportSize(size);
 }
 
 /** The role picker of one file column (its name ends with the current role). */
