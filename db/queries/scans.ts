@@ -1,5 +1,6 @@
 import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import type { ExpectedLimits } from '../../shared/schemas/counting-model';
+import type { ScanOptions } from '../../shared/schemas/scans';
 import type { Executor } from '../../server/db';
 import { scanPoints, scans } from '../schema/scans';
 
@@ -92,39 +93,54 @@ export async function listPointInputs(db: Executor, scanId: string) {
     .orderBy(asc(scanPoints.index));
 }
 
-export async function markScanRunning(db: Executor, scanId: string) {
-  await db
-    .update(scans)
-    .set({ state: 'running', startedAt: sql`coalesce(${scans.startedAt}, now())` })
-    .where(and(eq(scans.id, scanId), eq(scans.state, 'queued')));
-}
-
-export async function countAttempt(db: Executor, scanId: string, index: number) {
-  await db
-    .update(scanPoints)
-    .set({ attempts: sql`${scanPoints.attempts} + 1` })
-    .where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.index, index)));
+/**
+ * Starts work on one point in a single statement: the scan turns running (first point only), the
+ * attempt is counted, and the point's input comes back with the scan's options. Nothing comes back
+ * (and nothing changes) when the point already finished or the scan is over.
+ */
+export async function claimPoint(db: Executor, scanId: string, index: number) {
+  const r = await db.execute<{ x: number; sigma_nominal: number | null; model: Record<string, unknown>; options: ScanOptions }>(sql`
+    with s as (select state, options from ${scans} where id = ${scanId}),
+    started as (
+      update ${scans} set state = 'running', started_at = coalesce(started_at, now())
+      where id = ${scanId} and state = 'queued'
+    ),
+    p as (
+      update ${scanPoints} set attempts = attempts + 1
+      where scan_id = ${scanId} and index = ${index} and state = 'queued'
+        and (select state from s) in ('queued', 'running')
+      returning x, sigma_nominal, model
+    )
+    select p.x, p.sigma_nominal, p.model, s.options from p cross join s`);
+  const row = r.rows[0];
+  return row ? { x: row.x, sigmaNominal: row.sigma_nominal, model: row.model, options: row.options } : undefined;
 }
 
 /**
- * Stores a point's outcome once: only a point still queued changes, so a task that runs twice
- * (a retry after a worker died) never counts or overwrites a finished point. Returns whether it did.
+ * Stores a point's outcome once, in one statement: only a point still queued changes (a task that
+ * runs twice, a retry after a worker died, never counts or overwrites a finished point), and the
+ * scan's counters move with it. Returns the scan's counts after the change, or undefined when
+ * nothing changed.
  */
 export async function finishPoint(
   db: Executor,
   p: { scanId: string; index: number; state: 'done' | 'failed'; result?: Record<string, unknown>; error?: { field: string; reason: string }; computeMs: number },
-): Promise<boolean> {
-  const rows = await db
-    .update(scanPoints)
-    .set({ state: p.state, result: p.result ?? null, error: p.error ?? null, computeMs: p.computeMs, finishedAt: new Date() })
-    .where(and(eq(scanPoints.scanId, p.scanId), eq(scanPoints.index, p.index), eq(scanPoints.state, 'queued')))
-    .returning({ index: scanPoints.index });
-  if (rows.length === 0) return false;
-  await db
-    .update(scans)
-    .set(p.state === 'done' ? { donePoints: sql`${scans.donePoints} + 1` } : { failedPoints: sql`${scans.failedPoints} + 1` })
-    .where(eq(scans.id, p.scanId));
-  return true;
+): Promise<{ donePoints: number; failedPoints: number; totalPoints: number; state: string } | undefined> {
+  const r = await db.execute<{ done_points: number; failed_points: number; total_points: number; state: string }>(sql`
+    with p as (
+      update ${scanPoints}
+      set state = ${p.state}, result = ${p.result ? JSON.stringify(p.result) : null}::jsonb, error = ${p.error ? JSON.stringify(p.error) : null}::jsonb,
+          compute_ms = ${p.computeMs}, finished_at = now()
+      where scan_id = ${p.scanId} and index = ${p.index} and state = 'queued'
+      returning state
+    )
+    update ${scans}
+    set done_points = done_points + (select count(*) from p where state = 'done'),
+        failed_points = failed_points + (select count(*) from p where state = 'failed')
+    where id = ${p.scanId} and exists (select 1 from p)
+    returning done_points, failed_points, total_points, state`);
+  const row = r.rows[0];
+  return row ? { donePoints: row.done_points, failedPoints: row.failed_points, totalPoints: row.total_points, state: row.state } : undefined;
 }
 
 /**

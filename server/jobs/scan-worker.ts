@@ -11,14 +11,9 @@ import { SCAN_POINT_QUEUE, type ScanPointTask } from './queue';
  * that already finished is skipped, and storing the outcome only succeeds for a queued point.
  */
 export async function runScanPoint(ctx: Ctx, task: ScanPointTask): Promise<void> {
-  const scan = await q.getScanById(ctx.db, task.scanId);
-  if (!scan || (scan.state !== 'queued' && scan.state !== 'running')) return;
-  const point = await q.getPoint(ctx.db, task.scanId, task.index);
-  if (!point || point.state !== 'queued') return;
-  await q.markScanRunning(ctx.db, scan.id);
-  await q.countAttempt(ctx.db, scan.id, task.index);
-
-  const o = scan.options;
+  const point = await q.claimPoint(ctx.db, task.scanId, task.index);
+  if (!point) return;
+  const o = point.options;
   const started = performance.now();
   // Each point has its own seed (scan seed + index): points are independent and reproducible.
   const [r] = computeScan(
@@ -28,7 +23,7 @@ export async function runScanPoint(ctx: Ctx, task: ScanPointTask): Promise<void>
   let outcome: Parameters<typeof q.finishPoint>[1];
   if (!r || 'error' in r) {
     const error = r && 'error' in r ? r.error : { field: 'model', reason: 'could not be computed' };
-    outcome = { scanId: scan.id, index: task.index, state: 'failed', error, computeMs: performance.now() - started };
+    outcome = { scanId: task.scanId, index: task.index, state: 'failed', error, computeMs: performance.now() - started };
   } else {
     let fit: ReturnType<typeof fitNuisanceParameters> | null = null;
     try {
@@ -37,12 +32,11 @@ export async function runScanPoint(ctx: Ctx, task: ScanPointTask): Promise<void>
       fit = null; // diagnostics only: the limit stands without them
     }
     const { x: _x, ...limit } = r;
-    outcome = { scanId: scan.id, index: task.index, state: 'done', result: { ...limit, fit }, computeMs: performance.now() - started };
+    outcome = { scanId: task.scanId, index: task.index, state: 'done', result: { ...limit, fit }, computeMs: performance.now() - started };
   }
-  if (!(await q.finishPoint(ctx.db, outcome))) return;
-  const after = await q.getScanById(ctx.db, scan.id);
+  const after = await q.finishPoint(ctx.db, outcome);
   if (after && after.state === 'running' && after.donePoints + after.failedPoints === after.totalPoints) {
-    await saveDraft(ctx, scan.id, 'done');
+    await saveDraft(ctx, task.scanId, 'done');
   }
 }
 

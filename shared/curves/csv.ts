@@ -109,8 +109,6 @@ function norm(h: string): string {
     .replace(/[\s_.:()[\]]+/g, '');
 }
 
-const DOWN = /(-|minus|down|dn|lo(w|wer)?)/;
-const UP = /(\+|plus|up|hi(gh|gher)?|upper)/;
 
 /** Guesses the role of each column from its header; the user confirms or changes it. */
 export function detectRoles(headers: string[]): ColumnMapping {
@@ -129,8 +127,12 @@ export function detectRoles(headers: string[]): ColumnMapping {
     }
     const sigma = /(2sigma|2s$|2sd|95)/.test(h) ? 2 : /(1sigma|1s$|1sd|68)/.test(h) ? 1 : 0;
     if (/^(theo|th$|thxs|prediction|xsecth|sigmath|nominal)/.test(h) || h.includes('theory')) {
-      if (DOWN.test(h.replace(/^theo(ry)?/, ''))) take('theoryLower', i);
-      else if (UP.test(h.replace(/^theo(ry)?/, ''))) take('theoryUpper', i);
+      // Band edges are whole words ("theory low", "theory_up", "theory -1σ"), so that words such
+      // as "NLO" or "top-philic" are not taken for an edge.
+      const words = raw.toLowerCase().split(/[\s_.:()[\],;/]+/).filter(Boolean);
+      const edge = (set: string[], sign: string) => words.some((w) => set.includes(w) || (w.length > 1 && w.startsWith(sign) && /\d/.test(w)));
+      if (edge(['down', 'dn', 'lo', 'low', 'lower', 'minus', 'min'], '-')) take('theoryLower', i);
+      else if (edge(['up', 'hi', 'high', 'upper', 'plus', 'max'], '+')) take('theoryUpper', i);
       else take('theory', i);
     } else if (h.includes('obs')) take('observed', i);
     else if (h.includes('exp') || h.includes('median') || sigma > 0) {

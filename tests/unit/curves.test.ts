@@ -23,6 +23,11 @@ describe('column auto-detection from header names', () => {
       x: 0, observed: 1, expected: 2, expectedMinus1: 3, expectedPlus1: 4, expectedMinus2: 5, expectedPlus2: 6,
     });
   });
+  test('theory columns: NLO and hyphenated model names are not band edges; whole-word edges are', () => {
+    expect(detectRoles(['mass', 'obs', 'theory xsec (NLO) [fb]', 'theory low', 'theory_up'])).toEqual({ x: 0, observed: 1, theory: 2, theoryLower: 3, theoryUpper: 4 });
+    expect(detectRoles(['mass', 'obs', 'sigma_th NLO+NLL'])).toEqual({ x: 0, observed: 1, theory: 2 });
+    expect(detectRoles(['mass', 'obs', 'Theory (top-philic)', 'theory -1σ', 'theory +1σ'])).toEqual({ x: 0, observed: 1, theory: 2, theoryLower: 3, theoryUpper: 4 });
+  });
   test('short band names exp_m1 / exp_p1 / exp_m2 / exp_p2 are recognised', () => {
     expect(detectRoles(['m', 'obs', 'exp', 'exp_m1', 'exp_p1', 'exp_m2', 'exp_p2'])).toEqual({
       x: 0, observed: 1, expected: 2, expectedMinus1: 3, expectedPlus1: 4, expectedMinus2: 5, expectedPlus2: 6,
