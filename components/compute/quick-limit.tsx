@@ -12,6 +12,7 @@ import { ChoiceGroup } from '../ui/choice-group';
 import { Loading } from '../ui/loading';
 import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
+import { AsimovChoice } from './asimov-choice';
 import { ClsPlot } from './cls-plot';
 import { LimitSummary } from './limit-summary';
 import { ModelEditor } from './model-editor';
@@ -101,20 +102,7 @@ export function QuickLimit() {
           </>
         ) : null}
       </View>
-      {method !== 'exact' ? (
-        <>
-          <Text variant="label">Asimov dataset for the expected limits</Text>
-          <ChoiceGroup<'profiled' | 'nominal'>
-            label="Asimov dataset"
-            value={asimov}
-            onChange={setAsimov}
-            choices={[
-              { value: 'profiled', label: 'Nuisance parameters fitted to the data' },
-              { value: 'nominal', label: 'Nominal nuisance parameters' },
-            ]}
-          />
-        </>
-      ) : null}
+      {method !== 'exact' ? <AsimovChoice value={asimov} onChange={setAsimov} /> : null}
     </Card>
   );
 

@@ -19,6 +19,7 @@ import { TextField } from '../ui/text-field';
 import { MetaForm } from '../upload/meta-form';
 import { ProblemList } from '../upload/problem-list';
 import { EMPTY_META, MAX_UPLOAD_BYTES, MAX_UPLOAD_LABEL, metaInput, PICKER_TYPES, type MetaDraft, type Problem } from '../upload/upload-model';
+import { AsimovChoice } from './asimov-choice';
 import { readNumber } from './model-draft';
 
 type Picked = { name: string; file: Blob; points: ScanInputPoint[] } | { name: string; problems: Problem[] };
@@ -124,15 +125,7 @@ export function ScanStart({ groupId }: { groupId: string }) {
             { value: 'toys', label: 'Pseudo-experiments' },
           ]}
         />
-        <ChoiceGroup<'profiled' | 'nominal'>
-          label="Asimov dataset"
-          value={asimov}
-          onChange={setAsimov}
-          choices={[
-            { value: 'profiled', label: 'Nuisance parameters fitted to the data' },
-            { value: 'nominal', label: 'Nominal nuisance parameters' },
-          ]}
-        />
+        <AsimovChoice value={asimov} onChange={setAsimov} />
         <View style={styles.row}>
           {method === 'toys' ? (
             <View style={styles.grow}>
