@@ -4,3 +4,5 @@ export * from './mail';
 export * from './results';
 export * from './tokens';
 export * from './scans';
+export * from './figures';
+export * from './billing';

@@ -1,0 +1,145 @@
+/**
+ * Figures: the stored spec (what to draw and how), shared by the server (validation, rendering)
+ * and the app (composer). Labels are text with TeX math between dollar signs, e.g.
+ * "$m_{V'}$ [TeV]" or "$\sigma \times B$ [fb]"; the server typesets them (plain text in the theme's
+ * font, math with MathJax) so every output shows the same glyphs.
+ */
+import { z } from 'zod';
+
+export const FIGURE_THEMES = ['publication', 'slides', 'outreach'] as const;
+export type FigureTheme = (typeof FIGURE_THEMES)[number];
+
+/**
+ * Size presets in centimetres. Journal column widths 8.6 cm and 17.8 cm follow the Physical Review
+ * style guide (from memory); slides are 16:9.
+ */
+export const SIZE_PRESETS = {
+  'one-column': { widthCm: 8.6, heightCm: 6.45, label: 'Journal, one column (8.6 cm)' },
+  'two-column': { widthCm: 17.8, heightCm: 9.5, label: 'Journal, two columns (17.8 cm)' },
+  slide: { widthCm: 25.4, heightCm: 14.2875, label: 'Slide, 16:9 (25.4 cm)' },
+  web: { widthCm: 20, heightCm: 13, label: 'Web page (20 cm)' },
+} as const;
+export type SizePreset = keyof typeof SIZE_PRESETS | 'custom';
+export const SIZE_PRESET_IDS = [...(Object.keys(SIZE_PRESETS) as (keyof typeof SIZE_PRESETS)[]), 'custom'] as const;
+
+/** Limits that keep renders sane (absurd sizes and DPIs are refused). */
+export const FIGURE_LIMITS = { minCm: 3, maxCm: 60, maxLayers: 12, maxAnnotations: 10, maxLabel: 200, minDpi: 36, maxDpi: 1200 } as const;
+
+const label = z.string().max(FIGURE_LIMITS.maxLabel, `must be at most ${FIGURE_LIMITS.maxLabel} characters`);
+const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
+
+export const axisSchema = z.object({
+  scale: z.enum(['linear', 'log'], { error: 'must be "linear" or "log"' }),
+  /** Fixed range ends; null = automatic from the data. */
+  min: finite.nullable().default(null),
+  max: finite.nullable().default(null),
+  /** Axis title; empty = automatic from the results' parameter or limited quantity. */
+  label: label.default(''),
+});
+export type AxisSpec = z.output<typeof axisSchema>;
+
+/** Which parts of a result a layer shows. */
+export const layerPartsSchema = z.object({
+  observed: z.boolean().default(true),
+  expected: z.boolean().default(true),
+  band1: z.boolean().default(true),
+  band2: z.boolean().default(true),
+  theory: z.boolean().default(true),
+  theoryBand: z.boolean().default(true),
+  crossings: z.boolean().default(false),
+});
+export type LayerParts = z.output<typeof layerPartsSchema>;
+
+export const layerSchema = z.object({
+  resultId: z.uuid('must be a result id'),
+  /** The pinned result version: the figure draws exactly this one. */
+  version: z.number().int('must be a whole number').positive('must be positive'),
+  /** Legend entry; empty = the result's title. */
+  label: label.default(''),
+  show: layerPartsSchema.default({ observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false }),
+  /** Palette index override; null = the hue the group gave this result. */
+  hue: z.number().int().min(0).max(11).nullable().default(null),
+});
+export type LayerSpec = z.output<typeof layerSchema>;
+
+export const LEGEND_POSITIONS = ['auto', 'top-left', 'top-right', 'bottom-left', 'bottom-right', 'none'] as const;
+
+export const annotationSchema = z.object({
+  text: label.min(1, 'must not be empty'),
+  /** Position in axes fractions (0 = left/bottom, 1 = right/top). */
+  x: z.number().min(0).max(1).default(0.05),
+  y: z.number().min(0).max(1).default(0.95),
+});
+
+/** A group's house style, applied on top of the theme. */
+export const houseStyleSchema = z.object({
+  font: z.enum(['sans', 'serif']).optional(),
+  /** Up to 12 colours (#rrggbb) replacing the theme's layer palette, in order. */
+  palette: z.array(z.string().regex(/^#[0-9a-fA-F]{6}$/, 'must be a colour like #1b3f8b')).min(2).max(12).optional(),
+  /** Multiplies every line width of the theme. */
+  lineScale: z.number().min(0.5).max(3).optional(),
+  /** Multiplies every type size of the theme. */
+  typeScale: z.number().min(0.6).max(2).optional(),
+});
+export type HouseStyle = z.output<typeof houseStyleSchema>;
+
+export const figureSpecSchema = z
+  .object({
+    title: z.string().trim().min(1, 'must not be empty').max(200, 'must be at most 200 characters'),
+    theme: z.enum(FIGURE_THEMES, { error: `must be one of ${FIGURE_THEMES.join(', ')}` }),
+    size: z.object({
+      preset: z.enum(SIZE_PRESET_IDS, { error: `must be one of ${SIZE_PRESET_IDS.join(', ')}` }),
+      widthCm: z.number().min(FIGURE_LIMITS.minCm).max(FIGURE_LIMITS.maxCm).optional(),
+      heightCm: z.number().min(FIGURE_LIMITS.minCm).max(FIGURE_LIMITS.maxCm).optional(),
+    }),
+    x: axisSchema.default({ scale: 'linear', min: null, max: null, label: '' }),
+    y: axisSchema.default({ scale: 'log', min: null, max: null, label: '' }),
+    layers: z.array(layerSchema).max(FIGURE_LIMITS.maxLayers, `at most ${FIGURE_LIMITS.maxLayers} layers`),
+    /** Index of the layer that carries the ±1σ/±2σ bands (only one does); null = none. */
+    bandsLayer: z.number().int().min(0).nullable().default(0),
+    legend: z
+      .object({ position: z.enum(LEGEND_POSITIONS).default('auto'), columns: z.union([z.literal(1), z.literal(2)]).default(1) })
+      .default({ position: 'auto', columns: 1 }),
+    annotations: z.array(annotationSchema).max(FIGURE_LIMITS.maxAnnotations).default([]),
+    /** "√s = 18 TeV, 140 fb⁻¹" from the layers' provenance. */
+    energyLabel: z.boolean().default(true),
+    /** "95% CL" (or the layers' confidence level). */
+    clLabel: z.boolean().default(true),
+    /** Shade the region the first layer's observed limit excludes (against its theory curve). */
+    excludedShading: z.boolean().default(false),
+  })
+  .superRefine((s, ctx) => {
+    if (s.size.preset === 'custom' && (s.size.widthCm === undefined || s.size.heightCm === undefined)) {
+      ctx.addIssue({ code: 'custom', path: ['size'], message: 'a custom size needs widthCm and heightCm' });
+    }
+    if (s.bandsLayer !== null && s.bandsLayer >= Math.max(1, s.layers.length) && s.layers.length > 0) {
+      ctx.addIssue({ code: 'custom', path: ['bandsLayer'], message: `must point at one of the ${s.layers.length} layers` });
+    }
+    for (const axis of ['x', 'y'] as const) {
+      const a = s[axis];
+      if (a.min !== null && a.max !== null && !(a.max > a.min)) ctx.addIssue({ code: 'custom', path: [axis, 'max'], message: 'must be larger than min' });
+      if (a.scale === 'log' && a.min !== null && !(a.min > 0)) ctx.addIssue({ code: 'custom', path: [axis, 'min'], message: 'must be positive on a log axis' });
+    }
+  });
+export type FigureSpec = z.output<typeof figureSpecSchema>;
+export type FigureSpecInput = z.input<typeof figureSpecSchema>;
+
+/** The page size of a spec in centimetres. */
+export function figureSizeCm(spec: Pick<FigureSpec, 'size'>): { widthCm: number; heightCm: number } {
+  if (spec.size.preset === 'custom') return { widthCm: spec.size.widthCm!, heightCm: spec.size.heightCm! };
+  const p = SIZE_PRESETS[spec.size.preset];
+  return { widthCm: spec.size.widthCm ?? p.widthCm, heightCm: spec.size.heightCm ?? p.heightCm };
+}
+
+export const createFigureSchema = z.object({ spec: figureSpecSchema, public: z.boolean().default(false) });
+export const saveFigureSchema = z.object({ spec: figureSpecSchema, note: z.string().trim().max(300).default('') });
+export const figureParams = z.object({ groupId: z.uuid('must be a valid id'), figureId: z.uuid('must be a valid id') });
+
+export const RENDER_FORMATS = ['svg', 'pdf', 'png'] as const;
+export type RenderFormat = (typeof RENDER_FORMATS)[number];
+/** Query of the render routes: version (default: latest), size preset override, PNG resolution. */
+export const renderQuery = z.object({
+  version: z.coerce.number().int().positive().optional(),
+  size: z.enum(SIZE_PRESET_IDS).exclude(['custom']).optional(),
+  dpi: z.coerce.number().int().min(FIGURE_LIMITS.minDpi, `must be at least ${FIGURE_LIMITS.minDpi}`).max(FIGURE_LIMITS.maxDpi, `must be at most ${FIGURE_LIMITS.maxDpi}`).default(300),
+});
