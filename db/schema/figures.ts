@@ -81,6 +81,8 @@ export const figureRenders = pgTable(
     contentType: text().notNull(),
     body: bytea().notNull(),
     byteLength: bigint({ mode: 'number' }).notNull(),
+    /** The scene's notes (e.g. layers left out for this audience), sent with a cached render too. */
+    notes: jsonb().$type<string[]>().notNull().default([]),
     createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
     lastUsedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
   },

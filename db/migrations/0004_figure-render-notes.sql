@@ -1,0 +1,1 @@
+ALTER TABLE "figure_renders" ADD COLUMN "notes" jsonb DEFAULT '[]'::jsonb NOT NULL;
