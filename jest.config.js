@@ -6,7 +6,9 @@ const esmPackages = [
   '@noble', 'rou3', '@better-fetch', 'svg2pdf\\.js', '@exodus', '@asamuzakjp', '@csstools', 'parse5',
   'entities', 'defu', 'uncrypto', 'kysely', '@standard-schema', 'fast-check', 'pure-rand',
 ];
-const transformIgnorePatterns = [`node_modules/(?!(${esmPackages.join('|')})/)`];
+// Also reaches nested copies (jsdom keeps its own parse5 under jsdom/node_modules).
+const esm = esmPackages.join('|');
+const transformIgnorePatterns = [`node_modules/(?!(${esm})/)(?!.*node_modules/(${esm})/)`];
 const base = {
   transform: { '\\.[cm]?[jt]sx?$': 'babel-jest' },
   transformIgnorePatterns,

@@ -1,0 +1,166 @@
+import { labelKey, type LabelRequest } from '@/shared/figure/types';
+import { multiply, parsePath, pathBox, scale, transformPath, translate } from '@/server/figures/svg-path';
+import { labelPlainText, measureFromGlyphs, splitLabel, typesetLabel, typesetLabels } from '@/server/figures/typeset';
+
+const sans = (label: string, size = 10): LabelRequest => ({ label, size, font: 'sans' });
+const one = (label: string, size = 10, font: 'sans' | 'serif' = 'sans') => typesetLabels([{ label, size, font }]).get(labelKey({ label, size, font }))!;
+
+/** Only path commands and numbers: nothing a browser could read as markup or script. */
+const PATH_DATA = /^[MLQCAZ0-9 .,e+-]*$/;
+
+describe('label syntax', () => {
+  test('plain and math segments in order; \\$ and a lone $ are literal', () => {
+    expect(splitLabel("$m_{V'}$ [TeV]")).toEqual([
+      { math: true, text: "m_{V'}" },
+      { math: false, text: ' [TeV]' },
+    ]);
+    expect(splitLabel('costs \\$5 or $x$')).toEqual([
+      { math: false, text: 'costs $5 or ' },
+      { math: true, text: 'x' },
+    ]);
+    expect(splitLabel('only one $ here')).toEqual([{ math: false, text: 'only one $ here' }]);
+  });
+
+  test('plain reading of TeX for the PDF text layer', () => {
+    expect(labelPlainText('$\\sigma \\times B$ [fb]')).toBe('σ × B [fb]');
+    expect(labelPlainText('$\\sqrt{s} = 18$ TeV, 140 fb$^{-1}$')).toBe('√s = 18 TeV, 140 fb⁻¹');
+    expect(labelPlainText("$m_{V'}$ [TeV]")).toBe("mV' [TeV]");
+  });
+});
+
+describe('typesetting', () => {
+  test('plain text becomes non-empty outline paths with a positive width and the font’s box', () => {
+    const g = one('Mass of the new particle [TeV]');
+    expect(g.error).toBeUndefined();
+    expect(g.paths.length).toBeGreaterThan(0);
+    expect(g.paths.join('').length).toBeGreaterThan(200);
+    expect(g.width).toBeGreaterThan(50);
+    // Inter: cap height 0.73 em, descender of "p" 0.2 em (font tables).
+    expect(g.ascent).toBeGreaterThan(7);
+    expect(g.descent).toBeGreaterThan(1.5);
+    for (const p of g.paths) expect(p).toMatch(PATH_DATA);
+  });
+
+  test("'$m_{V'}$ [TeV]' draws the formula and the text, one after the other on one baseline", () => {
+    const both = one("$m_{V'}$ [TeV]");
+    const math = one("$m_{V'}$");
+    const text = one(' [TeV]');
+    expect(both.error).toBeUndefined();
+    expect(both.paths).toHaveLength(2);
+    expect(both.width).toBeCloseTo(math.width + text.width, 2);
+    // The text part starts where the formula ends.
+    const textBox = pathBox(both.paths[1]!)!;
+    expect(textBox.x1).toBeGreaterThanOrEqual(math.width - 0.01);
+    // The formula sits on the baseline: m's bottom at y ≈ 0, the subscript below it.
+    const mathBox = pathBox(both.paths[0]!)!;
+    expect(mathBox.y1).toBeLessThan(-5);
+    expect(mathBox.y2).toBeGreaterThan(0.5);
+  });
+
+  test('width grows in proportion to the size', () => {
+    for (const label of ['Observed limit', '$\\sigma \\times B$ [fb]']) {
+      const small = one(label, 8);
+      const large = one(label, 16);
+      expect(large.width).toBeCloseTo(2 * small.width, 1);
+      expect(large.ascent).toBeGreaterThan(small.ascent);
+    }
+  });
+
+  test('serif and sans differ', () => {
+    expect(one('Expected limit', 10, 'serif').width).not.toBeCloseTo(one('Expected limit', 10, 'sans').width, 1);
+  });
+
+  test('Unicode in plain text comes out (σ, ×, √, ′, ⁻¹); a character neither font has is skipped', () => {
+    for (const ch of ['σ', '×', '√', '′', '⁻¹', 'μ']) {
+      const g = one(`a${ch}b`);
+      expect(g.width).toBeGreaterThan(one('ab').width + 1);
+      expect(g.paths.join('').length).toBeGreaterThan(one('ab').paths.join('').length);
+    }
+    expect(one('a\u{1F4A5}b').width).toBeCloseTo(one('ab').width, 5);
+  });
+
+  test('bad TeX sets the error and draws the raw text in sans', () => {
+    const bad = one('$\\frac{$');
+    expect(bad.error).toMatch(/TeX error: .*brace/i);
+    expect(bad.paths.length).toBeGreaterThan(0);
+    // The same characters typed as plain text (dollars escaped) give the same width.
+    expect(bad.width).toBeCloseTo(one('\\$\\frac{\\$').width, 5);
+    expect(one('$\\undefinedmacro x$').error).toMatch(/Undefined control sequence \\undefinedmacro/);
+  });
+
+  test('commands that reach outside the formula are not available', () => {
+    for (const label of ['$\\href{javascript:alert(1)}{x}$', '$\\class{x}{y}$', '$\\require{html}$', '$\\style{color:red}{x}$']) {
+      const g = one(label);
+      expect(g.error).toBeDefined();
+      for (const p of g.paths) expect(p).toMatch(PATH_DATA);
+    }
+  });
+
+  test('hostile text never comes out as markup', () => {
+    const hostile = [
+      '<script>alert(1)</script>',
+      '"/><foreignObject><div>x</div></foreignObject>',
+      "$\\text{<script>alert('x')</script>}$",
+      '</svg><svg onload=alert(1)>',
+      '$x$ <img src=x onerror=alert(1)>',
+    ];
+    for (const label of hostile) {
+      const g = one(label);
+      expect(g.paths.length).toBeGreaterThan(0);
+      for (const p of g.paths) {
+        expect(p).toMatch(PATH_DATA);
+        expect(p).not.toMatch(/script|foreign|onload|onerror|</i);
+      }
+    }
+  });
+
+  test('boxes, bars and stretched pieces are filled geometry', () => {
+    for (const label of ['$\\boxed{x}$', '$\\overline{ab}$', '$\\frac{1}{2}$', '$\\left( \\frac{a}{b} \\right)$', '$\\sqrt{s}$']) {
+      const g = one(label);
+      expect(g.error).toBeUndefined();
+      expect(g.paths.join('')).toMatch(PATH_DATA);
+      expect(g.width).toBeGreaterThan(2);
+    }
+    // \overline: the bar stays within the letters' width (the stretched glyph is clipped to its box).
+    const bar = pathBox(one('$\\overline{ab}$').paths[0]!)!;
+    expect(bar.x1).toBeGreaterThanOrEqual(-0.01);
+    expect(bar.x2).toBeLessThanOrEqual(one('$\\overline{ab}$').width + 0.01);
+  });
+
+  test('typesetLabels answers one entry per distinct label and reuses cached results', () => {
+    const reqs = [sans('10'), sans('10'), sans('100'), { label: '10', size: 10, font: 'serif' as const }];
+    const g = typesetLabels(reqs);
+    expect(g.size).toBe(3);
+    expect(typesetLabels([sans('10')]).get(labelKey(sans('10')))).toBe(g.get(labelKey(sans('10'))));
+  });
+
+  test('measureFromGlyphs answers with the metrics of the paths, typesetting what is missing', () => {
+    const glyphs = typesetLabels([sans('Observed limit', 9)]);
+    const measure = measureFromGlyphs(glyphs);
+    const g = glyphs.get(labelKey(sans('Observed limit', 9)))!;
+    expect(measure('Observed limit', 9, 'sans')).toEqual({ width: g.width, ascent: g.ascent, descent: g.descent });
+    const fresh = measure('Expected limit', 9, 'sans');
+    expect(fresh.width).toBeGreaterThan(0);
+    expect(glyphs.get(labelKey(sans('Expected limit', 9)))?.width).toBe(fresh.width);
+    expect(typesetLabel(sans('Expected limit', 9)).width).toBe(fresh.width);
+  });
+});
+
+describe('path data under transforms', () => {
+  test('relative commands, H and V become absolute lines', () => {
+    expect(transformPath('m1 1 h2 v2 l-2 0 z', translate(10, 0))).toBe('M11 1L13 1L13 3L11 3Z');
+  });
+  test('curves and their shorthand forms keep their control points', () => {
+    expect(transformPath('M0 0Q1 1 2 0T4 0', scale(2))).toBe('M0 0Q2 2 4 0Q6 -2 8 0');
+    expect(transformPath('M0 0C0 1 1 1 1 0S2 -1 2 0', IDENTITY_T)).toBe('M0 0C0 1 1 1 1 0C1 -1 2 -1 2 0');
+  });
+  test('a y flip maps up to down', () => {
+    expect(transformPath('M0 0L0 10', multiply(translate(0, 5), scale(1, -1)))).toBe('M0 5L0 -5');
+  });
+  test('malformed data stops the parse instead of inventing geometry', () => {
+    expect(parsePath('M0 0L5')).toHaveLength(1);
+    expect(transformPath('<script>', IDENTITY_T)).toBe('');
+  });
+});
+
+const IDENTITY_T = translate(0, 0);
