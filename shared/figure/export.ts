@@ -1,0 +1,122 @@
+/**
+ * The figure's data export (one CSV of every plotted curve) and a caption draft. Both list only
+ * what the figure draws, and nothing of layers the viewer may not see.
+ */
+import type { FigureSpec } from '../schemas/figures';
+import { canCompare, drawnLayers, shortNumber, type DrawnLayer } from './plan';
+import { resolveFigureTheme } from './theme';
+import type { FigureLayerData } from './types';
+
+/** A CSV cell: quoted when needed; text that a spreadsheet would run as a formula is defused. */
+function cell(v: string | number): string {
+  if (typeof v === 'number') return String(v);
+  const text = /^[=+\-@\t\r]/.test(v) ? `'${v}` : v;
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+/** The plotted columns of a layer: quantity name, x values, y values. */
+function plottedColumns(l: DrawnLayer): [string, readonly number[], readonly number[] | undefined][] {
+  const c = l.data.curve;
+  const e = c.expected;
+  const out: [string, readonly number[], readonly number[] | undefined][] = [];
+  if (l.spec.show.observed) out.push(['observed', c.x, c.observed]);
+  if (l.spec.show.expected) out.push(['expected', c.x, e?.['0']]);
+  if (l.band2) out.push(['expected_minus_2sigma', c.x, e?.['-2']]);
+  if (l.band1) out.push(['expected_minus_1sigma', c.x, e?.['-1']]);
+  if (l.band1) out.push(['expected_plus_1sigma', c.x, e?.['1']]);
+  if (l.band2) out.push(['expected_plus_2sigma', c.x, e?.['2']]);
+  if (l.theory) {
+    out.push(['theory', l.theory.x, l.theory.central]);
+    if (l.spec.show.theoryBand) {
+      out.push(['theory_lower', l.theory.x, l.theory.lower]);
+      out.push(['theory_upper', l.theory.x, l.theory.upper]);
+    }
+  }
+  return out;
+}
+
+/**
+ * Every plotted curve as one CSV: `layer,quantity,x,value,x_unit,value_unit`, one row per point,
+ * layers in figure order. Only what the figure draws (its theme's band rule included); layers the
+ * viewer may not see are left out.
+ */
+export function figureCsv(spec: FigureSpec, layers: FigureLayerData[]): string {
+  const theme = resolveFigureTheme(spec.theme);
+  const rows = ['layer,quantity,x,value,x_unit,value_unit'];
+  for (const l of drawnLayers(spec, layers, theme).drawn) {
+    const meta = l.data.meta;
+    const valueUnit = meta.quantity === 'xsec' ? meta.quantityUnit : '';
+    for (const [quantity, xs, ys] of plottedColumns(l)) {
+      if (!ys) continue;
+      for (let i = 0; i < Math.min(xs.length, ys.length); i++) {
+        rows.push([cell(l.name), quantity, cell(xs[i]!), cell(ys[i]!), cell(meta.parameterUnit), cell(valueUnit)].join(','));
+      }
+    }
+  }
+  return `${rows.join('\r\n')}\r\n`;
+}
+
+/** A label's text without TeX markup, for plain-text captions. */
+function plain(label: string): string {
+  return label
+    .replace(/\\sigma/g, 'σ')
+    .replace(/\\mu/g, 'μ')
+    .replace(/\\times/g, '×')
+    .replace(/\\pm/g, '±')
+    .replace(/\\sqrt\{([^}]*)\}/g, '√$1')
+    .replace(/\^\{?-1\}?/g, '⁻¹')
+    .replace(/[$\\{}]/g, '')
+    .replace(/\s+/g, ' ')
+    .trim();
+}
+
+function listing(items: string[]): string {
+  if (items.length <= 1) return items.join('');
+  return `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
+}
+
+/**
+ * A short caption draft in plain text: what is shown, the results with their references and
+ * versions, the bands, theory, shading, energy and luminosity. Technical wording, or plain words
+ * for the outreach theme. Results the viewer may not see are counted, never named.
+ */
+export function captionDraft(spec: FigureSpec, layers: FigureLayerData[]): string {
+  const theme = resolveFigureTheme(spec.theme);
+  const outreach = theme.name === 'outreach';
+  const { drawn, hidden } = drawnLayers(spec, layers, theme);
+  const parts: string[] = [];
+  if (drawn.length === 0) {
+    parts.push(outreach ? 'No results are shown.' : 'No results are shown in this figure.');
+  } else {
+    const first = drawn[0]!.data.meta;
+    const cls = [...new Set(drawn.map((l) => shortNumber(l.data.meta.cl * 100)))].join('/');
+    const quantity = first.quantity === 'xsec' ? `the cross-section times branching ratio σ×B${first.quantityUnit ? ` (${first.quantityUnit})` : ''}` : 'the signal strength μ';
+    const param = `${first.parameterName}${first.parameterUnit ? ` (${first.parameterUnit})` : ''}`;
+    const results = drawn.map((l) => {
+      const ref = l.data.meta.reference.trim();
+      return `${plain(l.name)} (${ref ? `${ref}, ` : ''}version ${l.data.version})`;
+    });
+    if (outreach) {
+      parts.push(`How large a signal of new particles could still hide in the data, as a function of ${plain(param)}, from ${listing(results)}.`);
+      parts.push('Solid lines: what the data allow; dashed lines: what was expected if there is no new particle.');
+    } else {
+      parts.push(`Observed (solid) and expected (dashed) ${cls}% CL upper limits on ${quantity} as a function of ${plain(param)}, from ${listing(results)}.`);
+    }
+    const bands = drawn.find((l) => l.band1 || l.band2);
+    if (bands) {
+      const which = [bands.band1 ? '±1σ' : null, bands.band2 ? '±2σ' : null].filter(Boolean).join(' and ');
+      parts.push(outreach ? `The shaded band shows the range expected for ${plain(bands.name)}.` : `The ${which} bands around the expected limit of ${plain(bands.name)} are shown.`);
+    }
+    const theories = drawn.filter((l) => l.theory);
+    if (theories.length) {
+      const names = [...new Set(theories.map((l) => plain(l.theory!.label?.trim() || 'the theory prediction')))];
+      parts.push(outreach ? `The dotted line is ${listing(names)}.` : `Dotted: ${listing(names)}${theories.some((l) => l.spec.show.theoryBand && l.theory!.lower) ? ', with its uncertainty band' : ''}.`);
+    }
+    const shading = spec.excludedShading ? drawn.find(canCompare) : undefined;
+    if (shading) parts.push(outreach ? `The shaded area is ruled out by ${plain(shading.name)}.` : `The shaded region is excluded by the observed limit of ${plain(shading.name)}.`);
+    const energies = [...new Set(drawn.map((l) => `√s = ${shortNumber(l.data.meta.sqrtS)} TeV, ${shortNumber(l.data.meta.luminosity)} fb⁻¹`))];
+    parts.push(outreach ? `Collision energy: ${[...new Set(drawn.map((l) => `${shortNumber(l.data.meta.sqrtS)} TeV`))].join(', ')}.` : `${listing(energies)}.`);
+  }
+  if (hidden > 0) parts.push(hidden === 1 ? 'One further result is not shown.' : `${hidden} further results are not shown.`);
+  return parts.join(' ');
+}

@@ -1,0 +1,15 @@
+/**
+ * The figure scene builder: one pure path from a figure spec, its layers' data and a theme to
+ * drawing primitives, used by the app's preview and the server's SVG/PDF/PNG renderers.
+ *
+ * Typical use: `theme = resolveFigureTheme(spec.theme, house)`, typeset `collectLabels(spec,
+ * layers, theme)` in one batch, `scene = buildScene(spec, layers, theme, measure)`, then
+ * `sceneToSvg(scene, glyphs, { title })` or draw `scene.items` directly.
+ */
+export { resolveFigureTheme, layerColor, type ResolvedTheme } from './theme';
+export { collectLabels, buildScene } from './scene';
+export { sceneToSvg, escapeXml } from './svg';
+export { figureCsv, captionDraft } from './export';
+export { sizePt } from './plan';
+export { paletteProblems, PALETTE_THRESHOLDS } from './color';
+export * from './types';

@@ -1,0 +1,306 @@
+/**
+ * The measurement-free half of the scene builder: which layers are drawn and in which colours,
+ * the axis ranges and ticks, and every label's text. `collectLabels` lists these labels for batch
+ * typesetting; `buildScene` lays them out with the measured sizes.
+ */
+import { figureSizeCm, type FigureSpec, type LayerSpec } from '../schemas/figures';
+import type { Curve, Theory, VersionMeta } from '../schemas/results';
+import { tint } from './color';
+import { layerColor, type ResolvedTheme } from './theme';
+import { axisDomain, planAxisTicks, type AxisPlan } from './ticks';
+import type { FigureLayerData, LabelRequest } from './types';
+
+export type AvailableLayer = Extract<FigureLayerData, { available: true }>;
+
+/** A layer that is drawn: its spec, data, legend name and colour. */
+export type DrawnLayer = {
+  /** Index in `spec.layers`. */
+  index: number;
+  spec: LayerSpec;
+  data: AvailableLayer;
+  name: string;
+  color: string;
+  /** Which expected bands this layer draws (only the bands layer draws any). */
+  band1: boolean;
+  band2: boolean;
+  theory: Theory | null;
+};
+
+/** A distinct theory curve (layers sharing the same prediction draw it once). */
+export type TheoryLine = { theory: Theory; layer: number; label: string; dash: number[]; band: boolean };
+
+export type LegendKey =
+  | { kind: 'line'; color: string; width: number; dash: number[] | null }
+  | { kind: 'fill'; color: string; line?: { color: string; width: number; dash: number[] | null } };
+export type LegendEntry = { label: string; key: LegendKey; layer?: number };
+
+export type FigurePlan = {
+  theme: ResolvedTheme;
+  widthPt: number;
+  heightPt: number;
+  layers: DrawnLayer[];
+  hidden: number;
+  theories: TheoryLine[];
+  x: AxisPlan;
+  y: AxisPlan;
+  xTitle: string;
+  yTitle: string;
+  /** Lines of the energy / confidence-level block, top to bottom. */
+  info: { label: string; role: 'energy' | 'cl' }[];
+  legend: LegendEntry[];
+  notes: string[];
+  /** The layer whose observed limit is compared with its theory for the shading, if any. */
+  shadingLayer: DrawnLayer | null;
+};
+
+const CM_TO_PT = 72 / 2.54;
+
+/**
+ * The page size of a spec in points (1 cm = 72/2.54 pt), from `figureSizeCm`. Sizes that are not
+ * finite or below the schema's minimum are raised to it, so no layout ever divides by zero.
+ */
+export function sizePt(spec: Pick<FigureSpec, 'size'>): { widthPt: number; heightPt: number } {
+  let cm: { widthCm: number; heightCm: number };
+  try {
+    cm = figureSizeCm(spec);
+  } catch {
+    cm = { widthCm: 3, heightCm: 3 };
+  }
+  const guard = (v: number) => (Number.isFinite(v) && v >= 3 ? v : 3);
+  const r = (v: number) => Math.round(v * CM_TO_PT * 1000) / 1000;
+  return { widthPt: r(guard(cm.widthCm)), heightPt: r(guard(cm.heightCm)) };
+}
+
+/** Fills `{key}` placeholders. */
+export function fill(template: string, values: Record<string, string | number>): string {
+  return template.replace(/\{(\w+)\}/g, (m, k: string) => (k in values ? String(values[k]) : m));
+}
+
+/** A number for a label: up to four significant digits, no exponent noise. */
+export function shortNumber(v: number): string {
+  return String(Number(v.toPrecision(4)));
+}
+
+/** The available layer data at a spec layer index, or null (missing or not visible). */
+export function availableData(layers: readonly FigureLayerData[], i: number): AvailableLayer | null {
+  const d = layers[i];
+  return d && d.available === true ? d : null;
+}
+
+/** The values of one column paired with x, finite ones only (and positive on a log axis). */
+export function pairs(xs: readonly number[], ys: readonly number[] | undefined, positive: boolean): [number, number][] {
+  if (!ys) return [];
+  const out: [number, number][] = [];
+  const n = Math.min(xs.length, ys.length);
+  for (let i = 0; i < n; i++) {
+    const x = xs[i]!;
+    const y = ys[i]!;
+    if (Number.isFinite(x) && Number.isFinite(y) && (!positive || y > 0)) out.push([x, y]);
+  }
+  return out;
+}
+
+/** The drawn layers of a spec: available ones only, with their colours and band choices. */
+export function drawnLayers(spec: FigureSpec, layers: readonly FigureLayerData[], theme: ResolvedTheme): { drawn: DrawnLayer[]; hidden: number } {
+  const drawn: DrawnLayer[] = [];
+  let hidden = 0;
+  spec.layers.forEach((ls, i) => {
+    const data = availableData(layers, i);
+    if (!data) {
+      hidden++;
+      return;
+    }
+    const isBands = spec.bandsLayer === i;
+    drawn.push({
+      index: i,
+      spec: ls,
+      data,
+      name: ls.label.trim() || data.title,
+      color: layerColor(theme, ls.hue ?? data.hue),
+      band1: isBands && ls.show.band1,
+      band2: isBands && ls.show.band2 && theme.maxBands >= 2,
+      theory: ls.show.theory && data.theory ? data.theory : null,
+    });
+  });
+  return { drawn, hidden };
+}
+
+/**
+ * Every y value a layer shows (for the axis range). Theory points outside the x range do not
+ * count: a prediction often runs wider than the scan and would stretch the axis for nothing.
+ */
+function shownValues(l: DrawnLayer, xDomain: [number, number]): number[] {
+  const c: Curve = l.data.curve;
+  const out: number[] = [];
+  const push = (vs: readonly number[] | undefined) => vs?.forEach((v) => out.push(v));
+  if (l.spec.show.observed) push(c.observed);
+  if (l.spec.show.expected) push(c.expected?.['0']);
+  if (l.band1) (push(c.expected?.['-1']), push(c.expected?.['1']));
+  if (l.band2) (push(c.expected?.['-2']), push(c.expected?.['2']));
+  if (l.theory) {
+    const th = l.theory;
+    const inX = (vs: readonly number[] | undefined) => vs?.filter((_, i) => (th.x[i] ?? NaN) >= xDomain[0] && (th.x[i] ?? NaN) <= xDomain[1]);
+    push(inX(th.central));
+    if (l.spec.show.theoryBand) (push(inX(th.lower)), push(inX(th.upper)));
+  }
+  return out;
+}
+
+const MASS_LIKE = /^(mass\b|m\b|m_|m\(|\$m)/i;
+
+function xTitle(spec: FigureSpec, drawn: DrawnLayer[], theme: ResolvedTheme): string {
+  if (spec.x.label.trim()) return spec.x.label;
+  const meta = drawn[0]?.data.meta;
+  if (!meta) return '';
+  const w = theme.words;
+  const name = w.massAxis && MASS_LIKE.test(meta.parameterName.trim()) ? w.massAxis : meta.parameterName;
+  return fill(meta.parameterUnit ? w.xAxis : w.xAxisNoUnit, { name, unit: meta.parameterUnit });
+}
+
+function yTitle(spec: FigureSpec, drawn: DrawnLayer[], theme: ResolvedTheme): string {
+  if (spec.y.label.trim()) return spec.y.label;
+  const meta = drawn[0]?.data.meta;
+  if (!meta) return '';
+  return meta.quantity === 'xsec' ? fill(theme.words.yXsec, { unit: meta.quantityUnit }) : theme.words.yMu;
+}
+
+/** Distinct values in first-seen order. */
+function distinct<T>(xs: T[]): T[] {
+  return [...new Set(xs)];
+}
+
+/** "√s = 18 TeV, 140 fb⁻¹" lines: one per energy, luminosities of that energy joined. */
+function energyLines(metas: VersionMeta[], theme: ResolvedTheme): string[] {
+  const byEnergy = new Map<string, string[]>();
+  for (const m of metas) {
+    const e = shortNumber(m.sqrtS);
+    const list = byEnergy.get(e) ?? [];
+    list.push(shortNumber(m.luminosity));
+    byEnergy.set(e, list);
+  }
+  return [...byEnergy.entries()].map(([sqrtS, lumis]) => fill(theme.words.energy, { sqrtS, lumi: distinct(lumis).join(', ') }));
+}
+
+function theoryLines(drawn: DrawnLayer[], theme: ResolvedTheme): TheoryLine[] {
+  const out: TheoryLine[] = [];
+  const seen = new Map<string, TheoryLine>();
+  for (const l of drawn) {
+    if (!l.theory) continue;
+    const key = JSON.stringify([l.theory.x, l.theory.central]);
+    if (seen.has(key)) continue;
+    const dash = theme.dash.theory[out.length % theme.dash.theory.length] ?? null;
+    const t: TheoryLine = {
+      theory: l.theory,
+      layer: l.index,
+      label: l.theory.label?.trim() || theme.words.theory,
+      dash: dash ?? [],
+      band: l.spec.show.theoryBand && !!l.theory.lower && !!l.theory.upper,
+    };
+    seen.set(key, t);
+    out.push(t);
+  }
+  // Several predictions with the generic word would read alike: name their layer.
+  if (out.length > 1) for (const t of out) if (t.label === theme.words.theory) t.label = `${drawn.find((l) => l.index === t.layer)?.name ?? ''}: ${t.label}`;
+  return out;
+}
+
+/** Whether a layer has a usable observed curve and theory to compare (for shading and crossings). */
+export function canCompare(l: DrawnLayer): boolean {
+  return !!l.data.curve.observed && !!l.data.theory;
+}
+
+function legendEntries(spec: FigureSpec, plan: Omit<FigurePlan, 'legend' | 'notes'>): LegendEntry[] {
+  if (spec.legend.position === 'none') return [];
+  const { theme } = plan;
+  const w = theme.words;
+  const prefixed = plan.layers.length > 1 || plan.layers.some((l) => l.spec.label.trim() !== '');
+  const word = (plain: string, of: string, l: DrawnLayer) => (prefixed ? fill(of, { layer: l.name }) : plain);
+  const out: LegendEntry[] = [];
+  for (const l of plan.layers) {
+    const c = l.data.curve;
+    if (l.spec.show.observed && c.observed) out.push({ label: word(w.observed, w.observedOf, l), key: { kind: 'line', color: l.color, width: theme.lines.observed, dash: null }, layer: l.index });
+    if (l.spec.show.expected && c.expected?.['0']) out.push({ label: word(w.expected, w.expectedOf, l), key: { kind: 'line', color: l.color, width: theme.lines.expected, dash: theme.dash.expected }, layer: l.index });
+    const bands = bandColors(l, theme);
+    if (l.band1 && c.expected?.['-1'] && c.expected['1']) out.push({ label: word(w.band1, w.band1Of, l), key: { kind: 'fill', color: bands.band1 }, layer: l.index });
+    if (l.band2 && c.expected?.['-2'] && c.expected['2']) out.push({ label: word(w.band2, w.band2Of, l), key: { kind: 'fill', color: bands.band2 }, layer: l.index });
+  }
+  for (const t of plan.theories) {
+    const line = { color: theme.colors.theory, width: theme.lines.theory, dash: t.dash.length ? t.dash : null };
+    out.push({ label: t.label, key: t.band ? { kind: 'fill', color: theme.colors.theoryBand, line } : { kind: 'line', ...line }, layer: t.layer });
+  }
+  if (plan.shadingLayer) out.push({ label: w.excluded, key: { kind: 'fill', color: theme.colors.excluded } });
+  return out;
+}
+
+
+/** The two band fills of a layer: light tints of its colour. */
+export function bandColors(l: DrawnLayer, theme: ResolvedTheme): { band1: string; band2: string } {
+  return { band1: tint(l.color, theme.bandTint.band1), band2: tint(l.color, theme.bandTint.band2) };
+}
+
+/**
+ * Rough plot size before any text is measured: the tick count needs an axis length, and it must
+ * not depend on measured text (the labels are typeset before the layout).
+ */
+function estimatedPlotSize(theme: ResolvedTheme, w: number, h: number): { width: number; height: number } {
+  const t = theme.type;
+  const s = theme.spacing;
+  const left = 2 * s.edge + 1.3 * t.axisTitle + s.title + 2.5 * t.tick + s.tickLabel;
+  const bottom = 2 * s.edge + 1.3 * t.axisTitle + s.title + 1.3 * t.tick + s.tickLabel;
+  return { width: Math.max(1, w - left - s.edge - t.tick), height: Math.max(1, h - bottom - s.edge - t.tick) };
+}
+
+/** Everything about a figure that does not need measured text. */
+export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[], theme: ResolvedTheme): FigurePlan {
+  const { widthPt, heightPt } = sizePt(spec);
+  const { drawn, hidden } = drawnLayers(spec, layers, theme);
+  const logX = spec.x.scale === 'log';
+  const logY = spec.y.scale === 'log';
+
+  let xs = drawn.flatMap((l) => l.data.curve.x);
+  if (xs.length === 0) xs = drawn.flatMap((l) => l.theory?.x ?? []);
+  const xDomain = axisDomain(spec.x, xs, { headroom: 0, pad: 0, fromZero: false });
+  const ys = drawn.flatMap((l) => shownValues(l, xDomain));
+  const yDomain = axisDomain(spec.y, ys, { headroom: 0.3, pad: 0.05, fromZero: true });
+  const est = estimatedPlotSize(theme, widthPt, heightPt);
+  const x = planAxisTicks(logX ? 'log' : 'linear', xDomain, est.width, theme.type.tick, true);
+  const y = planAxisTicks(logY ? 'log' : 'linear', yDomain, est.height, theme.type.tick, false);
+
+  const metas = drawn.map((l) => l.data.meta);
+  const info: FigurePlan['info'] = [];
+  if (spec.energyLabel) for (const line of energyLines(metas, theme)) info.push({ label: line, role: 'energy' });
+  if (spec.clLabel && metas.length) {
+    const cls = distinct(metas.map((m) => shortNumber(m.cl * 100)));
+    info.push({ label: fill(theme.words.cl, { cl: cls.join(', ') }), role: 'cl' });
+  }
+
+  const shadingLayer = spec.excludedShading ? (drawn.find(canCompare) ?? null) : null;
+  const base = { theme, widthPt, heightPt, layers: drawn, hidden, theories: theoryLines(drawn, theme), x, y, xTitle: xTitle(spec, drawn, theme), yTitle: yTitle(spec, drawn, theme), info, shadingLayer };
+  const notes = hidden === 0 ? [] : [hidden === 1 ? theme.words.hiddenOne : fill(theme.words.hiddenMany, { n: hidden })];
+  return { ...base, legend: legendEntries(spec, base), notes };
+}
+
+/** Every label of a plan with its size and font, in drawing order, without repeats. */
+export function planLabels(spec: FigureSpec, plan: FigurePlan): LabelRequest[] {
+  const { theme } = plan;
+  const t = theme.type;
+  const font = theme.font;
+  const out: LabelRequest[] = [];
+  const seen = new Set<string>();
+  const add = (label: string, size: number) => {
+    if (!label) return;
+    const key = `${size}|${label}`;
+    if (seen.has(key)) return;
+    seen.add(key);
+    out.push({ label, size, font });
+  };
+  for (const m of plan.x.major) add(m.label, t.tick);
+  for (const m of plan.y.major) add(m.label, t.tick);
+  add(plan.xTitle, t.axisTitle);
+  add(plan.yTitle, t.axisTitle);
+  for (const i of plan.info) add(i.label, t.annotation);
+  for (const a of spec.annotations) add(a.text, t.annotation);
+  for (const e of plan.legend) add(e.label, t.legend);
+  for (const n of plan.notes) add(n, t.note);
+  return out;
+}

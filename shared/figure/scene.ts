@@ -1,0 +1,318 @@
+/**
+ * The scene builder: figure spec + layer data + theme → drawing primitives in points. Pure and
+ * deterministic; the app's preview and the server's renderers draw its output, so preview and
+ * export are the same figure.
+ */
+import { scaleLinear, scaleLog } from 'd3-scale';
+import { area, line } from 'd3-shape';
+import type { FigureSpec } from '../schemas/figures';
+import { rangesBelow, type ExcludedRange } from '../stats/exclusion';
+import { cornerBox, densify, layoutLegend, n, placeBoxes, rectPath, type Corner } from './legend';
+import { bandColors, planFigure, planLabels, type DrawnLayer, type FigurePlan } from './plan';
+import type { ResolvedTheme } from './theme';
+import { thinLabels, type AxisPlan } from './ticks';
+import type { FigureLayerData, LabelRequest, Measure, Primitive, Rect, Scene, TextMetrics } from './types';
+import { labelKey } from './types';
+
+/**
+ * Every label `buildScene` will measure for this spec and data (tick labels included), each once,
+ * so a caller can typeset them in one batch and then build the scene.
+ */
+export function collectLabels(spec: FigureSpec, layers: FigureLayerData[], theme: ResolvedTheme): LabelRequest[] {
+  return planLabels(spec, planFigure(spec, layers, theme));
+}
+
+type Pt = [number, number];
+type Triple = [number, number, number];
+
+/** Metrics with anything non-finite or negative turned into 0 (a broken measure must not break the layout). */
+function safeMetrics(m: TextMetrics | undefined): TextMetrics {
+  const f = (v: number | undefined) => (typeof v === 'number' && Number.isFinite(v) && v > 0 ? v : 0);
+  return { width: f(m?.width), ascent: f(m?.ascent), descent: f(m?.descent) };
+}
+
+/** ln y at x, linear in x and ln y between the grid points (as `exclusionRanges` interpolates). */
+function logInterpolate(pts: readonly Pt[], x: number): number {
+  let i = 1;
+  while (i < pts.length - 1 && pts[i]![0] < x) i++;
+  const [x0, y0] = pts[i - 1]!;
+  const [x1, y1] = pts[i]!;
+  const t = x1 === x0 ? 0 : (x - x0) / (x1 - x0);
+  return Math.exp(Math.log(y0) + t * (Math.log(y1) - Math.log(y0)));
+}
+
+/** Points with finite, positive values on a strictly increasing grid (what the log interpolation needs). */
+function positiveGrid(xs: readonly number[], ys: readonly number[] | undefined): Pt[] {
+  const out: Pt[] = [];
+  if (!ys) return out;
+  for (let i = 0; i < Math.min(xs.length, ys.length); i++) {
+    const x = xs[i]!;
+    const y = ys[i]!;
+    if (Number.isFinite(x) && Number.isFinite(y) && y > 0 && (out.length === 0 || x > out[out.length - 1]![0])) out.push([x, y]);
+  }
+  return out;
+}
+
+/** Ranges of x where a limit lies below a theory curve, interpolated linearly in x and log σ. */
+function excludedRanges(limit: Pt[], theory: Pt[]): ExcludedRange[] {
+  if (limit.length < 2 || theory.length < 2) return [];
+  return rangesBelow(
+    limit.map((p) => p[0]),
+    limit.map((p) => p[1]),
+    theory.map((p) => p[0]),
+    theory.map((p) => p[1]),
+  );
+}
+
+/**
+ * The figure's drawing primitives, back to front: background, excluded shading, expected bands
+ * (±2σ under ±1σ, the bands layer only), theory bands, grid, theory lines, expected (dashed) and
+ * observed (solid) lines, crossing markers, frame and ticks, tick labels, axis titles, annotations,
+ * the legend last. Curves are clipped to the plot. `measure` is called only for labels that
+ * `collectLabels` lists.
+ */
+export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: ResolvedTheme, measure: Measure): Scene {
+  const plan = planFigure(spec, layers, theme);
+  const W = plan.widthPt;
+  const H = plan.heightPt;
+  const t = theme.type;
+  const s = theme.spacing;
+  const font = theme.font;
+  const cache = new Map<string, TextMetrics>();
+  const m = (label: string, size: number): TextMetrics => {
+    const key = labelKey({ label, size, font });
+    let r = cache.get(key);
+    if (!r) {
+      r = safeMetrics(measure(label, size, font));
+      cache.set(key, r);
+    }
+    return r;
+  };
+  const height = (x: TextMetrics) => x.ascent + x.descent;
+
+  // Margins from the measured labels.
+  const tickOut = theme.ticks.direction === 'out' ? theme.ticks.major : 0;
+  const xLabels = plan.x.major.map((tk) => m(tk.label, t.tick));
+  const yLabels = plan.y.major.map((tk) => m(tk.label, t.tick));
+  const xTitle = plan.xTitle ? m(plan.xTitle, t.axisTitle) : null;
+  const yTitle = plan.yTitle ? m(plan.yTitle, t.axisTitle) : null;
+  const notes = plan.notes.map((note) => m(note, t.note));
+  const notesH = notes.reduce((a, x) => a + height(x) + 0.2 * t.note, 0);
+  const xLabelAscent = Math.max(0, ...xLabels.map((x) => x.ascent));
+  const xLabelH = Math.max(0, ...xLabels.map(height));
+  const frac = (ap: AxisPlan, v: number) => {
+    const [a, b] = ap.scale === 'log' ? ap.domain.map(Math.log10) : ap.domain;
+    const u = ap.scale === 'log' ? Math.log10(v) : v;
+    return (u - a!) / (b! - a! || 1);
+  };
+  // Only labels at the far ends of an axis stick out past the plot.
+  const overhang = (ap: AxisPlan, ms: TextMetrics[], along: (x: TextMetrics) => number) => Math.max(0, ...ap.major.map((tk, i) => (frac(ap, tk.value) > 0.95 ? along(ms[i]!) / 2 : 0)));
+
+  const left = s.edge + (yTitle ? height(yTitle) + s.title : 0) + Math.max(0, ...yLabels.map((x) => x.width)) + s.tickLabel + tickOut;
+  const bottom = s.edge + (xTitle ? height(xTitle) + s.title : 0) + xLabelH + s.tickLabel + tickOut;
+  const top = s.edge + notesH + overhang(plan.y, yLabels, height);
+  const right = s.edge + Math.max(theme.lines.frame, overhang(plan.x, xLabels, (x) => x.width));
+  const plot: Rect = { x: left, y: top, width: Math.max(1, W - left - right), height: Math.max(1, H - top - bottom) };
+  const plotRight = plot.x + plot.width;
+  const plotBottom = plot.y + plot.height;
+
+  const xScale = (plan.x.scale === 'log' ? scaleLog() : scaleLinear()).domain(plan.x.domain).range([plot.x, plotRight]);
+  const yScale = (plan.y.scale === 'log' ? scaleLog() : scaleLinear()).domain(plan.y.domain).range([plotBottom, plot.y]);
+  const okX = (v: number) => Number.isFinite(v) && (plan.x.scale !== 'log' || v > 0);
+  const okY = (v: number) => Number.isFinite(v) && (plan.y.scale !== 'log' || v > 0);
+  const X = (v: number) => xScale(v);
+  const Y = (v: number) => yScale(v);
+
+  const items: Primitive[] = [{ kind: 'rect', x: 0, y: 0, width: W, height: H, fill: theme.colors.background, stroke: null, strokeWidth: 0, role: 'background' }];
+  // Every drawn curve's points in plot coordinates, for the legend's corner search.
+  const samples: Pt[] = [];
+  const sampleStep = Math.max(1, Math.min(plot.width, plot.height) / 60);
+  const sample = (pts: Pt[]) => {
+    for (const p of densify(pts, sampleStep)) if (Number.isFinite(p[0]) && Number.isFinite(p[1])) samples.push(p);
+  };
+
+  const linePath = (xs: readonly number[], ys: readonly number[] | undefined): string | null => {
+    if (!ys) return null;
+    const pts: Pt[] = [];
+    for (let i = 0; i < Math.min(xs.length, ys.length); i++) pts.push([xs[i]!, ys[i]!]);
+    const ok = (p: Pt) => okX(p[0]) && okY(p[1]);
+    if (pts.filter(ok).length < 2) return null;
+    sample(pts.filter(ok).map((p) => [X(p[0]), Y(p[1])]));
+    return line<Pt>().defined(ok).x((p) => X(p[0])).y((p) => Y(p[1]))(pts);
+  };
+  const bandPath = (xs: readonly number[], lo: readonly number[] | undefined, hi: readonly number[] | undefined): string | null => {
+    if (!lo || !hi) return null;
+    const pts: Triple[] = [];
+    for (let i = 0; i < Math.min(xs.length, lo.length, hi.length); i++) pts.push([xs[i]!, lo[i]!, hi[i]!]);
+    const ok = (p: Triple) => okX(p[0]) && okY(p[1]) && okY(p[2]);
+    const good = pts.filter(ok);
+    if (good.length < 2) return null;
+    sample(good.map((p) => [X(p[0]), Y(p[1])]));
+    sample(good.map((p) => [X(p[0]), Y(p[2])]));
+    return area<Triple>().defined(ok).x((p) => X(p[0])).y0((p) => Y(p[1])).y1((p) => Y(p[2]))(pts);
+  };
+  const curve = (d: string | null, role: string, layer: number, style: { fill?: string; stroke?: string; width?: number; dash?: number[] | null }) => {
+    if (!d) return;
+    items.push({ kind: 'path', d, fill: style.fill ?? null, stroke: style.stroke ?? null, strokeWidth: style.width ?? 0, dash: style.dash ?? null, clip: true, role, layer });
+  };
+
+  // Excluded shading: vertical strips over the x ranges where the observed limit is below theory.
+  const shading = plan.shadingLayer;
+  if (shading) {
+    const c = shading.data.curve;
+    const ranges = excludedRanges(positiveGrid(c.x, c.observed), positiveGrid(shading.data.theory!.x, shading.data.theory!.central));
+    for (const r of ranges) {
+      if (!okX(r.from) || !okX(r.to)) continue;
+      const x0 = Math.max(plot.x, Math.min(plotRight, X(r.from)));
+      const x1 = Math.max(plot.x, Math.min(plotRight, X(r.to)));
+      if (x1 - x0 > 0) items.push({ kind: 'path', d: rectPath(x0, plot.y, x1 - x0, plot.height), fill: theme.colors.excluded, stroke: null, strokeWidth: 0, dash: null, clip: true, role: 'excluded', layer: shading.index });
+    }
+  }
+
+  for (const l of plan.layers) {
+    const e = l.data.curve.expected;
+    const bands = bandColors(l, theme);
+    if (l.band2) curve(bandPath(l.data.curve.x, e?.['-2'], e?.['2']), 'band2', l.index, { fill: bands.band2 });
+    if (l.band1) curve(bandPath(l.data.curve.x, e?.['-1'], e?.['1']), 'band1', l.index, { fill: bands.band1 });
+  }
+  for (const th of plan.theories) if (th.band) curve(bandPath(th.theory.x, th.theory.lower, th.theory.upper), 'theory-band', th.layer, { fill: theme.colors.theoryBand });
+
+  if (theme.grid) {
+    const d = [
+      ...plan.x.major.filter((tk) => okX(tk.value)).map((tk) => `M${n(X(tk.value))},${n(plot.y)}V${n(plotBottom)}`),
+      ...plan.y.major.filter((tk) => okY(tk.value)).map((tk) => `M${n(plot.x)},${n(Y(tk.value))}H${n(plotRight)}`),
+    ].join('');
+    if (d) items.push({ kind: 'path', d, fill: null, stroke: theme.colors.grid, strokeWidth: theme.lines.grid, dash: null, clip: true, role: 'grid' });
+  }
+
+  for (const th of plan.theories) curve(linePath(th.theory.x, th.theory.central), 'theory', th.layer, { stroke: theme.colors.theory, width: theme.lines.theory, dash: th.dash.length ? th.dash : null });
+  for (const l of plan.layers) if (l.spec.show.expected) curve(linePath(l.data.curve.x, l.data.curve.expected?.['0']), 'expected', l.index, { stroke: l.color, width: theme.lines.expected, dash: theme.dash.expected });
+  for (const l of plan.layers) if (l.spec.show.observed) curve(linePath(l.data.curve.x, l.data.curve.observed), 'observed', l.index, { stroke: l.color, width: theme.lines.observed });
+
+  for (const l of plan.layers) items.push(...crossingMarkers(l, theme, X, Y, okX, okY));
+
+  items.push(...axisPrimitives(plan, theme, plot, X, Y, okX, okY));
+
+  // Tick labels, thinned so that none overlap.
+  const xSpans = plan.x.major.map((tk, i) => ({ index: i, ordinal: tk.ordinal, from: X(tk.value) - xLabels[i]!.width / 2, to: X(tk.value) + xLabels[i]!.width / 2 }));
+  for (const i of thinLabels(xSpans.filter((sp) => okX(plan.x.major[sp.index]!.value)), 0.4 * t.tick)) {
+    const tk = plan.x.major[i]!;
+    items.push({ kind: 'text', x: X(tk.value), y: plotBottom + tickOut + s.tickLabel + xLabelAscent, label: tk.label, size: t.tick, font, anchor: 'middle', color: theme.colors.text, rotate: 0, role: 'tick' });
+  }
+  const ySpans = plan.y.major.map((tk, i) => ({ index: i, ordinal: tk.ordinal, from: Y(tk.value) - height(yLabels[i]!) / 2, to: Y(tk.value) + height(yLabels[i]!) / 2 }));
+  for (const i of thinLabels(ySpans.filter((sp) => okY(plan.y.major[sp.index]!.value)), 0.25 * t.tick)) {
+    const tk = plan.y.major[i]!;
+    const lm = yLabels[i]!;
+    items.push({ kind: 'text', x: plot.x - tickOut - s.tickLabel, y: Y(tk.value) + (lm.ascent - lm.descent) / 2, label: tk.label, size: t.tick, font, anchor: 'end', color: theme.colors.text, rotate: 0, role: 'tick' });
+  }
+
+  if (xTitle) items.push({ kind: 'text', x: plot.x + plot.width / 2, y: H - s.edge - xTitle.descent, label: plan.xTitle, size: t.axisTitle, font, anchor: 'middle', color: theme.colors.text, rotate: 0, role: 'axis-title' });
+  if (yTitle) items.push({ kind: 'text', x: s.edge + yTitle.ascent, y: plot.y + plot.height / 2, label: plan.yTitle, size: t.axisTitle, font, anchor: 'middle', color: theme.colors.text, rotate: -90, role: 'axis-title' });
+
+  // User annotations: (x, y) in axes fractions is the top-left corner of the text, kept inside the plot.
+  const obstacles: Rect[] = [];
+  for (const a of spec.annotations) {
+    const am = m(a.text, t.annotation);
+    const x = Math.max(plot.x, Math.min(plotRight - am.width, plot.x + a.x * plot.width));
+    const yTop = Math.max(plot.y, Math.min(plotBottom - height(am), plot.y + (1 - a.y) * plot.height));
+    obstacles.push({ x, y: yTop, width: am.width, height: height(am) });
+    items.push({ kind: 'text', x, y: yTop + am.ascent, label: a.text, size: t.annotation, font, anchor: 'start', color: theme.colors.text, rotate: 0, role: 'annotation' });
+  }
+
+  // The energy / CL block and the legend share the corner search.
+  const infoMetrics = plan.info.map((i) => m(i.label, t.annotation));
+  const infoGap = 0.25 * t.annotation;
+  const info = infoMetrics.length ? { w: Math.max(...infoMetrics.map((x) => x.width)), h: infoMetrics.reduce((a, x) => a + height(x), 0) + (infoMetrics.length - 1) * infoGap } : null;
+  const legendMetrics = plan.legend.map((e) => m(e.label, t.legend));
+  const legend = plan.legend.length ? layoutLegend(plan.legend, legendMetrics, theme, spec.legend.columns) : null;
+  const position = spec.legend.position;
+  const fixed: Corner | null = position === 'auto' || position === 'none' ? null : position;
+  const placed = placeBoxes({ plot, inset: s.legendInset, samples, obstacles, legend: legend ? { w: legend.width, h: legend.height, fixed } : null, info });
+
+  if (info && placed.info) {
+    const box = cornerBox(plot, placed.info, info.w, info.h, s.legendInset);
+    const leftSide = placed.info.endsWith('left');
+    let y = box.y;
+    plan.info.forEach((line, i) => {
+      const im = infoMetrics[i]!;
+      items.push({ kind: 'text', x: leftSide ? box.x : box.x + box.width, y: y + im.ascent, label: line.label, size: t.annotation, font, anchor: leftSide ? 'start' : 'end', color: theme.colors.text, rotate: 0, role: line.role });
+      y += height(im) + infoGap;
+    });
+  }
+
+  let y = s.edge;
+  plan.notes.forEach((note, i) => {
+    const nm = notes[i]!;
+    items.push({ kind: 'text', x: s.edge, y: y + nm.ascent, label: note, size: t.note, font, anchor: 'start', color: theme.colors.muted, rotate: 0, role: 'note' });
+    y += height(nm) + 0.2 * t.note;
+  });
+
+  if (legend && placed.legend) {
+    const box = cornerBox(plot, placed.legend, legend.width, legend.height, s.legendInset);
+    items.push(...legend.draw(box.x, box.y));
+  }
+
+  return { widthPt: W, heightPt: H, background: theme.colors.background, plot, items, legendCorner: legend && placed.legend ? placed.legend : 'none', notes: [...plan.notes] };
+}
+
+/** Markers where a layer's observed (filled) and expected (open) limits cross its theory curve. */
+function crossingMarkers(l: DrawnLayer, theme: ResolvedTheme, X: (v: number) => number, Y: (v: number) => number, okX: (v: number) => boolean, okY: (v: number) => boolean): Primitive[] {
+  const theory = l.data.theory;
+  if (!l.spec.show.crossings || !theory) return [];
+  const central = positiveGrid(theory.x, theory.central);
+  const out: Primitive[] = [];
+  const r = theme.markerRadius;
+  const mark = (limit: readonly number[] | undefined, filled: boolean) => {
+    for (const range of excludedRanges(positiveGrid(l.data.curve.x, limit), central)) {
+      const ends = [range.fromOpen ? null : range.from, range.toOpen ? null : range.to];
+      for (const x of ends) {
+        if (x === null || !okX(x)) continue;
+        const yv = logInterpolate(central, x);
+        if (!okY(yv)) continue;
+        const cx = X(x);
+        const cy = Y(yv);
+        const d = `M${n(cx - r)},${n(cy)}A${n(r)},${n(r)} 0 1,0 ${n(cx + r)},${n(cy)}A${n(r)},${n(r)} 0 1,0 ${n(cx - r)},${n(cy)}Z`;
+        out.push({ kind: 'path', d, fill: filled ? l.color : theme.colors.background, stroke: l.color, strokeWidth: theme.lines.marker, dash: null, clip: true, role: 'crossing', layer: l.index });
+      }
+    }
+  };
+  if (l.spec.show.observed) mark(l.data.curve.observed, true);
+  if (l.spec.show.expected) mark(l.data.curve.expected?.['0'], false);
+  return out;
+}
+
+/** The frame (or left and bottom axis lines) and the tick marks, major and minor. */
+function axisPrimitives(plan: FigurePlan, theme: ResolvedTheme, plot: Rect, X: (v: number) => number, Y: (v: number) => number, okX: (v: number) => boolean, okY: (v: number) => boolean): Primitive[] {
+  const out: Primitive[] = [];
+  const { major, minor, direction, mirror } = theme.ticks;
+  const sign = direction === 'in' ? 1 : -1;
+  const right = plot.x + plot.width;
+  const bottom = plot.y + plot.height;
+  const inside = (v: number, a: number, b: number) => v >= a - 1e-6 && v <= b + 1e-6;
+  let d = '';
+  const xTick = (v: number, len: number) => {
+    if (!okX(v)) return;
+    const px = X(v);
+    if (!inside(px, plot.x, right)) return;
+    d += `M${n(px)},${n(bottom)}V${n(bottom - sign * len)}`;
+    if (mirror) d += `M${n(px)},${n(plot.y)}V${n(plot.y + sign * len)}`;
+  };
+  const yTick = (v: number, len: number) => {
+    if (!okY(v)) return;
+    const py = Y(v);
+    if (!inside(py, plot.y, bottom)) return;
+    d += `M${n(plot.x)},${n(py)}H${n(plot.x + sign * len)}`;
+    if (mirror) d += `M${n(right)},${n(py)}H${n(right - sign * len)}`;
+  };
+  for (const tk of plan.x.major) xTick(tk.value, major);
+  for (const v of plan.x.minor) xTick(v, minor);
+  for (const tk of plan.y.major) yTick(tk.value, major);
+  for (const v of plan.y.minor) yTick(v, minor);
+  if (mirror) {
+    out.push({ kind: 'rect', x: plot.x, y: plot.y, width: plot.width, height: plot.height, fill: null, stroke: theme.colors.frame, strokeWidth: theme.lines.frame, role: 'axis' });
+  } else {
+    out.push({ kind: 'path', d: `M${n(plot.x)},${n(plot.y)}V${n(bottom)}H${n(right)}`, fill: null, stroke: theme.colors.frame, strokeWidth: theme.lines.frame, dash: null, clip: false, role: 'axis' });
+  }
+  if (d) out.push({ kind: 'path', d, fill: null, stroke: theme.colors.frame, strokeWidth: theme.lines.tick, dash: null, clip: false, role: 'tick' });
+  return out;
+}

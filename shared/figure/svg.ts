@@ -1,0 +1,85 @@
+/**
+ * A scene as a standalone SVG 1.1 document. Text is drawn only as outline paths from the
+ * typeset glyphs (never as <text>), so the file looks the same everywhere and no label can inject
+ * markup: every attribute value is escaped and the writer has no way to emit script or
+ * foreignObject.
+ */
+import { n } from './legend';
+import { labelKey, type Glyphs, type Primitive, type Scene } from './types';
+
+/** Escapes text for XML attribute values and character data. */
+export function escapeXml(s: string): string {
+  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&apos;' })[c]!);
+}
+
+type Attrs = Record<string, string | number | null | undefined>;
+
+function attrs(a: Attrs): string {
+  return Object.entries(a)
+    .filter(([, v]) => v !== null && v !== undefined && v !== '')
+    .map(([k, v]) => ` ${k}="${escapeXml(typeof v === 'number' ? n(v) : v!)}"`)
+    .join('');
+}
+
+/** FNV-1a, to give the clip path an id of its own when several figures share a page. */
+function hash(s: string): string {
+  let h = 0x811c9dc5;
+  for (let i = 0; i < s.length; i++) {
+    h ^= s.charCodeAt(i);
+    h = Math.imul(h, 0x01000193) >>> 0;
+  }
+  return h.toString(36);
+}
+
+function paint(fill: string | null, stroke: string | null, strokeWidth: number, dash: number[] | null, opacity?: number): Attrs {
+  return {
+    fill: fill ?? 'none',
+    stroke: stroke ?? null,
+    'stroke-width': stroke ? strokeWidth : null,
+    'stroke-dasharray': stroke && dash && dash.length ? dash.map(n).join(' ') : null,
+    'stroke-linejoin': stroke ? 'round' : null,
+    opacity: opacity !== undefined && opacity < 1 ? opacity : null,
+  };
+}
+
+function primitive(p: Primitive, glyphs: Glyphs, clipId: string): string {
+  switch (p.kind) {
+    case 'rect':
+      return `<rect${attrs({ x: p.x, y: p.y, width: p.width, height: p.height, ...paint(p.fill, p.stroke, p.strokeWidth, null, p.opacity) })}/>`;
+    case 'path':
+      return `<path${attrs({ d: p.d, ...paint(p.fill, p.stroke, p.strokeWidth, p.dash, p.opacity), 'clip-path': p.clip ? `url(#${clipId})` : null })}/>`;
+    case 'text': {
+      const g = glyphs.get(labelKey({ label: p.label, size: p.size, font: p.font }));
+      // A label that was not typeset is left out: raw text would bypass the typesetter.
+      if (!g || g.paths.length === 0) return '';
+      const w = Number.isFinite(g.width) ? g.width : 0;
+      const dx = p.anchor === 'middle' ? -w / 2 : p.anchor === 'end' ? -w : 0;
+      const transform = `translate(${n(p.x)},${n(p.y)})${p.rotate ? ` rotate(${p.rotate})` : ''}${dx ? ` translate(${n(dx)},0)` : ''}`;
+      return `<g${attrs({ transform, fill: p.color })}>${g.paths.map((d) => `<path${attrs({ d })}/>`).join('')}</g>`;
+    }
+  }
+}
+
+/**
+ * The scene as SVG 1.1: width and height in points with a matching viewBox, a <title> from
+ * `opts.title`, curves clipped to the plot, labels as paths from `glyphs` (keyed by `labelKey`;
+ * a label missing there is not drawn).
+ */
+export function sceneToSvg(scene: Scene, glyphs: Glyphs, opts?: { title?: string }): string {
+  const { plot } = scene;
+  const clipId = `bw-plot-${hash([scene.widthPt, scene.heightPt, plot.x, plot.y, plot.width, plot.height].map(n).join(','))}`;
+  const out: string[] = [
+    '<?xml version="1.0" encoding="UTF-8"?>',
+    `<svg${attrs({ xmlns: 'http://www.w3.org/2000/svg', version: '1.1', width: `${n(scene.widthPt)}pt`, height: `${n(scene.heightPt)}pt`, viewBox: `0 0 ${n(scene.widthPt)} ${n(scene.heightPt)}` })}>`,
+  ];
+  if (opts?.title) out.push(`<title>${escapeXml(opts.title)}</title>`);
+  out.push(`<defs><clipPath${attrs({ id: clipId })}><rect${attrs({ x: plot.x, y: plot.y, width: plot.width, height: plot.height })}/></clipPath></defs>`);
+  out.push(`<rect${attrs({ x: 0, y: 0, width: scene.widthPt, height: scene.heightPt, fill: scene.background })}/>`);
+  for (const p of scene.items) {
+    if (p.kind === 'rect' && p.role === 'background') continue;
+    const s = primitive(p, glyphs, clipId);
+    if (s) out.push(s);
+  }
+  out.push('</svg>', '');
+  return out.join('\n');
+}

@@ -1,0 +1,226 @@
+/**
+ * Axis ranges, ticks and tick labels. Pure numbers: which values get a tick and what their labels
+ * say depends only on the data, the axis spec and the axis length estimated from the figure size,
+ * never on measured text, so the labels can be typeset before the layout (`collectLabels`).
+ * Measured widths only decide which of these labels are left out to avoid overlaps (`thinLabels`).
+ */
+import { scaleLinear } from 'd3-scale';
+import type { AxisSpec } from '../schemas/figures';
+
+export type MajorTick = {
+  value: number;
+  /** Text with `$…$` math. */
+  label: string;
+  /**
+   * Position in the tick sequence in units of the tick step (value / step on a linear axis, the
+   * exponent for decades): thinning keeps the ticks whose ordinal is a multiple of k, so the kept
+   * labels stay round numbers.
+   */
+  ordinal: number;
+};
+
+export type AxisPlan = {
+  scale: 'linear' | 'log';
+  domain: [number, number];
+  major: MajorTick[];
+  /** Unlabelled ticks between the majors. */
+  minor: number[];
+  /** Log axes: decades written as plain numbers (true) or as powers of ten. */
+  plainDecades?: boolean;
+};
+
+const EPS = 1e-9;
+const finitePositive = (v: number) => Number.isFinite(v) && v > 0;
+
+/** Rounds away floating noise (3 * 0.1 = 0.30000000000000004) without losing real digits. */
+const clean = (v: number) => Number(v.toPrecision(12));
+
+/** 10^k without the noise of powers of ten (10 ** -3 = 0.0010000000000000002). */
+export const decade = (k: number) => clean(10 ** k);
+
+const MINUS = '\u2212';
+
+/** A plain number for a label: the minus sign as U+2212, never "-0". */
+function plainNumber(v: number, decimals: number): string {
+  const s = v.toFixed(Math.max(0, Math.min(20, decimals)));
+  const zero = Number(s) === 0;
+  return zero ? s.replace('-', '') : s.replace('-', MINUS);
+}
+
+/** Digits after the point that a value needs (up to 12). */
+function decimalsOf(v: number): number {
+  for (let d = 0; d <= 12; d++) if (Math.abs(Number(v.toFixed(d)) - v) <= Math.abs(v) * EPS) return d;
+  return 12;
+}
+
+/** Label of a linear tick: as many decimals as the tick step needs. */
+export function formatLinear(v: number, step: number): string {
+  const decimals = step > 0 ? Math.max(0, -Math.floor(Math.log10(step) + EPS)) : 0;
+  return plainNumber(v, Math.max(decimals, Math.min(decimalsOf(clean(step)), 12)));
+}
+
+/** Label of a decade 10^k: "0.01"…"1000" when `plain`, else `$10^{k}$`. */
+export function formatDecade(k: number, plain: boolean): string {
+  return plain ? plainNumber(decade(k), Math.max(0, -k)) : `$10^{${k}}$`;
+}
+
+/** The finite values an axis must show (positive ones only on a log axis). */
+function usable(values: readonly number[], log: boolean): number[] {
+  return values.filter((v) => Number.isFinite(v) && (!log || v > 0));
+}
+
+/** The spec's fixed ends, dropped when they cannot be used (a log axis needs positive ends). */
+function fixedEnds(axis: AxisSpec): { min: number | null; max: number | null } {
+  const ok = (v: number | null) => (v !== null && Number.isFinite(v) && (axis.scale !== 'log' || v > 0) ? v : null);
+  let min = ok(axis.min);
+  let max = ok(axis.max);
+  if (min !== null && max !== null && !(max > min)) {
+    min = null;
+    max = null;
+  }
+  return { min, max };
+}
+
+/** A log end rounded outward to 1, 2 or 5 × 10^k. */
+function niceLogEnd(v: number, up: boolean): number {
+  const k = Math.floor(Math.log10(v) + EPS);
+  const steps = up ? [1, 2, 5, 10] : [10, 5, 2, 1];
+  for (const m of steps) {
+    const c = clean(m * 10 ** k);
+    if (up ? c >= v * (1 - EPS) : c <= v * (1 + EPS)) return c;
+  }
+  return up ? decade(k + 1) : decade(k);
+}
+
+/**
+ * The axis range: the spec's fixed ends where given, otherwise the data's extent with padding.
+ * `headroom` is the fraction of the data span added above (room for the legend and labels on the
+ * y axis). A linear y axis starts at zero when all its values are positive (limits are).
+ */
+export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { headroom: number; pad: number; fromZero: boolean }): [number, number] {
+  const log = axis.scale === 'log';
+  const vs = usable(values, log);
+  const fixed = fixedEnds(axis);
+  let lo = vs.length ? Math.min(...vs) : NaN;
+  let hi = vs.length ? Math.max(...vs) : NaN;
+  if (log) {
+    if (!(lo > 0)) [lo, hi] = [0.1, 10];
+    let l0 = Math.log10(fixed.min ?? lo);
+    let l1 = Math.log10(fixed.max ?? hi);
+    if (!(l1 > l0)) [l0, l1] = [l0 - 0.5, l0 + 0.5];
+    const span = Math.max(l1 - l0, 1);
+    const a = fixed.min ?? niceLogEnd(10 ** (l0 - opts.pad * span), false);
+    // Headroom in decades, capped: on a wide range 30 % would waste whole decades.
+    const b = fixed.max ?? niceLogEnd(10 ** (l1 + opts.pad * span + Math.min(opts.headroom * span, 1.5)), true);
+    return b > a ? [a, b] : [a, a * 10];
+  }
+  if (!Number.isFinite(lo)) [lo, hi] = [0, 1];
+  if (opts.fromZero && lo > 0) lo = 0;
+  let a = fixed.min ?? lo;
+  let b = fixed.max ?? hi;
+  if (!(b > a)) {
+    const d = Math.abs(a) > 0 ? Math.abs(a) * 0.1 : 1;
+    if (fixed.min === null) a -= d;
+    if (fixed.max === null || !(b > a)) b = a + 2 * d;
+  }
+  const span = b - a;
+  if (fixed.min === null && !(opts.fromZero && a === 0)) a -= opts.pad * span;
+  if (fixed.max === null) b += (opts.pad + opts.headroom) * span;
+  const niced = scaleLinear().domain([a, b]).nice().domain() as [number, number];
+  return [fixed.min ?? niced[0], fixed.max ?? niced[1]];
+}
+
+/** Ticks of a linear axis: d3's round steps, minor ticks subdividing each step in 4 or 5. */
+export function linearTicks(domain: [number, number], count: number): Omit<AxisPlan, 'scale' | 'domain'> {
+  const s = scaleLinear().domain(domain);
+  const values = s.ticks(Math.max(2, count)).map(clean);
+  const step = values.length > 1 ? clean(values[1]! - values[0]!) : Math.abs(domain[1] - domain[0]) || 1;
+  const major = values.map((v) => ({ value: v, label: formatLinear(v, step), ordinal: Math.round(v / step) }));
+  // A step of 2·10^k divides into 4 (0.5·10^k apart), 1·10^k and 5·10^k into 5.
+  const mantissa = Math.round(step / 10 ** Math.floor(Math.log10(step) + EPS));
+  const sub = mantissa === 2 ? 4 : 5;
+  const minorStep = step / sub;
+  const minor: number[] = [];
+  const first = Math.ceil(domain[0] / minorStep - EPS);
+  const last = Math.floor(domain[1] / minorStep + EPS);
+  for (let i = first; i <= last && minor.length < 500; i++) {
+    if (i % sub === 0) continue;
+    minor.push(clean(i * minorStep));
+  }
+  return { major, minor };
+}
+
+/**
+ * Ticks of a log axis. Decades 10^k inside the range carry the labels, minor ticks sit at 2…9 ×
+ * 10^k (left out when a decade is shorter than `minDecadePt`). Decades are written as plain numbers
+ * when the range spans at most three decades and stays within 0.001…10000, otherwise all as
+ * powers of ten, so one axis never mixes both. When fewer than two decades fall inside the range,
+ * the 2× and 5× values are labelled too (plain numbers) so the axis still reads.
+ */
+export function logTicks(domain: [number, number], lengthPt: number, minDecadePt = 12): Omit<AxisPlan, 'scale' | 'domain'> {
+  const [lo, hi] = domain;
+  const k0 = Math.ceil(Math.log10(lo) - EPS);
+  const k1 = Math.floor(Math.log10(hi) + EPS);
+  const spanDecades = Math.log10(hi / lo);
+  const inside = (v: number) => v >= lo * (1 - EPS) && v <= hi * (1 + EPS);
+  const minor: number[] = [];
+  const decadeLength = lengthPt / Math.max(spanDecades, EPS);
+  const kLo = Math.floor(Math.log10(lo) + EPS);
+  if (k1 - k0 + 1 < 2) {
+    const major: MajorTick[] = [];
+    let ordinal = 0;
+    for (let k = kLo; k <= k1; k++) {
+      for (let m = 1; m <= 9; m++) {
+        const v = clean(m * 10 ** k);
+        if (!inside(v)) continue;
+        if (m === 1 || m === 2 || m === 5) major.push({ value: v, label: plainNumber(v, decimalsOf(v)), ordinal: ordinal++ });
+        else minor.push(v);
+      }
+    }
+    return { major, minor, plainDecades: true };
+  }
+  const plain = spanDecades <= 3 + EPS && k0 >= -3 && k1 <= 4;
+  const major: MajorTick[] = [];
+  for (let k = k0; k <= k1; k++) major.push({ value: decade(k), label: formatDecade(k, plain), ordinal: k });
+  if (decadeLength >= minDecadePt) {
+    for (let k = kLo; k <= k1 && minor.length < 500; k++) {
+      for (let m = 2; m <= 9; m++) {
+        const v = clean(m * 10 ** k);
+        if (inside(v)) minor.push(v);
+      }
+    }
+  }
+  return { major, minor, plainDecades: plain };
+}
+
+/** Ticks of an axis of `lengthPt` (an estimate is fine) with labels `typeSize` points high. */
+export function planAxisTicks(scale: 'linear' | 'log', domain: [number, number], lengthPt: number, typeSize: number, horizontal: boolean): AxisPlan {
+  if (scale === 'log') return { scale, domain, ...logTicks(domain, lengthPt) };
+  // Room per label: numbers a few characters wide side by side, one line high stacked.
+  const per = typeSize * (horizontal ? 6 : 3);
+  return { scale, domain, ...linearTicks(domain, Math.round(Math.max(1, lengthPt) / per)) };
+}
+
+/** A label's extent along its axis, in the axis' own coordinate. */
+export type LabelSpan = { index: number; ordinal: number; from: number; to: number };
+
+/**
+ * Which labels to keep so that none overlap (with at least `gap` between neighbours): every
+ * label if they fit, otherwise every k-th for the smallest k that fits, choosing the ks whose
+ * ordinal is a multiple of k (round values) where possible. Returns the kept indices.
+ */
+export function thinLabels(spans: readonly LabelSpan[], gap: number): number[] {
+  if (spans.length === 0) return [];
+  const sorted = [...spans].sort((a, b) => a.from - b.from);
+  const fits = (kept: LabelSpan[]) => kept.every((s, i) => i === 0 || s.from - kept[i - 1]!.to >= gap);
+  for (let k = 1; k <= sorted.length; k++) {
+    const byOrdinal = sorted.filter((s) => ((s.ordinal % k) + k) % k === 0);
+    if (byOrdinal.length >= Math.min(2, sorted.length) && fits(byOrdinal)) return byOrdinal.map((s) => s.index).sort((a, b) => a - b);
+    for (let offset = 0; offset < k; offset++) {
+      const byPlace = sorted.filter((_, i) => i % k === offset);
+      if (byPlace.length >= Math.min(2, sorted.length) && fits(byPlace)) return byPlace.map((s) => s.index).sort((a, b) => a - b);
+    }
+  }
+  // A single label always fits.
+  return [sorted[Math.floor(sorted.length / 2)]!.index];
+}

@@ -1,0 +1,17 @@
+/**
+ * Layer colours shared by the three figure themes, so a result keeps its colour in the paper,
+ * the talk and the public page. Our own hues, tuned so that the first six stay apart with normal
+ * colour vision (CIEDE2000 ≥ 20), under simulated protanopia and deuteranopia (≥ 10) and in
+ * greyscale (lightness steps ≥ 7 L*), see tests/unit/figure/palette.test.ts. Lightness runs from
+ * L* ≈ 24 to 69 so that even the lightest line reads on white.
+ */
+export const LAYER_PALETTE = [
+  '#15357f', // deep blue
+  '#d4600e', // burnt orange
+  '#1c7e67', // pine green
+  '#9f1f47', // claret
+  '#d2a126', // ochre
+  '#7194e0', // cornflower
+  '#5c6b1f', // olive (7th and 8th: only checked with normal vision)
+  '#6b4a33', // umber
+] as const;

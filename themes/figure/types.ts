@@ -1,0 +1,78 @@
+/**
+ * The shape of a figure theme: every size, line width, colour and word a figure takes from its
+ * theme. Pure data; `shared/figure` resolves it (with a group's house style) and draws with it.
+ * Sizes and widths are points (1/72 inch) at the figure's final size.
+ */
+import type { FontRole } from '../../shared/figure/types';
+import type { FigureTheme } from '../../shared/schemas/figures';
+
+/**
+ * Legend and label wording. `{layer}` is a layer's name, `{cl}` the confidence level in percent,
+ * `{sqrtS}` the centre-of-mass energy in TeV, `{lumi}` the integrated luminosity in fb⁻¹, `{name}`
+ * and `{unit}` a parameter's name and unit. Text may hold TeX math between dollar signs.
+ */
+export type FigureWords = {
+  observed: string;
+  expected: string;
+  band1: string;
+  band2: string;
+  /** The same entries when several layers share the legend. */
+  observedOf: string;
+  expectedOf: string;
+  band1Of: string;
+  band2Of: string;
+  theory: string;
+  excluded: string;
+  /** The confidence-level line. */
+  cl: string;
+  /** One energy and luminosity. */
+  energy: string;
+  /** Axis titles used when the spec leaves them empty. */
+  xAxis: string;
+  xAxisNoUnit: string;
+  /** Replaces a mass-like parameter name on the x axis (plain-language themes only). */
+  massAxis: string | null;
+  yXsec: string;
+  yMu: string;
+  /** Notes about layers the viewer may not see (`{n}` = how many). */
+  hiddenOne: string;
+  hiddenMany: string;
+};
+
+export type FigureThemeTokens = {
+  name: FigureTheme;
+  font: FontRole;
+  /** Type sizes in points. */
+  type: { tick: number; axisTitle: number; legend: number; annotation: number; note: number };
+  /** Line widths in points. */
+  lines: { observed: number; expected: number; theory: number; frame: number; tick: number; grid: number; legendFrame: number; marker: number };
+  /** Dash patterns in points (before the house style's line scale). */
+  dash: { expected: number[]; theory: number[][] };
+  /** Radius of a crossing marker, points. */
+  markerRadius: number;
+  ticks: { major: number; minor: number; direction: 'in' | 'out'; mirror: boolean };
+  /** Gaps in points: figure edge, tick label ↔ axis, axis title ↔ tick labels, legend inner padding and inset from the frame. */
+  spacing: { edge: number; tickLabel: number; title: number; legendPad: number; legendInset: number; legendKey: number; legendRow: number; legendColumn: number };
+  /** Layer colours, in the order results take them (`hue` indexes this list). */
+  palette: readonly string[];
+  colors: {
+    background: string;
+    text: string;
+    muted: string;
+    frame: string;
+    grid: string;
+    theory: string;
+    theoryBand: string;
+    excluded: string;
+    legendFill: string;
+    legendStroke: string | null;
+  };
+  /** Band fills as tints of the layer colour towards white (0 = the colour, 1 = white). */
+  bandTint: { band1: number; band2: number };
+  /** Opacity of the legend background (it sits over the plot). */
+  legendOpacity: number;
+  grid: boolean;
+  /** How many expected bands this theme draws at most (1 = the ±1σ band only). */
+  maxBands: 1 | 2;
+  words: FigureWords;
+};
