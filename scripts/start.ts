@@ -37,7 +37,10 @@ async function main() {
 
   try {
     if (!vars.DATABASE_URL) {
-      cluster = await startCluster({ home: clusterHome(path.join(ROOT, '.data')), port: Number(vars.PGPORT ?? 54329) });
+      const home = clusterHome(path.join(ROOT, '.data'));
+      cluster = await startCluster({ home, port: Number(vars.PGPORT ?? 54329) });
+      // The local payment fake keeps its customers beside the database they belong with.
+      vars.STRIPE_FAKE_STATE ??= path.join(home, 'stripe-fake.json');
       await ensureDatabase(cluster, 'bandwright');
       vars.DATABASE_URL = cluster.url('bandwright');
     } else {
@@ -69,7 +72,8 @@ async function main() {
 ${env.devTools ? `
   Demo accounts (development only), password "${DEMO_PASSWORD}":
 ${DEMO_USERS.map((u) => `    ${u.email.padEnd(28)} ${u.name} (${u.key} of Lanternfish Dijet Resonances)`).join('\n')}
-  Mail sent by the app lands in the development inbox (menu: Inbox (development)).
+  Mail sent by the app lands in the development inbox (menu: Inbox (development)).${env.stripe.fake ? `
+  Payments go to the local fake on 127.0.0.1:${env.STRIPE_FAKE_PORT}: pay with 4242 4242 4242 4242.` : ''}
 ` : ''}
   Press Ctrl-C to stop.
 `);

@@ -8,6 +8,7 @@ import type { Ctx } from './context';
 import { AppError, errorHandler } from './lib/errors';
 import { resultJson } from './lib/upload';
 import { validate } from './lib/validate';
+import { billingRouter, billingWebhook } from './routes/billing';
 import { devRouter } from './routes/dev';
 import { groupsRouter } from './routes/groups';
 import { healthRouter } from './routes/health';
@@ -53,6 +54,9 @@ export function createApp(ctx: Ctx): Express {
   app.post(['/api/auth/forget-password', '/api/auth/request-password-reset', '/api/auth/reset-password'], authLimiter);
   app.all('/api/auth/{*any}', authNodeHandler(ctx.auth));
 
+  // Payment provider events: verified on their raw bytes, so before any JSON parser.
+  app.post('/api/billing/webhook', ...billingWebhook(ctx));
+
   // Result uploads sent as JSON may be as large as uploaded files.
   app.use(['/api/groups/:groupId/results', '/api/groups/:groupId/scans'], resultJson(ctx.env.UPLOAD_LIMIT_BYTES));
   app.use('/api', express.json({ limit: '1mb' }));
@@ -63,6 +67,7 @@ export function createApp(ctx: Ctx): Express {
   app.use('/api', resultsRouter(ctx));
   app.use('/api', tokensRouter(ctx));
   app.use('/api', scansRouter(ctx));
+  app.use('/api', billingRouter(ctx));
   if (ctx.env.devTools) app.use('/api', devRouter(ctx));
   app.use('/api', (req, _res, next) => next(new AppError(404, 'not_found', `No API route ${req.method} ${req.path}`)));
 

@@ -30,6 +30,18 @@ const schema = z
     SCAN_COST_LIMIT: z.coerce.number().positive().default(200_000_000),
     /** Largest result upload accepted (file or JSON body), in bytes; larger ones get 413. */
     UPLOAD_LIMIT_BYTES: z.coerce.number().int().positive().default(5 * 1024 * 1024),
+    /** The payment provider's secret key; outside production a fixed test key for the local fake. */
+    STRIPE_SECRET_KEY: z.string().min(1).optional(),
+    /** Signing secret of the provider's webhook events; outside production a fixed one shared with the fake. */
+    STRIPE_WEBHOOK_SECRET: z.string().min(1).optional(),
+    /** Where the provider's API is; unset outside production: the local fake on STRIPE_FAKE_PORT. */
+    STRIPE_API_HOST: z.string().min(1).optional(),
+    STRIPE_API_PORT: z.coerce.number().int().min(1).max(65535).optional(),
+    STRIPE_API_PROTOCOL: z.enum(['http', 'https']).optional(),
+    /** Loopback port of the local payment fake that the server starts in development. */
+    STRIPE_FAKE_PORT: z.coerce.number().int().min(0).max(65535).default(12111),
+    /** The fake keeps its customers and invoices in this JSON file (npm start puts it beside the cluster). */
+    STRIPE_FAKE_STATE: z.string().optional(),
   })
   .superRefine((v, ctx) => {
     if (v.NODE_ENV === 'production' && !v.AUTH_SECRET) {
@@ -42,7 +54,13 @@ const schema = z
     }
   });
 
-export type Env = z.infer<typeof schema> & { PUBLIC_URL: string; AUTH_SECRET: string; MAIL_MODE: 'outbox' | 'smtp'; devTools: boolean };
+/**
+ * The payment provider as the server reaches it; `fake` when it is the local fake that the server
+ * itself starts. Null keys (production without them): billing answers 503 and the rest works.
+ */
+export type StripeSettings = { secretKey: string | null; webhookSecret: string | null; host?: string; port?: number; protocol?: 'http' | 'https'; fake: boolean };
+
+export type Env = z.infer<typeof schema> & { PUBLIC_URL: string; AUTH_SECRET: string; MAIL_MODE: 'outbox' | 'smtp'; devTools: boolean; stripe: StripeSettings };
 
 /** Parses and checks the environment (process.env by default; tests pass their own). */
 export function loadEnv(vars: Record<string, string | undefined> = process.env): Env {
@@ -59,5 +77,24 @@ export function loadEnv(vars: Record<string, string | undefined> = process.env):
     // A fixed development secret is fine: it only signs cookies of a loopback-only dev server.
     AUTH_SECRET: v.AUTH_SECRET ?? 'bandwright-development-secret-not-for-production-use',
     devTools: v.NODE_ENV !== 'production',
+    stripe: stripeSettings(v),
+  };
+}
+
+/**
+ * Outside production, with no provider host and no key configured, the server talks to the local
+ * fake that it starts itself on STRIPE_FAKE_PORT (fixed development key and signing secret).
+ * Otherwise the configured host (or the provider's default) and keys are used as given.
+ */
+function stripeSettings(v: z.infer<typeof schema>): StripeSettings {
+  const dev = v.NODE_ENV !== 'production';
+  const fake = dev && !v.STRIPE_API_HOST && !v.STRIPE_SECRET_KEY;
+  return {
+    secretKey: v.STRIPE_SECRET_KEY ?? (dev ? 'sk_test_bandwright_local_fake' : null),
+    webhookSecret: v.STRIPE_WEBHOOK_SECRET ?? (dev ? 'whsec_bandwright_local_fake_signing_secret' : null),
+    ...(fake
+      ? { host: '127.0.0.1', port: v.STRIPE_FAKE_PORT, protocol: 'http' as const }
+      : { host: v.STRIPE_API_HOST, port: v.STRIPE_API_PORT, protocol: v.STRIPE_API_PROTOCOL }),
+    fake,
   };
 }

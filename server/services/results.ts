@@ -17,6 +17,7 @@ import * as q from '../../db/queries/results';
 import type { Ctx } from '../context';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
 import { slugify } from './groups';
+import { assertStorageAvailable } from './plans';
 import { assertCurveValid, canonicalCurve, canonicalMeta, canonicalTheory, limitFileOf, storedBytesOf, type NormalizedVersion } from './result-upload';
 
 /**
@@ -174,22 +175,26 @@ export async function exportByLink(ctx: Ctx, viewer: q.Viewer, slug: string, ver
 // ---------------------------------------------------------------------------------------------
 // Writes
 
-/** Creates a result with version 1 as a draft. `opts.slug` is for the demo seed's fixed links. */
+/**
+ * Creates a result with version 1 as a draft. `opts.slug` is for the demo seed's fixed links;
+ * `opts.admitted` skips the quota check for a scan's draft (its room was checked when the scan started).
+ */
 export async function createResult(
   ctx: Ctx,
   groupId: string,
   actor: Actor,
   input: NormalizedVersion,
-  opts: { slug?: string } = {},
+  opts: { slug?: string; admitted?: boolean } = {},
 ): Promise<ResultVersion> {
   const resultId = await ctx.db.transaction(async (tx) => {
+    const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
+    if (!opts.admitted) await assertStorageAvailable(tx, groupId, storedBytes);
     let result: Awaited<ReturnType<typeof q.insertResult>>;
     for (let attempt = 0; !result; attempt++) {
       if (attempt >= 5) throw new Error('could not find a free result slug');
       if (opts.slug && attempt > 0) throw conflict(`The link name ${opts.slug} is taken`);
       result = await q.insertResult(tx, { groupId, slug: opts.slug ?? newSlug(input.meta.title), createdBy: actor.id });
     }
-    const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
     await q.insertVersion(tx, {
       resultId: result.id,
       version: 1,
@@ -207,11 +212,19 @@ export async function createResult(
 }
 
 /** A new draft version with the next number; concurrent calls queue on the result's row lock. */
-export async function addVersion(ctx: Ctx, groupId: string, actor: Actor, resultId: string, input: NormalizedVersion & { changeNote: string }): Promise<ResultVersion> {
+export async function addVersion(
+  ctx: Ctx,
+  groupId: string,
+  actor: Actor,
+  resultId: string,
+  input: NormalizedVersion & { changeNote: string },
+  opts: { admitted?: boolean } = {},
+): Promise<ResultVersion> {
   const version = await ctx.db.transaction(async (tx) => {
     if (!(await q.lockResult(tx, groupId, resultId))) throw notFound('Result');
-    const n = await q.takeNextVersion(tx, resultId);
     const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
+    if (!opts.admitted) await assertStorageAvailable(tx, groupId, storedBytes);
+    const n = await q.takeNextVersion(tx, resultId);
     await q.insertVersion(tx, {
       resultId,
       version: n,
@@ -246,6 +259,7 @@ export async function updateDraft(ctx: Ctx, groupId: string, resultId: string, v
     const theory = patch.theory === undefined ? (row.theory ?? null) : canonicalTheory(patch.theory);
     if (patch.curve !== undefined || patch.theory !== undefined) assertCurveValid(curve, theory);
     const storedBytes = storedBytesOf({ meta, curve, theory, sourceBytes: row.sourceBytes ?? 0 });
+    await assertStorageAvailable(tx, groupId, storedBytes - row.storedBytes, 'this change');
     await q.updateVersion(tx, resultId, version, {
       ...versionColumns({ meta, curve, theory }),
       ...(patch.changeNote !== undefined ? { changeNote: patch.changeNote } : {}),

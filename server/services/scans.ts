@@ -14,6 +14,7 @@ import { AppError, notFound, validationError, type ErrorDetail } from '../lib/er
 import { SCAN_POINT_QUEUE, type ScanPointTask } from '../jobs/queue';
 import { addVersion, createResult, getDetail } from './results';
 import { addStorage } from '../../db/queries/results';
+import { assertStorageAvailable, scanDraftAllowance } from './plans';
 
 /**
  * Scans: a grid of counting models queued as one task per point, computed by workers, and turned
@@ -129,6 +130,8 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
     await client.query('begin');
     const tx = dbOnClient(client);
     const storedBytes = req.sourceBytes + Buffer.byteLength(JSON.stringify(req.points));
+    // Room for the inputs and for the draft the scan will save (that save is not refused later).
+    await assertStorageAvailable(tx, groupId, storedBytes + scanDraftAllowance(req.points.length), 'this scan');
     const scan = await q.insertScan(tx, {
       groupId,
       options: req.options,
@@ -269,7 +272,7 @@ export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancell
   const meta: VersionMeta = { ...scan.meta, method: opts.method, cl: opts.cl, notes: notes.slice(0, 5000) };
   const input = { meta, curve, theory: null, source: null };
   const version = scan.targetResultId
-    ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: `Recomputed by scan ${scan.id.slice(0, 8)}` })
-    : await createResult(ctx, scan.groupId, actor, input);
+    ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: `Recomputed by scan ${scan.id.slice(0, 8)}` }, { admitted: true })
+    : await createResult(ctx, scan.groupId, actor, input, { admitted: true });
   await q.setScanOutcome(ctx.db, scanId, { state: why, resultId: version.resultId, resultVersion: version.version });
 }

@@ -1,0 +1,158 @@
+import { and, desc, eq, isNull, lte, or, sql } from 'drizzle-orm';
+import type { Executor } from '../../server/db';
+import { billingAccounts, groups, invoices, memberships, providerEvents, user } from '../schema';
+
+/**
+ * Data access of plans and billing: the group's storage counter under a row lock (quota checks),
+ * exact usage by kind, the group's billing account, invoices, and provider events handled once.
+ */
+
+export type BillingAccount = typeof billingAccounts.$inferSelect;
+
+/**
+ * Locks the group's row for the rest of the transaction and reads its storage counter. Concurrent
+ * writers that check a quota queue here, so check-and-add cannot interleave. `FOR NO KEY UPDATE`
+ * (the lock an UPDATE of storage_bytes takes anyway) rather than `FOR UPDATE`: inserts of rows
+ * that reference the group take `FOR KEY SHARE` on it, which `FOR UPDATE` would wait for, and two
+ * uploads that each inserted before locking would deadlock.
+ */
+export async function lockGroupStorage(db: Executor, groupId: string): Promise<{ storageBytes: number } | undefined> {
+  const rows = await db.select({ storageBytes: groups.storageBytes }).from(groups).where(eq(groups.id, groupId)).for('no key update');
+  return rows[0];
+}
+
+/** Bytes per kind, summed from the stored rows themselves (the counter must equal their total). */
+export async function usageByKind(db: Executor, groupId: string) {
+  // Plain SQL: the correlated sums need table aliases that the query builder does not render.
+  const r = await db.execute<{ total: string; uploads: string; scan_inputs: string; renders: string; render_count: string }>(sql`
+    select g.storage_bytes as total,
+      coalesce((select sum(v.stored_bytes) from result_versions v join results r on r.id = v.result_id where r.group_id = g.id), 0) as uploads,
+      coalesce((select sum(s.stored_bytes) from scans s where s.group_id = g.id), 0) as scan_inputs,
+      coalesce((select sum(fr.byte_length) from figure_renders fr join figures f on f.id = fr.figure_id where f.group_id = g.id), 0) as renders,
+      (select count(*) from figure_renders fr join figures f on f.id = fr.figure_id where f.group_id = g.id) as render_count
+    from groups g where g.id = ${groupId}`);
+  const row = r.rows[0];
+  if (!row) return undefined;
+  return {
+    totalBytes: Number(row.total),
+    uploadsBytes: Number(row.uploads),
+    scanInputsBytes: Number(row.scan_inputs),
+    rendersBytes: Number(row.renders),
+    renderCount: Number(row.render_count),
+  };
+}
+
+export async function getBillingAccount(db: Executor, groupId: string): Promise<BillingAccount | undefined> {
+  const rows = await db.select().from(billingAccounts).where(eq(billingAccounts.groupId, groupId));
+  return rows[0];
+}
+
+/** The group a provider customer or subscription belongs to (for events without our metadata). */
+export async function findGroupByProviderIds(db: Executor, ids: { customerId?: string | null; subscriptionId?: string | null }): Promise<string | undefined> {
+  const conditions = [
+    ids.subscriptionId ? eq(billingAccounts.subscriptionId, ids.subscriptionId) : undefined,
+    ids.customerId ? eq(billingAccounts.customerId, ids.customerId) : undefined,
+  ].filter((c) => c !== undefined);
+  if (!conditions.length) return undefined;
+  const rows = await db.select({ groupId: billingAccounts.groupId }).from(billingAccounts).where(or(...conditions)).limit(1);
+  return rows[0]?.groupId;
+}
+
+export async function groupExists(db: Executor, groupId: string): Promise<boolean> {
+  const rows = await db.select({ id: groups.id }).from(groups).where(eq(groups.id, groupId));
+  return rows.length > 0;
+}
+
+/** The account row of a group, created (free, no status) when missing. */
+export async function ensureBillingAccount(db: Executor, groupId: string): Promise<BillingAccount> {
+  await db.insert(billingAccounts).values({ groupId }).onConflictDoNothing({ target: billingAccounts.groupId });
+  return (await getBillingAccount(db, groupId))!;
+}
+
+/**
+ * Links the group to a provider customer unless it already has one (a concurrent checkout may
+ * have won); returns the customer id in force.
+ */
+export async function setCustomerIfMissing(db: Executor, groupId: string, customerId: string): Promise<string> {
+  await ensureBillingAccount(db, groupId);
+  await db
+    .update(billingAccounts)
+    .set({ customerId, updatedAt: sql`now()` })
+    .where(and(eq(billingAccounts.groupId, groupId), isNull(billingAccounts.customerId)));
+  return (await getBillingAccount(db, groupId))!.customerId!;
+}
+
+export type SubscriptionState = Pick<BillingAccount, 'plan' | 'status' | 'interval' | 'currentPeriodEnd'> & {
+  customerId: string | null;
+  subscriptionId: string;
+};
+
+/**
+ * Applies a subscription's state seen in a provider event at `eventAt`, unless a newer event was
+ * applied already (events may arrive out of order). Returns whether it was applied.
+ */
+export async function applySubscriptionState(db: Executor, groupId: string, s: SubscriptionState, eventAt: Date): Promise<boolean> {
+  await ensureBillingAccount(db, groupId);
+  const rows = await db
+    .update(billingAccounts)
+    .set({
+      plan: s.plan,
+      status: s.status,
+      interval: s.interval,
+      currentPeriodEnd: s.currentPeriodEnd,
+      subscriptionId: s.subscriptionId,
+      ...(s.customerId ? { customerId: sql`coalesce(${billingAccounts.customerId}, ${s.customerId})` } : {}),
+      lastEventAt: eventAt,
+      updatedAt: sql`now()`,
+    })
+    .where(and(eq(billingAccounts.groupId, groupId), or(isNull(billingAccounts.lastEventAt), lte(billingAccounts.lastEventAt, eventAt))))
+    .returning({ groupId: billingAccounts.groupId });
+  return rows.length > 0;
+}
+
+/** Records a provider event by id; false when it was handled before (a replay). */
+export async function recordProviderEvent(db: Executor, e: { id: string; type: string; createdAt: Date }): Promise<boolean> {
+  const rows = await db.insert(providerEvents).values(e).onConflictDoNothing({ target: providerEvents.id }).returning({ id: providerEvents.id });
+  return rows.length > 0;
+}
+
+export type InvoiceRow = typeof invoices.$inferSelect;
+
+/**
+ * Stores an invoice or updates it. A paid invoice stays paid: a late "payment failed" event for
+ * an invoice that was paid since cannot turn it back.
+ */
+export async function upsertInvoice(db: Executor, inv: Omit<typeof invoices.$inferInsert, 'createdAt'> & { createdAt: Date }) {
+  await db
+    .insert(invoices)
+    .values(inv)
+    .onConflictDoUpdate({
+      target: invoices.id,
+      set: {
+        amountCents: sql`excluded.amount_cents`,
+        currency: sql`excluded.currency`,
+        status: sql`case when ${invoices.status} = 'paid' then 'paid' else excluded.status end`,
+        periodStart: sql`excluded.period_start`,
+        periodEnd: sql`excluded.period_end`,
+        paidAt: sql`coalesce(${invoices.paidAt}, excluded.paid_at)`,
+      },
+    });
+}
+
+export async function listInvoices(db: Executor, groupId: string, limit = 100) {
+  return db.select().from(invoices).where(eq(invoices.groupId, groupId)).orderBy(desc(invoices.createdAt), desc(invoices.id)).limit(limit);
+}
+
+/** Owners of the group with their addresses (billing mail goes to them). */
+export async function listOwners(db: Executor, groupId: string) {
+  return db
+    .select({ name: user.name, email: user.email })
+    .from(memberships)
+    .innerJoin(user, eq(user.id, memberships.userId))
+    .where(and(eq(memberships.groupId, groupId), eq(memberships.role, 'owner')));
+}
+
+export async function providerEventSeen(db: Executor, id: string): Promise<boolean> {
+  const rows = await db.select({ id: providerEvents.id }).from(providerEvents).where(eq(providerEvents.id, id));
+  return rows.length > 0;
+}

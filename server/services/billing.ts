@@ -1,0 +1,372 @@
+import Stripe from 'stripe';
+import { formatBytes, formatMoney, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, type BillingInterval, type Invoice, type PlanView, type SubscriptionStatus } from '../../shared/plans';
+import * as q from '../../db/queries/billing';
+import { getGroupName } from '../../db/queries/groups';
+import type { Ctx } from '../context';
+import type { Executor } from '../db';
+import type { StripeSettings } from '../env';
+import { AppError, notFound } from '../lib/errors';
+import { linkMail, type OutgoingMail } from './mail';
+import { effectivePlan, isReadOnly, lapseNotice } from './plans';
+
+/**
+ * Billing through the payment provider's official SDK: customers, Checkout sessions on prices
+ * kept by lookup key, the billing portal, and webhook events that move a group's plan. In
+ * development and tests the SDK talks to the local fake (server/fakes/stripe) on loopback.
+ */
+
+/** Signed events older than this are refused (the provider's own default tolerance). */
+export const WEBHOOK_TOLERANCE_SECONDS = 300;
+
+const PRODUCT_ID = 'bandwright_institutional';
+const lookupKey = (interval: BillingInterval) => `bandwright_institutional_${interval}`;
+
+/** The SDK client for the configured provider (or the local fake); null when no key is configured. */
+export function createStripeClient(s: StripeSettings): Stripe | null {
+  if (!s.secretKey) return null;
+  return new Stripe(s.secretKey, {
+    ...(s.host ? { host: s.host } : {}),
+    ...(s.port ? { port: s.port } : {}),
+    ...(s.protocol ? { protocol: s.protocol } : {}),
+    // The fake answers at once or not at all; the real provider gets the SDK's safe retries.
+    maxNetworkRetries: s.fake || s.host === '127.0.0.1' ? 0 : 2,
+    timeout: 20_000,
+    telemetry: false,
+  });
+}
+
+function requireStripe(ctx: Ctx): Stripe {
+  if (!ctx.stripe) throw new AppError(503, 'billing_unavailable', 'Billing is not configured on this server (STRIPE_SECRET_KEY is not set)');
+  return ctx.stripe;
+}
+
+/** Calls the provider, turning its failures into answers a user can act on. */
+async function provider<T>(what: string, fn: () => Promise<T>): Promise<T> {
+  try {
+    return await fn();
+  } catch (e) {
+    if (e instanceof Stripe.errors.StripeConnectionError) {
+      throw new AppError(502, 'payment_provider_unreachable', `The payment provider cannot be reached (${what}); nothing was charged. Try again in a minute`);
+    }
+    if (e instanceof Stripe.errors.StripeError) {
+      console.error(`[billing] ${what}: ${e.type} ${e.code ?? ''} ${e.message}`);
+      throw new AppError(502, 'payment_provider_error', `The payment provider refused ${what}: ${e.message}`);
+    }
+    throw e;
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Plan, usage and invoices
+
+export async function getPlanView(ctx: Ctx, groupId: string): Promise<PlanView> {
+  const [account, usage] = await Promise.all([q.getBillingAccount(ctx.db, groupId), q.usageByKind(ctx.db, groupId)]);
+  if (!usage) throw notFound('Group');
+  const eff = effectivePlan(account);
+  const readOnly = isReadOnly(eff, usage.totalBytes);
+  let notice: string | null = null;
+  if (eff.lapse) notice = lapseNotice(eff.lapse, usage.totalBytes);
+  else if (usage.totalBytes > eff.plan.quotaBytes) {
+    notice = `This group uses ${formatBytes(usage.totalBytes)}, more than the ${eff.plan.name} plan's ${formatBytes(eff.plan.quotaBytes)}: nothing new can be stored until it uses less${eff.plan.id === 'free' ? ' or an owner upgrades' : ''}.`;
+  } else if (account?.status === 'incomplete') notice = 'A checkout was started but not paid; the group stays on the Free plan.';
+  return {
+    groupId,
+    plan: eff.plan,
+    status: account?.status ?? 'none',
+    interval: account?.interval ?? null,
+    currentPeriodEnd: account?.currentPeriodEnd?.toISOString() ?? null,
+    usage,
+    quotaBytes: eff.plan.quotaBytes,
+    readOnly,
+    notice,
+    hasBillingAccount: !!account?.customerId,
+    plans: [PLANS.free, PLANS.institutional],
+  };
+}
+
+export async function listInvoices(ctx: Ctx, groupId: string): Promise<Invoice[]> {
+  return (await q.listInvoices(ctx.db, groupId)).map((i) => ({
+    id: i.id,
+    amountCents: i.amountCents,
+    currency: i.currency,
+    status: i.status,
+    periodStart: i.periodStart?.toISOString() ?? null,
+    periodEnd: i.periodEnd?.toISOString() ?? null,
+    paidAt: i.paidAt?.toISOString() ?? null,
+    createdAt: i.createdAt.toISOString(),
+  }));
+}
+
+// ---------------------------------------------------------------------------------------------
+// Checkout and portal
+
+/** Price ids per SDK client (tests run several fakes in one process). */
+const priceCache = new WeakMap<Stripe, Map<string, string>>();
+
+/**
+ * The provider's price for the Institutional plan at `interval`, found by lookup key; created
+ * (taking over the lookup key) when missing or when shared/plans.ts changed its amount.
+ */
+async function priceFor(stripe: Stripe, interval: BillingInterval): Promise<string> {
+  const plan = INSTITUTIONAL_PLAN;
+  const amount = plan.prices![interval];
+  const cacheKey = `${interval}:${amount}:${plan.currency}`;
+  const cache = priceCache.get(stripe) ?? new Map<string, string>();
+  priceCache.set(stripe, cache);
+  const cached = cache.get(cacheKey);
+  if (cached) return cached;
+  const found = await stripe.prices.list({ lookup_keys: [lookupKey(interval)], active: true, limit: 1 });
+  const p = found.data[0];
+  let id: string;
+  if (p && p.unit_amount === amount && p.currency === plan.currency && p.recurring?.interval === interval) {
+    id = p.id;
+  } else {
+    try {
+      await stripe.products.retrieve(PRODUCT_ID);
+    } catch (e) {
+      if (!(e instanceof Stripe.errors.StripeInvalidRequestError && e.code === 'resource_missing')) throw e;
+      await stripe.products.create({ id: PRODUCT_ID, name: 'Bandwright Institutional plan' }).catch((err: unknown) => {
+        // Two first checkouts at once: the other one created it.
+        if (!(err instanceof Stripe.errors.StripeInvalidRequestError && err.code === 'resource_already_exists')) throw err;
+      });
+    }
+    const created = await stripe.prices.create({
+      product: PRODUCT_ID,
+      currency: plan.currency,
+      unit_amount: amount,
+      recurring: { interval },
+      lookup_key: lookupKey(interval),
+      transfer_lookup_key: true,
+    });
+    id = created.id;
+  }
+  cache.set(cacheKey, id);
+  return id;
+}
+
+/** The group's customer at the provider, created on its first checkout. */
+async function customerFor(ctx: Ctx, stripe: Stripe, groupId: string, payer: { email: string }): Promise<string> {
+  const account = await q.getBillingAccount(ctx.db, groupId);
+  if (account?.customerId) return account.customerId;
+  const name = (await getGroupName(ctx.db, groupId)) ?? 'Bandwright group';
+  const customer = await stripe.customers.create({ name, email: payer.email, metadata: { groupId } });
+  return q.setCustomerIfMissing(ctx.db, groupId, customer.id);
+}
+
+const planUrl = (ctx: Ctx, groupId: string, extra = '') => `${ctx.env.PUBLIC_URL}/plan?group=${encodeURIComponent(groupId)}${extra}`;
+
+/** A Checkout session for the Institutional plan; the app sends the owner to its `url`. */
+export async function startCheckout(ctx: Ctx, groupId: string, payer: { email: string }, interval: BillingInterval): Promise<{ url: string }> {
+  const stripe = requireStripe(ctx);
+  const account = await q.getBillingAccount(ctx.db, groupId);
+  if (account?.status === 'active' && account.plan === 'institutional') {
+    throw new AppError(409, 'already_subscribed', 'This group already has the Institutional plan; switch between monthly and yearly billing under Manage billing');
+  }
+  if (account?.status === 'past_due' || account?.status === 'unpaid') {
+    throw new AppError(409, 'payment_failed', 'The last payment for this group failed; update the card under Manage billing instead of subscribing again');
+  }
+  const session = await provider('the checkout', async () => {
+    const customer = await customerFor(ctx, stripe, groupId, payer);
+    const price = await priceFor(stripe, interval);
+    return stripe.checkout.sessions.create({
+      mode: 'subscription',
+      customer,
+      client_reference_id: groupId,
+      line_items: [{ price, quantity: 1 }],
+      // The provider fills in {CHECKOUT_SESSION_ID}; it must stay unencoded.
+      success_url: `${planUrl(ctx, groupId, '&checkout=success')}&session={CHECKOUT_SESSION_ID}`,
+      cancel_url: planUrl(ctx, groupId, '&checkout=cancelled'),
+      metadata: { groupId, interval },
+      subscription_data: { metadata: { groupId } },
+    });
+  });
+  if (!session.url) throw new AppError(502, 'payment_provider_error', 'The payment provider gave no checkout page');
+  return { url: session.url };
+}
+
+/** A billing portal session (change interval, cancel, new card); the app sends the owner to its `url`. */
+export async function openPortal(ctx: Ctx, groupId: string): Promise<{ url: string }> {
+  const stripe = requireStripe(ctx);
+  const account = await q.getBillingAccount(ctx.db, groupId);
+  if (!account?.customerId) throw new AppError(409, 'no_billing_account', 'This group has never paid for a plan, so there is no billing to manage yet; upgrade first');
+  const session = await provider('the billing portal', () => stripe.billingPortal.sessions.create({ customer: account.customerId!, return_url: planUrl(ctx, groupId) }));
+  return { url: session.url };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Webhooks
+
+const idOf = (v: string | { id: string } | null | undefined) => (v == null ? null : typeof v === 'string' ? v : v.id);
+
+function statusOf(s: Stripe.Subscription.Status): SubscriptionStatus {
+  switch (s) {
+    case 'active':
+    case 'trialing':
+      return 'active';
+    case 'past_due':
+      return 'past_due';
+    case 'unpaid':
+    case 'paused':
+      return 'unpaid';
+    case 'incomplete':
+      return 'incomplete';
+    default:
+      return 'canceled';
+  }
+}
+
+function subscriptionState(sub: Stripe.Subscription, ended: boolean, eventAt: Date): q.SubscriptionState {
+  const item = sub.items.data[0];
+  const interval: string | undefined = item?.price.recurring?.interval;
+  const status = ended ? 'canceled' : statusOf(sub.status);
+  return {
+    plan: status === 'canceled' ? 'free' : 'institutional',
+    status,
+    interval: interval === 'month' || interval === 'year' ? interval : null,
+    currentPeriodEnd: ended ? new Date((sub.ended_at ?? eventAt.getTime() / 1000) * 1000) : item ? new Date(item.current_period_end * 1000) : null,
+    customerId: idOf(sub.customer),
+    subscriptionId: sub.id,
+  };
+}
+
+/** Our group of an event's object: from the metadata we set at checkout, else by provider ids. */
+async function groupOf(tx: Executor, metadataGroupId: string | null | undefined, ids: { customerId?: string | null; subscriptionId?: string | null }) {
+  const groupId = metadataGroupId && /^[0-9a-f-]{36}$/i.test(metadataGroupId) ? metadataGroupId : await q.findGroupByProviderIds(tx, ids);
+  return groupId && (await q.groupExists(tx, groupId)) ? groupId : undefined;
+}
+
+const day = (unix: number | null | undefined) => (unix ? new Date(unix * 1000).toISOString().slice(0, 10) : 'an unknown date');
+
+async function billingMails(tx: Executor, ctx: Ctx, groupId: string, inv: Stripe.Invoice, kind: 'paid' | 'failed'): Promise<OutgoingMail[]> {
+  const [owners, groupName, usage] = await Promise.all([q.listOwners(tx, groupId), getGroupName(tx, groupId), q.usageByKind(tx, groupId)]);
+  const amount = formatMoney(kind === 'paid' ? inv.amount_paid : inv.amount_due, inv.currency);
+  const line = inv.lines.data[0];
+  const period = line ? `${day(line.period.start)} to ${day(line.period.end)}` : `${day(inv.period_start)} to ${day(inv.period_end)}`;
+  const name = groupName ?? 'your group';
+  const number = inv.number ?? inv.id;
+  const url = planUrl(ctx, groupId);
+  const used = usage?.totalBytes ?? 0;
+  return owners.map((o) =>
+    kind === 'paid'
+      ? linkMail({
+          to: o.email,
+          kind: 'billing_receipt',
+          subject: `Receipt: ${amount} for ${name}'s Institutional plan`,
+          lines: [
+            `Hello ${o.name},`,
+            `${name} paid ${amount} for the Bandwright Institutional plan. Thank you.`,
+            `Invoice ${number}, paid on ${day(inv.status_transitions?.paid_at ?? inv.created)}, for ${period}.`,
+            `The group may store ${formatBytes(INSTITUTIONAL_PLAN.quotaBytes)}; it uses ${formatBytes(used)}.`,
+          ],
+          linkLabel: 'Plan and invoices',
+          url,
+        })
+      : linkMail({
+          to: o.email,
+          kind: 'billing_payment_failed',
+          subject: `Payment failed: ${name}'s Institutional plan`,
+          lines: [
+            `Hello ${o.name},`,
+            `The payment of ${amount} for ${name}'s Institutional plan (invoice ${number}, ${period}) failed on ${day(inv.created)}${inv.attempt_count > 1 ? ` (attempt ${inv.attempt_count})` : ''}.`,
+            `Until it is paid the Free plan's ${formatBytes(FREE_PLAN.quotaBytes)} applies. The group uses ${formatBytes(used)}${used > FREE_PLAN.quotaBytes ? ', so it becomes read-only: nothing is deleted, and reading, downloading and deleting still work, but nothing new can be stored' : ''}.`,
+            'Update the card under Manage billing on the Plan screen; the open invoice is then charged again.',
+          ],
+          linkLabel: 'Plan and billing',
+          url,
+        }),
+  );
+}
+
+export type WebhookOutcome = { received: true; duplicate: boolean; applied: boolean };
+
+/**
+ * Handles one provider event: verifies its signature on the raw bytes (400 when unsigned,
+ * tampered, signed with another secret or older than the tolerance), records its id in the same
+ * transaction as its effect (a replay is recognised and does nothing), applies subscription
+ * changes only when no newer event was applied (events come in any order), always keeps invoices,
+ * and mails receipts and payment failures to the group's owners after the change is committed.
+ */
+export async function handleWebhook(ctx: Ctx, raw: unknown, signature: string | undefined): Promise<WebhookOutcome> {
+  const stripe = requireStripe(ctx);
+  const secret = ctx.env.stripe.webhookSecret;
+  if (!secret) throw new AppError(503, 'billing_unavailable', 'Webhooks are not configured on this server (STRIPE_WEBHOOK_SECRET is not set)');
+  if (!Buffer.isBuffer(raw) || raw.length === 0) throw new AppError(400, 'invalid_payload', 'Send the event as a raw JSON body with Content-Type: application/json');
+  if (!signature) throw new AppError(400, 'invalid_signature', 'The Stripe-Signature header is missing');
+  let event: Stripe.Event;
+  try {
+    event = stripe.webhooks.constructEvent(raw, signature, secret, WEBHOOK_TOLERANCE_SECONDS);
+  } catch (e) {
+    if (e instanceof Stripe.errors.StripeSignatureVerificationError) throw new AppError(400, 'invalid_signature', `The event's signature does not verify: ${e.message}`);
+    throw new AppError(400, 'invalid_payload', `The event cannot be read: ${(e as Error).message}`);
+  }
+
+  // The subscription behind a completed checkout, read before the transaction (a network call).
+  let checkoutSubscription: Stripe.Subscription | undefined;
+  if (event.type === 'checkout.session.completed' && !(await q.providerEventSeen(ctx.db, event.id))) {
+    const subId = idOf(event.data.object.subscription);
+    if (subId) checkoutSubscription = await provider('the subscription of a checkout', () => stripe.subscriptions.retrieve(subId));
+  }
+
+  const eventAt = new Date(event.created * 1000);
+  let applied = false;
+  let mails: OutgoingMail[] = [];
+  const fresh = await ctx.db.transaction(async (tx) => {
+    if (!(await q.recordProviderEvent(tx, { id: event.id, type: event.type, createdAt: eventAt }))) return false;
+    switch (event.type) {
+      case 'checkout.session.completed': {
+        const s = event.data.object;
+        const groupId = await groupOf(tx, s.client_reference_id ?? s.metadata?.groupId, { customerId: idOf(s.customer) });
+        if (!groupId) break;
+        const customerId = idOf(s.customer);
+        if (customerId) await q.setCustomerIfMissing(tx, groupId, customerId);
+        if (checkoutSubscription) applied = await q.applySubscriptionState(tx, groupId, subscriptionState(checkoutSubscription, false, eventAt), eventAt);
+        break;
+      }
+      case 'customer.subscription.created':
+      case 'customer.subscription.updated':
+      case 'customer.subscription.deleted': {
+        const sub = event.data.object;
+        const groupId = await groupOf(tx, sub.metadata?.groupId, { customerId: idOf(sub.customer), subscriptionId: sub.id });
+        if (!groupId) break;
+        // A late event about an earlier subscription must not end the one the group pays now.
+        const account = await q.getBillingAccount(tx, groupId);
+        if (account?.subscriptionId && account.subscriptionId !== sub.id && account.status !== 'canceled' && account.status !== 'none') break;
+        applied = await q.applySubscriptionState(tx, groupId, subscriptionState(sub, event.type === 'customer.subscription.deleted', eventAt), eventAt);
+        break;
+      }
+      case 'invoice.paid':
+      case 'invoice.payment_failed': {
+        const inv = event.data.object;
+        const subDetails = inv.parent?.subscription_details;
+        const groupId = await groupOf(tx, subDetails?.metadata?.groupId, { customerId: idOf(inv.customer), subscriptionId: idOf(subDetails?.subscription) });
+        if (!groupId) break;
+        const line = inv.lines.data[0];
+        const paid = event.type === 'invoice.paid';
+        await q.upsertInvoice(tx, {
+          id: inv.id,
+          groupId,
+          amountCents: paid ? inv.amount_paid : inv.amount_due,
+          currency: inv.currency,
+          status: paid ? 'paid' : (inv.status ?? 'open'),
+          periodStart: new Date((line?.period.start ?? inv.period_start) * 1000),
+          periodEnd: new Date((line?.period.end ?? inv.period_end) * 1000),
+          paidAt: paid ? new Date((inv.status_transitions?.paid_at ?? event.created) * 1000) : null,
+          createdAt: new Date(inv.created * 1000),
+        });
+        applied = true;
+        mails = await billingMails(tx, ctx, groupId, inv, paid ? 'paid' : 'failed');
+        break;
+      }
+      default:
+        // Recorded, so the provider stops sending it; nothing else to do.
+        break;
+    }
+    return true;
+  });
+  // After the commit, so a rolled-back event sends nothing. The outbox is our own table; a real
+  // mail server that fails here is logged and the state change stands.
+  for (const m of mails) {
+    await ctx.mail.send(m).catch((err: unknown) => console.error(`[billing] mail to ${m.to} failed:`, err));
+  }
+  return { received: true, duplicate: !fresh, applied };
+}

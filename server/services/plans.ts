@@ -1,0 +1,112 @@
+import { FREE_PLAN, formatBytes, INSTITUTIONAL_PLAN, type Plan } from '../../shared/plans';
+import * as q from '../../db/queries/billing';
+import type { Executor } from '../db';
+import { AppError, notFound } from '../lib/errors';
+
+/**
+ * Plans in force and the storage quota. Every write that adds stored bytes (result uploads and
+ * versions, draft edits that grow, scan inputs, cached renders) calls `assertStorageAvailable` in
+ * the transaction that then adds the bytes; deletions are never checked.
+ */
+
+export type AccountState = Pick<q.BillingAccount, 'plan' | 'status' | 'currentPeriodEnd' | 'lastEventAt' | 'updatedAt'> | undefined;
+
+/**
+ * Why a group that paid is back on the free plan: its payment failed (the provider keeps
+ * retrying: past_due, unpaid) or the subscription ended (cancelled, or never completed).
+ */
+export type Lapse = { reason: 'payment_failed' | 'plan_ended'; since: Date | null };
+
+export type EffectivePlan = { plan: Plan; lapse: Lapse | null };
+
+/**
+ * The plan in force for a group's billing account: Institutional only while its subscription is
+ * active (the provider's "trialing" is stored as active too); a failed payment or an ended
+ * subscription falls back to the free plan's quota. Nothing is deleted: a group above the free
+ * quota just cannot add bytes until it pays again or deletes enough (see `assertStorageAvailable`).
+ */
+export function effectivePlan(account: AccountState): EffectivePlan {
+  if (!account || account.status === 'none') return { plan: FREE_PLAN, lapse: null };
+  if (account.status === 'active' && account.plan === 'institutional') return { plan: INSTITUTIONAL_PLAN, lapse: null };
+  if (account.status === 'past_due' || account.status === 'unpaid') return { plan: FREE_PLAN, lapse: { reason: 'payment_failed', since: account.lastEventAt ?? account.updatedAt } };
+  if (account.status === 'canceled') return { plan: FREE_PLAN, lapse: { reason: 'plan_ended', since: account.currentPeriodEnd ?? account.updatedAt } };
+  // incomplete: a checkout that never finished paying; the group stays on Free, nothing lapsed.
+  return { plan: FREE_PLAN, lapse: null };
+}
+
+/** The plan in force for a group now. */
+export async function planOfGroup(db: Executor, groupId: string): Promise<EffectivePlan> {
+  return effectivePlan(await q.getBillingAccount(db, groupId));
+}
+
+const day = (d: Date | null) => (d ? ` on ${d.toISOString().slice(0, 10)}` : '');
+
+/** What a lapsed plan means for the group and how an owner fixes it (plan screen and 402 answers). */
+export function lapseNotice(lapse: Lapse, usedBytes: number): string {
+  const over = usedBytes > FREE_PLAN.quotaBytes;
+  const why =
+    lapse.reason === 'payment_failed'
+      ? `The payment for this group's Institutional plan failed${day(lapse.since)}, so the Free plan's ${formatBytes(FREE_PLAN.quotaBytes)} applies until it is paid.`
+      : `This group's Institutional plan ended${day(lapse.since)}, so the Free plan's ${formatBytes(FREE_PLAN.quotaBytes)} applies.`;
+  const state = over
+    ? ` The group uses ${formatBytes(usedBytes)}, so it is read-only: nothing was deleted, and reading, downloading and deleting still work, but nothing new can be stored.`
+    : '';
+  const fix =
+    lapse.reason === 'payment_failed'
+      ? ' An owner can update the card under Manage billing on the Plan screen (the open invoice is then charged again)'
+      : ' An owner can subscribe again on the Plan screen';
+  return `${why}${state}${fix}${over ? `, or delete data until the group uses less than ${formatBytes(FREE_PLAN.quotaBytes)}.` : '.'}`;
+}
+
+/** Read-only: a lapsed plan and more stored than the free plan allows. */
+export function isReadOnly(p: EffectivePlan, usedBytes: number): boolean {
+  return p.lapse !== null && usedBytes > FREE_PLAN.quotaBytes;
+}
+
+/**
+ * Checks that the group may store `addBytes` more, and keeps it so until the transaction ends:
+ * the group's row is locked first, so concurrent writers queue and each sees the bytes the one
+ * before it added. Call it inside the transaction that adds the bytes (`addStorage`), before the
+ * insert. Throws 402 `read_only` when a lapsed plan left the group above the free quota, 413
+ * `quota_exceeded` when the bytes do not fit the plan in force. Shrinking or zero writes pass.
+ * `what` names the write in the message ("this upload", "this scan", "this render").
+ */
+export async function assertStorageAvailable(tx: Executor, groupId: string, addBytes: number, what = 'this upload'): Promise<void> {
+  const locked = await q.lockGroupStorage(tx, groupId);
+  if (!locked) throw notFound('Group');
+  if (addBytes <= 0) return;
+  const p = await planOfGroup(tx, groupId);
+  const used = locked.storageBytes;
+  if (p.lapse && isReadOnly(p, used)) {
+    throw new AppError(402, 'read_only', `This group is read-only. ${lapseNotice(p.lapse, used)}`);
+  }
+  const quota = p.plan.quotaBytes;
+  if (used + addBytes > quota) {
+    const fix =
+      p.plan.id === 'free'
+        ? 'An owner can upgrade to the Institutional plan (Plan screen) or delete drafts.'
+        : 'Delete drafts or cached renders you no longer need.';
+    throw new AppError(
+      413,
+      'quota_exceeded',
+      `This group uses ${formatBytes(used)} of ${formatBytes(quota)} (${p.plan.name} plan); ${what} needs ${formatBytes(addBytes)} more. ${fix}`,
+    );
+  }
+}
+
+/**
+ * The render cache allowed by the plan in force (for the figure service's cache: how many renders
+ * a group keeps and how long an unused one stays).
+ */
+export async function renderCacheLimits(db: Executor, groupId: string): Promise<Plan['renderCache']> {
+  return (await planOfGroup(db, groupId)).plan.renderCache;
+}
+
+/**
+ * Bytes a scan's draft result may take, checked when the scan starts (the draft itself is saved
+ * without a check, so a finished computation is never lost): its provenance and notes, and per
+ * grid point x, observed and five expected limits as JSON numbers.
+ */
+export function scanDraftAllowance(points: number): number {
+  return 8 * 1024 + 192 * points;
+}
