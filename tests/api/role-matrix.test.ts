@@ -1,11 +1,12 @@
 import { eq } from 'drizzle-orm';
 import request from 'supertest';
 import { createApp } from '@/server/app';
-import { apiTokens, groups, results, resultVersions, scans } from '@/db/schema';
+import { apiTokens, billingAccounts, groups, providerEvents, results, resultVersions, scans } from '@/db/schema';
 import { startQueue } from '@/server/jobs/queue';
 import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
-import { startTestApp, uniqueEmail, type Agent, type TestApp } from '../helpers/app';
+import { uniqueEmail, type Agent, type TestApp } from '../helpers/app';
+import { giveCustomer, signedEvent, startBillingTestApp, type BillingTestApp } from '../helpers/billing';
 import {
   makeCrew,
   makeGroup,
@@ -40,7 +41,9 @@ type World = { t: TestApp; crew: Crew; target: Person; outsider: Person; host: P
 type Caller = { kind: CallerKind; person?: Person };
 type Prepared = {
   params: Record<string, string>;
-  body?: object;
+  /** JSON body, or a string sent as is (with `headers` naming its type). */
+  body?: object | string;
+  headers?: Record<string, string>;
   /** For routes that change state: did the change happen? (must be true when allowed, false when refused) */
   effect?: () => Promise<boolean>;
 };
@@ -406,6 +409,52 @@ const MATRIX: Entry[] = [
     mutates: false,
     prepare: async (w, groupId) => ({ params: { groupId, scanId: await sharedScan(w, groupId) } }),
   },
+
+  // --- Plans and billing (owners manage billing; every member reads the plan and usage) ---
+  { method: 'get', path: '/api/groups/:groupId/plan', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  { method: 'get', path: '/api/groups/:groupId/invoices', access: 'owner', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/billing/checkout',
+    access: 'owner',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => ({
+      params: { groupId },
+      body: { interval: 'month' },
+      // A checkout creates the group's customer at the payment fake.
+      effect: async () => (await w.t.ctx.db.select({ c: billingAccounts.customerId }).from(billingAccounts).where(eq(billingAccounts.groupId, groupId)))[0]?.c != null,
+    }),
+  },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/billing/portal',
+    access: 'owner',
+    ok: 200,
+    mutates: true,
+    prepare: async (_w, groupId) => {
+      await giveCustomer(t, groupId);
+      return { params: { groupId }, body: {} };
+    },
+  },
+  {
+    // The provider's webhook: no session, a signature instead (billing.test.ts refuses bad ones).
+    method: 'post',
+    path: '/api/billing/webhook',
+    access: 'anonymous',
+    ok: 200,
+    mutates: false,
+    prepare: async (w) => {
+      const e = signedEvent('customer.created', { id: 'cus_matrix', object: 'customer' });
+      const id = (JSON.parse(e.payload) as { id: string }).id;
+      return {
+        params: {},
+        headers: { 'Content-Type': 'application/json', 'Stripe-Signature': e.signature },
+        body: e.payload,
+        effect: async () => (await w.t.ctx.db.select().from(providerEvents).where(eq(providerEvents.id, id))).length === 1,
+      };
+    },
+  },
 ];
 
 const scanModel = (n: number) => ({ observed: [n, n + 2], signal: [1, 2], backgrounds: [{ name: 'continuum', yields: [n, n + 1] }] });
@@ -474,11 +523,12 @@ function fill(path: string, params: Record<string, string>): string {
   });
 }
 
-let t: TestApp;
+let t: BillingTestApp;
 let w: World;
 
 beforeAll(async () => {
-  t = await startTestApp();
+  // With the payment fake, so that checkout and the portal reach a provider.
+  t = await startBillingTestApp();
   t.ctx.jobs = await startQueue(t.ctx.env);
   const [crew, target, outsider, host] = await Promise.all([
     makeCrew(t),
@@ -507,6 +557,7 @@ describe('role × route matrix', () => {
       const agent: Agent = person?.agent ?? request.agent(t.app);
       const url = fill(entry.path, prepared.params);
       let call = agent[entry.method](url);
+      if (prepared.headers) call = call.set(prepared.headers);
       if (prepared.body !== undefined) call = call.send(prepared.body);
       const res = await call;
 
