@@ -55,12 +55,19 @@ export function densify(points: readonly [number, number][], step: number): [num
 
 type Placement = { legend: Corner | null; info: Corner | null };
 
+/** Lexicographic comparison of cost tuples. */
+function lessThan(a: number[], b: number[]): boolean {
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return a[i]! < b[i]!;
+  return false;
+}
+
 /**
  * Corners for the legend and the info block. A fixed legend corner is kept; 'auto' takes the
- * corner whose box covers the fewest curve points, together with the best corner for the info
- * block (never the legend's, a bottom corner only when it covers fewer points). Boxes over an
- * annotation count as covering many points. Ties go by the corner orders above, so the result
- * is deterministic.
+ * corner whose box covers the fewest curve points, so the legend never covers data while a free
+ * corner exists. The info block then takes the best other corner (a bottom corner only when it
+ * covers fewer points than the top ones). Covering an annotation counts as worse than covering
+ * any number of points; the two boxes never overlap when any choice avoids it. Ties go by the
+ * corner orders above, so the result is deterministic.
  */
 export function placeBoxes(opts: {
   plot: Rect;
@@ -71,21 +78,19 @@ export function placeBoxes(opts: {
   info: { w: number; h: number } | null;
 }): Placement {
   const { plot, inset, samples, obstacles, legend, info } = opts;
-  const cost = (r: Rect) => pointsIn(r, samples) + 1e4 * obstacles.filter((o) => overlaps(o, r)).length;
+  const cost = (r: Rect | null) => (r ? [obstacles.filter((o) => overlaps(o, r)).length, pointsIn(r, samples)] : [0, 0]);
   const legendChoices = legend ? (legend.fixed ? [legend.fixed] : LEGEND_CORNERS) : [null];
-  let best: { score: number; p: Placement } | null = null;
+  let best: { score: number[]; p: Placement } | null = null;
   for (const lc of legendChoices) {
     const lBox = legend && lc ? cornerBox(plot, lc, legend.w, legend.h, inset) : null;
-    const lCost = lBox ? cost(lBox) : 0;
+    const [lHits, lPoints] = cost(lBox);
     for (const ic of info ? INFO_CORNERS : [null]) {
       if (ic !== null && ic === lc) continue;
       const iBox = info && ic ? cornerBox(plot, ic, info.w, info.h, inset) : null;
-      let score = lCost;
-      if (iBox) {
-        score += cost(iBox) + (ic!.startsWith('bottom') ? 0.5 : 0);
-        if (lBox && overlaps(lBox, iBox)) score += 1e6;
-      }
-      if (!best || score < best.score) best = { score, p: { legend: lc, info: ic } };
+      const [iHits, iPoints] = cost(iBox);
+      const clash = lBox && iBox && overlaps(lBox, iBox) ? 1 : 0;
+      const score = [clash, lHits!, lPoints!, iHits!, iPoints! + (ic?.startsWith('bottom') ? 0.5 : 0)];
+      if (!best || lessThan(score, best.score)) best = { score, p: { legend: lc, info: ic } };
     }
   }
   return best?.p ?? { legend: null, info: null };

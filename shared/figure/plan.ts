@@ -271,7 +271,7 @@ export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[],
   if (spec.energyLabel) for (const line of energyLines(metas, theme)) info.push({ label: line, role: 'energy' });
   if (spec.clLabel && metas.length) {
     const cls = distinct(metas.map((m) => shortNumber(m.cl * 100)));
-    info.push({ label: fill(theme.words.cl, { cl: cls.join(', ') }), role: 'cl' });
+    info.push({ label: cls.map((cl) => fill(theme.words.cl, { cl })).join(', '), role: 'cl' });
   }
 
   const shadingLayer = spec.excludedShading ? (drawn.find(canCompare) ?? null) : null;

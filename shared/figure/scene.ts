@@ -149,6 +149,16 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     if (good.length < 2) return null;
     sample(good.map((p) => [X(p[0]), Y(p[1])]));
     sample(good.map((p) => [X(p[0]), Y(p[2])]));
+    // A band is data too: sample across it, not only along its edges.
+    for (let i = 1; i < good.length; i++) {
+      const [a, b] = [good[i - 1]!, good[i]!];
+      const steps = Math.max(1, Math.ceil(Math.abs(X(b[0]) - X(a[0])) / sampleStep));
+      for (let k = 0; k < steps; k++) {
+        const f = k / steps;
+        const x = X(a[0]) + f * (X(b[0]) - X(a[0]));
+        sample([[x, Y(a[1]) + f * (Y(b[1]) - Y(a[1]))], [x, Y(a[2]) + f * (Y(b[2]) - Y(a[2]))]]);
+      }
+    }
     return area<Triple>().defined(ok).x((p) => X(p[0])).y0((p) => Y(p[1])).y1((p) => Y(p[2]))(pts);
   };
   const curve = (d: string | null, role: string, layer: number, style: { fill?: string; stroke?: string; width?: number; dash?: number[] | null }) => {

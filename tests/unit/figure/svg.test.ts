@@ -1,0 +1,71 @@
+import { JSDOM } from 'jsdom';
+import { buildScene, collectLabels, labelKey, resolveFigureTheme, sceneToSvg, type FigureLayerData, type Glyphs, type LabelRequest } from '@/shared/figure';
+import { dijet, dilepton, ID, spec, stubGlyphs, stubMeasure } from './fixtures';
+
+const HOSTILE = ['<script>alert(1)</script>', '"><svg onload=alert(1)>', ']]>', "' onmouseover='x", '&amp; &#60;'];
+
+function render(labels: string[], title: string, glyphsFor?: (g: Glyphs, requests: LabelRequest[]) => Glyphs) {
+  const s = spec({
+    title: 'Hostile',
+    x: { scale: 'linear', min: null, max: null, label: labels[0]! },
+    y: { scale: 'log', min: null, max: null, label: labels[1]! },
+    layers: [{ resultId: ID[0], version: 3, label: labels[2]! }, { resultId: ID[1], version: 1 }],
+    annotations: labels.slice(3).map((text) => ({ text, x: 0.1, y: 0.5 })),
+  });
+  const layers: FigureLayerData[] = [dijet, { ...dilepton, title: labels[0]! } as FigureLayerData];
+  const theme = resolveFigureTheme('publication');
+  const requests = collectLabels(s, layers, theme);
+  const glyphs = stubGlyphs(requests);
+  return { svg: sceneToSvg(buildScene(s, layers, theme, stubMeasure), glyphsFor ? glyphsFor(glyphs, requests) : glyphs, { title }), requests };
+}
+
+/** Element names of a well-formed SVG document (JSDOM throws on malformed XML). */
+function elementNames(svg: string): Set<string> {
+  const doc = new JSDOM(svg, { contentType: 'image/svg+xml' }).window.document;
+  return new Set([...doc.querySelectorAll('*')].map((e) => e.localName));
+}
+
+describe('SVG output', () => {
+  test('hostile labels and titles never reach the markup unescaped', () => {
+    const { svg } = render([...HOSTILE, ...HOSTILE], HOSTILE.join(' '), (g, requests) => {
+      // A typesetter that returned hostile path data is escaped too.
+      const first = requests[0]!;
+      g.set(labelKey(first), { width: 5, ascent: 3, descent: 1, paths: ['M0,0"/><script>alert(1)</script><path d="'] });
+      return g;
+    });
+    for (const h of HOSTILE) expect(svg).not.toContain(h);
+    expect(svg).not.toMatch(/<script|<foreignObject|<text|<!--|<!\[CDATA\[/i);
+    expect(svg).toContain('<title>&lt;script&gt;alert(1)&lt;/script&gt; &quot;&gt;&lt;svg onload=alert(1)&gt; ]]&gt;');
+    const names = elementNames(svg);
+    expect([...names].every((n) => ['svg', 'title', 'defs', 'clipPath', 'rect', 'path', 'g'].includes(n))).toBe(true);
+    // No event-handler attribute anywhere (the hostile text stays text inside <title>).
+    const doc = new JSDOM(svg, { contentType: 'image/svg+xml' }).window.document;
+    const attributes = [...doc.querySelectorAll('*')].flatMap((e) => e.getAttributeNames());
+    expect(attributes.filter((a) => /^on/i.test(a))).toEqual([]);
+    expect(doc.querySelector('title')!.textContent).toBe(HOSTILE.join(' '));
+  });
+  test('standalone SVG 1.1: size in points with a matching viewBox, labels as paths, curves clipped', () => {
+    const { svg } = render(['$m$ [TeV]', '$\\sigma$ [fb]', 'Dijet'], 'A figure');
+    expect(svg.startsWith('<?xml version="1.0" encoding="UTF-8"?>\n<svg xmlns="http://www.w3.org/2000/svg" version="1.1" width="243.78pt" height="182.835pt" viewBox="0 0 243.78 182.835">')).toBe(true);
+    expect(svg).toContain('<title>A figure</title>');
+    const doc = new JSDOM(svg, { contentType: 'image/svg+xml' }).window.document;
+    const clipId = doc.querySelector('clipPath')!.getAttribute('id')!;
+    expect(doc.querySelectorAll(`path[clip-path="url(#${clipId})"]`).length).toBeGreaterThan(5);
+    // Each label is one group of outline paths.
+    expect(doc.querySelectorAll('g[transform] > path').length).toBeGreaterThan(10);
+    expect(svg).not.toContain('NaN');
+  });
+  test('a label missing from the glyphs is left out: no text, no comment', () => {
+    const full = render(['Mass', 'Limit', 'Dijet'], 'x');
+    const missing = render(['Mass', 'Limit', 'Dijet'], 'x', (g) => {
+      for (const k of [...g.keys()]) if (k.endsWith('|Mass')) g.delete(k);
+      return g;
+    });
+    const groups = (svg: string) => (svg.match(/<g /g) ?? []).length;
+    expect(groups(missing.svg)).toBe(groups(full.svg) - 1);
+    expect(missing.svg).not.toMatch(/<text|<!--|>Mass</);
+  });
+  test('deterministic', () => {
+    expect(render(['a', 'b', 'c'], 't').svg).toBe(render(['a', 'b', 'c'], 't').svg);
+  });
+});
