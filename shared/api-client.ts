@@ -12,6 +12,7 @@ import type {
   UpdateGroupInput,
 } from './schemas/groups';
 import type { ErrorDetail } from './errors';
+import type { CheckoutInput, Invoice, PlanView } from './plans';
 import type {
   ApiTokenSummary,
   CreateResultInput,
@@ -175,6 +176,15 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       /** The token text is in the answer once and never again. */
       create: (name: string) => call<ApiTokenSummary & { token: string }>('POST', '/api/tokens', { name }),
       revoke: (tokenId: string) => call<void>('DELETE', `/api/tokens/${enc(tokenId)}`),
+    },
+    billing: {
+      /** The plan in force, usage by kind, quota and read-only state (every member). */
+      plan: (groupId: string) => call<PlanView>('GET', `/api/groups/${enc(groupId)}/plan`),
+      invoices: (groupId: string) => call<{ invoices: Invoice[] }>('GET', `/api/groups/${enc(groupId)}/invoices`),
+      /** A checkout page address at the payment provider (owners); open it in the browser. */
+      checkout: (groupId: string, input: CheckoutInput) => call<{ url: string }>('POST', `/api/groups/${enc(groupId)}/billing/checkout`, input),
+      /** A billing portal address (owners of a group that has paid before). */
+      portal: (groupId: string) => call<{ url: string }>('POST', `/api/groups/${enc(groupId)}/billing/portal`, {}),
     },
   };
 }

@@ -8,7 +8,7 @@ export const NAV_ITEMS: NavItem[] = [
   { href: '/compute', path: '/compute', label: 'Compute', icon: '∑' },
   { href: '/members', path: '/members', label: 'Members', icon: '◉' },
   { href: '/inbox', path: '/inbox', label: 'Inbox (development)', icon: '✉', devOnly: true },
-  { href: '/account', path: '/account', label: 'Account', icon: '☺', also: /^\/tokens$/ },
+  { href: '/account', path: '/account', label: 'Account', icon: '☺', also: /^\/(tokens|plan)$/ },
 ];
 
 export function isActive(item: NavItem, pathname: string): boolean {

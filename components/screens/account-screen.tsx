@@ -31,6 +31,13 @@ export function AccountScreen() {
         ))}
       </Card>
       <Card>
+        <Text variant="label">Storage plan</Text>
+        <Text variant="muted">Your group's plan, its storage use and, for owners, upgrades, billing and invoices.</Text>
+        <Link href="/plan" style={styles.link}>
+          Plan and storage
+        </Link>
+      </Card>
+      <Card>
         <Text variant="label">API tokens</Text>
         <Text variant="muted">Personal tokens let your scripts and pipelines push results as you.</Text>
         <Link href="/tokens" style={styles.link}>

@@ -8,19 +8,21 @@ import { closeContext, createContext, type Ctx } from '@/server/context';
 import { loadEnv } from '@/server/env';
 import { startQueue } from '@/server/jobs/queue';
 import { startScanWorkers } from '@/server/jobs/scan-worker';
+import { startStripeFake, type StripeFake } from '@/server/fakes/stripe';
+import { fakeStripeEnv, TEST_STRIPE_KEY, TEST_WEBHOOK_SECRET } from './billing';
 import { createTestDatabase } from './db';
 
 export const SCREENSHOT_DIR = path.resolve(__dirname, '../../test-results/screenshots');
 export const VIEWPORTS = { phone: { width: 390, height: 844 }, wide: { width: 1280, height: 800 } } as const;
 export type ViewportName = keyof typeof VIEWPORTS;
 
-export type E2E = { base: string; ctx: Ctx; browser: Browser; close: () => Promise<void> };
+export type E2E = { base: string; ctx: Ctx; browser: Browser; close: () => Promise<void>; stripeFake?: StripeFake };
 
 /**
  * The real server (API + exported web app from dist/) on a free port with a fresh database, and
  * Debian's Chromium driven by playwright-core. `npm test` builds dist/ before running these.
  */
-export async function startE2E(opts: { jobs?: boolean } = {}): Promise<E2E> {
+export async function startE2E(opts: { jobs?: boolean; stripe?: boolean } = {}): Promise<E2E> {
   if (process.env.CHROMIUM_PROBLEM) throw new Error(process.env.CHROMIUM_PROBLEM);
   const db = await createTestDatabase();
   // Port first, so PUBLIC_URL (trusted origin, links in mail) is the real address.
@@ -31,7 +33,13 @@ export async function startE2E(opts: { jobs?: boolean } = {}): Promise<E2E> {
   const port = (probe.address() as AddressInfo).port;
   await new Promise((r) => probe.close(r));
   const base = `http://127.0.0.1:${port}`;
-  const ctx = createContext(loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'development', PUBLIC_URL: base, PORT: String(port), AUTH_RATE_LIMIT: '1000' }));
+  // Billing: the payment fake on its own loopback port, sending its webhooks to this server.
+  const stripeFake = opts.stripe
+    ? await startStripeFake({ secretKey: TEST_STRIPE_KEY, webhookSecret: TEST_WEBHOOK_SECRET, webhookUrl: `${base}/api/billing/webhook`, log: () => {} })
+    : undefined;
+  const ctx = createContext(
+    loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'development', PUBLIC_URL: base, PORT: String(port), AUTH_RATE_LIMIT: '1000', ...(stripeFake ? fakeStripeEnv(stripeFake.port) : {}) }),
+  );
   // Scans need the job queue and a worker, as `npm start` runs them.
   let stopWorkers = () => {};
   if (opts.jobs) {
@@ -44,6 +52,7 @@ export async function startE2E(opts: { jobs?: boolean } = {}): Promise<E2E> {
   const stopServer = async () => {
     stopWorkers();
     await new Promise((r) => server.close(r));
+    await stripeFake?.close();
     await closeContext(ctx);
     await db.drop();
   };
@@ -70,6 +79,7 @@ export async function startE2E(opts: { jobs?: boolean } = {}): Promise<E2E> {
   return {
     base,
     ctx,
+    stripeFake,
     browser,
     close: async () => {
       await browser.close();

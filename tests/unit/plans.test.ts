@@ -1,3 +1,4 @@
+import { statusLine, usageKinds, usageSummary } from '@/components/billing/plan-text';
 import { effectivePlan, isReadOnly, lapseNotice, scanDraftAllowance, type AccountState } from '@/server/services/plans';
 import { checkoutSchema, formatBytes, formatMoney, formatPrice, FREE_PLAN, GB, INSTITUTIONAL_PLAN, KB, MB, PLANS, usageFraction } from '@/shared/plans';
 
@@ -99,5 +100,29 @@ describe('the plan in force', () => {
   test('a scan reserves room for its draft in proportion to its grid', () => {
     expect(scanDraftAllowance(0)).toBe(8 * KB);
     expect(scanDraftAllowance(100) - scanDraftAllowance(0)).toBe(19_200);
+  });
+});
+
+describe('plan screen wording', () => {
+  const usage = { totalBytes: 1.5 * MB, uploadsBytes: MB, scanInputsBytes: 0.25 * MB, rendersBytes: 0.25 * MB, renderCount: 1 };
+
+  test('the usage line and the kinds add up to the counter', () => {
+    expect(usageSummary({ usage, quotaBytes: 50 * MB })).toBe('1.5 MB of 50 MB used (3%)');
+    expect(usageSummary({ usage: { ...usage, totalBytes: 100 }, quotaBytes: 50 * MB })).toBe('100 bytes of 50 MB used (<1%)');
+    expect(usageKinds({ usage }).map((k) => [k.key, k.bytes, k.detail])).toEqual([
+      ['uploads', MB, undefined],
+      ['scanInputs', 0.25 * MB, undefined],
+      ['renders', 0.25 * MB, '1 render'],
+    ]);
+    // Bytes the kinds do not explain are shown, not hidden.
+    expect(usageKinds({ usage: { ...usage, totalBytes: 2 * MB } }).at(-1)).toMatchObject({ key: 'other', bytes: 0.5 * MB });
+  });
+
+  test('the status line', () => {
+    const base = { plan: FREE_PLAN, interval: null, currentPeriodEnd: null } as const;
+    expect(statusLine({ ...base, status: 'none' })).toBe('No paid subscription: the Free plan applies.');
+    expect(statusLine({ ...base, plan: INSTITUTIONAL_PLAN, status: 'active', interval: 'year', currentPeriodEnd: '2031-05-01T12:00:00Z' })).toMatch(/^Billed yearly \(€490\.00 per year\); renews on .*2031/);
+    expect(statusLine({ ...base, status: 'past_due' })).toBe('The last payment failed: the Free plan applies until it is paid.');
+    expect(statusLine({ ...base, status: 'canceled', currentPeriodEnd: '2031-05-01T12:00:00Z' })).toMatch(/^The Institutional plan ended on .*2031; the Free plan applies\.$/);
   });
 });

@@ -1,0 +1,2 @@
+import { PlanScreen } from '@/components/screens/plan-screen';
+export default PlanScreen;
