@@ -7,7 +7,9 @@ import { figureSizeCm, type FigureSpec, type LayerSpec } from '../schemas/figure
 import type { Curve, Theory, VersionMeta } from '../schemas/results';
 import { tint } from './color';
 import { layerColor, type ResolvedTheme } from './theme';
-import { axisDomain, planAxisTicks, type AxisPlan } from './ticks';
+import { LEGEND_CORNERS, type Corner } from './legend';
+import { roomForBoxes, roughInfoSize, roughLegendSize, roughWidth } from './room';
+import { axisDomain, axisUnit, planAxisTicks, type AxisPlan } from './ticks';
 import type { FigureLayerData, LabelRequest } from './types';
 
 export type AvailableLayer = Extract<FigureLayerData, { available: true }>;
@@ -126,22 +128,24 @@ export function drawnLayers(spec: FigureSpec, layers: readonly FigureLayerData[]
 }
 
 /**
- * Every y value a layer shows (for the axis range). Theory points outside the x range do not
- * count: a prediction often runs wider than the scan and would stretch the axis for nothing.
+ * Every (x, y) point a layer shows, for the axis range and the legend's room. Theory points
+ * outside the x range do not count: a prediction often runs wider than the scan and would
+ * stretch the axis for nothing.
  */
-function shownValues(l: DrawnLayer, xDomain: [number, number]): number[] {
+function shownPoints(l: DrawnLayer, xDomain: [number, number]): [number, number][] {
   const c: Curve = l.data.curve;
-  const out: number[] = [];
-  const push = (vs: readonly number[] | undefined) => vs?.forEach((v) => out.push(v));
-  if (l.spec.show.observed) push(c.observed);
-  if (l.spec.show.expected) push(c.expected?.['0']);
-  if (l.band1) (push(c.expected?.['-1']), push(c.expected?.['1']));
-  if (l.band2) (push(c.expected?.['-2']), push(c.expected?.['2']));
+  const out: [number, number][] = [];
+  const push = (xs: readonly number[], vs: readonly number[] | undefined) => {
+    if (!vs) return;
+    for (let i = 0; i < Math.min(xs.length, vs.length); i++) if (xs[i]! >= xDomain[0] && xs[i]! <= xDomain[1]) out.push([xs[i]!, vs[i]!]);
+  };
+  if (l.spec.show.observed) push(c.x, c.observed);
+  if (l.spec.show.expected) push(c.x, c.expected?.['0']);
+  if (l.band1) (push(c.x, c.expected?.['-1']), push(c.x, c.expected?.['1']));
+  if (l.band2) (push(c.x, c.expected?.['-2']), push(c.x, c.expected?.['2']));
   if (l.theory) {
-    const th = l.theory;
-    const inX = (vs: readonly number[] | undefined) => vs?.filter((_, i) => (th.x[i] ?? NaN) >= xDomain[0] && (th.x[i] ?? NaN) <= xDomain[1]);
-    push(inX(th.central));
-    if (l.spec.show.theoryBand) (push(inX(th.lower)), push(inX(th.upper)));
+    push(l.theory.x, l.theory.central);
+    if (l.spec.show.theoryBand) (push(l.theory.x, l.theory.lower), push(l.theory.x, l.theory.upper));
   }
   return out;
 }
@@ -209,7 +213,7 @@ export function canCompare(l: DrawnLayer): boolean {
   return !!l.data.curve.observed && !!l.data.theory;
 }
 
-function legendEntries(spec: FigureSpec, plan: Omit<FigurePlan, 'legend' | 'notes'>): LegendEntry[] {
+function legendEntries(spec: FigureSpec, plan: Pick<FigurePlan, 'theme' | 'layers' | 'theories' | 'shadingLayer'>): LegendEntry[] {
   if (spec.legend.position === 'none') return [];
   const { theme } = plan;
   const w = theme.words;
@@ -254,17 +258,8 @@ function estimatedPlotSize(theme: ResolvedTheme, w: number, h: number): { width:
 export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[], theme: ResolvedTheme): FigurePlan {
   const { widthPt, heightPt } = sizePt(spec);
   const { drawn, hidden } = drawnLayers(spec, layers, theme);
-  const logX = spec.x.scale === 'log';
-  const logY = spec.y.scale === 'log';
-
-  let xs = drawn.flatMap((l) => l.data.curve.x);
-  if (xs.length === 0) xs = drawn.flatMap((l) => l.theory?.x ?? []);
-  const xDomain = axisDomain(spec.x, xs, { headroom: 0, pad: 0, fromZero: false });
-  const ys = drawn.flatMap((l) => shownValues(l, xDomain));
-  const yDomain = axisDomain(spec.y, ys, { headroom: 0.3, pad: 0.05, fromZero: true });
-  const est = estimatedPlotSize(theme, widthPt, heightPt);
-  const x = planAxisTicks(logX ? 'log' : 'linear', xDomain, est.width, theme.type.tick, true);
-  const y = planAxisTicks(logY ? 'log' : 'linear', yDomain, est.height, theme.type.tick, false);
+  const xScale = spec.x.scale === 'log' ? 'log' : 'linear';
+  const yScale = spec.y.scale === 'log' ? 'log' : 'linear';
 
   const metas = drawn.map((l) => l.data.meta);
   const info: FigurePlan['info'] = [];
@@ -273,11 +268,42 @@ export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[],
     const cls = distinct(metas.map((m) => shortNumber(m.cl * 100)));
     info.push({ label: cls.map((cl) => fill(theme.words.cl, { cl })).join(', '), role: 'cl' });
   }
-
   const shadingLayer = spec.excludedShading ? (drawn.find(canCompare) ?? null) : null;
-  const base = { theme, widthPt, heightPt, layers: drawn, hidden, theories: theoryLines(drawn, theme), x, y, xTitle: xTitle(spec, drawn, theme), yTitle: yTitle(spec, drawn, theme), info, shadingLayer };
+  const theories = theoryLines(drawn, theme);
+  const legend = legendEntries(spec, { theme, layers: drawn, theories, shadingLayer });
+
+  let xs = drawn.flatMap((l) => l.data.curve.x);
+  if (xs.length === 0) xs = drawn.flatMap((l) => l.theory?.x ?? []);
+  const xDomain = axisDomain(spec.x, xs, { pad: 0, fromZero: false });
+  const points = drawn.flatMap((l) => shownPoints(l, xDomain));
+  const ys = points.map((p) => p[1]);
+  const yOpts = { pad: 0.05, fromZero: true };
+  const base = axisDomain(spec.y, ys, yOpts);
+  const est = estimatedPlotSize(theme, widthPt, heightPt);
+
+  // Stretch the y range so the legend (and the energy block) get a corner free of data.
+  const [x0, x1] = xDomain.map((v) => axisUnit(xScale, v)) as [number, number];
+  const roomPts = points
+    .filter(([x, y]) => Number.isFinite(x) && Number.isFinite(y) && (xScale === 'linear' || x > 0) && (yScale === 'linear' || y > 0))
+    .map(([x, y]) => ({ fx: (axisUnit(xScale, x) - x0) / (x1 - x0 || 1), u: axisUnit(yScale, y) }));
+  const position = spec.legend.position;
+  const corners: Corner[] = position === 'none' ? [] : position === 'auto' ? LEGEND_CORNERS : [position];
+  const reach = roomForBoxes({
+    pts: roomPts,
+    domain: base.map((v) => axisUnit(yScale, v)) as [number, number],
+    movable: { low: spec.y.min === null && (yScale === 'log' || base[0] < 0), high: spec.y.max === null },
+    plot: est,
+    inset: theme.spacing.legendInset,
+    legend: legend.length && corners.length ? { ...roughLegendSize(legend, theme, spec.legend.columns), corners } : null,
+    info: info.length ? roughInfoSize(info.map((i) => i.label), theme) : null,
+    annotations: spec.annotations.map((n) => ({ fx: n.x, fy: 1 - n.y, fw: roughWidth(n.text, theme.type.annotation) / est.width, fh: (1.05 * theme.type.annotation) / est.height })),
+  });
+  const yDomain = axisDomain(spec.y, ys, { ...yOpts, reach: { low: reach[0], high: reach[1] } });
+
+  const x = planAxisTicks(xScale, xDomain, est.width, theme.type.tick, true, theme.ticks.plainDecades);
+  const y = planAxisTicks(yScale, yDomain, est.height, theme.type.tick, false, theme.ticks.plainDecades);
   const notes = hidden === 0 ? [] : [hidden === 1 ? theme.words.hiddenOne : fill(theme.words.hiddenMany, { n: hidden })];
-  return { ...base, legend: legendEntries(spec, base), notes };
+  return { theme, widthPt, heightPt, layers: drawn, hidden, theories, x, y, xTitle: xTitle(spec, drawn, theme), yTitle: yTitle(spec, drawn, theme), info, legend, notes, shadingLayer };
 }
 
 /** Every label of a plan with its size and font, in drawing order, without repeats. */

@@ -259,7 +259,9 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
 
   if (legend && placed.legend) {
     const box = cornerBox(plot, placed.legend, legend.width, legend.height, s.legendInset);
-    items.push(...legend.draw(box.x, box.y));
+    // A legend larger than the plot (huge type on a small page) still stays on the page.
+    const clamp = (v: number, size: number, page: number) => Math.max(0, Math.min(v, page - size));
+    items.push(...legend.draw(clamp(box.x, legend.width, W), clamp(box.y, legend.height, H)));
   }
 
   return { widthPt: W, heightPt: H, background: theme.colors.background, plot, items, legendCorner: legend && placed.legend ? placed.legend : 'none', notes: [...plan.notes] };

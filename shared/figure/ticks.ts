@@ -92,15 +92,21 @@ function niceLogEnd(v: number, up: boolean): number {
   return up ? decade(k + 1) : decade(k);
 }
 
+/** Position along an axis in its own units: log10 of the value on a log axis. */
+export const axisUnit = (scale: 'linear' | 'log', v: number) => (scale === 'log' ? Math.log10(v) : v);
+
 /**
- * The axis range: the spec's fixed ends where given, otherwise the data's extent with padding.
- * `headroom` is the fraction of the data span added above (room for the legend and labels on the
- * y axis). A linear y axis starts at zero when all its values are positive (limits are).
+ * The axis range: the spec's fixed ends where given, otherwise the data's extent padded by `pad`
+ * of its span, stretched to reach `reach.low` / `reach.high` (axis units, i.e. log10 on a log
+ * axis: room the legend asked for) and rounded outward to round values. A linear axis with
+ * `fromZero` starts at zero when all its values are positive (limits are).
  */
-export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { headroom: number; pad: number; fromZero: boolean }): [number, number] {
+export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { pad: number; fromZero: boolean; reach?: { low?: number; high?: number } }): [number, number] {
   const log = axis.scale === 'log';
   const vs = usable(values, log);
   const fixed = fixedEnds(axis);
+  const reachLow = (v: number) => (opts.reach?.low !== undefined && Number.isFinite(opts.reach.low) ? Math.min(v, opts.reach.low) : v);
+  const reachHigh = (v: number) => (opts.reach?.high !== undefined && Number.isFinite(opts.reach.high) ? Math.max(v, opts.reach.high) : v);
   let lo = vs.length ? Math.min(...vs) : NaN;
   let hi = vs.length ? Math.max(...vs) : NaN;
   if (log) {
@@ -109,9 +115,8 @@ export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { he
     let l1 = Math.log10(fixed.max ?? hi);
     if (!(l1 > l0)) [l0, l1] = [l0 - 0.5, l0 + 0.5];
     const span = Math.max(l1 - l0, 1);
-    const a = fixed.min ?? niceLogEnd(10 ** (l0 - opts.pad * span), false);
-    // Headroom in decades, capped: on a wide range 30 % would waste whole decades.
-    const b = fixed.max ?? niceLogEnd(10 ** (l1 + opts.pad * span + Math.min(opts.headroom * span, 1.5)), true);
+    const a = fixed.min ?? niceLogEnd(10 ** reachLow(l0 - opts.pad * span), false);
+    const b = fixed.max ?? niceLogEnd(10 ** reachHigh(l1 + opts.pad * span), true);
     return b > a ? [a, b] : [a, a * 10];
   }
   if (!Number.isFinite(lo)) [lo, hi] = [0, 1];
@@ -124,8 +129,8 @@ export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { he
     if (fixed.max === null || !(b > a)) b = a + 2 * d;
   }
   const span = b - a;
-  if (fixed.min === null && !(opts.fromZero && a === 0)) a -= opts.pad * span;
-  if (fixed.max === null) b += (opts.pad + opts.headroom) * span;
+  if (fixed.min === null && !(opts.fromZero && a === 0)) a = reachLow(a - opts.pad * span);
+  if (fixed.max === null) b = reachHigh(b + opts.pad * span);
   const niced = scaleLinear().domain([a, b]).nice().domain() as [number, number];
   return [fixed.min ?? niced[0], fixed.max ?? niced[1]];
 }
@@ -153,11 +158,11 @@ export function linearTicks(domain: [number, number], count: number): Omit<AxisP
 /**
  * Ticks of a log axis. Decades 10^k inside the range carry the labels, minor ticks sit at 2…9 ×
  * 10^k (left out when a decade is shorter than `minDecadePt`). Decades are written as plain numbers
- * when the range spans at most three decades and stays within 0.001…10000, otherwise all as
- * powers of ten, so one axis never mixes both. When fewer than two decades fall inside the range,
+ * when the range spans at most `plainSpan` decades (3 unless the theme says otherwise) and stays
+ * within 0.001…10000, otherwise all as powers of ten, so one axis never mixes both. When fewer than two decades fall inside the range,
  * the 2× and 5× values are labelled too (plain numbers) so the axis still reads.
  */
-export function logTicks(domain: [number, number], lengthPt: number, minDecadePt = 12): Omit<AxisPlan, 'scale' | 'domain'> {
+export function logTicks(domain: [number, number], lengthPt: number, minDecadePt = 12, plainSpan = 3): Omit<AxisPlan, 'scale' | 'domain'> {
   const [lo, hi] = domain;
   const k0 = Math.ceil(Math.log10(lo) - EPS);
   const k1 = Math.floor(Math.log10(hi) + EPS);
@@ -179,7 +184,7 @@ export function logTicks(domain: [number, number], lengthPt: number, minDecadePt
     }
     return { major, minor, plainDecades: true };
   }
-  const plain = spanDecades <= 3 + EPS && k0 >= -3 && k1 <= 4;
+  const plain = spanDecades <= plainSpan + EPS && k0 >= -3 && k1 <= 4;
   const major: MajorTick[] = [];
   for (let k = k0; k <= k1; k++) major.push({ value: decade(k), label: formatDecade(k, plain), ordinal: k });
   if (decadeLength >= minDecadePt) {
@@ -193,9 +198,9 @@ export function logTicks(domain: [number, number], lengthPt: number, minDecadePt
   return { major, minor, plainDecades: plain };
 }
 
-/** Ticks of an axis of `lengthPt` (an estimate is fine) with labels `typeSize` points high. */
-export function planAxisTicks(scale: 'linear' | 'log', domain: [number, number], lengthPt: number, typeSize: number, horizontal: boolean): AxisPlan {
-  if (scale === 'log') return { scale, domain, ...logTicks(domain, lengthPt) };
+/** Ticks of an axis of `lengthPt` (an estimate is fine) with labels `typeSize` points high; `plainSpan` as for `logTicks`. */
+export function planAxisTicks(scale: 'linear' | 'log', domain: [number, number], lengthPt: number, typeSize: number, horizontal: boolean, plainSpan = 3): AxisPlan {
+  if (scale === 'log') return { scale, domain, ...logTicks(domain, lengthPt, 12, plainSpan) };
   // Room per label: numbers a few characters wide side by side, one line high stacked.
   const per = typeSize * (horizontal ? 6 : 3);
   return { scale, domain, ...linearTicks(domain, Math.round(Math.max(1, lengthPt) / per)) };

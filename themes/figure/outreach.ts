@@ -12,7 +12,7 @@ export const outreachTheme: FigureThemeTokens = {
   lines: { observed: 3, expected: 2.4, theory: 2.4, frame: 1, tick: 1, grid: 0.7, legendFrame: 0.8, marker: 1.2 },
   dash: { expected: [7, 5], theory: [[2, 4], [7, 3, 2, 3]] },
   markerRadius: 5,
-  ticks: { major: 6, minor: 3, direction: 'out', mirror: false },
+  ticks: { major: 6, minor: 3, direction: 'out', mirror: false, plainDecades: 7 },
   spacing: { edge: 8, tickLabel: 5, title: 7, legendPad: 8, legendInset: 10, legendKey: 34, legendRow: 4, legendColumn: 16 },
   palette: LAYER_PALETTE,
   colors: {

@@ -35,8 +35,8 @@ export const publicationTheme: FigureThemeTokens = {
   lines: { observed: 1, expected: 1, theory: 0.9, frame: 0.5, tick: 0.5, grid: 0.3, legendFrame: 0.4, marker: 0.6 },
   dash: { expected: [3, 1.8], theory: [[0.8, 1.4], [3, 1.2, 0.8, 1.2]] },
   markerRadius: 1.8,
-  ticks: { major: 3.5, minor: 2, direction: 'in', mirror: true },
-  spacing: { edge: 3, tickLabel: 2.5, title: 3, legendPad: 3, legendInset: 4, legendKey: 16, legendRow: 1.5, legendColumn: 8 },
+  ticks: { major: 3.5, minor: 2, direction: 'in', mirror: true, plainDecades: 3 },
+  spacing: { edge: 3, tickLabel: 2.5, title: 3, legendPad: 3, legendInset: 6, legendKey: 16, legendRow: 1.5, legendColumn: 8 },
   palette: LAYER_PALETTE,
   colors: {
     background: '#ffffff',

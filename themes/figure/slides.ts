@@ -10,8 +10,8 @@ export const slidesTheme: FigureThemeTokens = {
   lines: { observed: 2.6, expected: 2.6, theory: 2.2, frame: 1.2, tick: 1.2, grid: 0.8, legendFrame: 0.8, marker: 1.2 },
   dash: { expected: [8, 5], theory: [[2, 4], [8, 3, 2, 3]] },
   markerRadius: 5,
-  ticks: { major: 9, minor: 5, direction: 'in', mirror: true },
-  spacing: { edge: 8, tickLabel: 6, title: 8, legendPad: 8, legendInset: 10, legendKey: 38, legendRow: 4, legendColumn: 18 },
+  ticks: { major: 9, minor: 5, direction: 'in', mirror: true, plainDecades: 3 },
+  spacing: { edge: 8, tickLabel: 6, title: 8, legendPad: 8, legendInset: 14, legendKey: 38, legendRow: 4, legendColumn: 18 },
   palette: LAYER_PALETTE,
   colors: {
     background: '#ffffff',

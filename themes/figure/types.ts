@@ -50,7 +50,11 @@ export type FigureThemeTokens = {
   dash: { expected: number[]; theory: number[][] };
   /** Radius of a crossing marker, points. */
   markerRadius: number;
-  ticks: { major: number; minor: number; direction: 'in' | 'out'; mirror: boolean };
+  /**
+   * Tick lengths; `plainDecades`: a log axis spanning at most this many decades (within
+   * 0.001…10000) writes its decades as plain numbers, beyond that as powers of ten.
+   */
+  ticks: { major: number; minor: number; direction: 'in' | 'out'; mirror: boolean; plainDecades: number };
   /** Gaps in points: figure edge, tick label ↔ axis, axis title ↔ tick labels, legend inner padding and inset from the frame. */
   spacing: { edge: number; tickLabel: number; title: number; legendPad: number; legendInset: number; legendKey: number; legendRow: number; legendColumn: number };
   /** Layer colours, in the order results take them (`hue` indexes this list). */

@@ -29,7 +29,7 @@ function goldenSvg(theme: FigureTheme): string {
 }
 
 describe('golden SVGs', () => {
-  test.each(FIGURE_THEMES)('%s matches tests/unit/figure/golden/%s.svg', (theme) => {
+  test.each(FIGURE_THEMES)('%s matches its committed golden file', (theme) => {
     const file = join(__dirname, 'golden', `${theme}.svg`);
     const svg = goldenSvg(theme);
     if (process.env.UPDATE_GOLDEN === '1' || !existsSync(file)) writeFileSync(file, svg);

@@ -2,6 +2,7 @@ import { buildScene, collectLabels, labelKey, resolveFigureTheme, sizePt, type F
 import { FIGURE_THEMES, type FigureSpec } from '@/shared/schemas/figures';
 import { exclusionRanges } from '@/shared/stats/exclusion';
 import { placeBoxes } from '@/shared/figure/legend';
+import { rangeForCorner, roughWidth } from '@/shared/figure/room';
 import { dijet, dilepton, hiddenLayer, ID, meta, spec, stubMeasure, theory } from './fixtures';
 import { allNumbers, inside, legendBox, pathPoints, paths, texts } from './helpers';
 
@@ -148,6 +149,27 @@ describe('legend placement', () => {
     const blocked = placeBoxes({ plot, inset: 2, samples, obstacles: [{ x: 10, y: 10, width: 5, height: 5 }], legend: { w: 40, h: 40, fixed: null }, info: null });
     expect(blocked.legend).not.toBe('top-left');
   });
+  test('the automatic y range makes room so the legend covers no data', () => {
+    // A measure close to the builder's own estimate (a TeX command counts as one character).
+    const narrow: Measure = (label, size) => ({ width: roughWidth(label, size), ascent: 0.75 * size, descent: 0.25 * size });
+    for (const theme of FIGURE_THEMES) {
+      const s = spec({ theme, size: { preset: theme === 'slides' ? 'slide' : theme === 'outreach' ? 'web' : 'one-column' } });
+      const scene = buildScene(s, [dijet, dilepton], resolveFigureTheme(theme), narrow);
+      const box = legendBox(scene)!;
+      const curves = paths(scene).filter((p) => ['band1', 'band2', 'theory-band', 'theory', 'expected', 'observed'].includes(p.role));
+      const covered = curves.flatMap((p) => pathPoints(p.d)).filter((q) => inside(box, q) && inside(scene.plot, q));
+      expect({ theme, covered }).toEqual({ theme, covered: [] });
+    }
+  });
+  test('room for the legend: the range grows just enough at the end a corner needs, never at a fixed end', () => {
+    const pts = [{ fx: 0.1, u: 3 }, { fx: 0.9, u: 1 }];
+    // Top-right box covering the right 30 % and top 50 %: the point at u = 1 must sit in the lower half.
+    expect(rangeForCorner('top-right', 0.3, 0.5, pts, 0, 3, { low: true, high: true })).toEqual([0, 3]);
+    expect(rangeForCorner('top-left', 0.3, 0.5, pts, 0, 3, { low: true, high: true })).toEqual([0, 6]);
+    expect(rangeForCorner('top-left', 0.3, 0.5, pts, 0, 3, { low: true, high: false })).toBeNull();
+    expect(rangeForCorner('bottom-right', 0.3, 0.5, pts, 0, 3, { low: true, high: true })).toEqual([-1, 3]);
+    expect(rangeForCorner('bottom-left', 0.3, 0.5, [], 0, 3, { low: false, high: false })).toEqual([0, 3]);
+  });
   test('fixed corners are obeyed, "none" hides the legend, two columns sit side by side', () => {
     for (const position of ['top-left', 'top-right', 'bottom-left', 'bottom-right'] as const) {
       expect(build(spec({ ...fixedRange, legend: { position, columns: 1 } }), [rising]).legendCorner).toBe(position);
@@ -274,6 +296,8 @@ describe('sizes and robustness', () => {
       for (const scene of [build(tiny, [dijet, dilepton]), build({ ...tiny, layers: [] }, []), build(tiny, [broken, dilepton]), buildScene(tiny, [dijet], resolveFigureTheme(theme), nanMeasure)]) {
         expect(allNumbers(scene).filter((v) => !Number.isFinite(v))).toEqual([]);
         expect(scene.plot.width).toBeGreaterThan(0);
+        const box = legendBox(scene);
+        if (box) expect(box.x >= 0 && box.y >= 0 && box.y + box.height <= scene.heightPt + 1e-9).toBe(true);
         expect(scene.plot.height).toBeGreaterThan(0);
       }
     }

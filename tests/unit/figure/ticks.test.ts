@@ -29,13 +29,14 @@ describe('log axes', () => {
     expect(logTicks([1e-8, 1e8], 100).minor).toEqual([]);
     expect(logTicks([1e-8, 1e8], 100).major).toHaveLength(17);
   });
-  test('an automatic log range pads the data, leaves headroom and ends on 1, 2 or 5 × 10^n', () => {
-    const [lo, hi] = axisDomain(axis({ scale: 'log' }), [0.3, 40, -1, 0, NaN], { headroom: 0.3, pad: 0.05, fromZero: true });
-    expect(lo).toBe(0.2);
-    expect(hi).toBe(500);
-    expect(axisDomain(axis({ scale: 'log', min: 1e-3, max: 10 }), [0.3, 40], { headroom: 0.3, pad: 0.05, fromZero: true })).toEqual([1e-3, 10]);
+  test('an automatic log range pads the data, reaches where asked and ends on 1, 2 or 5 × 10^n', () => {
+    expect(axisDomain(axis({ scale: 'log' }), [0.3, 40, -1, 0, NaN], { pad: 0.05, fromZero: true })).toEqual([0.2, 100]);
+    // Room for a legend: reach 10^2.9 ≈ 794 → 1000.
+    expect(axisDomain(axis({ scale: 'log' }), [0.3, 40], { pad: 0.05, fromZero: true, reach: { high: 2.9 } })).toEqual([0.2, 1000]);
+    expect(axisDomain(axis({ scale: 'log' }), [0.3, 40], { pad: 0.05, fromZero: true, reach: { low: -2.5 } })).toEqual([0.002, 100]);
+    expect(axisDomain(axis({ scale: 'log', min: 1e-3, max: 10 }), [0.3, 40], { pad: 0.05, fromZero: true, reach: { high: 5 } })).toEqual([1e-3, 10]);
     // A fixed minimum that a log axis cannot use is ignored, not drawn as NaN.
-    const [a] = axisDomain(axis({ scale: 'log', min: 0 }), [0.3, 40], { headroom: 0, pad: 0, fromZero: false });
+    const [a] = axisDomain(axis({ scale: 'log', min: 0 }), [0.3, 40], { pad: 0, fromZero: false });
     expect(a).toBeGreaterThan(0);
   });
 });
@@ -55,11 +56,12 @@ describe('linear axes', () => {
     expect(formatLinear(-0, 1)).toBe('0');
     expect(formatLinear(-1e-17, 0.5)).toBe('0.0');
   });
-  test('automatic ranges: fixed ends obeyed, a y axis of positive limits starts at zero with headroom', () => {
-    expect(axisDomain(axis(), [2, 8], { headroom: 0.3, pad: 0.05, fromZero: true })).toEqual([0, 11]); // 8 + 35 % of 8, rounded up to a whole step
-    expect(axisDomain(axis({ min: 1, max: 9 }), [2, 8], { headroom: 0.3, pad: 0.05, fromZero: true })).toEqual([1, 9]);
-    expect(axisDomain(axis(), [], { headroom: 0, pad: 0, fromZero: false })).toEqual([0, 1]);
-    const [a, b] = axisDomain(axis(), [5, 5], { headroom: 0, pad: 0, fromZero: false });
+  test('automatic ranges: fixed ends obeyed, a y axis of positive limits starts at zero', () => {
+    expect(axisDomain(axis(), [2, 8], { pad: 0.05, fromZero: true })).toEqual([0, 9]); // 8 + 5 % of 8, up to a whole step
+    expect(axisDomain(axis(), [2, 8], { pad: 0.05, fromZero: true, reach: { high: 11.5 } })).toEqual([0, 12]);
+    expect(axisDomain(axis({ min: 1, max: 9 }), [2, 8], { pad: 0.05, fromZero: true })).toEqual([1, 9]);
+    expect(axisDomain(axis(), [], { pad: 0, fromZero: false })).toEqual([0, 1]);
+    const [a, b] = axisDomain(axis(), [5, 5], { pad: 0, fromZero: false });
     expect(b).toBeGreaterThan(a);
   });
 });
