@@ -1,4 +1,4 @@
-import { LAYER_PALETTE } from './palette';
+import { FIGURE_NEUTRALS, LAYER_PALETTE } from './palette';
 import type { FigureThemeTokens } from './types';
 
 /**
@@ -15,18 +15,7 @@ export const outreachTheme: FigureThemeTokens = {
   ticks: { major: 6, minor: 3, direction: 'out', mirror: false, plainDecades: 7 },
   spacing: { edge: 8, tickLabel: 5, title: 7, legendPad: 8, legendInset: 10, legendKey: 34, legendRow: 4, legendColumn: 16 },
   palette: LAYER_PALETTE,
-  colors: {
-    background: '#ffffff',
-    text: '#1b1e22',
-    muted: '#5f656d',
-    frame: '#6b7078',
-    grid: '#e7e9ec',
-    theory: '#4b4f55',
-    theoryBand: '#dcdde0',
-    excluded: '#e9e3cf',
-    legendFill: '#ffffff',
-    legendStroke: '#c9ccd1',
-  },
+  colors: { ...FIGURE_NEUTRALS, excluded: '#e9e3cf', text: '#1b1e22', muted: '#5f656d', frame: '#6b7078', legendStroke: '#c9ccd1' },
   bandTint: { band1: 0.6, band2: 0.85 },
   legendOpacity: 0.92,
   grid: true,

@@ -15,3 +15,16 @@ export const LAYER_PALETTE = [
   '#5c6b1f', // olive (7th and 8th: only checked with normal vision)
   '#6b4a33', // umber
 ] as const;
+
+/**
+ * Neutral colours every theme starts from: white page, a dark neutral theory line with a light
+ * band (apart from every layer hue), a light stone shade for the excluded region.
+ */
+export const FIGURE_NEUTRALS = {
+  background: '#ffffff',
+  theory: '#4b4f55',
+  theoryBand: '#dcdde0',
+  excluded: '#ebe6d6',
+  legendFill: '#ffffff',
+  grid: '#e4e6e9',
+} as const;

@@ -1,4 +1,4 @@
-import { LAYER_PALETTE } from './palette';
+import { FIGURE_NEUTRALS, LAYER_PALETTE } from './palette';
 import type { FigureThemeTokens, FigureWords } from './types';
 
 /** Wording with the trade's own terms (publication and slides). */
@@ -38,18 +38,7 @@ export const publicationTheme: FigureThemeTokens = {
   ticks: { major: 3.5, minor: 2, direction: 'in', mirror: true, plainDecades: 3 },
   spacing: { edge: 3, tickLabel: 2.5, title: 3, legendPad: 3, legendInset: 6, legendKey: 16, legendRow: 1.5, legendColumn: 8 },
   palette: LAYER_PALETTE,
-  colors: {
-    background: '#ffffff',
-    text: '#111111',
-    muted: '#555555',
-    frame: '#111111',
-    grid: '#e4e4e4',
-    theory: '#4b4f55',
-    theoryBand: '#dcdde0',
-    excluded: '#ebe6d6',
-    legendFill: '#ffffff',
-    legendStroke: null,
-  },
+  colors: { ...FIGURE_NEUTRALS, text: '#111111', muted: '#555555', frame: '#111111', legendStroke: null },
   bandTint: { band1: 0.55, band2: 0.82 },
   legendOpacity: 0.9,
   grid: false,

@@ -1,9 +1,12 @@
-import { LAYER_PALETTE } from './palette';
-import { TECHNICAL_WORDS } from './publication';
+import { publicationTheme } from './publication';
 import type { FigureThemeTokens } from './types';
 
-/** Talks: 16:9, large sans type (16–20 pt) that reads from the back of a room, heavier lines. */
+/**
+ * Talks: 16:9, large sans type (16–20 pt) that reads from the back of a room, heavier lines;
+ * colours, words and tick style as in publications, so a figure moves from paper to talk intact.
+ */
 export const slidesTheme: FigureThemeTokens = {
+  ...publicationTheme,
   name: 'slides',
   font: 'sans',
   type: { tick: 16, axisTitle: 20, legend: 16, annotation: 17, note: 12 },
@@ -12,22 +15,4 @@ export const slidesTheme: FigureThemeTokens = {
   markerRadius: 5,
   ticks: { major: 9, minor: 5, direction: 'in', mirror: true, plainDecades: 3 },
   spacing: { edge: 8, tickLabel: 6, title: 8, legendPad: 8, legendInset: 14, legendKey: 38, legendRow: 4, legendColumn: 18 },
-  palette: LAYER_PALETTE,
-  colors: {
-    background: '#ffffff',
-    text: '#14171b',
-    muted: '#5a6068',
-    frame: '#14171b',
-    grid: '#e6e8eb',
-    theory: '#4b4f55',
-    theoryBand: '#dcdde0',
-    excluded: '#ebe6d6',
-    legendFill: '#ffffff',
-    legendStroke: null,
-  },
-  bandTint: { band1: 0.55, band2: 0.82 },
-  legendOpacity: 0.9,
-  grid: false,
-  maxBands: 2,
-  words: TECHNICAL_WORDS,
 };

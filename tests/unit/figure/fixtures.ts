@@ -3,7 +3,7 @@
  * fictional Halcyon Ring collider (√s = 18 TeV), with a stub typesetter that needs no fonts.
  */
 import { figureSpecSchema, type FigureSpec, type FigureSpecInput } from '@/shared/schemas/figures';
-import type { VersionMeta } from '@/shared/schemas/results';
+import { versionMetaSchema, type VersionMeta, type VersionMetaInput } from '@/shared/schemas/results';
 import { labelKey, type FigureLayerData, type Glyphs, type LabelRequest, type Measure, type TextMetrics } from '@/shared/figure';
 
 export const ID = ['7c1e7a52-0d0a-4c59-9d55-2b1f7c0e8a11', '3f6b2d40-5a8e-4d0b-8c3e-6e0a9c4b1f22', 'a2d4c6e8-1b3d-4f5a-9c7e-0f1a2b3c4d33'] as const;
@@ -18,21 +18,20 @@ function limitCurve(a: number, b: number, wiggle: number[]) {
   return { x: masses, observed: obs, expected: { '-2': scale(0.52), '-1': scale(0.71), '0': median, '1': scale(1.42), '2': scale(2.05) } };
 }
 
-export const meta = (over: Partial<VersionMeta> = {}): VersionMeta => ({
-  title: 'Search for a heavy vector boson decaying to two jets',
-  model: 'Vee-prime benchmark A',
-  parameterName: "$m_{V'}$",
-  parameterUnit: 'TeV',
-  quantity: 'xsec',
-  quantityUnit: 'fb',
-  sqrtS: 18,
-  luminosity: 140,
-  cl: 0.95,
-  method: 'asymptotic',
-  reference: 'LANTERNFISH-EXO-2031-04',
-  notes: '',
-  ...over,
-});
+/** Provenance through the real schema (its defaults fill model, CL and notes). */
+export const meta = (over: Partial<VersionMetaInput> = {}): VersionMeta =>
+  versionMetaSchema.parse({
+    title: 'Search for a heavy vector boson decaying to two jets',
+    parameterName: "$m_{V'}$",
+    parameterUnit: 'TeV',
+    quantity: 'xsec',
+    quantityUnit: 'fb',
+    sqrtS: 18,
+    luminosity: 140,
+    method: 'asymptotic',
+    reference: 'LANTERNFISH-EXO-2031-04',
+    ...over,
+  });
 
 /** Theory: falls faster than the limits, so it crosses them between 2 and 4 TeV. */
 export const theory = {
