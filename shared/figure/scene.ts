@@ -7,7 +7,7 @@ import { scaleLinear, scaleLog } from 'd3-scale';
 import { area, line } from 'd3-shape';
 import type { FigureSpec } from '../schemas/figures';
 import { rangesBelow, type ExcludedRange } from '../stats/exclusion';
-import { cornerBox, densify, layoutLegend, n, placeBoxes, rectPath, type Corner } from './legend';
+import { cornerBox, densify, layoutLegend, n, overlaps, placeBoxes, rectPath, type Corner } from './legend';
 import { bandColors, planFigure, planLabels, type DrawnLayer, type FigurePlan } from './plan';
 import type { ResolvedTheme } from './theme';
 import { thinLabels, type AxisPlan } from './ticks';
@@ -203,17 +203,25 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
 
   items.push(...axisPrimitives(plan, theme, plot, X, Y, okX, okY));
 
-  // Tick labels, thinned so that none overlap.
+  // Tick labels, thinned so that none overlap, along an axis or across the corner of the two.
+  const xBaseline = plotBottom + tickOut + s.tickLabel + xLabelAscent;
+  const xBoxes: Rect[] = [];
   const xSpans = plan.x.major.map((tk, i) => ({ index: i, ordinal: tk.ordinal, from: X(tk.value) - xLabels[i]!.width / 2, to: X(tk.value) + xLabels[i]!.width / 2 }));
   for (const i of thinLabels(xSpans.filter((sp) => okX(plan.x.major[sp.index]!.value)), 0.4 * t.tick)) {
     const tk = plan.x.major[i]!;
-    items.push({ kind: 'text', x: X(tk.value), y: plotBottom + tickOut + s.tickLabel + xLabelAscent, label: tk.label, size: t.tick, font, anchor: 'middle', color: theme.colors.text, rotate: 0, role: 'tick' });
+    const lm = xLabels[i]!;
+    xBoxes.push({ x: X(tk.value) - lm.width / 2, y: xBaseline - lm.ascent, width: lm.width, height: height(lm) });
+    items.push({ kind: 'text', x: X(tk.value), y: xBaseline, label: tk.label, size: t.tick, font, anchor: 'middle', color: theme.colors.text, rotate: 0, role: 'tick' });
   }
+  const yRight = plot.x - tickOut - s.tickLabel;
   const ySpans = plan.y.major.map((tk, i) => ({ index: i, ordinal: tk.ordinal, from: Y(tk.value) - height(yLabels[i]!) / 2, to: Y(tk.value) + height(yLabels[i]!) / 2 }));
   for (const i of thinLabels(ySpans.filter((sp) => okY(plan.y.major[sp.index]!.value)), 0.25 * t.tick)) {
     const tk = plan.y.major[i]!;
     const lm = yLabels[i]!;
-    items.push({ kind: 'text', x: plot.x - tickOut - s.tickLabel, y: Y(tk.value) + (lm.ascent - lm.descent) / 2, label: tk.label, size: t.tick, font, anchor: 'end', color: theme.colors.text, rotate: 0, role: 'tick' });
+    const box = { x: yRight - lm.width, y: Y(tk.value) - height(lm) / 2, width: lm.width, height: height(lm) };
+    // At the origin corner the x axis keeps its label.
+    if (xBoxes.some((b) => overlaps(b, box))) continue;
+    items.push({ kind: 'text', x: yRight, y: Y(tk.value) + (lm.ascent - lm.descent) / 2, label: tk.label, size: t.tick, font, anchor: 'end', color: theme.colors.text, rotate: 0, role: 'tick' });
   }
 
   if (xTitle) items.push({ kind: 'text', x: plot.x + plot.width / 2, y: H - s.edge - xTitle.descent, label: plan.xTitle, size: t.axisTitle, font, anchor: 'middle', color: theme.colors.text, rotate: 0, role: 'axis-title' });

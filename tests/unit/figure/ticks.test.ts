@@ -92,4 +92,17 @@ describe('tick labels never overlap', () => {
       expect(cur.x - w(cur) / 2).toBeGreaterThanOrEqual(prev.x + w(prev) / 2);
     }
   });
+  test('labels of the two axes never collide at the origin corner', () => {
+    // y starts at a labelled decade and x at a labelled tick: both labels sit at the corner.
+    const s = spec({ x: { scale: 'linear', min: 1, max: 5, label: '' }, y: { scale: 'log', min: 0.1, max: 100, label: '' }, layers: [{ resultId: dijet.resultId, version: 3 }] });
+    const wide: Measure = (label, size, font) => ({ ...stubMeasure(label, size, font), width: 4 * size });
+    const scene = buildScene(s, [dijet], resolveFigureTheme('publication'), wide);
+    const boxes = texts(scene, 'tick').map((t) => {
+      const m = wide(t.label, t.size, t.font);
+      const x0 = t.anchor === 'middle' ? t.x - m.width / 2 : t.anchor === 'end' ? t.x - m.width : t.x;
+      return { label: t.label, x0, x1: x0 + m.width, y0: t.y - m.ascent, y1: t.y + m.descent };
+    });
+    expect(boxes.map((b) => b.label)).toContain('1');
+    for (const a of boxes) for (const b of boxes) if (a !== b) expect({ a: a.label, b: b.label, clash: a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1 }).toEqual({ a: a.label, b: b.label, clash: false });
+  });
 });
