@@ -82,6 +82,14 @@ export async function setCustomerIfMissing(db: Executor, groupId: string, custom
   return (await getBillingAccount(db, groupId))!.customerId!;
 }
 
+/** Forgets a customer the provider no longer knows (only if it is still the group's). */
+export async function clearCustomer(db: Executor, groupId: string, customerId: string): Promise<void> {
+  await db
+    .update(billingAccounts)
+    .set({ customerId: null, updatedAt: sql`now()` })
+    .where(and(eq(billingAccounts.groupId, groupId), eq(billingAccounts.customerId, customerId)));
+}
+
 export type SubscriptionState = Pick<BillingAccount, 'plan' | 'status' | 'interval' | 'currentPeriodEnd'> & {
   customerId: string | null;
   subscriptionId: string;

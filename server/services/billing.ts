@@ -1,5 +1,5 @@
 import Stripe from 'stripe';
-import { formatBytes, formatMoney, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, type BillingInterval, type Invoice, type PlanView, type SubscriptionStatus } from '../../shared/plans';
+import { BILLING_INTERVALS, formatBytes, formatMoney, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, type BillingInterval, type Invoice, type PlanView, type SubscriptionStatus } from '../../shared/plans';
 import * as q from '../../db/queries/billing';
 import { getGroupName } from '../../db/queries/groups';
 import type { Ctx } from '../context';
@@ -104,44 +104,49 @@ export async function listInvoices(ctx: Ctx, groupId: string): Promise<Invoice[]
 const priceCache = new WeakMap<Stripe, Map<string, string>>();
 
 /**
- * The provider's price for the Institutional plan at `interval`, found by lookup key; created
- * (taking over the lookup key) when missing or when shared/plans.ts changed its amount.
+ * The provider's prices of the Institutional plan, found by lookup key; both intervals are made
+ * sure of (the billing portal switches between them), created — taking over the lookup key — when
+ * missing or when shared/plans.ts changed an amount. Returns the price id for `interval`.
  */
 async function priceFor(stripe: Stripe, interval: BillingInterval): Promise<string> {
   const plan = INSTITUTIONAL_PLAN;
-  const amount = plan.prices![interval];
-  const cacheKey = `${interval}:${amount}:${plan.currency}`;
+  const cacheKey = (i: BillingInterval) => `${i}:${plan.prices![i]}:${plan.currency}`;
   const cache = priceCache.get(stripe) ?? new Map<string, string>();
   priceCache.set(stripe, cache);
-  const cached = cache.get(cacheKey);
+  const cached = cache.get(cacheKey(interval));
   if (cached) return cached;
-  const found = await stripe.prices.list({ lookup_keys: [lookupKey(interval)], active: true, limit: 1 });
-  const p = found.data[0];
-  let id: string;
-  if (p && p.unit_amount === amount && p.currency === plan.currency && p.recurring?.interval === interval) {
-    id = p.id;
-  } else {
-    try {
-      await stripe.products.retrieve(PRODUCT_ID);
-    } catch (e) {
-      if (!(e instanceof Stripe.errors.StripeInvalidRequestError && e.code === 'resource_missing')) throw e;
-      await stripe.products.create({ id: PRODUCT_ID, name: 'Bandwright Institutional plan' }).catch((err: unknown) => {
-        // Two first checkouts at once: the other one created it.
-        if (!(err instanceof Stripe.errors.StripeInvalidRequestError && err.code === 'resource_already_exists')) throw err;
-      });
+  const found = await stripe.prices.list({ lookup_keys: BILLING_INTERVALS.map(lookupKey), active: true, limit: 10 });
+  for (const i of BILLING_INTERVALS) {
+    const amount = plan.prices![i];
+    const p = found.data.find((x) => x.lookup_key === lookupKey(i));
+    if (p && p.unit_amount === amount && p.currency === plan.currency && p.recurring?.interval === i) {
+      cache.set(cacheKey(i), p.id);
+      continue;
     }
+    await ensureProduct(stripe);
     const created = await stripe.prices.create({
       product: PRODUCT_ID,
       currency: plan.currency,
       unit_amount: amount,
-      recurring: { interval },
-      lookup_key: lookupKey(interval),
+      recurring: { interval: i },
+      lookup_key: lookupKey(i),
       transfer_lookup_key: true,
     });
-    id = created.id;
+    cache.set(cacheKey(i), created.id);
   }
-  cache.set(cacheKey, id);
-  return id;
+  return cache.get(cacheKey(interval))!;
+}
+
+async function ensureProduct(stripe: Stripe): Promise<void> {
+  try {
+    await stripe.products.retrieve(PRODUCT_ID);
+  } catch (e) {
+    if (!(e instanceof Stripe.errors.StripeInvalidRequestError && e.code === 'resource_missing')) throw e;
+    await stripe.products.create({ id: PRODUCT_ID, name: 'Bandwright Institutional plan' }).catch((err: unknown) => {
+      // Two first checkouts at once: the other one created it.
+      if (!(err instanceof Stripe.errors.StripeInvalidRequestError && err.code === 'resource_already_exists')) throw err;
+    });
+  }
 }
 
 /** The group's customer at the provider, created on its first checkout. */
@@ -166,19 +171,29 @@ export async function startCheckout(ctx: Ctx, groupId: string, payer: { email: s
     throw new AppError(409, 'payment_failed', 'The last payment for this group failed; update the card under Manage billing instead of subscribing again');
   }
   const session = await provider('the checkout', async () => {
-    const customer = await customerFor(ctx, stripe, groupId, payer);
     const price = await priceFor(stripe, interval);
-    return stripe.checkout.sessions.create({
-      mode: 'subscription',
-      customer,
-      client_reference_id: groupId,
-      line_items: [{ price, quantity: 1 }],
-      // The provider fills in {CHECKOUT_SESSION_ID}; it must stay unencoded.
-      success_url: `${planUrl(ctx, groupId, '&checkout=success')}&session={CHECKOUT_SESSION_ID}`,
-      cancel_url: planUrl(ctx, groupId, '&checkout=cancelled'),
-      metadata: { groupId, interval },
-      subscription_data: { metadata: { groupId } },
-    });
+    const create = (customer: string) =>
+      stripe.checkout.sessions.create({
+        mode: 'subscription',
+        customer,
+        client_reference_id: groupId,
+        line_items: [{ price, quantity: 1 }],
+        // The provider fills in {CHECKOUT_SESSION_ID}; it must stay unencoded.
+        success_url: `${planUrl(ctx, groupId, '&checkout=success')}&session={CHECKOUT_SESSION_ID}`,
+        cancel_url: planUrl(ctx, groupId, '&checkout=cancelled'),
+        metadata: { groupId, interval },
+        subscription_data: { metadata: { groupId } },
+      });
+    const customer = await customerFor(ctx, stripe, groupId, payer);
+    try {
+      return await create(customer);
+    } catch (e) {
+      // The provider no longer knows the customer (a development fake whose state was wiped, or a
+      // customer deleted in the provider's dashboard): the group gets a new one.
+      if (!(e instanceof Stripe.errors.StripeInvalidRequestError && e.code === 'resource_missing' && e.param === 'customer')) throw e;
+      await q.clearCustomer(ctx.db, groupId, customer);
+      return create(await customerFor(ctx, stripe, groupId, payer));
+    }
   });
   if (!session.url) throw new AppError(502, 'payment_provider_error', 'The payment provider gave no checkout page');
   return { url: session.url };
@@ -238,7 +253,10 @@ async function groupOf(tx: Executor, metadataGroupId: string | null | undefined,
 const day = (unix: number | null | undefined) => (unix ? new Date(unix * 1000).toISOString().slice(0, 10) : 'an unknown date');
 
 async function billingMails(tx: Executor, ctx: Ctx, groupId: string, inv: Stripe.Invoice, kind: 'paid' | 'failed'): Promise<OutgoingMail[]> {
-  const [owners, groupName, usage] = await Promise.all([q.listOwners(tx, groupId), getGroupName(tx, groupId), q.usageByKind(tx, groupId)]);
+  // One after another: they share the transaction's single connection.
+  const owners = await q.listOwners(tx, groupId);
+  const groupName = await getGroupName(tx, groupId);
+  const usage = await q.usageByKind(tx, groupId);
   const amount = formatMoney(kind === 'paid' ? inv.amount_paid : inv.amount_due, inv.currency);
   const line = inv.lines.data[0];
   const period = line ? `${day(line.period.start)} to ${day(line.period.end)}` : `${day(inv.period_start)} to ${day(inv.period_end)}`;

@@ -5,6 +5,7 @@ import { providerEvents, scans } from '@/db/schema';
 import { subscriptionJson, invoiceJson } from '@/server/fakes/stripe/objects';
 import { FREE_PLAN, GB, INSTITUTIONAL_PLAN, MB, type PlanView } from '@/shared/plans';
 import { startQueue } from '@/server/jobs/queue';
+import { createStripeClient } from '@/server/services/billing';
 import {
   billingAccountOf,
   countRows,
@@ -373,5 +374,38 @@ describe('quota edge', () => {
     expect(await registryProbe.storageBytes(t, groupId)).toBe(FREE_PLAN.quotaBytes - 1000);
     await setStorageBytes(t, groupId, FREE_PLAN.quotaBytes + 5000);
     expect((await crew.analyst.agent.delete(`/api/groups/${groupId}/results/${v.resultId}`)).status).toBe(204);
+  });
+});
+
+describe('a provider that forgot the customer', () => {
+  test('checkout gives the group a new customer instead of failing', async () => {
+    const { groupId, crew } = await makeGroupWithRoles(t);
+    const first = await crew.owner.agent.post(`/api/groups/${groupId}/billing/checkout`).send({ interval: 'month' });
+    expect(first.status).toBe(200);
+    const old = (await billingAccountOf(t, groupId))!.customerId!;
+    delete t.fake.engine.state.customers[old];
+    const again = await crew.owner.agent.post(`/api/groups/${groupId}/billing/checkout`).send({ interval: 'month' });
+    expect(again.status).toBe(200);
+    const now = (await billingAccountOf(t, groupId))!.customerId!;
+    expect(now).not.toBe(old);
+    expect(t.fake.engine.state.customers[now]?.metadata.groupId).toBe(groupId);
+    // And the portal says what is wrong when the provider answers with an error.
+    delete t.fake.engine.state.customers[now];
+    const portal = await crew.owner.agent.post(`/api/groups/${groupId}/billing/portal`).send({});
+    expect(portal.status).toBe(502);
+    expect(portal.body.error.message).toMatch(/^The payment provider refused the billing portal: No such customer/);
+  });
+
+  test('a provider that cannot be reached is named, and nothing is charged', async () => {
+    const { groupId, crew } = await makeGroupWithRoles(t);
+    const stripe = t.ctx.stripe;
+    t.ctx.stripe = createStripeClient({ ...t.ctx.env.stripe, port: 1 });
+    try {
+      const res = await crew.owner.agent.post(`/api/groups/${groupId}/billing/checkout`).send({ interval: 'month' });
+      expect(res.status).toBe(502);
+      expect(res.body.error.code).toBe('payment_provider_unreachable');
+    } finally {
+      t.ctx.stripe = stripe;
+    }
   });
 });

@@ -75,9 +75,9 @@ export class FakeStripeEngine {
     return this.done(c);
   }
 
-  customer(id: string): FakeCustomer {
+  customer(id: string, param = 'id'): FakeCustomer {
     const c = this.state.customers[id];
-    if (!c) throw missing('customer', id);
+    if (!c) throw missing('customer', id, param);
     return c;
   }
 
@@ -136,7 +136,7 @@ export class FakeStripeEngine {
     successUrl: string;
     cancelUrl?: string;
   }): FakeCheckoutSession {
-    if (p.customer) this.customer(p.customer);
+    if (p.customer) this.customer(p.customer, 'customer');
     this.price(p.price);
     const s: FakeCheckoutSession = {
       id: newId('cs_test', 58),
@@ -377,7 +377,7 @@ export class FakeStripeEngine {
   }
 
   createPortalSession(p: { customer: string; returnUrl?: string }) {
-    this.customer(p.customer);
+    this.customer(p.customer, 'customer');
     const s = { id: newId('bps', 24), customer: p.customer, returnUrl: p.returnUrl ?? null, created: this.now() };
     this.state.portalSessions[s.id] = s;
     return this.done(s);

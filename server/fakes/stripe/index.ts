@@ -140,8 +140,8 @@ export async function startStripeFake(opts: StripeFakeOptions & { port?: number;
   const fake = createStripeFake(opts);
   const host = opts.host ?? '127.0.0.1';
   const server = await new Promise<Server>((resolve, reject) => {
-    const s = fake.app.listen(opts.port ?? 0, host, () => resolve(s));
-    s.once('error', reject);
+    // Express 5 hands a listen error to this callback (e.g. the port is taken).
+    const s = fake.app.listen(opts.port ?? 0, host, (err?: Error) => (err ? reject(err) : resolve(s)));
   });
   const port = (server.address() as AddressInfo).port;
   const url = `http://${host}:${port}`;
