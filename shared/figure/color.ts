@@ -22,10 +22,11 @@ export function toHex(rgb: Rgb): string {
   return `#${rgb.map((c) => Math.round(Math.min(1, Math.max(0, c)) * 255).toString(16).padStart(2, '0')).join('')}`;
 }
 
-/** sRGB transfer function and its inverse (IEC 61966-2-1:1999). */
+/** sRGB-encoded component → linear light (the sRGB transfer function, IEC 61966-2-1:1999). */
 export function srgbToLinear(c: number): number {
   return c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4;
 }
+/** Linear light → sRGB-encoded component, clamped to [0, 1] (IEC 61966-2-1:1999). */
 export function linearToSrgb(c: number): number {
   const v = Math.min(1, Math.max(0, c));
   return v <= 0.0031308 ? 12.92 * v : 1.055 * v ** (1 / 2.4) - 0.055;
@@ -137,6 +138,7 @@ export function ciede2000(lab1: Lab, lab2: Lab): number {
   return Math.sqrt(l * l + c * c + h * h + Rt * c * h);
 }
 
+/** Colour vision to simulate: normal, or the two common red–green dichromacies. */
 export type VisionKind = 'normal' | 'protanopia' | 'deuteranopia';
 
 /**

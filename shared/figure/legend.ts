@@ -6,6 +6,7 @@ import type { LegendEntry } from './plan';
 import type { ResolvedTheme } from './theme';
 import type { Primitive, Rect, TextMetrics } from './types';
 
+/** A corner of the plot area. */
 export type Corner = 'top-left' | 'top-right' | 'bottom-left' | 'bottom-right';
 /** Tie order for the legend: where readers look for it first. */
 export const LEGEND_CORNERS: Corner[] = ['top-right', 'top-left', 'bottom-right', 'bottom-left'];
@@ -24,6 +25,7 @@ export function cornerBox(plot: Rect, corner: Corner, w: number, h: number, inse
   };
 }
 
+/** Whether two rectangles share any area. */
 export function overlaps(a: Rect, b: Rect): boolean {
   return a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height;
 }

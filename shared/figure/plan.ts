@@ -12,6 +12,7 @@ import { roomForBoxes, roughInfoSize, roughLegendSize, roughWidth } from './room
 import { axisDomain, axisUnit, planAxisTicks, type AxisPlan } from './ticks';
 import type { FigureLayerData, LabelRequest } from './types';
 
+/** Layer data the viewer may see. */
 export type AvailableLayer = Extract<FigureLayerData, { available: true }>;
 
 /** A layer that is drawn: its spec, data, legend name and colour. */
@@ -31,11 +32,14 @@ export type DrawnLayer = {
 /** A distinct theory curve (layers sharing the same prediction draw it once). */
 export type TheoryLine = { theory: Theory; layer: number; label: string; dash: number[]; band: boolean };
 
+/** What a legend entry shows before its label: a line sample or a filled swatch (with a line on it). */
 export type LegendKey =
   | { kind: 'line'; color: string; width: number; dash: number[] | null }
   | { kind: 'fill'; color: string; line?: { color: string; width: number; dash: number[] | null } };
+/** One legend row. */
 export type LegendEntry = { label: string; key: LegendKey; layer?: number };
 
+/** A figure before layout: layers, axes and every label's text (see `planFigure`). */
 export type FigurePlan = {
   theme: ResolvedTheme;
   widthPt: number;
@@ -83,31 +87,13 @@ export function shortNumber(v: number): string {
   return String(Number(v.toPrecision(4)));
 }
 
-/** The available layer data at a spec layer index, or null (missing or not visible). */
-export function availableData(layers: readonly FigureLayerData[], i: number): AvailableLayer | null {
-  const d = layers[i];
-  return d && d.available === true ? d : null;
-}
-
-/** The values of one column paired with x, finite ones only (and positive on a log axis). */
-export function pairs(xs: readonly number[], ys: readonly number[] | undefined, positive: boolean): [number, number][] {
-  if (!ys) return [];
-  const out: [number, number][] = [];
-  const n = Math.min(xs.length, ys.length);
-  for (let i = 0; i < n; i++) {
-    const x = xs[i]!;
-    const y = ys[i]!;
-    if (Number.isFinite(x) && Number.isFinite(y) && (!positive || y > 0)) out.push([x, y]);
-  }
-  return out;
-}
-
 /** The drawn layers of a spec: available ones only, with their colours and band choices. */
 export function drawnLayers(spec: FigureSpec, layers: readonly FigureLayerData[], theme: ResolvedTheme): { drawn: DrawnLayer[]; hidden: number } {
   const drawn: DrawnLayer[] = [];
   let hidden = 0;
   spec.layers.forEach((ls, i) => {
-    const data = availableData(layers, i);
+    const d = layers[i];
+    const data = d && d.available === true ? d : null;
     if (!data) {
       hidden++;
       return;

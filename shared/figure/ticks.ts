@@ -7,6 +7,7 @@
 import { scaleLinear } from 'd3-scale';
 import type { AxisSpec } from '../schemas/figures';
 
+/** A labelled tick. */
 export type MajorTick = {
   value: number;
   /** Text with `$…$` math. */
@@ -19,6 +20,7 @@ export type MajorTick = {
   ordinal: number;
 };
 
+/** An axis before layout: its range and ticks. */
 export type AxisPlan = {
   scale: 'linear' | 'log';
   domain: [number, number];

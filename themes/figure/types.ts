@@ -39,6 +39,7 @@ export type FigureWords = {
   hiddenMany: string;
 };
 
+/** One figure theme's tokens. */
 export type FigureThemeTokens = {
   name: FigureTheme;
   font: FontRole;
