@@ -1,10 +1,9 @@
 import { eq } from 'drizzle-orm';
-import type { Page } from 'playwright-core';
 import { addMember } from '@/db/queries/groups';
 import { billingAccounts, groups, user } from '@/db/schema';
 import { MB } from '@/shared/plans';
 import { sampleCurve, sampleMeta } from '../helpers/factories';
-import { fullShot, newPage, pageErrors, shot, startE2E, VIEWPORTS, type E2E, type ViewportName } from '../helpers/browser';
+import { fullShot, newPage, pageErrors, shot, signUpInBrowser as signUp, startE2E, VIEWPORTS, type E2E, type ViewportName } from '../helpers/browser';
 
 jest.setTimeout(240_000);
 
@@ -13,17 +12,6 @@ beforeAll(async () => {
   e = await startE2E({ stripe: true });
 });
 afterAll(async () => e?.close());
-
-const PASSWORD = 'a-long-test-password';
-
-async function signUp(page: Page, name: string, email: string) {
-  await page.goto('/sign-up');
-  await page.getByLabel('Your name').fill(name);
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(PASSWORD);
-  await page.getByRole('button', { name: 'Create account', exact: true }).click();
-  await page.getByRole('region', { name: 'You are not in a group yet' }).waitFor();
-}
 
 describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
   const tag = `${vp}-${Date.now().toString(36)}`;

@@ -124,3 +124,15 @@ export async function fullShot(page: Page, vp: ViewportName, name: string) {
   await shot(page, vp, name);
   if (extra > 0) await page.setViewportSize(size);
 }
+
+export const E2E_PASSWORD = 'a-long-test-password';
+
+/** Signs up on the sign-up screen and waits for the signed-in home of someone in no group yet. */
+export async function signUpInBrowser(page: Page, name: string, email: string, password = E2E_PASSWORD) {
+  await page.goto('/sign-up');
+  await page.getByLabel('Your name').fill(name);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Create account', exact: true }).click();
+  await page.getByRole('region', { name: 'You are not in a group yet' }).waitFor();
+}
