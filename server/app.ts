@@ -10,6 +10,7 @@ import { resultJson } from './lib/upload';
 import { validate } from './lib/validate';
 import { billingRouter, billingWebhook } from './routes/billing';
 import { devRouter } from './routes/dev';
+import { figuresRouter } from './routes/figures';
 import { groupsRouter } from './routes/groups';
 import { healthRouter } from './routes/health';
 import { invitationsRouter } from './routes/invitations';
@@ -67,6 +68,7 @@ export function createApp(ctx: Ctx): Express {
   app.use('/api', resultsRouter(ctx));
   app.use('/api', tokensRouter(ctx));
   app.use('/api', scansRouter(ctx));
+  app.use('/api', figuresRouter(ctx));
   app.use('/api', billingRouter(ctx));
   if (ctx.env.devTools) app.use('/api', devRouter(ctx));
   app.use('/api', (req, _res, next) => next(new AppError(404, 'not_found', `No API route ${req.method} ${req.path}`)));

@@ -24,6 +24,18 @@ import type {
   UpdateDraftInput,
 } from './schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from './schemas/scan-views';
+import type {
+  FigureDetail,
+  FigureSummary,
+  FigureVersionDetail,
+  GroupStyleView,
+  PublicFigureListQuery,
+  PublicFigurePage,
+  ResultHueView,
+  TypesetRequest,
+  TypesetResponse,
+} from './schemas/figure-views';
+import type { FigureSpecInput, HouseStyle, RenderFormat, SIZE_PRESETS } from './schemas/figures';
 import type { CreateScanInput } from './schemas/scans';
 
 /** `?a=1&b=x` from the defined entries of a query object ('' when none). */
@@ -170,6 +182,40 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       point: (groupId: string, scanId: string, index: number) =>
         call<ScanPointDetail>('GET', `/api/groups/${enc(groupId)}/scans/${enc(scanId)}/points/${index}`),
       inputsUrl: (groupId: string, scanId: string) => `${base}/api/groups/${enc(groupId)}/scans/${enc(scanId)}/inputs.json`,
+    },
+    figures: {
+      list: (groupId: string) => call<{ figures: FigureSummary[] }>('GET', `/api/groups/${enc(groupId)}/figures`),
+      create: (groupId: string, input: { spec: FigureSpecInput; public?: boolean }) => call<FigureDetail>('POST', `/api/groups/${enc(groupId)}/figures`, input),
+      /** The latest version's spec and layers (with "newer published version" per layer), and the version history. */
+      get: (groupId: string, figureId: string) => call<FigureDetail>('GET', `/api/groups/${enc(groupId)}/figures/${enc(figureId)}`),
+      version: (groupId: string, figureId: string, version: number) =>
+        call<FigureVersionDetail>('GET', `/api/groups/${enc(groupId)}/figures/${enc(figureId)}/versions/${version}`),
+      /** Saves the spec as the next version. */
+      save: (groupId: string, figureId: string, input: { spec: FigureSpecInput; note?: string }) =>
+        call<FigureDetail>('PUT', `/api/groups/${enc(groupId)}/figures/${enc(figureId)}`, input),
+      setVisibility: (groupId: string, figureId: string, isPublic: boolean) =>
+        call<FigureDetail>('PATCH', `/api/groups/${enc(groupId)}/figures/${enc(figureId)}`, { public: isPublic }),
+      remove: (groupId: string, figureId: string) => call<void>('DELETE', `/api/groups/${enc(groupId)}/figures/${enc(figureId)}`),
+      duplicate: (groupId: string, figureId: string, input: { title?: string } = {}) =>
+        call<FigureDetail>('POST', `/api/groups/${enc(groupId)}/figures/${enc(figureId)}/duplicate`, input),
+      /** A plain-language copy for the public (outreach theme, one band, plain labels). */
+      outreach: (groupId: string, figureId: string, input: { size?: 'web' | 'slide'; title?: string } = {}) =>
+        call<FigureDetail>('POST', `/api/groups/${enc(groupId)}/figures/${enc(figureId)}/outreach`, input),
+      /** Labels typeset by the server (paths and metrics by labelKey), for the composer's preview. */
+      typeset: (input: TypesetRequest) => call<TypesetResponse>('POST', '/api/typeset', input),
+      /** Render address (members of the figure's group, or anyone for a public figure); answers image bytes, not JSON. */
+      renderUrl: (figureId: string, format: RenderFormat, opts: { version?: number; size?: keyof typeof SIZE_PRESETS; dpi?: number } = {}) =>
+        `${base}/api/figures/${enc(figureId)}/render.${format}${qs(opts)}`,
+      exportUrl: (figureId: string, kind: 'csv' | 'caption', version?: number) =>
+        `${base}/api/figures/${enc(figureId)}/${kind === 'csv' ? 'export.csv' : 'caption.txt'}${qs({ version })}`,
+      style: (groupId: string) => call<GroupStyleView>('GET', `/api/groups/${enc(groupId)}/style`),
+      setStyle: (groupId: string, style: HouseStyle) => call<GroupStyleView>('PUT', `/api/groups/${enc(groupId)}/style`, { style }),
+      setHue: (groupId: string, resultId: string, hue: number) => call<ResultHueView>('PUT', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/hue`, { hue }),
+    },
+    publicFigures: {
+      list: (query: PublicFigureListQuery = {}) => call<PublicFigurePage>('GET', `/api/public/figures${qs(query)}`),
+      renderUrl: (figureId: string, format: RenderFormat, opts: { version?: number; size?: keyof typeof SIZE_PRESETS; dpi?: number } = {}) =>
+        `${base}/api/public/figures/${enc(figureId)}/render.${format}${qs(opts)}`,
     },
     tokens: {
       list: () => call<{ tokens: ApiTokenSummary[] }>('GET', '/api/tokens'),

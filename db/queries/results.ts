@@ -1,7 +1,7 @@
 import { and, asc, count, desc, eq, exists, getTableColumns, ilike, max, ne, or, sql, type SQL } from 'drizzle-orm';
 import type { ResultListQuery } from '../../shared/schemas/results';
 import type { Executor } from '../../server/db';
-import { groups, memberships, results, resultVersions, user } from '../schema';
+import { figureLayers, figures, groups, memberships, results, resultVersions, user } from '../schema';
 
 /**
  * Data access of the results registry. Every function is scoped: by the group (routes that have
@@ -306,9 +306,16 @@ export async function getStorage(db: Executor, groupId: string): Promise<number 
 // Figures
 
 /**
- * Figures of the group that use the result (or one of its versions): a result in use must not be
- * deleted. Figures do not exist yet; the figures issue extends this query with its layers table.
+ * Figures that pin the result (or one of its versions), in any of their versions: a result in use
+ * must not be deleted. Figures of other groups (which may pin a public result) are named only as
+ * such, so their titles do not leak.
  */
-export async function listFiguresUsing(_db: Executor, _target: { groupId: string; resultId: string; version?: number }): Promise<{ id: string; name: string }[]> {
-  return [];
+export async function listFiguresUsing(db: Executor, target: { groupId: string; resultId: string; version?: number }): Promise<{ id: string; name: string }[]> {
+  const rows = await db
+    .selectDistinct({ id: figures.id, title: figures.title, groupId: figures.groupId })
+    .from(figureLayers)
+    .innerJoin(figures, eq(figures.id, figureLayers.figureId))
+    .where(and(eq(figureLayers.resultId, target.resultId), target.version === undefined ? undefined : eq(figureLayers.resultVersion, target.version)))
+    .orderBy(asc(figures.title), asc(figures.id));
+  return rows.map((r) => ({ id: r.id, name: r.groupId === target.groupId ? r.title : "another group's figure" }));
 }

@@ -1,5 +1,6 @@
 import { Resvg } from '@resvg/resvg-js';
 import { createHash } from 'node:crypto';
+import { deflateSync } from 'node:zlib';
 import { JSDOM } from 'jsdom';
 import { jsPDF } from 'jspdf';
 // The package's main entry is a UMD build that fails in Node; the ES build works (STACK.md).
@@ -16,10 +17,52 @@ import { labelPlainText } from './typeset';
  */
 
 // ---------------------------------------------------------------------------------------------
+// Glyph reuse
+
+const LABEL_GROUP = /<g transform="([^"]*)" fill="([^"]*)">((?:<path d="[^"]*"\/>)+)<\/g>/g;
+const GLYPH_PATH = /<path d="M(-?[\d.]+) (-?[\d.]+)([a-z][^"]*)"\/>/g;
+
+/**
+ * Draws every glyph outline that occurs more than once a single time: the typesetter gives each
+ * glyph one path whose first point is absolute and the rest relative, so equal glyphs have equal
+ * path bodies. Such paths move into <defs> and the label groups `<use>` them at their first
+ * point. The picture is unchanged; the SVG gets smaller, and the PDF draws each glyph as one
+ * form object (several times faster to write and to read). Only the label groups of sceneToSvg
+ * (`<g transform fill>` with bare `<path d>` children) are touched.
+ */
+export function reuseGlyphs(svg: string): string {
+  const counts = new Map<string, number>();
+  for (const g of svg.matchAll(LABEL_GROUP)) {
+    for (const p of g[3]!.matchAll(GLYPH_PATH)) counts.set(p[3]!, (counts.get(p[3]!) ?? 0) + 1);
+  }
+  const prefix = `gl${createHash('sha1').update(svg).digest('hex').slice(0, 6)}-`;
+  const ids = new Map<string, string>();
+  const defs: string[] = [];
+  const idOf = (body: string) => {
+    let id = ids.get(body);
+    if (!id) {
+      id = `${prefix}${ids.size}`;
+      ids.set(body, id);
+      defs.push(`<path id="${id}" d="M0 0${body}" fill="currentColor"/>`);
+    }
+    return id;
+  };
+  const out = svg.replace(LABEL_GROUP, (_m, transform: string, fill: string, paths: string) => {
+    const inner = paths.replace(GLYPH_PATH, (p, x: string, y: string, body: string) =>
+      (counts.get(body) ?? 0) > 1 ? `<use href="#${idOf(body)}" x="${x}" y="${y}"/>` : p,
+    );
+    // `color` feeds the shared outlines' currentColor (svg2pdf does not pass fill into <use>).
+    return `<g transform="${transform}" fill="${fill}" color="${fill}">${inner}</g>`;
+  });
+  if (!defs.length) return svg;
+  return out.replace(/<svg\b[^>]*>/, (open) => `${open}<defs>${defs.join('')}</defs>`);
+}
+
+// ---------------------------------------------------------------------------------------------
 // PNG
 
 /** Largest PNG side and area: beyond these a render would take seconds and hundreds of MB. */
-export const PNG_LIMITS = { maxSidePx: 12_000, maxPixels: 60_000_000 } as const;
+export const PNG_LIMITS = { maxSidePx: 12_000, maxPixels: 40_000_000 } as const;
 
 export function pngSize(widthPt: number, heightPt: number, dpi: number): { width: number; height: number } {
   return { width: Math.round((widthPt / 72) * dpi), height: Math.round((heightPt / 72) * dpi) };
@@ -59,10 +102,37 @@ let dom: JSDOM | undefined;
 function domWindow() {
   if (!dom) {
     dom = new JSDOM('<!doctype html><html><body></body></html>');
+    // svg2pdf asks every element for its inline style before its attributes, and jsdom builds a
+    // CSS declaration object for each ask (a third of the PDF time). Our SVG has no style
+    // attributes, so this private window's elements answer "no inline style".
+    for (const proto of [dom.window.Element.prototype, dom.window.SVGElement.prototype]) {
+      Object.defineProperty(proto, 'style', { get: () => undefined, configurable: true });
+    }
     const g = globalThis as { document?: unknown };
     if (g.document === undefined) g.document = dom.window.document;
   }
   return dom.window;
+}
+
+/**
+ * jsPDF compresses every stream with a JavaScript deflate that takes ~100 ms for one embedded
+ * font; Node's zlib writes the same format (zlib-wrapped deflate) in a few ms. jsPDF looks its
+ * filter function up on its API object for each stream, so it is wrapped once here (jsPDF is used
+ * by this renderer only).
+ */
+type FilterResult = { data: string; reverseChain: string };
+type FilterApi = { processDataByFilters: (data: string, filters: string | string[]) => FilterResult; __bwFastFlate?: boolean };
+const pdfApi = (jsPDF as unknown as { API: FilterApi }).API;
+if (!pdfApi.__bwFastFlate) {
+  const original = pdfApi.processDataByFilters;
+  pdfApi.processDataByFilters = (data, filters) => {
+    const list = typeof filters === 'string' ? [filters] : filters;
+    if (list.length === 1 && (list[0] === 'FlateEncode' || list[0] === '/FlateEncode')) {
+      return { data: deflateSync(Buffer.from(data, 'latin1')).toString('latin1'), reverseChain: '/FlateDecode' };
+    }
+    return original(data, filters);
+  };
+  pdfApi.__bwFastFlate = true;
 }
 
 const fontBase64 = new Map<FontRole, string>();
@@ -88,7 +158,7 @@ export type PdfMeta = { title: string; subject?: string; created: Date };
 export async function svgToPdf(svg: string, scene: Scene, glyphs: Glyphs, meta: PdfMeta): Promise<Buffer> {
   const window = domWindow();
   const { widthPt: w, heightPt: h } = scene;
-  const doc = new jsPDF({ unit: 'pt', format: [w, h], orientation: w > h ? 'landscape' : 'portrait', compress: true, putOnlyUsedFonts: true });
+  const doc = new jsPDF({ unit: 'pt', format: [w, h], orientation: w > h ? 'landscape' : 'portrait', compress: true, putOnlyUsedFonts: true, precision: 3 });
   const element = new window.DOMParser().parseFromString(svg, 'image/svg+xml').documentElement;
   await svg2pdf(element, doc, { x: 0, y: 0, width: w, height: h });
 

@@ -236,3 +236,82 @@ export function rectPath(x: number, y: number, w: number, h: number, m: Matrix, 
     decimals,
   );
 }
+
+/** A number for compact path data: no leading zero, no trailing zeros ("-0.50" → "-.5"). */
+function short(v: number): string {
+  const s = String(v);
+  return s.startsWith('0.') ? s.slice(1) : s.startsWith('-0.') ? `-${s.slice(2)}` : s;
+}
+
+/** Numbers joined without the spaces a minus sign makes redundant. */
+function joinNumbers(vals: number[]): string {
+  let out = '';
+  for (const v of vals) {
+    const s = short(v);
+    out += out && !s.startsWith('-') ? ` ${s}` : s;
+  }
+  return out;
+}
+
+/**
+ * A shape as relative path data: its first point (unrounded, after `m`) and the rest of the path
+ * as relative commands from there (`body`, starting with the first command after the opening
+ * move). Coordinates are rounded before differencing, so no error accumulates along a contour;
+ * and the same segments through the same matrix give the same `body`, wherever the copy sits.
+ * The matrix should be linear (no translation): place a copy with `placeRelative`.
+ */
+export function relativeBody(segs: readonly Segment[], m: Matrix, decimals = 2): { start: [number, number]; body: string } {
+  const p = 10 ** decimals;
+  const r = (v: number) => Math.round(v * p) / p;
+  const d = (a: number, b: number) => Math.round((a - b) * p) / p;
+  let start: [number, number] | null = null;
+  let [cx, cy] = [0, 0];
+  let [sx, sy] = [0, 0];
+  let body = '';
+  const axisAligned = Math.abs(m[1]) < 1e-12 && Math.abs(m[2]) < 1e-12;
+  for (const s of segs) {
+    if (s.c === 'Z') {
+      body += 'z';
+      [cx, cy] = [sx, sy];
+      continue;
+    }
+    const pts: number[] = [];
+    const coords = s.c === 'A' ? [s.p[5], s.p[6]] : s.p;
+    for (let k = 0; k + 1 < coords.length; k += 2) {
+      const [x, y] = apply(m, coords[k]!, coords[k + 1]!);
+      pts.push(r(x), r(y));
+    }
+    if (!start) {
+      if (s.c !== 'M') return { start: [0, 0], body: '' };
+      start = [pts[0]!, pts[1]!];
+      [cx, cy] = [sx, sy] = [pts[0]!, pts[1]!];
+      continue;
+    }
+    const rel = pts.map((v, k) => d(v, k % 2 === 0 ? cx : cy));
+    if (s.c === 'M') {
+      body += `m${joinNumbers(rel)}`;
+      [sx, sy] = [pts[0]!, pts[1]!];
+    } else if (s.c === 'L') body += `l${joinNumbers(rel)}`;
+    else if (s.c === 'Q') body += `q${joinNumbers(rel)}`;
+    else if (s.c === 'C') body += `c${joinNumbers(rel)}`;
+    else if (s.c === 'A') {
+      if (axisAligned) {
+        const flip = m[0] * m[3] < 0 ? 1 - s.p[4] : s.p[4];
+        body += `a${joinNumbers([r(Math.abs(s.p[0] * m[0])), r(Math.abs(s.p[1] * m[3])), s.p[2], s.p[3] ? 1 : 0, flip ? 1 : 0, ...rel])}`;
+      } else body += `l${joinNumbers(rel)}`;
+    }
+    [cx, cy] = [pts[pts.length - 2]!, pts[pts.length - 1]!];
+  }
+  return { start: start ?? [0, 0], body };
+}
+
+/** A copy of a relative shape with its first point at `start` moved by (dx, dy). */
+export function placeRelative(shape: { start: [number, number]; body: string }, dx: number, dy: number, decimals = 2): string {
+  if (!shape.body) return '';
+  return `M${fmt(shape.start[0] + dx, decimals)} ${fmt(shape.start[1] + dy, decimals)}${shape.body}`;
+}
+
+/** The linear part of a matrix and its translation. */
+export function splitMatrix(m: Matrix): { linear: Matrix; dx: number; dy: number } {
+  return { linear: [m[0], m[1], m[2], m[3], 0, 0], dx: m[4], dy: m[5] };
+}

@@ -8,7 +8,7 @@ import { mathjax } from 'mathjax-full/js/mathjax.js';
 import { SVG } from 'mathjax-full/js/output/svg.js';
 import { labelKey, type FontRole, type Glyphs, type LabelRequest, type Measure, type TextMetrics, type TypesetLabel } from '../../shared/figure/types';
 import { loadFont, type LoadedFont } from './fonts';
-import { fmt, IDENTITY, multiply, parseTransform, pathBox, rectPath, scale, segmentsToPath, transformPath, translate, type Box, type Matrix, type Segment } from './svg-path';
+import { fmt, IDENTITY, multiply, parsePath, parseTransform, pathBox, placeRelative, relativeBody, scale, splitMatrix, translate, type Box, type Matrix, type Segment } from './svg-path';
 
 /**
  * The typesetter: labels (plain text with `$…$` TeX math) become outline paths in points, so every
@@ -103,18 +103,43 @@ function outline(role: FontRole, f: LoadedFont, index: number): Outline {
   return o;
 }
 
+type Shape = { start: [number, number]; body: string };
+
+/** Relative shapes by outline and linear map: a glyph at one size is converted once per process. */
+const shapes = new Map<string, Shape>();
+
+function shapeOf(key: string, segs: () => readonly Segment[], linear: Matrix): Shape {
+  const k = `${key}|${linear.map((v) => fmt(v, 6)).join(',')}`;
+  let sh = shapes.get(k);
+  if (!sh) {
+    sh = relativeBody(segs(), linear);
+    if (shapes.size >= SHAPE_LIMIT) shapes.delete(shapes.keys().next().value!);
+    shapes.set(k, sh);
+  }
+  return sh;
+}
+const SHAPE_LIMIT = 50_000;
+
+/** One path of `segs` through `m`: its first point absolute, the rest relative (see relativeBody). */
+function placed(key: string | null, segs: () => readonly Segment[], m: Matrix): string {
+  const { linear, dx, dy } = splitMatrix(m);
+  const sh = key === null ? relativeBody(segs(), linear) : shapeOf(key, segs, linear);
+  return placeRelative(sh, dx, dy);
+}
+
 /**
  * Glyph outlines of `text` at `size` from `x0` on the baseline (y = 0), in the coordinates of
- * `m`. Each character comes from the font of `role`, else from the other shipped font, else it is
- * left out. No shaping or kerning: labels are short, and opentype.js cannot read these fonts'
- * substitution and positioning tables.
+ * `m`, one path per glyph (identical glyphs give identical path bodies, which the renderers
+ * draw once and reuse). Each character comes from the font of `role`, else from the other
+ * shipped font, else it is left out. No shaping or kerning: labels are short, and opentype.js
+ * cannot read these fonts' substitution and positioning tables.
  */
 function plainRun(text: string, size: number, role: FontRole, x0 = 0, m: Matrix = IDENTITY): Run {
   const fonts: [FontRole, LoadedFont][] = [
     [role, loadFont(role)],
     [OTHER[role], loadFont(OTHER[role])],
   ];
-  const ds: string[] = [];
+  const paths: string[] = [];
   let x = x0;
   let top = 0;
   let bottom = 0;
@@ -134,13 +159,14 @@ function plainRun(text: string, size: number, role: FontRole, x0 = 0, m: Matrix 
     const o = outline(r, f, index);
     const k = size / f.upm;
     if (o.segs.length) {
-      ds.push(segmentsToPath(o.segs, multiply(m, [k, 0, 0, k, x, 0])));
+      const d = placed(`${r}:${index}`, () => o.segs, multiply(m, [k, 0, 0, k, x, 0]));
+      if (d) paths.push(d);
       top = Math.max(top, -o.y1 * k);
       bottom = Math.max(bottom, o.y2 * k);
     }
     x += o.advance * k;
   }
-  return { paths: ds.length ? [ds.join('')] : [], width: x - x0, top, bottom };
+  return { paths, width: x - x0, top, bottom };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -197,6 +223,23 @@ function children(w: Walk, node: LiteElement): LiteElement[] {
   return (w.adaptor.childNodes(node) as LiteElement[]).filter((c) => w.adaptor.kind(c) !== '#text' && w.adaptor.kind(c) !== '#comment');
 }
 
+/** MathJax's glyph outlines, parsed once per process. */
+const mathOutlines = new Map<string, Segment[]>();
+function mathSegments(d: string): Segment[] {
+  let segs = mathOutlines.get(d);
+  if (!segs) {
+    segs = parsePath(d);
+    if (mathOutlines.size >= SHAPE_LIMIT) mathOutlines.delete(mathOutlines.keys().next().value!);
+    mathOutlines.set(d, segs);
+  }
+  return segs;
+}
+
+/** A filled rectangle (local units) through `m`, as one path. */
+function rectPiece(x: number, y: number, w: number, h: number, m: Matrix): string {
+  return placed(null, () => [{ c: 'M', p: [x, y] }, { c: 'L', p: [x + w, y] }, { c: 'L', p: [x + w, y + h] }, { c: 'L', p: [x, y + h] }, { c: 'Z', p: [] }], m);
+}
+
 /** Collects the filled geometry under `node` (MathJax units, y down after the root flip) into paths in points. */
 function walkMath(w: Walk, node: LiteElement, m: Matrix) {
   const kind = w.adaptor.kind(node);
@@ -207,7 +250,9 @@ function walkMath(w: Walk, node: LiteElement, m: Matrix) {
       return;
     case 'path': {
       const d = attr(w, node, 'd');
-      if (d && attr(w, node, 'fill') !== 'none') w.paths.push(transformPath(d, local));
+      if (!d || attr(w, node, 'fill') === 'none') return;
+      const p = placed(`mj:${d}`, () => mathSegments(d), local);
+      if (p) w.paths.push(p);
       return;
     }
     case 'rect': {
@@ -218,12 +263,12 @@ function walkMath(w: Walk, node: LiteElement, m: Matrix) {
         if (sw <= 0) return;
         const h = sw / 2;
         w.paths.push(
-          rectPath(x - h, y - h, width + sw, sw, local) +
-            rectPath(x - h, y + height - h, width + sw, sw, local) +
-            rectPath(x - h, y + h, sw, height - sw, local) +
-            rectPath(x + width - h, y + h, sw, height - sw, local),
+          rectPiece(x - h, y - h, width + sw, sw, local),
+          rectPiece(x - h, y + height - h, width + sw, sw, local),
+          rectPiece(x - h, y + h, sw, height - sw, local),
+          rectPiece(x + width - h, y + h, sw, height - sw, local),
         );
-      } else if (width > 0 && height > 0) w.paths.push(rectPath(x, y, width, height, local));
+      } else if (width > 0 && height > 0) w.paths.push(rectPiece(x, y, width, height, local));
       return;
     }
     case 'line': {
@@ -232,7 +277,7 @@ function walkMath(w: Walk, node: LiteElement, m: Matrix) {
       const len = Math.hypot(x2 - x1, y2 - y1);
       if (sw <= 0 || len === 0) return;
       const [nx, ny] = [(-(y2 - y1) / len) * (sw / 2), ((x2 - x1) / len) * (sw / 2)];
-      w.paths.push(transformPath(`M${x1 + nx} ${y1 + ny}L${x2 + nx} ${y2 + ny}L${x2 - nx} ${y2 - ny}L${x1 - nx} ${y1 - ny}Z`, local));
+      w.paths.push(placed(null, () => parsePath(`M${x1 + nx} ${y1 + ny}L${x2 + nx} ${y2 + ny}L${x2 - nx} ${y2 - ny}L${x1 - nx} ${y1 - ny}Z`), local));
       return;
     }
     case 'svg': {
@@ -259,7 +304,7 @@ function walkMath(w: Walk, node: LiteElement, m: Matrix) {
       const x2 = Math.min(b.x2, vx + vw);
       const y1 = Math.max(b.y1, vy);
       const y2 = Math.min(b.y2, vy + vh);
-      if (x2 > x1 && y2 > y1) w.paths.push(rectPath(x1, y1, x2 - x1, y2 - y1, inner));
+      if (x2 > x1 && y2 > y1) w.paths.push(rectPiece(x1, y1, x2 - x1, y2 - y1, inner));
       return;
     }
     case 'text': {
@@ -292,7 +337,7 @@ function mathRun(tex: string, size: number, role: FontRole, x0: number): MathBox
   const w: Walk = { adaptor, paths: [] };
   const root = multiply(translate(x0, 0), multiply(scale(k), translate(-minX, 0)));
   for (const c of children(w, svg)) walkMath(w, c, root);
-  return { paths: w.paths.length ? [w.paths.join('')] : [], width: vw * k, ascent: Math.max(0, -minY * k), descent: Math.max(0, (vh + minY) * k) };
+  return { paths: w.paths.filter(Boolean), width: vw * k, ascent: Math.max(0, -minY * k), descent: Math.max(0, (vh + minY) * k) };
 }
 
 // ---------------------------------------------------------------------------------------------

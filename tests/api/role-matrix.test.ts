@@ -1,7 +1,7 @@
-import { eq } from 'drizzle-orm';
+import { and, eq } from 'drizzle-orm';
 import request from 'supertest';
 import { createApp } from '@/server/app';
-import { apiTokens, billingAccounts, groups, providerEvents, results, resultVersions, scans } from '@/db/schema';
+import { apiTokens, billingAccounts, figures, groups, groupStyles, providerEvents, resultHues, results, resultVersions, scans } from '@/db/schema';
 import { startQueue } from '@/server/jobs/queue';
 import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
@@ -30,7 +30,7 @@ import {
  * the Express router so that a route added without an entry here fails the suite.
  */
 
-type Method = 'get' | 'post' | 'patch' | 'delete';
+type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
 /** Who may call: anyone; any signed-in user; or members of the group with at least this role. */
 type Access = 'anonymous' | 'signed-in' | GroupRole;
 type CallerKind = GroupRole | 'non-member' | 'anonymous';
@@ -57,6 +57,11 @@ type Entry = {
   mutates: boolean;
   /** Mounted only outside production. */
   devOnly?: boolean;
+  /**
+   * What an anonymous caller gets when it is not 401: the figure routes by id answer 404 to
+   * anyone who may not see the figure, so a private figure's existence is not revealed.
+   */
+  anonymous?: number;
   /** Builds the concrete params and a valid body for one check; `groupId` is the group under test. */
   prepare: (w: World, groupId: string, caller: Caller) => Promise<Prepared>;
 };
@@ -410,6 +415,136 @@ const MATRIX: Entry[] = [
     prepare: async (w, groupId) => ({ params: { groupId, scanId: await sharedScan(w, groupId) } }),
   },
 
+  // --- Figures (figure.write = editor and up; the house style needs curator) ---
+  { method: 'get', path: '/api/groups/:groupId/figures', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/figures',
+    access: 'editor',
+    ok: 201,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const title = uniqueGroupName('Matrix Figure');
+      return {
+        params: { groupId },
+        body: { spec: figureSpec(title, (await sharedResult(w, groupId)).resultId) },
+        effect: async () => (await figuresOf(w, groupId)).some((f) => f.title === title),
+      };
+    },
+  },
+  { method: 'get', path: '/api/groups/:groupId/figures/:figureId', access: 'viewer', ok: 200, mutates: false, prepare: async (w, groupId) => ({ params: { groupId, figureId: await sharedFigure(w, groupId) } }) },
+  {
+    method: 'put',
+    path: '/api/groups/:groupId/figures/:figureId',
+    access: 'editor',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const figureId = await makeFigure(w, groupId);
+      return {
+        params: { groupId, figureId },
+        body: { spec: figureSpec('Saved by the matrix', (await sharedResult(w, groupId)).resultId), note: 'matrix' },
+        effect: async () => (await figuresOf(w, groupId)).some((f) => f.id === figureId && f.lastVersion === 2),
+      };
+    },
+  },
+  {
+    method: 'patch',
+    path: '/api/groups/:groupId/figures/:figureId',
+    access: 'editor',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const figureId = await makeFigure(w, groupId);
+      return { params: { groupId, figureId }, body: { public: true }, effect: async () => (await figuresOf(w, groupId)).some((f) => f.id === figureId && f.isPublic) };
+    },
+  },
+  {
+    method: 'delete',
+    path: '/api/groups/:groupId/figures/:figureId',
+    access: 'editor',
+    ok: 204,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const figureId = await makeFigure(w, groupId);
+      return { params: { groupId, figureId }, effect: async () => !(await figuresOf(w, groupId)).some((f) => f.id === figureId) };
+    },
+  },
+  {
+    method: 'get',
+    path: '/api/groups/:groupId/figures/:figureId/versions/:version',
+    access: 'viewer',
+    ok: 200,
+    mutates: false,
+    prepare: async (w, groupId) => ({ params: { groupId, figureId: await sharedFigure(w, groupId), version: '1' } }),
+  },
+  ...(['duplicate', 'outreach'] as const).map(
+    (action): Entry => ({
+      method: 'post',
+      path: `/api/groups/:groupId/figures/:figureId/${action}`,
+      access: 'editor',
+      ok: 201,
+      mutates: true,
+      prepare: async (w, groupId) => {
+        const figureId = await makeFigure(w, groupId);
+        return { params: { groupId, figureId }, body: {}, effect: async () => (await figuresOf(w, groupId)).some((f) => f.derivedFrom === figureId) };
+      },
+    }),
+  ),
+  { method: 'get', path: '/api/groups/:groupId/style', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    method: 'put',
+    path: '/api/groups/:groupId/style',
+    access: 'curator',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => ({
+      params: { groupId },
+      body: { style: { lineScale: 1.5 } },
+      effect: async () => (await w.t.ctx.db.select().from(groupStyles).where(eq(groupStyles.groupId, groupId))).length === 1,
+    }),
+  },
+  {
+    method: 'put',
+    path: '/api/groups/:groupId/results/:resultId/hue',
+    access: 'editor',
+    ok: 200,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const { resultId } = await makeResult(w.crew.analyst, groupId);
+      return {
+        params: { groupId, resultId },
+        body: { hue: 7 },
+        effect: async () => (await w.t.ctx.db.select().from(resultHues).where(and(eq(resultHues.groupId, groupId), eq(resultHues.resultId, resultId))))[0]?.hue === 7,
+      };
+    },
+  },
+  // By figure id: members of the figure's group; anyone else gets 404 for a private figure
+  // (anonymous callers too) and the public variant of a public one (figures-render.test.ts).
+  ...['render.svg', 'render.pdf', 'render.png', 'export.csv', 'caption.txt'].map(
+    (suffix): Entry => ({
+      method: 'get',
+      path: `/api/figures/:figureId/${suffix}`,
+      access: 'viewer',
+      anonymous: 404,
+      ok: 200,
+      mutates: false,
+      prepare: async (w, groupId) => ({ params: { figureId: await sharedFigure(w, groupId) } }),
+    }),
+  ),
+  { method: 'get', path: '/api/public/figures', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  ...['render.svg', 'render.pdf', 'render.png'].map(
+    (suffix): Entry => ({
+      method: 'get',
+      path: `/api/public/figures/:figureId/${suffix}`,
+      access: 'anonymous',
+      ok: 200,
+      mutates: false,
+      prepare: async (w) => ({ params: { figureId: await publicFigure(w) } }),
+    }),
+  ),
+  { method: 'post', path: '/api/typeset', access: 'signed-in', ok: 200, mutates: false, prepare: async () => ({ params: {}, body: { labels: [{ label: '$\\mu$', size: 8, font: 'sans' }] } }) },
+
   // --- Plans and billing (owners manage billing; every member reads the plan and usage) ---
   { method: 'get', path: '/api/groups/:groupId/plan', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
   { method: 'get', path: '/api/groups/:groupId/invoices', access: 'owner', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
@@ -479,6 +614,36 @@ function sharedScan(w: World, groupId: string) {
   return sharedScans.get(groupId)!;
 }
 
+/** A minimal figure spec pinning one result of the group. */
+const figureSpec = (title: string, resultId: string) => ({ title, theme: 'publication', size: { preset: 'one-column' }, layers: [{ resultId, version: 1 }] });
+async function makeFigure(w: World, groupId: string, isPublic = false): Promise<string> {
+  const res = await w.crew.editor.agent.post(`/api/groups/${groupId}/figures`).send({ spec: figureSpec(uniqueGroupName('Matrix Figure'), (await sharedResult(w, groupId)).resultId), public: isPublic });
+  if (res.status !== 201) throw new Error(`figure creation failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body.id as string;
+}
+async function figuresOf(w: World, groupId: string) {
+  return w.t.ctx.db.select().from(figures).where(eq(figures.groupId, groupId));
+}
+/** One private figure per group for the read-only checks, made on first use. */
+const sharedFigures = new Map<string, Promise<string>>();
+function sharedFigure(w: World, groupId: string) {
+  if (!sharedFigures.has(groupId)) sharedFigures.set(groupId, makeFigure(w, groupId));
+  return sharedFigures.get(groupId)!;
+}
+/** One public figure (in a group of the host) for the public routes. */
+let publicFig: Promise<string> | undefined;
+function publicFigure(w: World) {
+  publicFig ??= (async () => {
+    const groupId = await makeGroup(w.t, w.host);
+    const v = await makeResult(w.host, groupId);
+    await publishVersion(w.host, groupId, v.resultId, 1, true);
+    const res = await w.host.agent.post(`/api/groups/${groupId}/figures`).send({ spec: figureSpec('Matrix public figure', v.resultId), public: true });
+    if (res.status !== 201) throw new Error(`figure creation failed: ${res.status} ${JSON.stringify(res.body)}`);
+    return res.body.id as string;
+  })();
+  return publicFig;
+}
+
 /** Every version in a group, for effect checks. */
 async function versionsOf(w: World, groupId: string) {
   return w.t.ctx.db
@@ -507,7 +672,7 @@ function publicResult(w: World) {
 
 function expectedStatus(entry: Entry, caller: CallerKind): number {
   if (entry.access === 'anonymous') return entry.ok;
-  if (caller === 'anonymous') return 401;
+  if (caller === 'anonymous') return entry.anonymous ?? 401;
   if (entry.access === 'signed-in') return entry.ok;
   if (caller === 'non-member') return 404;
   return ROLE_RANK[caller] >= ROLE_RANK[entry.access] ? entry.ok : 403;

@@ -6,7 +6,7 @@ const sans = (label: string, size = 10): LabelRequest => ({ label, size, font: '
 const one = (label: string, size = 10, font: 'sans' | 'serif' = 'sans') => typesetLabels([{ label, size, font }]).get(labelKey({ label, size, font }))!;
 
 /** Only path commands and numbers: nothing a browser could read as markup or script. */
-const PATH_DATA = /^[MLQCAZ0-9 .,e+-]*$/;
+const PATH_DATA = /^M[-0-9. ]+[mlqcaz0-9 .-]*$/;
 
 describe('label syntax', () => {
   test('plain and math segments in order; \\$ and a lone $ are literal', () => {
@@ -46,15 +46,26 @@ describe('typesetting', () => {
     const math = one("$m_{V'}$");
     const text = one(' [TeV]');
     expect(both.error).toBeUndefined();
-    expect(both.paths).toHaveLength(2);
+    // One path per glyph: m, V, ′ from MathJax, then [, T, e, V, ] from the font.
+    expect(both.paths).toHaveLength(math.paths.length + text.paths.length);
+    expect(math.paths).toHaveLength(3);
     expect(both.width).toBeCloseTo(math.width + text.width, 2);
+    const boxes = both.paths.map((p) => pathBox(p)!);
     // The text part starts where the formula ends.
-    const textBox = pathBox(both.paths[1]!)!;
-    expect(textBox.x1).toBeGreaterThanOrEqual(math.width - 0.01);
+    for (const b of boxes.slice(3)) expect(b.x1).toBeGreaterThanOrEqual(math.width - 0.01);
+    for (const b of boxes.slice(0, 3)) expect(b.x2).toBeLessThanOrEqual(math.width + 0.01);
     // The formula sits on the baseline: m's bottom at y ≈ 0, the subscript below it.
-    const mathBox = pathBox(both.paths[0]!)!;
-    expect(mathBox.y1).toBeLessThan(-5);
-    expect(mathBox.y2).toBeGreaterThan(0.5);
+    expect(Math.max(...boxes.slice(0, 3).map((b) => b.y2))).toBeGreaterThan(0.5);
+    expect(Math.min(...boxes.slice(0, 3).map((b) => b.y1))).toBeLessThan(-5);
+  });
+
+  test('identical glyphs give identical path bodies (renderers draw each once)', () => {
+    const g = one('1010');
+    const body = (p: string) => p.replace(/^M[-0-9. ]+/, '');
+    expect(g.paths).toHaveLength(4);
+    expect(body(g.paths[0]!)).toBe(body(g.paths[2]!));
+    expect(body(g.paths[1]!)).toBe(body(g.paths[3]!));
+    expect(g.paths[0]).not.toBe(g.paths[2]);
   });
 
   test('width grows in proportion to the size', () => {
@@ -118,11 +129,11 @@ describe('typesetting', () => {
     for (const label of ['$\\boxed{x}$', '$\\overline{ab}$', '$\\frac{1}{2}$', '$\\left( \\frac{a}{b} \\right)$', '$\\sqrt{s}$']) {
       const g = one(label);
       expect(g.error).toBeUndefined();
-      expect(g.paths.join('')).toMatch(PATH_DATA);
+      for (const p of g.paths) expect(p).toMatch(PATH_DATA);
       expect(g.width).toBeGreaterThan(2);
     }
     // \overline: the bar stays within the letters' width (the stretched glyph is clipped to its box).
-    const bar = pathBox(one('$\\overline{ab}$').paths[0]!)!;
+    const bar = pathBox(one('$\\overline{ab}$').paths.join(''))!;
     expect(bar.x1).toBeGreaterThanOrEqual(-0.01);
     expect(bar.x2).toBeLessThanOrEqual(one('$\\overline{ab}$').width + 0.01);
   });

@@ -1,0 +1,336 @@
+import { and, asc, count, desc, eq, ilike, inArray, lt, ne, or, sql, type SQL } from 'drizzle-orm';
+import type { FigureSpec, HouseStyle } from '../../shared/schemas/figures';
+import type { Executor } from '../../server/db';
+import { figureLayers, figureRenders, figures, figureVersions, groups, groupStyles, resultHues, results, resultVersions, user } from '../schema';
+
+/**
+ * Data access of figures. Everything is scoped by the group whose membership the route checked,
+ * except `findFigure` (the render routes resolve a figure's group from its id, then check it) and
+ * the public list (public figures only).
+ */
+
+// ---------------------------------------------------------------------------------------------
+// Figures and versions
+
+export type FigureRow = typeof figures.$inferSelect;
+
+export async function insertFigure(db: Executor, f: { groupId: string; title: string; isPublic: boolean; derivedFrom: string | null; createdBy: string | null }) {
+  const [row] = await db.insert(figures).values({ ...f, lastVersion: 0 }).returning();
+  return row!;
+}
+
+/** The figure in the group, locked for the rest of the transaction (version numbers are given out under it). */
+export async function lockFigure(db: Executor, groupId: string, figureId: string): Promise<FigureRow | undefined> {
+  const rows = await db
+    .select()
+    .from(figures)
+    .where(and(eq(figures.id, figureId), eq(figures.groupId, groupId)))
+    .for('update');
+  return rows[0];
+}
+
+/** Gives out the next version number of a locked figure and renames it to the new spec's title. */
+export async function takeNextFigureVersion(db: Executor, figureId: string, title: string): Promise<number> {
+  const [row] = await db
+    .update(figures)
+    .set({ lastVersion: sql`${figures.lastVersion} + 1`, title, updatedAt: sql`now()` })
+    .where(eq(figures.id, figureId))
+    .returning({ n: figures.lastVersion });
+  if (!row) throw new Error(`figure ${figureId} vanished while locked`);
+  return row.n;
+}
+
+export async function insertFigureVersion(
+  db: Executor,
+  v: { figureId: string; version: number; spec: FigureSpec; note: string; createdBy: string | null },
+) {
+  await db.insert(figureVersions).values(v);
+  if (v.spec.layers.length) {
+    await db.insert(figureLayers).values(
+      v.spec.layers.map((l, position) => ({ figureId: v.figureId, figureVersion: v.version, position, resultId: l.resultId, resultVersion: l.version })),
+    );
+  }
+}
+
+export async function getFigureInGroup(db: Executor, groupId: string, figureId: string): Promise<FigureRow | undefined> {
+  const rows = await db
+    .select()
+    .from(figures)
+    .where(and(eq(figures.id, figureId), eq(figures.groupId, groupId)));
+  return rows[0];
+}
+
+/**
+ * A figure by id whatever its group, with the group's name: only for the render and export
+ * routes, which then check the caller's membership in that group (or that the figure is public).
+ */
+export async function findFigure(db: Executor, figureId: string) {
+  const rows = await db
+    .select({ figure: figures, groupName: groups.name })
+    .from(figures)
+    .innerJoin(groups, eq(groups.id, figures.groupId))
+    .where(eq(figures.id, figureId));
+  return rows[0];
+}
+
+const latestTheme = sql<string>`(select ${figureVersions.spec}->>'theme' from ${figureVersions} where ${figureVersions.figureId} = ${figures.id} and ${figureVersions.version} = ${figures.lastVersion})`;
+
+/** The group's figures, most recently changed first, with their latest version's theme. */
+export async function listFigures(db: Executor, groupId: string) {
+  return db
+    .select({
+      id: figures.id,
+      groupId: figures.groupId,
+      title: figures.title,
+      theme: latestTheme,
+      version: figures.lastVersion,
+      isPublic: figures.isPublic,
+      derivedFrom: figures.derivedFrom,
+      updatedAt: figures.updatedAt,
+    })
+    .from(figures)
+    .where(eq(figures.groupId, groupId))
+    .orderBy(desc(figures.updatedAt), asc(figures.id));
+}
+
+/** One version of a figure (the figure's group was checked by the caller), with its author's name. */
+export async function getFigureVersion(db: Executor, figureId: string, version: number) {
+  const rows = await db
+    .select({
+      version: figureVersions.version,
+      spec: figureVersions.spec,
+      note: figureVersions.note,
+      createdBy: user.name,
+      createdAt: figureVersions.createdAt,
+    })
+    .from(figureVersions)
+    .leftJoin(user, eq(user.id, figureVersions.createdBy))
+    .where(and(eq(figureVersions.figureId, figureId), eq(figureVersions.version, version)));
+  return rows[0];
+}
+
+export async function listFigureVersions(db: Executor, figureId: string) {
+  return db
+    .select({ version: figureVersions.version, note: figureVersions.note, createdBy: user.name, createdAt: figureVersions.createdAt })
+    .from(figureVersions)
+    .leftJoin(user, eq(user.id, figureVersions.createdBy))
+    .where(eq(figureVersions.figureId, figureId))
+    .orderBy(desc(figureVersions.version));
+}
+
+export async function setFigurePublic(db: Executor, groupId: string, figureId: string, isPublic: boolean) {
+  await db
+    .update(figures)
+    .set({ isPublic, updatedAt: sql`now()` })
+    .where(and(eq(figures.id, figureId), eq(figures.groupId, groupId)));
+}
+
+export async function deleteFigure(db: Executor, groupId: string, figureId: string) {
+  await db.delete(figures).where(and(eq(figures.id, figureId), eq(figures.groupId, groupId)));
+}
+
+/** `%text%` for ILIKE with the pattern characters of the text escaped. */
+function containsPattern(text: string): string {
+  return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+}
+
+/** Public figures of every group, most recently changed first, paged. */
+export async function listPublicFigures(db: Executor, f: { q?: string; theme?: string; page: number; pageSize: number }) {
+  const conditions: (SQL | undefined)[] = [eq(figures.isPublic, true)];
+  if (f.q) {
+    const p = containsPattern(f.q);
+    conditions.push(or(ilike(figures.title, p), ilike(groups.name, p)));
+  }
+  if (f.theme) conditions.push(sql`${latestTheme} = ${f.theme}`);
+  const where = and(...conditions);
+  const items = await db
+    .select({ id: figures.id, title: figures.title, theme: latestTheme, groupName: groups.name, version: figures.lastVersion, updatedAt: figures.updatedAt })
+    .from(figures)
+    .innerJoin(groups, eq(groups.id, figures.groupId))
+    .where(where)
+    .orderBy(desc(figures.updatedAt), asc(figures.id))
+    .limit(f.pageSize)
+    .offset((f.page - 1) * f.pageSize);
+  const [total] = await db.select({ n: count() }).from(figures).innerJoin(groups, eq(groups.id, figures.groupId)).where(where);
+  return { items, total: total?.n ?? 0 };
+}
+
+// ---------------------------------------------------------------------------------------------
+// The result versions layers pin
+
+export type LayerVersionRow = Awaited<ReturnType<typeof getLayerVersions>>[number];
+
+/**
+ * The result versions `pins` name, with their owner and visibility: the service decides from
+ * these columns what a viewer may draw (the rule is in `layerVisible`, server/services/figures.ts).
+ */
+export async function getLayerVersions(db: Executor, pins: { resultId: string; version: number }[]) {
+  if (!pins.length) return [];
+  const match = or(...pins.map((p) => and(eq(resultVersions.resultId, p.resultId), eq(resultVersions.version, p.version))));
+  return db
+    .select({
+      resultId: resultVersions.resultId,
+      version: resultVersions.version,
+      groupId: results.groupId,
+      isPublic: results.isPublic,
+      slug: results.slug,
+      state: resultVersions.state,
+      updatedAt: resultVersions.updatedAt,
+      title: resultVersions.title,
+      model: resultVersions.model,
+      parameterName: resultVersions.parameterName,
+      parameterUnit: resultVersions.parameterUnit,
+      quantity: resultVersions.quantity,
+      quantityUnit: resultVersions.quantityUnit,
+      sqrtS: resultVersions.sqrtS,
+      luminosity: resultVersions.luminosity,
+      cl: resultVersions.cl,
+      method: resultVersions.method,
+      reference: resultVersions.reference,
+      notes: resultVersions.notes,
+      curve: resultVersions.curve,
+      theory: resultVersions.theory,
+    })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(match);
+}
+
+/**
+ * Per result: the newest published version `groupId` may use (its own results, or other groups'
+ * public ones).
+ */
+export async function latestPublishedVersions(db: Executor, groupId: string, resultIds: string[]): Promise<Map<string, number>> {
+  if (!resultIds.length) return new Map();
+  const rows = await db
+    .select({ resultId: resultVersions.resultId, version: sql<number>`max(${resultVersions.version})`.mapWith(Number) })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(and(inArray(resultVersions.resultId, resultIds), eq(resultVersions.state, 'published'), or(eq(results.groupId, groupId), eq(results.isPublic, true))))
+    .groupBy(resultVersions.resultId);
+  return new Map(rows.map((r) => [r.resultId, r.version]));
+}
+
+// ---------------------------------------------------------------------------------------------
+// Hues and house styles
+
+export async function listHues(db: Executor, groupId: string): Promise<Map<string, number>> {
+  const rows = await db.select({ resultId: resultHues.resultId, hue: resultHues.hue }).from(resultHues).where(eq(resultHues.groupId, groupId));
+  return new Map(rows.map((r) => [r.resultId, r.hue]));
+}
+
+/** Inserts a hue for a result that has none yet (a concurrent insert wins; the caller re-reads). */
+export async function insertHue(db: Executor, groupId: string, resultId: string, hue: number) {
+  await db.insert(resultHues).values({ groupId, resultId, hue }).onConflictDoNothing();
+}
+
+export async function setHue(db: Executor, groupId: string, resultId: string, hue: number) {
+  await db
+    .insert(resultHues)
+    .values({ groupId, resultId, hue })
+    .onConflictDoUpdate({ target: [resultHues.groupId, resultHues.resultId], set: { hue } });
+}
+
+export async function getGroupStyle(db: Executor, groupId: string) {
+  const rows = await db.select({ style: groupStyles.style, updatedAt: groupStyles.updatedAt }).from(groupStyles).where(eq(groupStyles.groupId, groupId));
+  return rows[0];
+}
+
+export async function putGroupStyle(db: Executor, groupId: string, style: HouseStyle) {
+  await db
+    .insert(groupStyles)
+    .values({ groupId, style })
+    .onConflictDoUpdate({ target: groupStyles.groupId, set: { style, updatedAt: sql`now()` } });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Cached renders
+
+export type RenderKey = { figureId: string; figureVersion: number; format: string; sizeKey: string; dataKey: string; variant: string };
+
+const keyMatch = (k: RenderKey) =>
+  and(
+    eq(figureRenders.figureId, k.figureId),
+    eq(figureRenders.figureVersion, k.figureVersion),
+    eq(figureRenders.format, k.format),
+    eq(figureRenders.sizeKey, k.sizeKey),
+    eq(figureRenders.dataKey, k.dataKey),
+    eq(figureRenders.variant, k.variant),
+  );
+
+export async function findRender(db: Executor, k: RenderKey) {
+  const rows = await db
+    .select({ id: figureRenders.id, contentType: figureRenders.contentType, body: figureRenders.body, notes: figureRenders.notes, lastUsedAt: figureRenders.lastUsedAt })
+    .from(figureRenders)
+    .where(keyMatch(k));
+  return rows[0];
+}
+
+/** Marks a render used, at most once a minute (a hit should not cost a write every time). */
+export async function touchRender(db: Executor, id: string) {
+  await db
+    .update(figureRenders)
+    .set({ lastUsedAt: sql`now()` })
+    .where(and(eq(figureRenders.id, id), lt(figureRenders.lastUsedAt, sql`now() - interval '1 minute'`)));
+}
+
+/** Stores a render; false when an identical one was stored meanwhile (nothing was added then). */
+export async function insertRender(db: Executor, k: RenderKey & { contentType: string; body: Buffer; notes: string[] }): Promise<boolean> {
+  const rows = await db
+    .insert(figureRenders)
+    .values({ ...k, byteLength: k.body.length })
+    .onConflictDoNothing()
+    .returning({ id: figureRenders.id });
+  return rows.length > 0;
+}
+
+/**
+ * Deletes renders of the figure that can no longer be asked for: the same version, format, size
+ * and audience drawn from other data (`staleFor`), or of every version but `keepVersion`.
+ * Returns the bytes freed.
+ */
+export async function deleteStaleRenders(db: Executor, figureId: string, opts: { staleFor?: RenderKey; keepVersion?: number }): Promise<number> {
+  const conditions: (SQL | undefined)[] = [eq(figureRenders.figureId, figureId)];
+  if (opts.staleFor) {
+    const k = opts.staleFor;
+    conditions.push(
+      eq(figureRenders.figureVersion, k.figureVersion),
+      eq(figureRenders.format, k.format),
+      eq(figureRenders.sizeKey, k.sizeKey),
+      eq(figureRenders.variant, k.variant),
+      ne(figureRenders.dataKey, k.dataKey),
+    );
+  }
+  if (opts.keepVersion !== undefined) conditions.push(ne(figureRenders.figureVersion, opts.keepVersion));
+  const rows = await db.delete(figureRenders).where(and(...conditions)).returning({ bytes: figureRenders.byteLength });
+  return rows.reduce((s, r) => s + r.bytes, 0);
+}
+
+/** Bytes of the figure's cached renders. */
+export async function renderBytes(db: Executor, figureId: string): Promise<number> {
+  const [row] = await db
+    .select({ n: sql<number>`coalesce(sum(${figureRenders.byteLength}), 0)`.mapWith(Number) })
+    .from(figureRenders)
+    .where(eq(figureRenders.figureId, figureId));
+  return row?.n ?? 0;
+}
+
+/**
+ * Drops the group's cached renders beyond its plan's limits: those unused for `maxAgeDays`, and
+ * all but the `maxRenders` most recently used. Returns the bytes freed.
+ */
+export async function evictRenders(db: Executor, groupId: string, limits: { maxRenders: number; maxAgeDays: number }): Promise<number> {
+  const ofGroup = sql`${figureRenders.figureId} in (select ${figures.id} from ${figures} where ${figures.groupId} = ${groupId})`;
+  const keep = db
+    .select({ id: figureRenders.id })
+    .from(figureRenders)
+    .innerJoin(figures, eq(figures.id, figureRenders.figureId))
+    .where(eq(figures.groupId, groupId))
+    .orderBy(desc(figureRenders.lastUsedAt), desc(figureRenders.createdAt))
+    .limit(limits.maxRenders);
+  const rows = await db
+    .delete(figureRenders)
+    .where(and(ofGroup, or(lt(figureRenders.lastUsedAt, sql`now() - make_interval(days => ${limits.maxAgeDays})`), sql`${figureRenders.id} not in ${keep}`)))
+    .returning({ bytes: figureRenders.byteLength });
+  return rows.reduce((s, r) => s + r.bytes, 0);
+}

@@ -1,0 +1,186 @@
+/**
+ * `npm run bench:figures`: median timings of the figure renderers (targets from the figures issue).
+ * 1. Scene + SVG of a 6-layer figure with 200 points per layer (typesetting warm: the label cache
+ *    is filled by the warm-up, as on a running server), one-column publication size.
+ * 2. PDF of that figure (svg2pdf + jsPDF, fonts embedded).
+ * 3. PNG of that figure at 300 dpi (resvg).
+ * 4. A cached render served: the full HTTP round trip through the app (supertest, a signed-in
+ *    member, a throwaway PostgreSQL), after a first request filled the cache.
+ * `--no-http` skips the database part. All data are invented.
+ */
+import request from 'supertest';
+import { createApp } from '../../server/app';
+import { closeContext, createContext } from '../../server/context';
+import { runMigrations } from '../../server/db';
+import { loadEnv } from '../../server/env';
+import { reuseGlyphs, svgToPdf, svgToPng } from '../../server/figures/render';
+import { buildFigure } from '../../server/figures/scene';
+import { buildScene, collectLabels, resolveFigureTheme, sceneToSvg } from '../../shared/figure';
+import type { FigureLayerData } from '../../shared/figure/types';
+import { measureFromGlyphs, typesetLabels } from '../../server/figures/typeset';
+import { figureSpecSchema, type FigureSpec } from '../../shared/schemas/figures';
+import type { Curve, Theory, VersionMeta } from '../../shared/schemas/results';
+import { ensureDatabase, startCluster, stopCluster, tmpRoot } from '../lib/postgres';
+
+const ORIGIN = 'http://127.0.0.1:8080';
+const LAYERS = 6;
+const POINTS = 200;
+
+const median = (xs: number[]) => {
+  const s = [...xs].sort((a, b) => a - b);
+  const mid = s.length >> 1;
+  return s.length % 2 ? s[mid]! : 0.5 * (s[mid - 1]! + s[mid]!);
+};
+
+async function timeMs(fn: () => unknown, samples: number, warmup = 3): Promise<number> {
+  for (let i = 0; i < warmup; i++) await fn();
+  const times: number[] = [];
+  for (let i = 0; i < samples; i++) {
+    const t0 = performance.now();
+    await fn();
+    times.push(performance.now() - t0);
+  }
+  return median(times);
+}
+
+/** Layer k: a falling limit with bands and a theory curve on 200 points (invented numbers). */
+function layerCurve(k: number): { curve: Curve; theory: Theory } {
+  const x = Array.from({ length: POINTS }, (_, i) => Number((0.5 + (6.5 * i) / (POINTS - 1)).toFixed(4)));
+  const exp = x.map((m) => (40 + 15 * k) * Math.exp(-m / (0.8 + 0.05 * k)));
+  const r = (v: number) => Number(v.toPrecision(5));
+  return {
+    curve: {
+      x,
+      observed: exp.map((e, i) => r(e * Math.exp(0.2 * Math.sin(i / 9 + k)))),
+      expected: { '-2': exp.map((e) => r(e / 1.8)), '-1': exp.map((e) => r(e / 1.35)), '0': exp.map(r), '1': exp.map((e) => r(e * 1.35)), '2': exp.map((e) => r(e * 1.8)) },
+    },
+    theory: { label: `Benchmark model ${k + 1} (NLO)`, x, central: x.map((m) => r(900 * Math.exp(-m / 0.6))), lower: x.map((m) => r(800 * Math.exp(-m / 0.6))), upper: x.map((m) => r(1000 * Math.exp(-m / 0.6))) },
+  };
+}
+
+function meta(k: number): VersionMeta {
+  return {
+    title: `Search ${k + 1} for a heavy resonance V′ → two jets`,
+    model: 'Invented benchmark',
+    parameterName: "m(V')",
+    parameterUnit: 'TeV',
+    quantity: 'xsec',
+    quantityUnit: 'fb',
+    sqrtS: 18,
+    luminosity: 140,
+    cl: 0.95,
+    method: 'asymptotic',
+    reference: `LF-BENCH-${k + 1}`,
+    notes: '',
+  };
+}
+
+const uuid = (k: number) => `00000000-0000-4000-8000-${String(k + 1).padStart(12, '0')}`;
+
+function benchFigure(): { spec: FigureSpec; data: FigureLayerData[] } {
+  const spec = figureSpecSchema.parse({
+    title: 'Benchmark: six overlaid limits',
+    theme: 'publication',
+    size: { preset: 'one-column' },
+    x: { scale: 'linear', label: "$m_{V'}$ [TeV]" },
+    y: { scale: 'log', label: '$\\sigma \\times B$ [fb]' },
+    layers: Array.from({ length: LAYERS }, (_, k) => ({ resultId: uuid(k), version: 1, label: `Channel ${k + 1}` })),
+    annotations: [{ text: 'Lanternfish, invented data', x: 0.05, y: 0.2 }],
+  });
+  const data: FigureLayerData[] = Array.from({ length: LAYERS }, (_, k) => ({ available: true, resultId: uuid(k), version: 1, title: meta(k).title, meta: meta(k), ...layerCurve(k), hue: k }));
+  return { spec, data };
+}
+
+async function httpCached(): Promise<{ ms: number; bytes: number }> {
+  const home = tmpRoot();
+  const cluster = await startCluster({ home, throwaway: true });
+  try {
+    await ensureDatabase(cluster, 'bench');
+    const env = loadEnv({ DATABASE_URL: cluster.url('bench'), NODE_ENV: 'test', PUBLIC_URL: ORIGIN, AUTH_RATE_LIMIT: '1000', WORKERS: '0' });
+    const ctx = createContext(env);
+    await runMigrations(ctx.db);
+    const app = createApp(ctx);
+    const agent = request.agent(app).set('Origin', ORIGIN);
+    await agent.post('/api/auth/sign-up/email').send({ name: 'Bench', email: 'bench@lab.example', password: 'bench-password-1' });
+    const gid = (await agent.post('/api/groups').send({ name: 'Bench group' })).body.id as string;
+    const { curve, theory } = layerCurve(0);
+    const result = await agent.post(`/api/groups/${gid}/results`).send({ meta: meta(0), curve, theory });
+    const fig = await agent.post(`/api/groups/${gid}/figures`).send({ spec: { ...benchFigure().spec, layers: [{ resultId: result.body.resultId, version: 1 }] } });
+    const url = `/api/figures/${fig.body.id}/render.png?dpi=300`;
+    const first = await agent.get(url);
+    if (first.status !== 200 || first.headers['x-render-cache'] !== 'miss') throw new Error(`first render: ${first.status} ${first.headers['x-render-cache']}`);
+    let bytes = 0;
+    const ms = await timeMs(async () => {
+      const res = await agent.get(url);
+      if (res.headers['x-render-cache'] !== 'hit') throw new Error('expected a cache hit');
+      bytes = res.body.length;
+    }, 40, 5);
+    await closeContext(ctx);
+    return { ms, bytes };
+  } finally {
+    stopCluster(cluster);
+  }
+}
+
+async function main() {
+  const { spec, data } = benchFigure();
+  const rows: [string, number, number][] = [];
+  let built = buildFigure(spec, data, null);
+  const svg = () => reuseGlyphs(built.svg);
+
+  rows.push([
+    `scene + SVG, ${LAYERS} layers × ${POINTS} points (typesetting warm)`,
+    await timeMs(() => {
+      built = buildFigure(spec, data, null);
+      return svg();
+    }, 30),
+    30,
+  ]);
+  const finalSvg = svg();
+  rows.push(['PDF (svg2pdf + jsPDF, fonts embedded)', await timeMs(() => svgToPdf(finalSvg, built.scene, built.glyphs, { title: spec.title, created: new Date(0) }), 15), 300]);
+  rows.push(['PNG at 300 dpi (resvg)', await timeMs(() => svgToPng(finalSvg, built.scene.widthPt, 300), 15), 500]);
+  if (!process.argv.includes('--no-http')) {
+    const cached = await httpCached();
+    rows.push([`cached render served (HTTP through the app, PNG 300 dpi, ${Math.round(cached.bytes / 1024)} KB)`, cached.ms, 5]);
+  }
+
+  console.log(`\nFigure renderers (${LAYERS} layers × ${POINTS} points, one-column publication figure; medians)\n`);
+  for (const [what, ms, target] of rows) {
+    console.log(`${what.padEnd(78)} ${ms.toFixed(1).padStart(7)} ms   target ≤ ${target} ms  ${ms <= target ? 'ok' : 'MISSED'}`);
+  }
+  console.log(`\nSVG ${Math.round(finalSvg.length / 1024)} KB (labels as paths, repeated glyphs drawn once)`);
+}
+
+if (process.env.BENCH_PARTS) {
+  // Where the scene + SVG time goes (for profiling).
+  const { spec, data } = benchFigure();
+  const theme = resolveFigureTheme(spec.theme, null);
+  const parts: Record<string, number[]> = { collect: [], typeset: [], scene: [], svg: [], reuse: [] };
+  for (let i = 0; i < 40; i++) {
+    let t = performance.now();
+    const labels = collectLabels(spec, data, theme);
+    parts.collect!.push(performance.now() - t);
+    t = performance.now();
+    const glyphs = typesetLabels(labels);
+    parts.typeset!.push(performance.now() - t);
+    t = performance.now();
+    const scene = buildScene(spec, data, theme, measureFromGlyphs(glyphs));
+    parts.scene!.push(performance.now() - t);
+    t = performance.now();
+    const svg = sceneToSvg(scene, glyphs);
+    parts.svg!.push(performance.now() - t);
+    t = performance.now();
+    reuseGlyphs(svg);
+    parts.reuse!.push(performance.now() - t);
+  }
+  console.log(Object.entries(parts).map(([k, v]) => `${k} ${median(v.slice(5)).toFixed(2)} ms`).join(', '));
+  process.exit(0);
+}
+
+main().then(
+  () => process.exit(0),
+  (e) => {
+    console.error(e);
+    process.exit(1);
+  },
+);

@@ -1,0 +1,522 @@
+import { createHash } from 'node:crypto';
+import type { FigureLayerData } from '../../shared/figure/types';
+import type {
+  FigureDetail,
+  FigureLayerInfo,
+  FigureSummary,
+  FigureVersionDetail,
+  GroupStyleView,
+  PublicFigureListQuery,
+  PublicFigurePage,
+  ResultHueView,
+} from '../../shared/schemas/figure-views';
+import { figureSizeCm, type FigureSpec, type FigureTheme, type HouseStyle, type RenderFormat, type SIZE_PRESETS } from '../../shared/schemas/figures';
+import type { VersionMeta } from '../../shared/schemas/results';
+import { getRole } from '../../db/queries/groups';
+import * as q from '../../db/queries/figures';
+import { addStorage, getResultInGroup } from '../../db/queries/results';
+import type { Ctx } from '../context';
+import type { Executor } from '../db';
+import { pngProblem, reuseGlyphs, svgToPdf, svgToPng } from '../figures/render';
+import { buildFigure, captionOf, csvOf } from '../figures/scene';
+import { labelPlainText } from '../figures/typeset';
+import { AppError, notFound, type ErrorDetail } from '../lib/errors';
+import { assertStorageAvailable, renderCacheLimits } from './plans';
+
+/**
+ * Figures: versioned specs owned by a group, whose layers pin result versions; the data a viewer
+ * may draw; renders (SVG, PDF, PNG) cached by everything that decides their bytes and counted
+ * toward the group's storage.
+ */
+
+export type Actor = { id: string };
+/**
+ * Who a figure is drawn for: `group` = members of the figure's group (its own results in any
+ * state, other groups' public results except drafts); `public` = anyone (public results except
+ * drafts). Renders are cached per audience, never per person.
+ */
+export type Audience = 'group' | 'public';
+
+// ---------------------------------------------------------------------------------------------
+// Visibility of pinned result versions
+
+/** The one rule for what a figure may draw (and what a group may pin). */
+function layerVisible(row: q.LayerVersionRow | undefined, figureGroupId: string, audience: Audience): row is q.LayerVersionRow {
+  if (!row) return false;
+  if (audience === 'group' && row.groupId === figureGroupId) return true;
+  return row.isPublic && row.state !== 'draft';
+}
+
+const pinKey = (resultId: string, version: number) => `${resultId}@${version}`;
+
+async function layerRows(db: Executor, spec: FigureSpec): Promise<Map<string, q.LayerVersionRow>> {
+  const rows = await q.getLayerVersions(
+    db,
+    spec.layers.map((l) => ({ resultId: l.resultId, version: l.version })),
+  );
+  return new Map(rows.map((r) => [pinKey(r.resultId, r.version), r]));
+}
+
+/** 400 naming every layer that pins a result version the group may not use. */
+async function assertLayersUsable(db: Executor, groupId: string, spec: FigureSpec) {
+  const rows = await layerRows(db, spec);
+  const details: ErrorDetail[] = [];
+  spec.layers.forEach((l, i) => {
+    if (!layerVisible(rows.get(pinKey(l.resultId, l.version)), groupId, 'group')) {
+      details.push({
+        field: `spec.layers.${i}`,
+        message: `version ${l.version} of result ${l.resultId} cannot be used by this group: a layer must pin one of the group's own results or a published version of a public result`,
+      });
+    }
+  });
+  if (details.length) throw new AppError(400, 'validation_failed', `Layer ${details[0]!.field.split('.')[2]}: ${details[0]!.message}`, details);
+}
+
+function metaOf(r: q.LayerVersionRow): VersionMeta {
+  return {
+    title: r.title,
+    model: r.model,
+    parameterName: r.parameterName,
+    parameterUnit: r.parameterUnit,
+    quantity: r.quantity,
+    quantityUnit: r.quantityUnit as VersionMeta['quantityUnit'],
+    sqrtS: r.sqrtS,
+    luminosity: r.luminosity,
+    cl: r.cl,
+    method: r.method,
+    reference: r.reference,
+    notes: r.notes,
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Hues
+
+export const HUE_COUNT = 12;
+
+/** Gives every result of the spec that has no hue in the group the next free one (in the caller's transaction). */
+async function assignHues(tx: Executor, groupId: string, spec: FigureSpec) {
+  const hues = await q.listHues(tx, groupId);
+  const used = new Set(hues.values());
+  for (const l of spec.layers) {
+    if (hues.has(l.resultId)) continue;
+    let hue = 0;
+    while (used.has(hue) && hue < HUE_COUNT) hue++;
+    if (hue >= HUE_COUNT) hue = hues.size % HUE_COUNT;
+    await q.insertHue(tx, groupId, l.resultId, hue);
+    hues.set(l.resultId, hue);
+    used.add(hue);
+  }
+}
+
+const hueOf = (spec: FigureSpec, position: number, hues: Map<string, number>) => {
+  const l = spec.layers[position]!;
+  return l.hue ?? hues.get(l.resultId) ?? position % HUE_COUNT;
+};
+
+// ---------------------------------------------------------------------------------------------
+// Reads
+
+function toSummary(f: Awaited<ReturnType<typeof q.listFigures>>[number]): FigureSummary {
+  return { ...f, theme: f.theme as FigureTheme, updatedAt: f.updatedAt.toISOString() };
+}
+
+export async function listInGroup(ctx: Ctx, groupId: string): Promise<{ figures: FigureSummary[] }> {
+  return { figures: (await q.listFigures(ctx.db, groupId)).map(toSummary) };
+}
+
+async function figureOr404(db: Executor, groupId: string, figureId: string) {
+  const f = await q.getFigureInGroup(db, groupId, figureId);
+  if (!f) throw notFound('Figure');
+  return f;
+}
+
+async function layerInfo(db: Executor, groupId: string, spec: FigureSpec): Promise<FigureLayerInfo[]> {
+  const [rows, latest, hues] = await Promise.all([
+    layerRows(db, spec),
+    q.latestPublishedVersions(db, groupId, [...new Set(spec.layers.map((l) => l.resultId))]),
+    q.listHues(db, groupId),
+  ]);
+  return spec.layers.map((l, position) => {
+    const row = rows.get(pinKey(l.resultId, l.version));
+    const available = layerVisible(row, groupId, 'group');
+    const latestPublished = latest.get(l.resultId) ?? null;
+    return {
+      position,
+      resultId: l.resultId,
+      version: l.version,
+      title: available ? row.title : null,
+      state: available ? row.state : null,
+      available,
+      latestPublished,
+      newerPublished: latestPublished !== null && latestPublished > l.version,
+      hue: hueOf(spec, position, hues),
+    };
+  });
+}
+
+async function versionDetail(db: Executor, groupId: string, figureId: string, version: number): Promise<FigureVersionDetail> {
+  const v = await q.getFigureVersion(db, figureId, version);
+  if (!v) throw notFound(`Version ${version} of this figure`);
+  return {
+    figureId,
+    version: v.version,
+    spec: v.spec,
+    note: v.note,
+    createdBy: v.createdBy,
+    createdAt: v.createdAt.toISOString(),
+    layers: await layerInfo(db, groupId, v.spec),
+  };
+}
+
+export async function getDetail(ctx: Ctx, groupId: string, figureId: string): Promise<FigureDetail> {
+  const f = await figureOr404(ctx.db, groupId, figureId);
+  const [latest, versions] = await Promise.all([versionDetail(ctx.db, groupId, figureId, f.lastVersion), q.listFigureVersions(ctx.db, figureId)]);
+  return {
+    id: f.id,
+    groupId: f.groupId,
+    title: f.title,
+    theme: latest.spec.theme,
+    version: f.lastVersion,
+    isPublic: f.isPublic,
+    derivedFrom: f.derivedFrom,
+    updatedAt: f.updatedAt.toISOString(),
+    latest,
+    versions: versions.map((v) => ({ ...v, createdAt: v.createdAt.toISOString() })),
+  };
+}
+
+export async function getVersion(ctx: Ctx, groupId: string, figureId: string, version: number): Promise<FigureVersionDetail> {
+  await figureOr404(ctx.db, groupId, figureId);
+  return versionDetail(ctx.db, groupId, figureId, version);
+}
+
+export async function listPublic(ctx: Ctx, query: Required<Pick<PublicFigureListQuery, 'page' | 'pageSize'>> & PublicFigureListQuery): Promise<PublicFigurePage> {
+  const rows = await q.listPublicFigures(ctx.db, query);
+  return {
+    items: rows.items.map((r) => ({ ...r, theme: r.theme as FigureTheme, updatedAt: r.updatedAt.toISOString() })),
+    total: rows.total,
+    page: query.page,
+    pageSize: query.pageSize,
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Writes
+
+/** A new figure with `spec` as version 1 (in the caller's transaction). */
+async function insertNewFigure(tx: Executor, groupId: string, actor: Actor, spec: FigureSpec, opts: { isPublic: boolean; derivedFrom: string | null; note: string }) {
+  await assertLayersUsable(tx, groupId, spec);
+  const f = await q.insertFigure(tx, { groupId, title: spec.title, isPublic: opts.isPublic, derivedFrom: opts.derivedFrom, createdBy: actor.id });
+  const version = await q.takeNextFigureVersion(tx, f.id, spec.title);
+  await q.insertFigureVersion(tx, { figureId: f.id, version, spec, note: opts.note, createdBy: actor.id });
+  await assignHues(tx, groupId, spec);
+  return f.id;
+}
+
+export async function createFigure(ctx: Ctx, groupId: string, actor: Actor, input: { spec: FigureSpec; public: boolean }): Promise<FigureDetail> {
+  const id = await ctx.db.transaction((tx) => insertNewFigure(tx, groupId, actor, input.spec, { isPublic: input.public, derivedFrom: null, note: '' }));
+  return getDetail(ctx, groupId, id);
+}
+
+/**
+ * Saves `spec` as the figure's next version. Renders of older versions are dropped (they are
+ * re-made on request) so that a figure's storage is what its current version needs.
+ */
+export async function saveFigure(ctx: Ctx, groupId: string, actor: Actor, figureId: string, input: { spec: FigureSpec; note: string }): Promise<FigureDetail> {
+  await ctx.db.transaction(async (tx) => {
+    if (!(await q.lockFigure(tx, groupId, figureId))) throw notFound('Figure');
+    await assertLayersUsable(tx, groupId, input.spec);
+    const version = await q.takeNextFigureVersion(tx, figureId, input.spec.title);
+    await q.insertFigureVersion(tx, { figureId, version, spec: input.spec, note: input.note, createdBy: actor.id });
+    await assignHues(tx, groupId, input.spec);
+    const freed = await q.deleteStaleRenders(tx, figureId, { keepVersion: version });
+    await addStorage(tx, groupId, -freed);
+  });
+  return getDetail(ctx, groupId, figureId);
+}
+
+export async function setVisibility(ctx: Ctx, groupId: string, figureId: string, isPublic: boolean): Promise<FigureDetail> {
+  await figureOr404(ctx.db, groupId, figureId);
+  await q.setFigurePublic(ctx.db, groupId, figureId, isPublic);
+  return getDetail(ctx, groupId, figureId);
+}
+
+/** Deletes a figure with its versions and cached renders, giving their bytes back to the group. */
+export async function deleteFigure(ctx: Ctx, groupId: string, figureId: string): Promise<void> {
+  await ctx.db.transaction(async (tx) => {
+    if (!(await q.lockFigure(tx, groupId, figureId))) throw notFound('Figure');
+    const bytes = await q.renderBytes(tx, figureId);
+    await q.deleteFigure(tx, groupId, figureId);
+    await addStorage(tx, groupId, -bytes);
+  });
+}
+
+const clip = (s: string, max = 200) => (s.length > max ? `${s.slice(0, max - 1)}…` : s);
+
+async function latestSpec(db: Executor, groupId: string, figureId: string) {
+  const f = await figureOr404(db, groupId, figureId);
+  const v = await q.getFigureVersion(db, figureId, f.lastVersion);
+  if (!v) throw notFound('Figure');
+  return { figure: f, spec: v.spec };
+}
+
+export async function duplicateFigure(ctx: Ctx, groupId: string, actor: Actor, figureId: string, input: { title?: string }): Promise<FigureDetail> {
+  const id = await ctx.db.transaction(async (tx) => {
+    const { spec } = await latestSpec(tx, groupId, figureId);
+    const copy: FigureSpec = { ...spec, title: input.title ?? clip(`Copy of ${spec.title}`) };
+    return insertNewFigure(tx, groupId, actor, copy, { isPublic: false, derivedFrom: figureId, note: `Copied from "${spec.title}"` });
+  });
+  return getDetail(ctx, groupId, id);
+}
+
+/**
+ * The plain-language version of a spec for the public: the outreach theme (plain words, big
+ * type) at slide or web size; axis titles left to the theme's plain wording; TeX taken out of
+ * legend entries and notes; one expected band (±1σ, on the bands layer only); no confidence-level
+ * jargon; the excluded region shaded; the energy label kept.
+ */
+export function outreachSpec(spec: FigureSpec, size: 'web' | 'slide', title?: string): FigureSpec {
+  const bandsLayer = spec.layers.length ? (spec.bandsLayer ?? 0) : null;
+  return {
+    ...spec,
+    title: title ?? clip(`${spec.title} (for the public)`),
+    theme: 'outreach',
+    size: { preset: size },
+    x: { ...spec.x, label: '' },
+    y: { ...spec.y, label: '' },
+    layers: spec.layers.map((l, i) => ({
+      ...l,
+      label: clip(labelPlainText(l.label)),
+      show: { ...l.show, band1: i === bandsLayer, band2: false, crossings: false },
+    })),
+    bandsLayer,
+    legend: { position: 'auto', columns: 1 },
+    annotations: spec.annotations.map((a) => ({ ...a, text: clip(labelPlainText(a.text)) })).filter((a) => a.text.length > 0),
+    energyLabel: true,
+    clLabel: false,
+    excludedShading: true,
+  };
+}
+
+export async function outreachFigure(ctx: Ctx, groupId: string, actor: Actor, figureId: string, input: { size: 'web' | 'slide'; title?: string }): Promise<FigureDetail> {
+  const id = await ctx.db.transaction(async (tx) => {
+    const { spec } = await latestSpec(tx, groupId, figureId);
+    return insertNewFigure(tx, groupId, actor, outreachSpec(spec, input.size, input.title), {
+      isPublic: false,
+      derivedFrom: figureId,
+      note: `Plain-language version of "${spec.title}"`,
+    });
+  });
+  return getDetail(ctx, groupId, id);
+}
+
+// ---------------------------------------------------------------------------------------------
+// House style and hues
+
+export async function getStyle(ctx: Ctx, groupId: string): Promise<GroupStyleView> {
+  const s = await q.getGroupStyle(ctx.db, groupId);
+  return { style: s?.style ?? {}, updatedAt: s?.updatedAt.toISOString() ?? null };
+}
+
+export async function putStyle(ctx: Ctx, groupId: string, style: HouseStyle): Promise<GroupStyleView> {
+  await q.putGroupStyle(ctx.db, groupId, style);
+  return getStyle(ctx, groupId);
+}
+
+/** Sets the hue of a result the group may use (its own, or a public one) in all of the group's figures. */
+export async function setResultHue(ctx: Ctx, groupId: string, resultId: string, hue: number): Promise<ResultHueView> {
+  const own = await getResultInGroup(ctx.db, groupId, resultId);
+  if (!own) {
+    const latest = await q.latestPublishedVersions(ctx.db, groupId, [resultId]);
+    if (!latest.has(resultId)) throw notFound('Result');
+  }
+  await q.setHue(ctx.db, groupId, resultId, hue);
+  return { resultId, hue };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Rendering
+
+/** Bumped when the renderers change what they draw, so cached renders of the old look are not served. */
+const RENDER_REVISION = 'r1';
+/** PNG resolutions whose renders are kept; others are made on request and not stored. */
+const CACHED_DPIS = new Set([72, 96, 150, 300, 600]);
+
+export type RenderRequest = { format: RenderFormat; version?: number; size?: keyof typeof SIZE_PRESETS; dpi: number };
+export type RenderOutput = {
+  body: Buffer;
+  contentType: string;
+  fileName: string;
+  /** hit: served from the cache; miss: rendered and stored; uncached: rendered, not stored (size not kept, or no room). */
+  cache: 'hit' | 'miss' | 'uncached';
+  notes: string[];
+};
+
+const CONTENT_TYPES: Record<RenderFormat, string> = { svg: 'image/svg+xml; charset=utf-8', pdf: 'application/pdf', png: 'image/png' };
+const PT_PER_CM = 72 / 2.54;
+
+type Prepared = {
+  figure: q.FigureRow;
+  audience: Audience;
+  version: number;
+  createdAt: Date;
+  spec: FigureSpec;
+  data: FigureLayerData[];
+  style: HouseStyle | null;
+  dataKey: string;
+  sizeKey: string;
+  widthPt: number;
+  heightPt: number;
+};
+
+/**
+ * The figure for this caller: members of its group see it as the group does; anyone else only a
+ * public figure, as the public does. 404 otherwise (a private figure's existence is not revealed).
+ */
+async function figureFor(ctx: Ctx, figureId: string, userId: string | null, publicOnly: boolean): Promise<{ figure: q.FigureRow; audience: Audience }> {
+  const found = await q.findFigure(ctx.db, figureId);
+  if (!found) throw notFound('Figure');
+  if (!publicOnly && userId && (await getRole(ctx.db, found.figure.groupId, userId))) return { figure: found.figure, audience: 'group' };
+  if (found.figure.isPublic) return { figure: found.figure, audience: 'public' };
+  throw notFound('Figure');
+}
+
+/** Everything a render of this figure version for this audience depends on, and its cache key. */
+async function prepare(ctx: Ctx, figure: q.FigureRow, audience: Audience, req: Pick<RenderRequest, 'version' | 'size'>): Promise<Prepared> {
+  const version = req.version ?? figure.lastVersion;
+  const v = await q.getFigureVersion(ctx.db, figure.id, version);
+  if (!v) throw notFound(`Version ${version} of this figure`);
+  const spec: FigureSpec = req.size ? { ...v.spec, size: { preset: req.size } } : v.spec;
+  const [rows, hues, style] = await Promise.all([layerRows(ctx.db, spec), q.listHues(ctx.db, figure.groupId), q.getGroupStyle(ctx.db, figure.groupId)]);
+
+  const keyParts: string[] = [];
+  const data: FigureLayerData[] = spec.layers.map((l, position) => {
+    const row = rows.get(pinKey(l.resultId, l.version));
+    if (!layerVisible(row, figure.groupId, audience)) {
+      keyParts.push('-');
+      return { available: false, resultId: l.resultId, version: l.version };
+    }
+    const hue = hueOf(spec, position, hues);
+    // updatedAt: a pinned draft can still change, and so would the render.
+    keyParts.push(`${row.resultId}@${row.version}.${row.updatedAt.getTime()}.h${hue}`);
+    return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue };
+  });
+  const styleHash = style ? createHash('sha256').update(JSON.stringify(style.style)).digest('hex').slice(0, 12) : 'none';
+  const { widthCm, heightCm } = figureSizeCm(spec);
+  return {
+    figure,
+    audience,
+    version,
+    createdAt: v.createdAt,
+    spec,
+    data,
+    style: style?.style ?? null,
+    dataKey: `${RENDER_REVISION}|${keyParts.join(',')}|style:${styleHash}`,
+    sizeKey: `${spec.size.preset}:${widthCm}x${heightCm}cm`,
+    widthPt: widthCm * PT_PER_CM,
+    heightPt: heightCm * PT_PER_CM,
+  };
+}
+
+function safeFileName(title: string, version: number, ext: string): string {
+  const base = title
+    .normalize('NFKD')
+    .replace(/[^\w\s-]/g, '')
+    .trim()
+    .replace(/\s+/g, '-')
+    .toLowerCase()
+    .slice(0, 80);
+  return `${base || 'figure'}-v${version}.${ext}`;
+}
+
+/** Builds the scene and writes the format (no cache involved). */
+async function renderPrepared(p: Prepared, format: RenderFormat, dpi: number): Promise<{ body: Buffer; notes: string[] }> {
+  const built = buildFigure(p.spec, p.data, p.style);
+  const { scene, glyphs } = built;
+  const svg = reuseGlyphs(built.svg);
+  if (format === 'svg') return { body: Buffer.from(svg, 'utf8'), notes: scene.notes };
+  if (format === 'png') return { body: svgToPng(svg, scene.widthPt, dpi), notes: scene.notes };
+  return { body: await svgToPdf(svg, scene, glyphs, { title: p.spec.title, subject: scene.notes.join(' '), created: p.createdAt }), notes: scene.notes };
+}
+
+/**
+ * Stores a fresh render in the cache and adds its bytes to the figure group's storage, in one
+ * transaction with the quota check. A render of the same version, format, size and audience
+ * drawn from older data is dropped (it can no longer be asked for), and so are renders beyond the
+ * plan's render-cache limits (least recently used first). When the quota refuses, the
+ * render is not kept (the caller still serves it): a render never fails because the cache is full.
+ */
+async function cacheRender(ctx: Ctx, key: q.RenderKey, groupId: string, out: { body: Buffer; contentType: string; notes: string[] }): Promise<'miss' | 'uncached'> {
+  try {
+    await ctx.db.transaction(async (tx) => {
+      await assertStorageAvailable(tx, groupId, out.body.length, 'this render');
+      let freed = await q.deleteStaleRenders(tx, key.figureId, { staleFor: key });
+      const inserted = await q.insertRender(tx, { ...key, ...out });
+      // The plan bounds how many renders a group keeps and for how long an unused one stays.
+      freed += await q.evictRenders(tx, groupId, await renderCacheLimits(tx, groupId));
+      await addStorage(tx, groupId, (inserted ? out.body.length : 0) - freed);
+    });
+    return 'miss';
+  } catch (e) {
+    if (e instanceof AppError && (e.status === 402 || e.status === 413)) return 'uncached';
+    throw e;
+  }
+}
+
+async function renderWithCache(ctx: Ctx, figure: q.FigureRow, audience: Audience, req: RenderRequest): Promise<RenderOutput> {
+  const p = await prepare(ctx, figure, audience, req);
+  if (req.format === 'png') {
+    const problem = pngProblem(p.widthPt, p.heightPt, req.dpi);
+    if (problem) throw new AppError(400, 'validation_failed', `Invalid query: dpi ${problem}`, [{ field: 'query.dpi', message: problem }]);
+  }
+  const contentType = CONTENT_TYPES[req.format];
+  const fileName = safeFileName(p.spec.title, p.version, req.format);
+  const cacheable = req.format !== 'png' || CACHED_DPIS.has(req.dpi);
+  const key: q.RenderKey = {
+    figureId: figure.id,
+    figureVersion: p.version,
+    format: req.format,
+    sizeKey: req.format === 'png' ? `${p.sizeKey}@${req.dpi}dpi` : p.sizeKey,
+    dataKey: p.dataKey,
+    variant: audience,
+  };
+  if (cacheable) {
+    const hit = await q.findRender(ctx.db, key);
+    if (hit) {
+      await q.touchRender(ctx.db, hit.id);
+      return { body: hit.body, contentType, fileName, cache: 'hit', notes: hit.notes };
+    }
+  }
+  const out = await renderPrepared(p, req.format, req.dpi);
+  const cache = cacheable ? await cacheRender(ctx, key, figure.groupId, { ...out, contentType }) : 'uncached';
+  return { ...out, contentType, fileName, cache };
+}
+
+/** `GET /api/figures/:id/render.*`: members see the group's figure; others a public figure as the public does. */
+export async function renderForCaller(ctx: Ctx, figureId: string, userId: string | null, req: RenderRequest): Promise<RenderOutput> {
+  const { figure, audience } = await figureFor(ctx, figureId, userId, false);
+  return renderWithCache(ctx, figure, audience, req);
+}
+
+/** `GET /api/public/figures/:id/render.*`: public figures only, drawn with public results only. */
+export async function renderPublic(ctx: Ctx, figureId: string, req: RenderRequest): Promise<RenderOutput> {
+  const { figure } = await figureFor(ctx, figureId, null, true);
+  return renderWithCache(ctx, figure, 'public', req);
+}
+
+export type ExportFile = { fileName: string; contentType: string; body: string; notes: string[] };
+
+/** The plotted curves as one CSV, or a caption draft naming the results and their references. */
+export async function exportFigure(ctx: Ctx, figureId: string, userId: string | null, kind: 'csv' | 'caption', version?: number): Promise<ExportFile> {
+  const { figure, audience } = await figureFor(ctx, figureId, userId, false);
+  const p = await prepare(ctx, figure, audience, { version });
+  const notes = p.data.some((d) => !d.available) ? hiddenNote(p.data) : [];
+  if (kind === 'csv') return { fileName: safeFileName(p.spec.title, p.version, 'csv'), contentType: 'text/csv; charset=utf-8', body: csvOf(p.spec, p.data), notes };
+  return { fileName: safeFileName(p.spec.title, p.version, 'txt'), contentType: 'text/plain; charset=utf-8', body: captionOf(p.spec, p.data), notes };
+}
+
+function hiddenNote(data: FigureLayerData[]): string[] {
+  const n = data.filter((d) => !d.available).length;
+  return [n === 1 ? '1 layer is left out: you may not see its result' : `${n} layers are left out: you may not see their results`];
+}
