@@ -4,6 +4,7 @@ import { curveToCsv } from '../shared/curves/csv';
 import type { Ctx } from '../server/context';
 import * as resultsService from '../server/services/results';
 import { DEMO_RESULTS } from './demo-results';
+import { seedDemoFigures } from './seed-figures';
 import { addMember, getRole, insertGroup, slugTaken } from './queries/groups';
 import { slugExists } from './queries/results';
 import { groups, user } from './schema';
@@ -13,7 +14,7 @@ import { groups, user } from './schema';
  * experiment on it, with an analysis team, a combination board and an outreach office.
  * Idempotent: a second run finds the demo users and results and changes nothing. The results have
  * their own marker (their fixed link names), so a database seeded before the registry existed
- * gets them added once.
+ * gets them added once; so do the demo figures (db/seed-figures.ts, marked by their titles).
  */
 export const DEMO_PASSWORD = 'halcyon-demo-2026';
 
@@ -47,7 +48,8 @@ export const DEMO_GROUPS: { name: string; description: string; members: [DemoKey
 export async function seedDemo(ctx: Ctx): Promise<{ created: boolean }> {
   const people = await seedDemoPeople(ctx);
   const results = await seedDemoResults(ctx);
-  return { created: people || results > 0 };
+  const figures = await seedDemoFigures(ctx);
+  return { created: people || results > 0 || figures > 0 };
 }
 
 const groupSlug = (name: string) => name.toLowerCase().replace(/[^a-z0-9]+/g, '-');

@@ -29,6 +29,8 @@ import type {
   FigureSummary,
   FigureVersionDetail,
   GroupStyleView,
+  LayerDataRequest,
+  LayerDataResponse,
   PublicFigureListQuery,
   PublicFigurePage,
   ResultHueView,
@@ -201,6 +203,8 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       /** A plain-language copy for the public (outreach theme, one band, plain labels). */
       outreach: (groupId: string, figureId: string, input: { size?: 'web' | 'slide'; title?: string } = {}) =>
         call<FigureDetail>('POST', `/api/groups/${enc(groupId)}/figures/${enc(figureId)}/outreach`, input),
+      /** The composer's preview data: each layer as the group may draw it (unavailable ones say only that), with its hue. */
+      layerData: (groupId: string, input: LayerDataRequest) => call<LayerDataResponse>('POST', `/api/groups/${enc(groupId)}/layer-data`, input),
       /** Labels typeset by the server (paths and metrics by labelKey), for the composer's preview. */
       typeset: (input: TypesetRequest) => call<TypesetResponse>('POST', '/api/typeset', input),
       /** Render address (members of the figure's group, or anyone for a public figure); answers image bytes, not JSON. */

@@ -1,7 +1,7 @@
 import { and, asc, count, desc, eq, ilike, inArray, lt, ne, or, sql, type SQL } from 'drizzle-orm';
 import type { FigureSpec, HouseStyle } from '../../shared/schemas/figures';
 import type { Executor } from '../../server/db';
-import { figureLayers, figureRenders, figures, figureVersions, groups, groupStyles, resultHues, results, resultVersions, user } from '../schema';
+import { figureLayers, figureRenders, figures, figureVersions, groups, groupStyles, memberships, resultHues, results, resultVersions, user } from '../schema';
 
 /**
  * Data access of figures. Everything is scoped by the group whose membership the route checked,
@@ -61,14 +61,15 @@ export async function getFigureInGroup(db: Executor, groupId: string, figureId: 
 }
 
 /**
- * A figure by id whatever its group, with the group's name: only for the render and export
- * routes, which then check the caller's membership in that group (or that the figure is public).
+ * A figure by id whatever its group, with the caller's role in that group (null when they are
+ * not a member or nobody is signed in): only for the render and export routes, which then allow
+ * members, or anyone when the figure is public.
  */
-export async function findFigure(db: Executor, figureId: string) {
+export async function findFigureFor(db: Executor, figureId: string, userId: string | null) {
   const rows = await db
-    .select({ figure: figures, groupName: groups.name })
+    .select({ figure: figures, role: userId ? memberships.role : sql<null>`null` })
     .from(figures)
-    .innerJoin(groups, eq(groups.id, figures.groupId))
+    .leftJoin(memberships, userId ? and(eq(memberships.groupId, figures.groupId), eq(memberships.userId, userId)) : sql`false`)
     .where(eq(figures.id, figureId));
   return rows[0];
 }
@@ -158,6 +159,50 @@ export async function listPublicFigures(db: Executor, f: { q?: string; theme?: s
 // ---------------------------------------------------------------------------------------------
 // The result versions layers pin
 
+const pinMatch = (pins: { resultId: string; version: number }[]) =>
+  or(...pins.map((p) => and(eq(resultVersions.resultId, p.resultId), eq(resultVersions.version, p.version))));
+
+/** What decides whether and how a pinned version may be drawn (no curves: cheap, for cache keys). */
+export async function getLayerKeys(db: Executor, pins: { resultId: string; version: number }[]) {
+  if (!pins.length) return [];
+  return db
+    .select({
+      resultId: resultVersions.resultId,
+      version: resultVersions.version,
+      groupId: results.groupId,
+      isPublic: results.isPublic,
+      state: resultVersions.state,
+      updatedAt: resultVersions.updatedAt,
+    })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(pinMatch(pins));
+}
+export type LayerKeyRow = Awaited<ReturnType<typeof getLayerKeys>>[number];
+
+/**
+ * The same for every layer of one figure version, by position (from the normalised layer table,
+ * so it runs beside the spec's query instead of after it). `groupId` is null when the pinned
+ * version is gone.
+ */
+export async function getVersionLayerKeys(db: Executor, figureId: string, figureVersion: number) {
+  return db
+    .select({
+      position: figureLayers.position,
+      resultId: figureLayers.resultId,
+      version: figureLayers.resultVersion,
+      groupId: results.groupId,
+      isPublic: results.isPublic,
+      state: resultVersions.state,
+      updatedAt: resultVersions.updatedAt,
+    })
+    .from(figureLayers)
+    .leftJoin(resultVersions, and(eq(resultVersions.resultId, figureLayers.resultId), eq(resultVersions.version, figureLayers.resultVersion)))
+    .leftJoin(results, eq(results.id, resultVersions.resultId))
+    .where(and(eq(figureLayers.figureId, figureId), eq(figureLayers.figureVersion, figureVersion)))
+    .orderBy(asc(figureLayers.position));
+}
+
 export type LayerVersionRow = Awaited<ReturnType<typeof getLayerVersions>>[number];
 
 /**
@@ -166,7 +211,6 @@ export type LayerVersionRow = Awaited<ReturnType<typeof getLayerVersions>>[numbe
  */
 export async function getLayerVersions(db: Executor, pins: { resultId: string; version: number }[]) {
   if (!pins.length) return [];
-  const match = or(...pins.map((p) => and(eq(resultVersions.resultId, p.resultId), eq(resultVersions.version, p.version))));
   return db
     .select({
       resultId: resultVersions.resultId,
@@ -193,7 +237,7 @@ export async function getLayerVersions(db: Executor, pins: { resultId: string; v
     })
     .from(resultVersions)
     .innerJoin(results, eq(results.id, resultVersions.resultId))
-    .where(match);
+    .where(pinMatch(pins));
 }
 
 /**

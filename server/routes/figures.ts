@@ -7,6 +7,7 @@ import {
   houseStyleBodySchema,
   hueParams,
   hueSchema,
+  layerDataRequestSchema,
   outreachFigureSchema,
   publicFigureListQuery,
   typesetRequestSchema,
@@ -92,6 +93,10 @@ export function figuresRouter(ctx: Ctx) {
 
   r.post('/groups/:groupId/figures/:figureId/outreach', requireGroup(ctx, 'figure.write'), handle({ params: figureParams, body: outreachFigureSchema }, async ({ params, body }, req, res) => {
     res.status(201).json(await figures.outreachFigure(ctx, params.groupId, actor(req), params.figureId, body));
+  }));
+
+  r.post('/groups/:groupId/layer-data', requireGroup(ctx, 'group.read'), handle({ params: groupParams, body: layerDataRequestSchema }, async ({ params, body }, _req, res) => {
+    res.json(await figures.layerData(ctx, params.groupId, body.layers));
   }));
 
   r.get('/groups/:groupId/style', requireGroup(ctx, 'group.read'), handle({ params: groupParams }, async ({ params }, _req, res) => {

@@ -12,7 +12,6 @@ import type {
 } from '../../shared/schemas/figure-views';
 import { figureSizeCm, type FigureSpec, type FigureTheme, type HouseStyle, type RenderFormat, type SIZE_PRESETS } from '../../shared/schemas/figures';
 import type { VersionMeta } from '../../shared/schemas/results';
-import { getRole } from '../../db/queries/groups';
 import * as q from '../../db/queries/figures';
 import { addStorage, getResultInGroup } from '../../db/queries/results';
 import type { Ctx } from '../context';
@@ -41,10 +40,11 @@ export type Audience = 'group' | 'public';
 // Visibility of pinned result versions
 
 /** The one rule for what a figure may draw (and what a group may pin). */
-function layerVisible(row: q.LayerVersionRow | undefined, figureGroupId: string, audience: Audience): row is q.LayerVersionRow {
-  if (!row) return false;
+type Visibility = { groupId: string | null; isPublic: boolean | null; state: string | null };
+function layerVisible<R extends Visibility>(row: R | undefined, figureGroupId: string, audience: Audience): row is R {
+  if (!row || row.groupId === null) return false;
   if (audience === 'group' && row.groupId === figureGroupId) return true;
-  return row.isPublic && row.state !== 'draft';
+  return row.isPublic === true && row.state !== null && row.state !== 'draft';
 }
 
 const pinKey = (resultId: string, version: number) => `${resultId}@${version}`;
@@ -107,6 +107,21 @@ async function assignHues(tx: Executor, groupId: string, spec: FigureSpec) {
     hues.set(l.resultId, hue);
     used.add(hue);
   }
+}
+
+/** The hues results would get if a figure with them were saved now (assignHues without writing). */
+function withPreviewHues(hues: Map<string, number>, resultIds: string[]): Map<string, number> {
+  const out = new Map(hues);
+  const used = new Set(hues.values());
+  for (const id of resultIds) {
+    if (out.has(id)) continue;
+    let hue = 0;
+    while (used.has(hue) && hue < HUE_COUNT) hue++;
+    if (hue >= HUE_COUNT) hue = out.size % HUE_COUNT;
+    out.set(id, hue);
+    used.add(hue);
+  }
+  return out;
 }
 
 const hueOf = (spec: FigureSpec, position: number, hues: Map<string, number>) => {
@@ -198,6 +213,29 @@ export async function listPublic(ctx: Ctx, query: Required<Pick<PublicFigureList
     total: rows.total,
     page: query.page,
     pageSize: query.pageSize,
+  };
+}
+
+/**
+ * The composer's preview: each layer's data as the group may draw it (`available: false`
+ * otherwise, revealing nothing), with its override hue, the group's hue for the result, or the
+ * hue it would get when saved.
+ */
+export async function layerData(ctx: Ctx, groupId: string, layers: { resultId: string; version: number; hue: number | null }[]): Promise<{ layers: FigureLayerData[] }> {
+  const [rows, hues] = await Promise.all([q.getLayerVersions(ctx.db, layers), q.listHues(ctx.db, groupId)]);
+  const byPin = new Map(rows.map((r) => [pinKey(r.resultId, r.version), r]));
+  const visible = layers.map((l) => {
+    const row = byPin.get(pinKey(l.resultId, l.version));
+    return layerVisible(row, groupId, 'group') ? row : null;
+  });
+  const allHues = withPreviewHues(hues, visible.flatMap((r) => (r ? [r.resultId] : [])));
+  return {
+    layers: layers.map((l, i): FigureLayerData => {
+      const row = visible[i];
+      if (!row) return { available: false, resultId: l.resultId, version: l.version };
+      const hue = l.hue ?? allHues.get(l.resultId) ?? i % HUE_COUNT;
+      return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue };
+    }),
   };
 }
 
@@ -362,7 +400,8 @@ type Prepared = {
   version: number;
   createdAt: Date;
   spec: FigureSpec;
-  data: FigureLayerData[];
+  /** Per layer: its hue when this audience may draw it, else null. */
+  layers: ({ hue: number } | null)[];
   style: HouseStyle | null;
   dataKey: string;
   sizeKey: string;
@@ -375,32 +414,39 @@ type Prepared = {
  * public figure, as the public does. 404 otherwise (a private figure's existence is not revealed).
  */
 async function figureFor(ctx: Ctx, figureId: string, userId: string | null, publicOnly: boolean): Promise<{ figure: q.FigureRow; audience: Audience }> {
-  const found = await q.findFigure(ctx.db, figureId);
+  const found = await q.findFigureFor(ctx.db, figureId, publicOnly ? null : userId);
   if (!found) throw notFound('Figure');
-  if (!publicOnly && userId && (await getRole(ctx.db, found.figure.groupId, userId))) return { figure: found.figure, audience: 'group' };
+  if (found.role) return { figure: found.figure, audience: 'group' };
   if (found.figure.isPublic) return { figure: found.figure, audience: 'public' };
   throw notFound('Figure');
 }
 
-/** Everything a render of this figure version for this audience depends on, and its cache key. */
+/**
+ * Everything a render of this figure version for this audience depends on, and its cache key,
+ * in one round of parallel queries without the curves (a cache hit needs nothing more).
+ */
 async function prepare(ctx: Ctx, figure: q.FigureRow, audience: Audience, req: Pick<RenderRequest, 'version' | 'size'>): Promise<Prepared> {
   const version = req.version ?? figure.lastVersion;
-  const v = await q.getFigureVersion(ctx.db, figure.id, version);
+  const [v, keys, hues, style] = await Promise.all([
+    q.getFigureVersion(ctx.db, figure.id, version),
+    q.getVersionLayerKeys(ctx.db, figure.id, version),
+    q.listHues(ctx.db, figure.groupId),
+    q.getGroupStyle(ctx.db, figure.groupId),
+  ]);
   if (!v) throw notFound(`Version ${version} of this figure`);
   const spec: FigureSpec = req.size ? { ...v.spec, size: { preset: req.size } } : v.spec;
-  const [rows, hues, style] = await Promise.all([layerRows(ctx.db, spec), q.listHues(ctx.db, figure.groupId), q.getGroupStyle(ctx.db, figure.groupId)]);
-
+  const byPosition = new Map(keys.map((k) => [k.position, k]));
   const keyParts: string[] = [];
-  const data: FigureLayerData[] = spec.layers.map((l, position) => {
-    const row = rows.get(pinKey(l.resultId, l.version));
-    if (!layerVisible(row, figure.groupId, audience)) {
+  const layers = spec.layers.map((l, position) => {
+    const k = byPosition.get(position);
+    if (!k || k.resultId !== l.resultId || k.version !== l.version || !layerVisible(k, figure.groupId, audience)) {
       keyParts.push('-');
-      return { available: false, resultId: l.resultId, version: l.version };
+      return null;
     }
     const hue = hueOf(spec, position, hues);
     // updatedAt: a pinned draft can still change, and so would the render.
-    keyParts.push(`${row.resultId}@${row.version}.${row.updatedAt.getTime()}.h${hue}`);
-    return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue };
+    keyParts.push(`${k.resultId}@${k.version}.${k.updatedAt?.getTime() ?? 0}.h${hue}`);
+    return { hue };
   });
   const styleHash = style ? createHash('sha256').update(JSON.stringify(style.style)).digest('hex').slice(0, 12) : 'none';
   const { widthCm, heightCm } = figureSizeCm(spec);
@@ -410,13 +456,29 @@ async function prepare(ctx: Ctx, figure: q.FigureRow, audience: Audience, req: P
     version,
     createdAt: v.createdAt,
     spec,
-    data,
+    layers,
     style: style?.style ?? null,
     dataKey: `${RENDER_REVISION}|${keyParts.join(',')}|style:${styleHash}`,
     sizeKey: `${spec.size.preset}:${widthCm}x${heightCm}cm`,
     widthPt: widthCm * PT_PER_CM,
     heightPt: heightCm * PT_PER_CM,
   };
+}
+
+/**
+ * The layers' data for a prepared render: curves of the layers it may draw, `available: false`
+ * for the others. Visibility is checked again on the loaded rows (the data may have changed
+ * since `prepare`; then the render is drawn from the newer state, which is never more open).
+ */
+async function loadData(ctx: Ctx, p: Prepared): Promise<FigureLayerData[]> {
+  const pins = p.spec.layers.filter((_l, i) => p.layers[i] !== null).map((l) => ({ resultId: l.resultId, version: l.version }));
+  const rows = new Map((await q.getLayerVersions(ctx.db, pins)).map((r) => [pinKey(r.resultId, r.version), r]));
+  return p.spec.layers.map((l, i) => {
+    const row = rows.get(pinKey(l.resultId, l.version));
+    const drawn = p.layers[i];
+    if (!drawn || !layerVisible(row, p.figure.groupId, p.audience)) return { available: false, resultId: l.resultId, version: l.version };
+    return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue: drawn.hue };
+  });
 }
 
 function safeFileName(title: string, version: number, ext: string): string {
@@ -431,8 +493,8 @@ function safeFileName(title: string, version: number, ext: string): string {
 }
 
 /** Builds the scene and writes the format (no cache involved). */
-async function renderPrepared(p: Prepared, format: RenderFormat, dpi: number): Promise<{ body: Buffer; notes: string[] }> {
-  const built = buildFigure(p.spec, p.data, p.style);
+async function renderPrepared(ctx: Ctx, p: Prepared, format: RenderFormat, dpi: number): Promise<{ body: Buffer; notes: string[] }> {
+  const built = buildFigure(p.spec, await loadData(ctx, p), p.style);
   const { scene, glyphs } = built;
   const svg = reuseGlyphs(built.svg);
   if (format === 'svg') return { body: Buffer.from(svg, 'utf8'), notes: scene.notes };
@@ -484,11 +546,11 @@ async function renderWithCache(ctx: Ctx, figure: q.FigureRow, audience: Audience
   if (cacheable) {
     const hit = await q.findRender(ctx.db, key);
     if (hit) {
-      await q.touchRender(ctx.db, hit.id);
+      if (Date.now() - hit.lastUsedAt.getTime() > 60_000) await q.touchRender(ctx.db, hit.id);
       return { body: hit.body, contentType, fileName, cache: 'hit', notes: hit.notes };
     }
   }
-  const out = await renderPrepared(p, req.format, req.dpi);
+  const out = await renderPrepared(ctx, p, req.format, req.dpi);
   const cache = cacheable ? await cacheRender(ctx, key, figure.groupId, { ...out, contentType }) : 'uncached';
   return { ...out, contentType, fileName, cache };
 }
@@ -511,9 +573,10 @@ export type ExportFile = { fileName: string; contentType: string; body: string; 
 export async function exportFigure(ctx: Ctx, figureId: string, userId: string | null, kind: 'csv' | 'caption', version?: number): Promise<ExportFile> {
   const { figure, audience } = await figureFor(ctx, figureId, userId, false);
   const p = await prepare(ctx, figure, audience, { version });
-  const notes = p.data.some((d) => !d.available) ? hiddenNote(p.data) : [];
-  if (kind === 'csv') return { fileName: safeFileName(p.spec.title, p.version, 'csv'), contentType: 'text/csv; charset=utf-8', body: csvOf(p.spec, p.data), notes };
-  return { fileName: safeFileName(p.spec.title, p.version, 'txt'), contentType: 'text/plain; charset=utf-8', body: captionOf(p.spec, p.data), notes };
+  const data = await loadData(ctx, p);
+  const notes = data.some((d) => !d.available) ? hiddenNote(data) : [];
+  if (kind === 'csv') return { fileName: safeFileName(p.spec.title, p.version, 'csv'), contentType: 'text/csv; charset=utf-8', body: csvOf(p.spec, data), notes };
+  return { fileName: safeFileName(p.spec.title, p.version, 'txt'), contentType: 'text/plain; charset=utf-8', body: captionOf(p.spec, data), notes };
 }
 
 function hiddenNote(data: FigureLayerData[]): string[] {

@@ -3,8 +3,8 @@
  * the server answers with, shared by the server (validation) and the app (types).
  */
 import { z } from 'zod';
-import type { TypesetLabel } from '../figure/types';
-import { FIGURE_THEMES, figureParams, houseStyleSchema, type FigureSpec, type FigureTheme, type HouseStyle } from './figures';
+import type { FigureLayerData, TypesetLabel } from '../figure/types';
+import { FIGURE_LIMITS, FIGURE_THEMES, figureParams, houseStyleSchema, layerSchema, type FigureSpec, type FigureTheme, type HouseStyle } from './figures';
 import type { ResultState } from './results';
 
 // ---------------------------------------------------------------------------------------------
@@ -30,6 +30,16 @@ export const typesetRequestSchema = z.object({
 export type TypesetRequest = z.input<typeof typesetRequestSchema>;
 /** Typeset labels by `labelKey` (shared/figure/types.ts). */
 export type TypesetResponse = { glyphs: Record<string, TypesetLabel> };
+
+/**
+ * The composer's preview data: the layers of a spec being edited (saved or not), each loaded as
+ * the group may draw it, with the hue it would get.
+ */
+export const layerDataRequestSchema = z.object({
+  layers: z.array(layerSchema.pick({ resultId: true, version: true, hue: true })).max(FIGURE_LIMITS.maxLayers, `at most ${FIGURE_LIMITS.maxLayers} layers`),
+});
+export type LayerDataRequest = z.input<typeof layerDataRequestSchema>;
+export type LayerDataResponse = { layers: FigureLayerData[] };
 
 export const figureVisibilitySchema = z.object({ public: z.boolean({ error: 'must be true or false' }) });
 

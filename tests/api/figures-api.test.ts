@@ -1,7 +1,7 @@
 import request from 'supertest';
 import type { FigureDetail, FigureVersionDetail, PublicFigurePage, TypesetResponse } from '@/shared/schemas/figure-views';
 import type { FigureSpecInput } from '@/shared/schemas/figures';
-import { labelKey } from '@/shared/figure/types';
+import { labelKey, type FigureLayerData } from '@/shared/figure/types';
 import { startTestApp, type TestApp } from '../helpers/app';
 import { makeGroup, makeGroupWithRoles, makePerson, makeResult, makeVersion, publishVersion, type Crew, type Person } from '../helpers/factories';
 
@@ -175,6 +175,44 @@ describe('layers pin result versions the group may use', () => {
     expect(refused.status).toBe(409);
     expect(refused.body.error.message).not.toContain('Our secret overlay');
     expect(refused.body.error.message).toContain("another group's figure");
+  });
+});
+
+describe("the composer's layer data", () => {
+  test('each layer as the group may draw it; the others say only that they are unavailable', async () => {
+    const fresh = (await makeResult(crew.analyst, groupId, { meta: { title: 'Result without a hue yet' } })).resultId;
+    const res = await crew.viewer.agent.post(`/api/groups/${groupId}/layer-data`).send({
+      layers: [
+        { resultId: ids.own, version: 1 },
+        { resultId: ids.ownDraft, version: 1, hue: 11 },
+        { resultId: ids.otherPublic, version: 1 },
+        { resultId: ids.otherPrivate, version: 1 },
+        { resultId: ids.otherPublic, version: 2 },
+        { resultId: fresh, version: 1 },
+      ],
+    });
+    expect(res.status).toBe(200);
+    const layers = res.body.layers as FigureLayerData[];
+    expect(layers.map((l) => l.available)).toEqual([true, true, true, false, false, true]);
+    expect(layers[3]).toEqual({ available: false, resultId: ids.otherPrivate, version: 1 });
+    expect(layers[4]).toEqual({ available: false, resultId: ids.otherPublic, version: 2 });
+    const [own, draft, pub, , , unhued] = layers as Extract<FigureLayerData, { available: true }>[];
+    expect(own!.title).toBe('Own dijet search');
+    expect(own!.curve.x.length).toBeGreaterThan(2);
+    expect(own!.meta).toMatchObject({ quantity: 'xsec', quantityUnit: 'fb', sqrtS: 18 });
+    expect(draft!.hue).toBe(11);
+    // A result without a hue gets the one it would get when saved: one nobody in the group uses.
+    const detail = (await crew.viewer.agent.get(`/api/groups/${groupId}/figures`)).body;
+    expect(detail.figures.length).toBeGreaterThan(0);
+    expect([own!.hue, pub!.hue]).not.toContain(unhued!.hue);
+  });
+
+  test('outsiders are not found and bad requests name the field', async () => {
+    expect((await other.agent.post(`/api/groups/${groupId}/layer-data`).send({ layers: [] })).status).toBe(404);
+    expect((await request(t.app).post(`/api/groups/${groupId}/layer-data`).send({ layers: [] })).status).toBe(401);
+    const bad = await crew.viewer.agent.post(`/api/groups/${groupId}/layer-data`).send({ layers: [{ resultId: 'x', version: 1 }] });
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.details[0].field).toBe('layers.0.resultId');
   });
 });
 

@@ -52,7 +52,7 @@ async function makeFigure(s: FigureSpecInput, isPublic = false): Promise<FigureD
 
 /** Supertest gives text bodies as text; binary ones need a buffer parser. */
 function binary(res: Response & { body: unknown }): Buffer {
-  return Buffer.isBuffer(res.body) ? res.body : Buffer.from(res.svg ?? '', 'utf8');
+  return Buffer.isBuffer(res.body) ? res.body : Buffer.from(res.text ?? '', 'utf8');
 }
 const buffer = (req: request.Test) =>
   req.buffer(true).parse((res, cb) => {

@@ -491,6 +491,14 @@ const MATRIX: Entry[] = [
       },
     }),
   ),
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/layer-data',
+    access: 'viewer',
+    ok: 200,
+    mutates: false,
+    prepare: async (w, groupId) => ({ params: { groupId }, body: { layers: [{ resultId: (await sharedResult(w, groupId)).resultId, version: 1 }] } }),
+  },
   { method: 'get', path: '/api/groups/:groupId/style', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
   {
     method: 'put',

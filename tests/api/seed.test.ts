@@ -2,7 +2,7 @@ import request from 'supertest';
 import { eq } from 'drizzle-orm';
 import { DEMO_RESULTS } from '@/db/demo-results';
 import { DEMO_GROUPS, DEMO_PASSWORD, DEMO_USERS, seedDemo } from '@/db/seed';
-import { groups, results, user } from '@/db/schema';
+import { figures, groups, results, user } from '@/db/schema';
 import { startTestApp, TEST_ORIGIN, type TestApp } from '../helpers/app';
 import type { ResultPage, ResultVersion } from '@/shared/schemas/results';
 
@@ -80,6 +80,8 @@ test('the demo results cover every state, with bands, theory and derived exclusi
 });
 
 test('a database seeded before the registry (users and groups, no results) gets the results once', async () => {
+  // Nor figures (they pin results, which cannot be deleted under them).
+  await t.ctx.db.delete(figures);
   await t.ctx.db.delete(results);
   await t.ctx.db.update(groups).set({ storageBytes: 0 });
   const before = await counts();

@@ -1,0 +1,128 @@
+import { and, eq } from 'drizzle-orm';
+import { figureSpecSchema, type FigureSpecInput } from '../shared/schemas/figures';
+import type { Ctx } from '../server/context';
+import * as figuresService from '../server/services/figures';
+import { getRole } from './queries/groups';
+import { figures, groups, results, user } from './schema';
+
+/**
+ * Demo figures of the invented Lanternfish groups, made through the figure service (so versions,
+ * layers and hues are what the composer would make): a public figure in each theme and a
+ * group-only one. Each figure's marker is its title in its group: a second run adds nothing.
+ */
+
+type DemoFigure = {
+  group: string;
+  /** Who makes it (must hold a role that may write figures in the group). */
+  author: string;
+  isPublic: boolean;
+  /** The spec, with layers naming results by their link name. */
+  spec: Omit<FigureSpecInput, 'layers'> & { layers: Array<Omit<FigureSpecInput['layers'][number], 'resultId'> & { slug: string }> };
+};
+
+const VPRIME = 'vprime-dijet-18tev-lf7q2';
+const COMBINED = 'combined-vprime-18tev-lfc01';
+const SCALAR = 'scalar-bb-18tev-lf3k8';
+
+export const DEMO_FIGURES: DemoFigure[] = [
+  {
+    // The combination board overlays the dijet search (pinned at its full-data version) on its
+    // combined limit, for the paper: one journal column, serif type.
+    group: 'Lanternfish Combination Board',
+    author: 'cyrus@lanternfish.example',
+    isPublic: true,
+    spec: {
+      title: 'Limits on the V′ benchmark: dijet search and combination',
+      theme: 'publication',
+      size: { preset: 'one-column' },
+      x: { scale: 'linear', min: 1, max: 7, label: "$m_{V'}$ [TeV]" },
+      y: { scale: 'log', min: null, max: null, label: "$\\sigma(pp \\to V') \\times B(V' \\to jj)$ [fb]" },
+      layers: [
+        { slug: COMBINED, version: 1, label: 'Combination' },
+        { slug: VPRIME, version: 2, label: 'Dijet', show: { observed: true, expected: true, band1: false, band2: false, theory: false, theoryBand: false, crossings: false } },
+      ],
+      bandsLayer: 0,
+      legend: { position: 'auto', columns: 1 },
+      annotations: [{ text: 'Lanternfish', x: 0.05, y: 0.95 }],
+    },
+  },
+  {
+    // The dijet team shows what the full 2031 data gained over the first look, for a talk.
+    group: 'Lanternfish Dijet Resonances',
+    author: 'edda@lanternfish.example',
+    isPublic: true,
+    spec: {
+      title: 'V′ → two jets: first look and full 2031 data',
+      theme: 'slides',
+      size: { preset: 'slide' },
+      x: { scale: 'linear', min: null, max: null, label: "$m_{V'}$ [TeV]" },
+      y: { scale: 'log', min: null, max: null, label: '$\\sigma \\times B$ [fb]' },
+      layers: [
+        { slug: VPRIME, version: 2, label: '2031, 140 fb$^{-1}$' },
+        // The same result twice: the older version gets a hue of its own.
+        { slug: VPRIME, version: 1, label: '2030, 60 fb$^{-1}$', hue: 1, show: { observed: true, expected: true, band1: false, band2: false, theory: false, theoryBand: false, crossings: false } },
+      ],
+      bandsLayer: 0,
+      excludedShading: false,
+    },
+  },
+  {
+    // The outreach office's page for the public: plain words, one band, the excluded masses shaded.
+    group: 'Lanternfish Outreach Office',
+    author: 'edda@lanternfish.example',
+    isPublic: true,
+    spec: {
+      title: 'Where a new heavy particle V′ cannot be',
+      theme: 'outreach',
+      size: { preset: 'web' },
+      x: { scale: 'linear', min: null, max: null, label: '' },
+      y: { scale: 'log', min: null, max: null, label: '' },
+      layers: [{ slug: COMBINED, version: 1, label: 'Lanternfish, all searches combined', show: { observed: true, expected: true, band1: true, band2: false, theory: true, theoryBand: true, crossings: false } }],
+      bandsLayer: 0,
+      clLabel: false,
+      excludedShading: true,
+    },
+  },
+  {
+    // Group-only: the scalar search's signal-strength limit (its result is not public).
+    group: 'Lanternfish Dijet Resonances',
+    author: 'anouk@lanternfish.example',
+    isPublic: false,
+    spec: {
+      title: 'Scalar S → bb̄: signal-strength limit (internal)',
+      theme: 'publication',
+      size: { preset: 'two-column' },
+      x: { scale: 'linear', min: null, max: null, label: '$m_S$ [TeV]' },
+      y: { scale: 'log', min: null, max: null, label: '' },
+      layers: [{ slug: SCALAR, version: 1 }],
+      bandsLayer: 0,
+    },
+  },
+];
+
+const groupSlug = (name: string) => name.toLowerCase().replace(/[^a-z0-9]+/g, '-');
+
+/** Adds the demo figures that are missing; skips any whose group, author or results are missing. Returns how many were added. */
+export async function seedDemoFigures(ctx: Ctx): Promise<number> {
+  let added = 0;
+  for (const demo of DEMO_FIGURES) {
+    const [group] = await ctx.db.select({ id: groups.id }).from(groups).where(eq(groups.slug, groupSlug(demo.group)));
+    if (!group) continue;
+    const exists = await ctx.db.select({ id: figures.id }).from(figures).where(and(eq(figures.groupId, group.id), eq(figures.title, demo.spec.title)));
+    if (exists.length) continue;
+    const [author] = await ctx.db.select({ id: user.id }).from(user).where(eq(user.email, demo.author));
+    if (!author || !(await getRole(ctx.db, group.id, author.id))) continue;
+
+    const layers: FigureSpecInput['layers'] = [];
+    for (const { slug, ...layer } of demo.spec.layers) {
+      const [r] = await ctx.db.select({ id: results.id }).from(results).where(eq(results.slug, slug));
+      if (!r) break;
+      layers.push({ ...layer, resultId: r.id });
+    }
+    if (layers.length !== demo.spec.layers.length) continue;
+    const spec = figureSpecSchema.parse({ ...demo.spec, layers });
+    await figuresService.createFigure(ctx, group.id, { id: author.id }, { spec, public: demo.isPublic });
+    added += 1;
+  }
+  return added;
+}
