@@ -1,7 +1,7 @@
 import { and, asc, count, desc, eq, ilike, inArray, lt, ne, or, sql, type SQL } from 'drizzle-orm';
 import type { FigureSpec, HouseStyle } from '../../shared/schemas/figures';
-import type { Executor } from '../../server/db';
-import { figureLayers, figureRenders, figures, figureVersions, groups, groupStyles, memberships, resultHues, results, resultVersions, user } from '../schema';
+import type { Db, Executor } from '../../server/db';
+import { figureLayers, figureRenders, figures, figureVersions, groups, groupStyles, resultHues, results, resultVersions, user } from '../schema';
 
 /**
  * Data access of figures. Everything is scoped by the group whose membership the route checked,
@@ -60,18 +60,78 @@ export async function getFigureInGroup(db: Executor, groupId: string, figureId: 
   return rows[0];
 }
 
+/** Everything a render's cache key depends on, for one figure version, one caller and one format. */
+export type RenderInputs = {
+  figure: { id: string; groupId: string; isPublic: boolean; lastVersion: number };
+  /** The caller's role in the figure's group (null: not a member, or nobody signed in). */
+  role: string | null;
+  /** Null when the version does not exist. */
+  version: { version: number; spec: FigureSpec; createdAt: Date } | null;
+  layers: { position: number; resultId: string; version: number; groupId: string | null; isPublic: boolean | null; state: string | null; updatedAtMs: number | null }[];
+  hues: Record<string, number>;
+  style: HouseStyle | null;
+  /** The cached renders of this version in this format (any size, data or audience; few, as stale ones are dropped). */
+  renders: { id: string; sizeKey: string; dataKey: string; variant: string; notes: string[]; lastUsedAtMs: number }[];
+};
+
+const RENDER_INPUTS_SQL = `
+  select f.id, f.group_id, f.is_public, f.last_version, m.role, v.version, v.spec, v.created_at,
+    (select coalesce(json_agg(json_build_object(
+        'position', fl.position, 'resultId', fl.result_id, 'version', fl.result_version,
+        'groupId', r.group_id, 'isPublic', r.is_public, 'state', rv.state,
+        'updatedAtMs', floor(extract(epoch from rv.updated_at) * 1000)) order by fl.position), '[]'::json)
+      from figure_layers fl
+      left join result_versions rv on rv.result_id = fl.result_id and rv.version = fl.result_version
+      left join results r on r.id = rv.result_id
+      where fl.figure_id = f.id and fl.figure_version = v.version) as layers,
+    (select coalesce(json_object_agg(h.result_id, h.hue), '{}'::json) from result_hues h
+      where h.group_id = f.group_id
+        and h.result_id in (select fl.result_id from figure_layers fl where fl.figure_id = f.id and fl.figure_version = v.version)) as hues,
+    (select s.style from group_styles s where s.group_id = f.group_id) as style,
+    (select coalesce(json_agg(json_build_object(
+        'id', fr.id, 'sizeKey', fr.size_key, 'dataKey', fr.data_key, 'variant', fr.variant, 'notes', fr.notes,
+        'lastUsedAtMs', floor(extract(epoch from fr.last_used_at) * 1000))), '[]'::json)
+      from figure_renders fr
+      where fr.figure_id = f.id and fr.figure_version = v.version and fr.format = $4) as renders
+  from figures f
+  left join memberships m on m.group_id = f.group_id and m.user_id = $3
+  left join figure_versions v on v.figure_id = f.id and v.version = coalesce($2::int, f.last_version)
+  where f.id = $1`;
+
+type RenderInputsRow = {
+  id: string;
+  group_id: string;
+  is_public: boolean;
+  last_version: number;
+  role: string | null;
+  version: number | null;
+  spec: FigureSpec | null;
+  created_at: Date | string | null;
+  layers: RenderInputs['layers'];
+  hues: Record<string, number>;
+  style: HouseStyle | null;
+  renders: RenderInputs['renders'];
+};
+
 /**
- * A figure by id whatever its group, with the caller's role in that group (null when they are
- * not a member or nobody is signed in): only for the render and export routes, which then allow
- * members, or anyone when the figure is public.
+ * The figure, the caller's role, the version's spec, its layers' owners, states and change
+ * times, the group's hues for them, its house style and the cached renders of that version in
+ * that format: one prepared statement, so that serving a cached render costs one round trip.
+ * `version` null = the latest.
  */
-export async function findFigureFor(db: Executor, figureId: string, userId: string | null) {
-  const rows = await db
-    .select({ figure: figures, role: userId ? memberships.role : sql<null>`null` })
-    .from(figures)
-    .leftJoin(memberships, userId ? and(eq(memberships.groupId, figures.groupId), eq(memberships.userId, userId)) : sql`false`)
-    .where(eq(figures.id, figureId));
-  return rows[0];
+export async function getRenderInputs(db: Db, figureId: string, version: number | null, userId: string | null, format: string): Promise<RenderInputs | undefined> {
+  const res = await db.$client.query<RenderInputsRow>({ name: 'bw_figure_render_inputs', text: RENDER_INPUTS_SQL, values: [figureId, version, userId ?? '', format] });
+  const row = res.rows[0];
+  if (!row) return undefined;
+  return {
+    figure: { id: row.id, groupId: row.group_id, isPublic: row.is_public, lastVersion: row.last_version },
+    role: userId ? row.role : null,
+    version: row.version !== null && row.spec ? { version: row.version, spec: row.spec, createdAt: new Date(row.created_at!) } : null,
+    layers: row.layers,
+    hues: row.hues,
+    style: row.style,
+    renders: row.renders,
+  };
 }
 
 const latestTheme = sql<string>`(select ${figureVersions.spec}->>'theme' from ${figureVersions} where ${figureVersions.figureId} = ${figures.id} and ${figureVersions.version} = ${figures.lastVersion})`;
@@ -161,47 +221,6 @@ export async function listPublicFigures(db: Executor, f: { q?: string; theme?: s
 
 const pinMatch = (pins: { resultId: string; version: number }[]) =>
   or(...pins.map((p) => and(eq(resultVersions.resultId, p.resultId), eq(resultVersions.version, p.version))));
-
-/** What decides whether and how a pinned version may be drawn (no curves: cheap, for cache keys). */
-export async function getLayerKeys(db: Executor, pins: { resultId: string; version: number }[]) {
-  if (!pins.length) return [];
-  return db
-    .select({
-      resultId: resultVersions.resultId,
-      version: resultVersions.version,
-      groupId: results.groupId,
-      isPublic: results.isPublic,
-      state: resultVersions.state,
-      updatedAt: resultVersions.updatedAt,
-    })
-    .from(resultVersions)
-    .innerJoin(results, eq(results.id, resultVersions.resultId))
-    .where(pinMatch(pins));
-}
-export type LayerKeyRow = Awaited<ReturnType<typeof getLayerKeys>>[number];
-
-/**
- * The same for every layer of one figure version, by position (from the normalised layer table,
- * so it runs beside the spec's query instead of after it). `groupId` is null when the pinned
- * version is gone.
- */
-export async function getVersionLayerKeys(db: Executor, figureId: string, figureVersion: number) {
-  return db
-    .select({
-      position: figureLayers.position,
-      resultId: figureLayers.resultId,
-      version: figureLayers.resultVersion,
-      groupId: results.groupId,
-      isPublic: results.isPublic,
-      state: resultVersions.state,
-      updatedAt: resultVersions.updatedAt,
-    })
-    .from(figureLayers)
-    .leftJoin(resultVersions, and(eq(resultVersions.resultId, figureLayers.resultId), eq(resultVersions.version, figureLayers.resultVersion)))
-    .leftJoin(results, eq(results.id, resultVersions.resultId))
-    .where(and(eq(figureLayers.figureId, figureId), eq(figureLayers.figureVersion, figureVersion)))
-    .orderBy(asc(figureLayers.position));
-}
 
 export type LayerVersionRow = Awaited<ReturnType<typeof getLayerVersions>>[number];
 
@@ -302,12 +321,10 @@ const keyMatch = (k: RenderKey) =>
     eq(figureRenders.variant, k.variant),
   );
 
-export async function findRender(db: Executor, k: RenderKey) {
-  const rows = await db
-    .select({ id: figureRenders.id, contentType: figureRenders.contentType, body: figureRenders.body, notes: figureRenders.notes, lastUsedAt: figureRenders.lastUsedAt })
-    .from(figureRenders)
-    .where(keyMatch(k));
-  return rows[0];
+/** A cached render's bytes (the service keeps hot bodies in memory by id). */
+export async function getRenderBody(db: Executor, id: string): Promise<Buffer | undefined> {
+  const rows = await db.select({ body: figureRenders.body }).from(figureRenders).where(eq(figureRenders.id, id));
+  return rows[0]?.body;
 }
 
 /** Marks a render used, at most once a minute (a hit should not cost a write every time). */
@@ -318,14 +335,14 @@ export async function touchRender(db: Executor, id: string) {
     .where(and(eq(figureRenders.id, id), lt(figureRenders.lastUsedAt, sql`now() - interval '1 minute'`)));
 }
 
-/** Stores a render; false when an identical one was stored meanwhile (nothing was added then). */
-export async function insertRender(db: Executor, k: RenderKey & { contentType: string; body: Buffer; notes: string[] }): Promise<boolean> {
+/** Stores a render; its id, or undefined when an identical one was stored meanwhile (nothing was added then). */
+export async function insertRender(db: Executor, k: RenderKey & { contentType: string; body: Buffer; notes: string[] }): Promise<string | undefined> {
   const rows = await db
     .insert(figureRenders)
     .values({ ...k, byteLength: k.body.length })
     .onConflictDoNothing()
     .returning({ id: figureRenders.id });
-  return rows.length > 0;
+  return rows[0]?.id;
 }
 
 /**

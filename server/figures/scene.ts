@@ -1,16 +1,20 @@
-import { buildScene, captionDraft, collectLabels, figureCsv, resolveFigureTheme, sceneToSvg, type FigureLayerData, type Glyphs, type Scene } from '../../shared/figure';
+import { buildScene, captionDraft, figureCsv, labelKey, resolveFigureTheme, sceneToSvg, type FigureLayerData, type Glyphs, type LabelRequest, type Scene } from '../../shared/figure';
 import type { FigureSpec, HouseStyle } from '../../shared/schemas/figures';
 import { measureFromGlyphs, typesetLabels } from './typeset';
 
 /**
- * The shared scene builder with the server's typesetter: every label typeset in one batch, the
- * scene laid out with the same metrics, and the SVG written with the same glyphs.
+ * The shared scene builder with the server's typesetter: the scene is laid out with the metrics
+ * of the glyphs it will draw, and the SVG written with those glyphs. The typesetter is
+ * synchronous here, so labels are typeset as the builder measures them (no `collectLabels`
+ * batch, which the app needs for its round trip but which would plan the figure twice here);
+ * any label drawn without being measured is typeset before writing.
  */
 export function buildFigure(spec: FigureSpec, data: FigureLayerData[], style: HouseStyle | null): { scene: Scene; glyphs: Glyphs; svg: string } {
   const theme = resolveFigureTheme(spec.theme, style);
-  const glyphs = typesetLabels(collectLabels(spec, data, theme));
-  // measureFromGlyphs typesets (and adds) any label the batch did not list.
+  const glyphs: Glyphs = new Map();
   const scene = buildScene(spec, data, theme, measureFromGlyphs(glyphs));
+  const unmeasured: LabelRequest[] = scene.items.flatMap((i) => (i.kind === 'text' && !glyphs.has(labelKey(i)) ? [{ label: i.label, size: i.size, font: i.font }] : []));
+  for (const [k, g] of typesetLabels(unmeasured)) glyphs.set(k, g);
   return { scene, glyphs, svg: sceneToSvg(scene, glyphs, { title: spec.title }) };
 }
 

@@ -32,6 +32,9 @@ function sendRender(res: Response, out: figures.RenderOutput, cacheControl: stri
   res.setHeader('Content-Type', out.contentType);
   res.setHeader('Content-Disposition', `inline; filename="${out.fileName}"`);
   res.setHeader('X-Render-Cache', out.cache);
+  // Our own ETag (from the cache key) spares Express hashing the body, and lets a browser that
+  // has the figure get a 304.
+  res.setHeader('ETag', out.etag);
   if (out.notes.length) res.setHeader('X-Figure-Notes', asciiJson(out.notes));
   res.setHeader('Cache-Control', cacheControl);
   // An SVG opened on its own is a document: it may not run or load anything.

@@ -388,6 +388,8 @@ export type RenderOutput = {
   fileName: string;
   /** hit: served from the cache; miss: rendered and stored; uncached: rendered, not stored (size not kept, or no room). */
   cache: 'hit' | 'miss' | 'uncached';
+  /** Names the bytes: renders are deterministic, so the cache key is the body's identity. */
+  etag: string;
   notes: string[];
 };
 
@@ -395,7 +397,7 @@ const CONTENT_TYPES: Record<RenderFormat, string> = { svg: 'image/svg+xml; chars
 const PT_PER_CM = 72 / 2.54;
 
 type Prepared = {
-  figure: q.FigureRow;
+  figure: RenderInputs['figure'];
   audience: Audience;
   version: number;
   createdAt: Date;
@@ -407,35 +409,27 @@ type Prepared = {
   sizeKey: string;
   widthPt: number;
   heightPt: number;
+  /** Cached renders of this version in the requested format. */
+  renders: RenderInputs['renders'];
 };
+type RenderInputs = NonNullable<Awaited<ReturnType<typeof q.getRenderInputs>>>;
 
 /**
- * The figure for this caller: members of its group see it as the group does; anyone else only a
- * public figure, as the public does. 404 otherwise (a private figure's existence is not revealed).
+ * The figure as this caller may see it, with everything its render depends on and the cache
+ * key: members of its group see it as the group does; anyone else only a public figure, as the
+ * public does; 404 otherwise (a private figure's existence is not revealed). One query, without
+ * the curves (a cache hit needs nothing more).
  */
-async function figureFor(ctx: Ctx, figureId: string, userId: string | null, publicOnly: boolean): Promise<{ figure: q.FigureRow; audience: Audience }> {
-  const found = await q.findFigureFor(ctx.db, figureId, publicOnly ? null : userId);
-  if (!found) throw notFound('Figure');
-  if (found.role) return { figure: found.figure, audience: 'group' };
-  if (found.figure.isPublic) return { figure: found.figure, audience: 'public' };
-  throw notFound('Figure');
-}
-
-/**
- * Everything a render of this figure version for this audience depends on, and its cache key,
- * in one round of parallel queries without the curves (a cache hit needs nothing more).
- */
-async function prepare(ctx: Ctx, figure: q.FigureRow, audience: Audience, req: Pick<RenderRequest, 'version' | 'size'>): Promise<Prepared> {
-  const version = req.version ?? figure.lastVersion;
-  const [v, keys, hues, style] = await Promise.all([
-    q.getFigureVersion(ctx.db, figure.id, version),
-    q.getVersionLayerKeys(ctx.db, figure.id, version),
-    q.listHues(ctx.db, figure.groupId),
-    q.getGroupStyle(ctx.db, figure.groupId),
-  ]);
-  if (!v) throw notFound(`Version ${version} of this figure`);
+async function prepare(ctx: Ctx, figureId: string, userId: string | null, publicOnly: boolean, req: Pick<RenderRequest, 'version' | 'size'> & { format: string }): Promise<Prepared> {
+  const inputs = await q.getRenderInputs(ctx.db, figureId, req.version ?? null, publicOnly ? null : userId, req.format);
+  if (!inputs) throw notFound('Figure');
+  const audience: Audience | null = inputs.role ? 'group' : inputs.figure.isPublic ? 'public' : null;
+  if (!audience) throw notFound('Figure');
+  const { figure, version: v } = inputs;
+  if (!v) throw notFound(`Version ${req.version ?? figure.lastVersion} of this figure`);
   const spec: FigureSpec = req.size ? { ...v.spec, size: { preset: req.size } } : v.spec;
-  const byPosition = new Map(keys.map((k) => [k.position, k]));
+  const hues = new Map(Object.entries(inputs.hues));
+  const byPosition = new Map(inputs.layers.map((k) => [k.position, k]));
   const keyParts: string[] = [];
   const layers = spec.layers.map((l, position) => {
     const k = byPosition.get(position);
@@ -444,24 +438,25 @@ async function prepare(ctx: Ctx, figure: q.FigureRow, audience: Audience, req: P
       return null;
     }
     const hue = hueOf(spec, position, hues);
-    // updatedAt: a pinned draft can still change, and so would the render.
-    keyParts.push(`${k.resultId}@${k.version}.${k.updatedAt?.getTime() ?? 0}.h${hue}`);
+    // The version's change time: a pinned draft can still change, and so would the render.
+    keyParts.push(`${k.resultId}@${k.version}.${k.updatedAtMs ?? 0}.h${hue}`);
     return { hue };
   });
-  const styleHash = style ? createHash('sha256').update(JSON.stringify(style.style)).digest('hex').slice(0, 12) : 'none';
+  const styleHash = inputs.style ? createHash('sha256').update(JSON.stringify(inputs.style)).digest('hex').slice(0, 12) : 'none';
   const { widthCm, heightCm } = figureSizeCm(spec);
   return {
     figure,
     audience,
-    version,
+    version: v.version,
     createdAt: v.createdAt,
     spec,
     layers,
-    style: style?.style ?? null,
+    style: inputs.style,
     dataKey: `${RENDER_REVISION}|${keyParts.join(',')}|style:${styleHash}`,
     sizeKey: `${spec.size.preset}:${widthCm}x${heightCm}cm`,
     widthPt: widthCm * PT_PER_CM,
     heightPt: heightCm * PT_PER_CM,
+    renders: inputs.renders,
   };
 }
 
@@ -479,6 +474,34 @@ async function loadData(ctx: Ctx, p: Prepared): Promise<FigureLayerData[]> {
     if (!drawn || !layerVisible(row, p.figure.groupId, p.audience)) return { available: false, resultId: l.resultId, version: l.version };
     return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue: drawn.hue };
   });
+}
+
+/**
+ * Bodies of recently served renders by row id, so a hit does not move the bytes out of
+ * PostgreSQL each time. A row's body never changes, and the row is looked up (and so known to
+ * exist and to match the key) before its body is taken from here. Bounded by bytes.
+ */
+const HOT_BYTES = 64 * 1024 * 1024;
+const hot = new Map<string, Buffer>();
+let hotBytes = 0;
+function remember(id: string, body: Buffer) {
+  if (body.length > HOT_BYTES / 8 || hot.has(id)) return;
+  hot.set(id, body);
+  hotBytes += body.length;
+  for (const [oldId, b] of hot) {
+    if (hotBytes <= HOT_BYTES) break;
+    hot.delete(oldId);
+    hotBytes -= b.length;
+  }
+}
+function recall(id: string): Buffer | undefined {
+  const b = hot.get(id);
+  if (b) {
+    // Most recently used last, so eviction takes the coldest first.
+    hot.delete(id);
+    hot.set(id, b);
+  }
+  return b;
 }
 
 function safeFileName(title: string, version: number, ext: string): string {
@@ -518,6 +541,7 @@ async function cacheRender(ctx: Ctx, key: q.RenderKey, groupId: string, out: { b
       // The plan bounds how many renders a group keeps and for how long an unused one stays.
       freed += await q.evictRenders(tx, groupId, await renderCacheLimits(tx, groupId));
       await addStorage(tx, groupId, (inserted ? out.body.length : 0) - freed);
+      if (inserted) remember(inserted, out.body);
     });
     return 'miss';
   } catch (e) {
@@ -526,8 +550,8 @@ async function cacheRender(ctx: Ctx, key: q.RenderKey, groupId: string, out: { b
   }
 }
 
-async function renderWithCache(ctx: Ctx, figure: q.FigureRow, audience: Audience, req: RenderRequest): Promise<RenderOutput> {
-  const p = await prepare(ctx, figure, audience, req);
+async function renderWithCache(ctx: Ctx, figureId: string, userId: string | null, publicOnly: boolean, req: RenderRequest): Promise<RenderOutput> {
+  const p = await prepare(ctx, figureId, userId, publicOnly, req);
   if (req.format === 'png') {
     const problem = pngProblem(p.widthPt, p.heightPt, req.dpi);
     if (problem) throw new AppError(400, 'validation_failed', `Invalid query: dpi ${problem}`, [{ field: 'query.dpi', message: problem }]);
@@ -536,43 +560,43 @@ async function renderWithCache(ctx: Ctx, figure: q.FigureRow, audience: Audience
   const fileName = safeFileName(p.spec.title, p.version, req.format);
   const cacheable = req.format !== 'png' || CACHED_DPIS.has(req.dpi);
   const key: q.RenderKey = {
-    figureId: figure.id,
+    figureId: p.figure.id,
     figureVersion: p.version,
     format: req.format,
     sizeKey: req.format === 'png' ? `${p.sizeKey}@${req.dpi}dpi` : p.sizeKey,
     dataKey: p.dataKey,
-    variant: audience,
+    variant: p.audience,
   };
+  const etag = `"${createHash('sha1').update(JSON.stringify([key, req.dpi])).digest('base64url').slice(0, 22)}"`;
   if (cacheable) {
-    const hit = await q.findRender(ctx.db, key);
-    if (hit) {
-      if (Date.now() - hit.lastUsedAt.getTime() > 60_000) await q.touchRender(ctx.db, hit.id);
-      return { body: hit.body, contentType, fileName, cache: 'hit', notes: hit.notes };
+    const hit = p.renders.find((r) => r.sizeKey === key.sizeKey && r.dataKey === key.dataKey && r.variant === key.variant);
+    const body = hit && (recall(hit.id) ?? (await q.getRenderBody(ctx.db, hit.id)));
+    if (hit && body) {
+      remember(hit.id, body);
+      if (Date.now() - hit.lastUsedAtMs > 60_000) await q.touchRender(ctx.db, hit.id);
+      return { body, contentType, fileName, cache: 'hit', notes: hit.notes, etag };
     }
   }
   const out = await renderPrepared(ctx, p, req.format, req.dpi);
-  const cache = cacheable ? await cacheRender(ctx, key, figure.groupId, { ...out, contentType }) : 'uncached';
-  return { ...out, contentType, fileName, cache };
+  const cache = cacheable ? await cacheRender(ctx, key, p.figure.groupId, { ...out, contentType }) : 'uncached';
+  return { ...out, contentType, fileName, cache, etag };
 }
 
 /** `GET /api/figures/:id/render.*`: members see the group's figure; others a public figure as the public does. */
 export async function renderForCaller(ctx: Ctx, figureId: string, userId: string | null, req: RenderRequest): Promise<RenderOutput> {
-  const { figure, audience } = await figureFor(ctx, figureId, userId, false);
-  return renderWithCache(ctx, figure, audience, req);
+  return renderWithCache(ctx, figureId, userId, false, req);
 }
 
 /** `GET /api/public/figures/:id/render.*`: public figures only, drawn with public results only. */
 export async function renderPublic(ctx: Ctx, figureId: string, req: RenderRequest): Promise<RenderOutput> {
-  const { figure } = await figureFor(ctx, figureId, null, true);
-  return renderWithCache(ctx, figure, 'public', req);
+  return renderWithCache(ctx, figureId, null, true, req);
 }
 
 export type ExportFile = { fileName: string; contentType: string; body: string; notes: string[] };
 
 /** The plotted curves as one CSV, or a caption draft naming the results and their references. */
 export async function exportFigure(ctx: Ctx, figureId: string, userId: string | null, kind: 'csv' | 'caption', version?: number): Promise<ExportFile> {
-  const { figure, audience } = await figureFor(ctx, figureId, userId, false);
-  const p = await prepare(ctx, figure, audience, { version });
+  const p = await prepare(ctx, figureId, userId, false, { version, format: 'csv' });
   const data = await loadData(ctx, p);
   const notes = data.some((d) => !d.available) ? hiddenNote(data) : [];
   if (kind === 'csv') return { fileName: safeFileName(p.spec.title, p.version, 'csv'), contentType: 'text/csv; charset=utf-8', body: csvOf(p.spec, data), notes };
