@@ -577,10 +577,22 @@ async function renderWithCache(ctx: Ctx, figureId: string, userId: string | null
       return { body, contentType, fileName, cache: 'hit', notes: hit.notes, etag };
     }
   }
-  const out = await renderPrepared(ctx, p, req.format, req.dpi);
-  const cache = cacheable ? await cacheRender(ctx, key, p.figure.groupId, { ...out, contentType }) : 'uncached';
-  return { ...out, contentType, fileName, cache, etag };
+  // Identical requests that arrive while this one renders wait for it instead of rendering again.
+  const flightKey = `${etag}|${p.figure.groupId}`;
+  let flight = inFlight.get(flightKey);
+  if (!flight) {
+    flight = (async () => {
+      const out = await renderPrepared(ctx, p, req.format, req.dpi);
+      const cache = cacheable ? await cacheRender(ctx, key, p.figure.groupId, { ...out, contentType }) : 'uncached';
+      return { ...out, cache };
+    })().finally(() => inFlight.delete(flightKey));
+    inFlight.set(flightKey, flight);
+  }
+  const out = await flight;
+  return { ...out, contentType, fileName, etag };
 }
+
+const inFlight = new Map<string, Promise<{ body: Buffer; notes: string[]; cache: RenderOutput['cache'] }>>();
 
 /** `GET /api/figures/:id/render.*`: members see the group's figure; others a public figure as the public does. */
 export async function renderForCaller(ctx: Ctx, figureId: string, userId: string | null, req: RenderRequest): Promise<RenderOutput> {

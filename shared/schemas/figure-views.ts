@@ -11,7 +11,7 @@ import type { ResultState } from './results';
 // Requests
 
 /** One label of the typeset route: the same limits as labels in a spec, sizes a figure can use. */
-export const TYPESET_LIMITS = { maxLabels: 500, maxChars: 200, minSize: 3, maxSize: 72 } as const;
+export const TYPESET_LIMITS = { maxLabels: 500, maxChars: 200, maxTotalChars: 20_000, minSize: 3, maxSize: 72 } as const;
 
 export const typesetRequestSchema = z.object({
   labels: z
@@ -25,7 +25,8 @@ export const typesetRequestSchema = z.object({
         font: z.enum(['sans', 'serif'], { error: 'must be "sans" or "serif"' }),
       }),
     )
-    .max(TYPESET_LIMITS.maxLabels, `at most ${TYPESET_LIMITS.maxLabels} labels per request`),
+    .max(TYPESET_LIMITS.maxLabels, `at most ${TYPESET_LIMITS.maxLabels} labels per request`)
+    .refine((ls) => ls.reduce((n, l) => n + l.label.length, 0) <= TYPESET_LIMITS.maxTotalChars, `at most ${TYPESET_LIMITS.maxTotalChars} characters of labels per request`),
 });
 export type TypesetRequest = z.input<typeof typesetRequestSchema>;
 /** Typeset labels by `labelKey` (shared/figure/types.ts). */

@@ -322,6 +322,7 @@ describe('the typesetter route', () => {
       [many, 'labels'],
       [[{ label: 'x'.repeat(201), size: 8, font: 'sans' }], 'labels.0.label'],
       [[{ label: 'x', size: 2, font: 'sans' }], 'labels.0.size'],
+      [Array.from({ length: 101 }, () => ({ label: 'x'.repeat(200), size: 8, font: 'sans' })), 'labels'],
       [[{ label: 'x', size: 8, font: 'comic' }], 'labels.0.font'],
     ];
     for (const [labels, field] of cases) {

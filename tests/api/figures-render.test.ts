@@ -231,6 +231,18 @@ describe('render cache and storage', () => {
     expect((await renderRows(fig.id)).length).toBe(2);
   });
 
+  test('a browser that has the render gets 304; identical requests at once store one render', async () => {
+    const fig = await makeFigure(spec([{ resultId: r.P, version: 1 }]));
+    const url = `/api/figures/${fig.id}/render.pdf`;
+    const answers = await Promise.all([1, 2, 3].map(() => buffer(crew.viewer.agent.get(url))));
+    expect(answers.map((a) => a.status)).toEqual([200, 200, 200]);
+    expect(await renderRows(fig.id)).toHaveLength(1);
+    const etag = answers[0]!.headers.etag as string;
+    expect(etag).toMatch(/^"[\w-]+"$/);
+    const again = await crew.viewer.agent.get(url).set('If-None-Match', etag);
+    expect(again.status).toBe(304);
+  });
+
   test('a new figure version renders anew and drops the old version’s renders', async () => {
     const fig = await makeFigure(spec([{ resultId: r.P, version: 1 }]));
     const before = await storage();
