@@ -1,0 +1,2 @@
+import { FiguresScreen } from '@/components/screens/figures-screen';
+export default FiguresScreen;

@@ -1,0 +1,2 @@
+import { FigureComposerScreen } from '@/components/screens/figure-composer-screen';
+export default FigureComposerScreen;

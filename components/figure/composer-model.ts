@@ -1,0 +1,63 @@
+/**
+ * The composer's editing rules as pure functions over a figure spec, with an undo history.
+ * Tested in tests/unit/composer-model.test.ts.
+ */
+import type { FigureSpec, LayerParts, LayerSpec } from '@/shared/schemas/figures';
+
+export type History = { past: FigureSpec[]; present: FigureSpec; future: FigureSpec[] };
+export const UNDO_DEPTH = 30;
+
+export function startHistory(spec: FigureSpec): History {
+  return { past: [], present: spec, future: [] };
+}
+
+/** Applies an edit; consecutive edits of the same text field (same `mergeKey`) make one undo step. */
+export function edit(h: History, next: FigureSpec, mergeKey?: string, lastKey?: string): History {
+  if (next === h.present) return h;
+  if (mergeKey && mergeKey === lastKey && h.past.length > 0) return { past: h.past, present: next, future: [] };
+  return { past: [...h.past, h.present].slice(-UNDO_DEPTH), present: next, future: [] };
+}
+
+export function undo(h: History): History {
+  const prev = h.past[h.past.length - 1];
+  if (!prev) return h;
+  return { past: h.past.slice(0, -1), present: prev, future: [h.present, ...h.future] };
+}
+
+export function redo(h: History): History {
+  const next = h.future[0];
+  if (!next) return h;
+  return { past: [...h.past, h.present], present: next, future: h.future.slice(1) };
+}
+
+const DEFAULT_PARTS: LayerParts = { observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false };
+
+/** Adds a result version as the last layer (at most 12; the same version twice is refused). */
+export function addLayer(spec: FigureSpec, resultId: string, version: number): FigureSpec {
+  if (spec.layers.length >= 12 || spec.layers.some((l) => l.resultId === resultId && l.version === version)) return spec;
+  const layer: LayerSpec = { resultId, version, label: '', show: { ...DEFAULT_PARTS }, hue: null };
+  return { ...spec, layers: [...spec.layers, layer], bandsLayer: spec.layers.length === 0 ? 0 : spec.bandsLayer };
+}
+
+/** Removes a layer; the bands stay with their layer (or go to the first when it was removed). */
+export function removeLayer(spec: FigureSpec, index: number): FigureSpec {
+  const layers = spec.layers.filter((_, i) => i !== index);
+  let bands = spec.bandsLayer;
+  if (bands !== null) bands = bands === index ? (layers.length ? 0 : null) : bands > index ? bands - 1 : bands;
+  return { ...spec, layers, bandsLayer: bands };
+}
+
+/** Moves a layer up (−1) or down (+1); the bands follow the layer that carries them. */
+export function moveLayer(spec: FigureSpec, index: number, delta: -1 | 1): FigureSpec {
+  const to = index + delta;
+  if (to < 0 || to >= spec.layers.length) return spec;
+  const layers = [...spec.layers];
+  [layers[index], layers[to]] = [layers[to]!, layers[index]!];
+  const b = spec.bandsLayer;
+  const bandsLayer = b === index ? to : b === to ? index : b;
+  return { ...spec, layers, bandsLayer };
+}
+
+export function updateLayer(spec: FigureSpec, index: number, patch: Partial<LayerSpec>): FigureSpec {
+  return { ...spec, layers: spec.layers.map((l, i) => (i === index ? { ...l, ...patch, show: { ...l.show, ...(patch.show ?? {}) } } : l)) };
+}

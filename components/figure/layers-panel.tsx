@@ -1,0 +1,118 @@
+import { useState } from 'react';
+import { StyleSheet, View } from 'react-native';
+import type { FigureLayerInfo } from '@/shared/schemas/figure-views';
+import type { FigureLayerData } from '@/shared/figure/types';
+import type { FigureSpec, LayerParts } from '@/shared/schemas/figures';
+import { useQuery } from '@tanstack/react-query';
+import { api } from '@/hooks/api';
+import { useDebounced } from '@/hooks/use-debounced';
+import { colors, radii, space } from '@/themes/tokens';
+import { Banner } from '../ui/banner';
+import { Button } from '../ui/button';
+import { Checkbox } from '../ui/checkbox';
+import { errorMessage } from '../ui/form';
+import { Loading } from '../ui/loading';
+import { Text } from '../ui/text';
+import { TextField } from '../ui/text-field';
+import { addLayer, moveLayer, removeLayer, updateLayer } from './composer-model';
+
+const PART_LABELS: [keyof LayerParts, string][] = [
+  ['observed', 'Observed'],
+  ['expected', 'Expected median'],
+  ['band1', '±1σ band'],
+  ['band2', '±2σ band'],
+  ['theory', 'Theory'],
+  ['theoryBand', 'Theory band'],
+  ['crossings', 'Crossing markers'],
+];
+
+/** Search the registry and add a result (its newest version the group may draw) as a layer. */
+function ResultPicker({ onAdd }: { onAdd: (resultId: string, version: number) => void }) {
+  const [q, setQ] = useState('');
+  const query = useDebounced(q, 300);
+  const found = useQuery({ queryKey: ['results', 'picker', query], queryFn: () => api.results.list({ q: query || undefined, pageSize: 8 }) });
+  return (
+    <View style={styles.picker}>
+      <TextField label="Find results to add" value={q} onChangeText={setQ} placeholder="Title, model or reference" />
+      {found.isPending ? <Loading label="Searching…" /> : null}
+      {found.error ? <Banner tone="error" message={errorMessage(found.error)!} /> : null}
+      {found.data?.items.length === 0 ? <Text variant="muted">No result matches.</Text> : null}
+      {found.data?.items.map((r) => (
+        <View key={r.id} style={styles.found}>
+          <View style={styles.grow}>
+            <Text variant="label" numberOfLines={2}>
+              {r.title}
+            </Text>
+            <Text variant="caption">
+              v{r.version} · {r.state} · {r.groupName}
+            </Text>
+          </View>
+          <Button compact variant="secondary" label="Add" accessibilityLabel={`Add ${r.title} as a layer`} onPress={() => onAdd(r.id, r.version)} />
+        </View>
+      ))}
+    </View>
+  );
+}
+
+/** The figure's layers: order, which parts show, which layer carries the bands, labels, updates. */
+export function LayersPanel({
+  spec,
+  onChange,
+  data,
+  info,
+}: {
+  spec: FigureSpec;
+  onChange: (next: FigureSpec, mergeKey?: string) => void;
+  data: FigureLayerData[] | undefined;
+  info: FigureLayerInfo[];
+}) {
+  return (
+    <View style={styles.col}>
+      {spec.layers.length === 0 ? <Text variant="muted">No layers yet: add results below.</Text> : null}
+      {spec.layers.map((layer, i) => {
+        const d = data?.[i]?.resultId === layer.resultId && data[i]?.version === layer.version ? data[i] : undefined;
+        const title = d && d.available ? d.title : d ? 'A result you may not see' : 'Loading…';
+        const latest = info.find((x) => x.resultId === layer.resultId)?.latestPublished ?? null;
+        return (
+          <View key={`${layer.resultId}@${layer.version}`} style={styles.layer} role="group" aria-label={`Layer ${i + 1}: ${title}`}>
+            <Text variant="label">
+              {i + 1}. {title} <Text variant="caption">v{layer.version}</Text>
+            </Text>
+            {d && !d.available ? <Banner tone="warning" message="This result is not visible to your group any more; it is left out of the figure." /> : null}
+            <TextField
+              label={`Legend label of layer ${i + 1}`}
+              value={layer.label}
+              placeholder="Empty: the result's title; $…$ for TeX"
+              onChangeText={(t) => onChange(updateLayer(spec, i, { label: t }), `label-${i}`)}
+            />
+            <View style={styles.parts}>
+              {PART_LABELS.map(([k, label]) => (
+                <Checkbox key={k} label={`${label} (layer ${i + 1})`} checked={layer.show[k]} onChange={(v) => onChange(updateLayer(spec, i, { show: { ...layer.show, [k]: v } }))} />
+              ))}
+            </View>
+            <Checkbox label={`Layer ${i + 1} carries the ±1σ/±2σ bands`} checked={spec.bandsLayer === i} onChange={(v) => onChange({ ...spec, bandsLayer: v ? i : null })} />
+            <View style={styles.row}>
+              <Button compact variant="secondary" label="Up" accessibilityLabel={`Move layer ${i + 1} up`} disabled={i === 0} onPress={() => onChange(moveLayer(spec, i, -1))} />
+              <Button compact variant="secondary" label="Down" accessibilityLabel={`Move layer ${i + 1} down`} disabled={i === spec.layers.length - 1} onPress={() => onChange(moveLayer(spec, i, 1))} />
+              <Button compact variant="ghost" label="Remove" accessibilityLabel={`Remove layer ${i + 1}`} onPress={() => onChange(removeLayer(spec, i))} />
+              {latest !== null && latest > layer.version ? (
+                <Button compact label={`Update to v${latest}`} accessibilityLabel={`Update layer ${i + 1} to its latest published version ${latest}`} onPress={() => onChange(updateLayer(spec, i, { version: latest }))} />
+              ) : null}
+            </View>
+          </View>
+        );
+      })}
+      <ResultPicker onAdd={(id, v) => onChange(addLayer(spec, id, v))} />
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  col: { gap: space.md },
+  layer: { borderWidth: 1, borderColor: colors.border, borderRadius: radii.md, padding: space.md, gap: space.sm },
+  parts: { flexDirection: 'row', flexWrap: 'wrap', columnGap: space.md },
+  row: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
+  picker: { gap: space.sm, borderTopWidth: 1, borderTopColor: colors.border, paddingTop: space.md },
+  found: { flexDirection: 'row', alignItems: 'center', gap: space.sm },
+  grow: { flex: 1, minWidth: 0 },
+});

@@ -1,0 +1,82 @@
+import { useState } from 'react';
+import { View, type LayoutChangeEvent } from 'react-native';
+import Svg, { ClipPath, Defs, G, Path, Rect } from 'react-native-svg';
+import { labelKey, type Glyphs, type Primitive, type Scene } from '@/shared/figure/types';
+
+/** Where a typeset label starts, from its anchor point and width. */
+function labelOrigin(p: Extract<Primitive, { kind: 'text' }>, width: number): number {
+  return p.anchor === 'start' ? 0 : p.anchor === 'middle' ? -width / 2 : -width;
+}
+
+/**
+ * Draws a figure scene with react-native-svg: the same primitives and the same typeset label
+ * outlines as the server's SVG, PDF and PNG, scaled to the width available. Labels are paths, so
+ * no user text is ever interpreted as markup.
+ */
+export function SceneView({ scene, glyphs, accessibilityLabel, maxWidth }: { scene: Scene; glyphs: Glyphs; accessibilityLabel: string; maxWidth?: number }) {
+  const [width, setWidth] = useState(0);
+  const onLayout = (e: LayoutChangeEvent) => {
+    const w = Math.floor(e.nativeEvent.layout.width);
+    if (w !== width) setWidth(w);
+  };
+  const shown = Math.min(width, maxWidth ?? Number.POSITIVE_INFINITY);
+  const height = shown > 0 ? (shown * scene.heightPt) / scene.widthPt : 0;
+  const clipId = 'plot-clip';
+  return (
+    <View onLayout={onLayout} role="img" aria-label={accessibilityLabel} style={{ width: '100%' }}>
+      {shown > 0 ? (
+        <Svg width={shown} height={height} viewBox={`0 0 ${scene.widthPt} ${scene.heightPt}`}>
+          <Defs>
+            <ClipPath id={clipId}>
+              <Rect x={scene.plot.x} y={scene.plot.y} width={scene.plot.width} height={scene.plot.height} />
+            </ClipPath>
+          </Defs>
+          <Rect x={0} y={0} width={scene.widthPt} height={scene.heightPt} fill={scene.background} />
+          {scene.items.map((p, i) => {
+            if (p.kind === 'rect') {
+              return (
+                <Rect
+                  key={i}
+                  x={p.x}
+                  y={p.y}
+                  width={p.width}
+                  height={p.height}
+                  fill={p.fill ?? 'none'}
+                  stroke={p.stroke ?? 'none'}
+                  strokeWidth={p.strokeWidth}
+                  opacity={p.opacity ?? 1}
+                />
+              );
+            }
+            if (p.kind === 'path') {
+              return (
+                <Path
+                  key={i}
+                  d={p.d}
+                  fill={p.fill ?? 'none'}
+                  stroke={p.stroke ?? 'none'}
+                  strokeWidth={p.strokeWidth}
+                  strokeDasharray={p.dash ?? undefined}
+                  opacity={p.opacity ?? 1}
+                  clipPath={p.clip ? `url(#${clipId})` : undefined}
+                />
+              );
+            }
+            const g = glyphs.get(labelKey({ label: p.label, size: p.size, font: p.font }));
+            if (!g) return null;
+            const dx = labelOrigin(p, g.width);
+            return (
+              <G key={i} transform={`translate(${p.x} ${p.y}) rotate(${p.rotate}) translate(${dx} 0)`}>
+                {g.paths.map((d, k) => (
+                  <Path key={k} d={d} fill={p.color} />
+                ))}
+              </G>
+            );
+          })}
+        </Svg>
+      ) : (
+        <View style={{ height: 200 }} />
+      )}
+    </View>
+  );
+}

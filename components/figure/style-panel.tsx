@@ -1,0 +1,88 @@
+import { StyleSheet, View } from 'react-native';
+import { FIGURE_THEMES, LEGEND_POSITIONS, SIZE_PRESETS, type AxisSpec, type FigureSpec, type FigureTheme } from '@/shared/schemas/figures';
+import { space } from '@/themes/tokens';
+import { Button } from '../ui/button';
+import { Checkbox } from '../ui/checkbox';
+import { ChoiceGroup } from '../ui/choice-group';
+import { Select } from '../ui/select';
+import { Text } from '../ui/text';
+import { TextField } from '../ui/text-field';
+
+const THEME_LABELS: Record<FigureTheme, string> = { publication: 'Publication', slides: 'Slides', outreach: 'Outreach (plain words)' };
+type Preset = keyof typeof SIZE_PRESETS;
+
+function num(s: string): number | null {
+  const t = s.trim().replace(',', '.');
+  if (!t) return null;
+  const v = Number(t);
+  return Number.isFinite(v) ? v : null;
+}
+
+function AxisControls({ name, axis, onChange }: { name: 'x' | 'y'; axis: AxisSpec; onChange: (a: AxisSpec, mergeKey?: string) => void }) {
+  const label = name === 'x' ? 'Horizontal axis' : 'Vertical axis';
+  return (
+    <View style={styles.col}>
+      <Text variant="label">{label}</Text>
+      <ChoiceGroup<'linear' | 'log'> label={`${label} scale`} value={axis.scale} onChange={(scale) => onChange({ ...axis, scale })} choices={[{ value: 'linear', label: 'Linear' }, { value: 'log', label: 'Logarithmic' }]} />
+      <TextField label={`${label} title`} value={axis.label} placeholder="Empty: automatic; $…$ for TeX" onChangeText={(t) => onChange({ ...axis, label: t }, `${name}-label`)} />
+      <View style={styles.row}>
+        <View style={styles.grow}>
+          <TextField label={`${label} from`} value={axis.min === null ? '' : String(axis.min)} placeholder="auto" inputMode="decimal" onChangeText={(t) => onChange({ ...axis, min: num(t) }, `${name}-min`)} />
+        </View>
+        <View style={styles.grow}>
+          <TextField label={`${label} to`} value={axis.max === null ? '' : String(axis.max)} placeholder="auto" inputMode="decimal" onChangeText={(t) => onChange({ ...axis, max: num(t) }, `${name}-max`)} />
+        </View>
+      </View>
+    </View>
+  );
+}
+
+/** Theme, size, axes, legend and the free labels of a figure. */
+export function StylePanel({ spec, onChange }: { spec: FigureSpec; onChange: (next: FigureSpec, mergeKey?: string) => void }) {
+  const preset = (spec.size.preset === 'custom' ? 'web' : spec.size.preset) as Preset;
+  return (
+    <View style={styles.col}>
+      <TextField label="Figure name" value={spec.title} onChangeText={(t) => onChange({ ...spec, title: t }, 'title')} hint="Not drawn: names the figure in lists and downloads" />
+      <Text variant="label">Theme</Text>
+      <ChoiceGroup<FigureTheme> label="Theme" value={spec.theme} onChange={(theme) => onChange({ ...spec, theme })} choices={FIGURE_THEMES.map((t) => ({ value: t, label: THEME_LABELS[t] }))} />
+      <Select<Preset> label="Size" value={preset} onChange={(p) => onChange({ ...spec, size: { preset: p } })} options={(Object.keys(SIZE_PRESETS) as Preset[]).map((p) => ({ value: p, label: SIZE_PRESETS[p].label }))} />
+      <AxisControls name="x" axis={spec.x} onChange={(x, k) => onChange({ ...spec, x }, k)} />
+      <AxisControls name="y" axis={spec.y} onChange={(y, k) => onChange({ ...spec, y }, k)} />
+      <Select<(typeof LEGEND_POSITIONS)[number]>
+        label="Legend"
+        value={spec.legend.position}
+        onChange={(position) => onChange({ ...spec, legend: { ...spec.legend, position } })}
+        options={LEGEND_POSITIONS.map((p) => ({ value: p, label: p === 'auto' ? 'Emptiest corner' : p === 'none' ? 'No legend' : p.replace('-', ' ') }))}
+      />
+      <Checkbox label="Legend in two columns" checked={spec.legend.columns === 2} onChange={(v) => onChange({ ...spec, legend: { ...spec.legend, columns: v ? 2 : 1 } })} />
+      <Checkbox label="Energy and luminosity line" checked={spec.energyLabel} onChange={(v) => onChange({ ...spec, energyLabel: v })} />
+      <Checkbox label="Confidence level line (e.g. 95% CL)" checked={spec.clLabel} onChange={(v) => onChange({ ...spec, clLabel: v })} />
+      <Checkbox label="Shade the excluded region" checked={spec.excludedShading} onChange={(v) => onChange({ ...spec, excludedShading: v })} />
+      <Text variant="label">Annotations</Text>
+      {spec.annotations.map((a, i) => (
+        <View key={i} style={styles.col}>
+          <TextField label={`Annotation ${i + 1}`} value={a.text} onChangeText={(t) => onChange({ ...spec, annotations: spec.annotations.map((x, k) => (k === i ? { ...x, text: t } : x)) }, `annotation-${i}`)} />
+          <View style={styles.row}>
+            <View style={styles.grow}>
+              <TextField label={`Annotation ${i + 1} across (0–1)`} value={String(a.x)} inputMode="decimal" onChangeText={(t) => onChange({ ...spec, annotations: spec.annotations.map((x, k) => (k === i ? { ...x, x: Math.min(1, Math.max(0, num(t) ?? 0)) } : x)) }, `annotation-x-${i}`)} />
+            </View>
+            <View style={styles.grow}>
+              <TextField label={`Annotation ${i + 1} up (0–1)`} value={String(a.y)} inputMode="decimal" onChangeText={(t) => onChange({ ...spec, annotations: spec.annotations.map((x, k) => (k === i ? { ...x, y: Math.min(1, Math.max(0, num(t) ?? 0)) } : x)) }, `annotation-y-${i}`)} />
+            </View>
+          </View>
+          <Button compact variant="ghost" label="Remove" accessibilityLabel={`Remove annotation ${i + 1}`} style={styles.start} onPress={() => onChange({ ...spec, annotations: spec.annotations.filter((_, k) => k !== i) })} />
+        </View>
+      ))}
+      {spec.annotations.length < 10 ? (
+        <Button compact variant="secondary" label="Add an annotation" style={styles.start} onPress={() => onChange({ ...spec, annotations: [...spec.annotations, { text: 'Annotation', x: 0.05, y: 0.6 }] })} />
+      ) : null}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  col: { gap: space.sm },
+  row: { flexDirection: 'row', gap: space.sm },
+  grow: { flex: 1 },
+  start: { alignSelf: 'flex-start' },
+});

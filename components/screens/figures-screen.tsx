@@ -1,0 +1,67 @@
+import { Link, useRouter } from 'expo-router';
+import { Pressable, StyleSheet, View } from 'react-native';
+import { figureSpecSchema } from '@/shared/schemas/figures';
+import { useCurrentGroup } from '@/hooks/use-current-group';
+import { useCreateFigure, useFigures } from '@/hooks/use-figures';
+import { colors, space } from '@/themes/tokens';
+import { Banner } from '../ui/banner';
+import { Button } from '../ui/button';
+import { Card } from '../ui/card';
+import { EmptyState } from '../ui/empty-state';
+import { errorMessage } from '../ui/form';
+import { Loading } from '../ui/loading';
+import { Screen } from '../ui/screen';
+import { Text } from '../ui/text';
+
+/** The group's figures, newest first, and a way to start one. */
+export function FiguresScreen() {
+  const { group, can } = useCurrentGroup();
+  const list = useFigures(group?.id);
+  const create = useCreateFigure(group?.id ?? '');
+  const router = useRouter();
+  if (!group) {
+    return (
+      <Screen title="Figures">
+        <EmptyState title="No group selected" message="Figures belong to a group: create one or accept an invitation first." />
+      </Screen>
+    );
+  }
+  const start = () =>
+    create.mutate(
+      { spec: figureSpecSchema.parse({ title: 'New figure', theme: 'publication', size: { preset: 'one-column' }, layers: [] }) },
+      { onSuccess: (f) => router.push(`/groups/${group.id}/figures/${f.id}`) },
+    );
+  return (
+    <Screen
+      title="Figures"
+      subtitle={group.name}
+      actions={can('figure.write') ? <Button label="New figure" onPress={start} loading={create.isPending} /> : null}
+    >
+      {create.error ? <Banner tone="error" message={errorMessage(create.error)!} /> : null}
+      {list.isPending ? <Loading label="Loading figures…" /> : null}
+      {list.error ? <Banner tone="error" message={errorMessage(list.error)!} /> : null}
+      {list.data?.length === 0 ? (
+        <EmptyState
+          title="No figures yet"
+          message={can('figure.write') ? 'Compose a figure from the registry’s results: overlays, bands, theory, labels with TeX.' : 'Figures made by this group will be listed here.'}
+        />
+      ) : null}
+      <View style={styles.list} role="list">
+        {list.data?.map((f) => (
+          <Link key={f.id} href={`/groups/${group.id}/figures/${f.id}`} asChild>
+            <Pressable role="link" aria-label={`Figure ${f.title}`} style={styles.item}>
+              <Card>
+                <Text variant="label">{f.title}</Text>
+                <Text variant="caption">
+                  {f.theme} · version {f.version} · {f.isPublic ? 'public' : 'group only'} · updated {new Date(f.updatedAt).toLocaleDateString()}
+                </Text>
+              </Card>
+            </Pressable>
+          </Link>
+        ))}
+      </View>
+    </Screen>
+  );
+}
+
+const styles = StyleSheet.create({ list: { gap: space.md }, item: { borderRadius: 12, backgroundColor: colors.surface } });

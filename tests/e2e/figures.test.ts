@@ -1,0 +1,101 @@
+import type { Page } from 'playwright-core';
+import { fullShot, newPage, pageErrors, signUpInBrowser, startE2E, VIEWPORTS, type E2E, type ViewportName } from '../helpers/browser';
+
+jest.setTimeout(240_000);
+
+let e: E2E;
+beforeAll(async () => {
+  e = await startE2E();
+});
+afterAll(async () => e?.close());
+
+/** An invented falling limit curve with bands and a theory line, scaled per result. */
+function resultBody(title: string, scale: number) {
+  const x = [1, 1.5, 2, 2.5, 3, 3.5, 4, 4.5, 5];
+  const exp = x.map((m) => scale * 20 * Math.exp(-1.1 * m));
+  return {
+    meta: { title, model: 'Fictional heavy vector', parameterName: "$m_{V'}$", parameterUnit: 'TeV', quantity: 'xsec', quantityUnit: 'fb', sqrtS: 18, luminosity: 140, method: 'asymptotic', reference: `LF-FIG-${title.length}` },
+    curve: {
+      x,
+      observed: exp.map((v, i) => v * (1 + 0.15 * Math.sin(i))),
+      expected: { '-2': exp.map((v) => v * 0.5), '-1': exp.map((v) => v * 0.7), '0': exp, '1': exp.map((v) => v * 1.4), '2': exp.map((v) => v * 1.9) },
+    },
+    theory: { x, central: x.map((m) => 400 * Math.exp(-1.6 * m)) },
+  };
+}
+
+/** Creates a result through the API from the page (same session cookie). */
+async function createResult(page: Page, groupId: string, title: string, scale: number) {
+  // Code as text: it runs in the page as written (the test's transpiler would add helpers the page lacks).
+  const url = JSON.stringify(`/api/groups/${groupId}/results`);
+  const body = JSON.stringify(JSON.stringify(resultBody(title, scale)));
+  const status = await page.evaluate(`fetch(${url}, { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: ${body} }).then((r) => r.status)`);
+  expect(status).toBe(201);
+}
+
+describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
+  const tag = `${vp}-${Date.now().toString(36)}`;
+
+  test('compose a three-layer overlay, switch the theme, save, download SVG and PDF', async () => {
+    const { page, context } = await newPage(e, vp);
+    await signUpInBrowser(page, 'Fen Editor', `figures-${tag}@lab.example`);
+    await page.getByRole('button', { name: 'Create a group', exact: true }).click();
+    await page.getByLabel('Group name').fill(`Fictional Figure Team ${vp}`);
+    await page.getByRole('button', { name: 'Create group', exact: true }).click();
+    await page.getByRole('heading', { name: 'Members', exact: true }).waitFor();
+    const groupId = (await page.evaluate(`fetch('/api/groups').then((r) => r.json()).then((b) => b.groups[0].id)`)) as string;
+    await createResult(page, groupId, `Dijet V prime ${vp}`, 1);
+    await createResult(page, groupId, `Lepton pair V prime ${vp}`, 0.6);
+    await createResult(page, groupId, `Top pair V prime ${vp}`, 1.7);
+
+    await page.goto('/figures');
+    await page.getByRole('region', { name: 'No figures yet' }).waitFor();
+    await page.getByRole('button', { name: 'New figure', exact: true }).click();
+    await page.getByRole('heading', { name: 'New figure', exact: true }).waitFor();
+    for (const title of [`Dijet V prime ${vp}`, `Lepton pair V prime ${vp}`, `Top pair V prime ${vp}`]) {
+      await page.getByLabel('Find results to add').fill(title);
+      await page.getByRole('button', { name: `Add ${title} as a layer`, exact: true }).click();
+      await page.getByRole('group', { name: new RegExp(`^Layer \\d: ${title}$`) }).waitFor();
+    }
+    // On phones the look-and-labels controls start folded.
+    const unfold = page.getByRole('button', { name: 'Look and labels: unfold', exact: true });
+    if (await unfold.count()) await unfold.click();
+    await page.getByLabel('Figure name').fill(`Vector overlay ${vp}`);
+    const preview = page.getByRole('img', { name: /^Preview of the figure “Vector overlay .*” with 3 layer\(s\)$/ });
+    await preview.waitFor();
+    // The preview draws labels as paths (typeset by the server), never as text elements.
+    expect(await preview.locator('svg path').count()).toBeGreaterThan(50);
+    expect(await preview.locator('svg text').count()).toBe(0);
+    await fullShot(page, vp, 'composer-publication');
+
+    // Bands move to the second layer; the theme changes to slides; undo brings publication back, redo slides.
+    await page.getByRole('checkbox', { name: 'Layer 2 carries the ±1σ/±2σ bands', exact: true }).click();
+    await page.getByRole('radio', { name: 'Slides', exact: true }).click();
+    await page.getByRole('button', { name: 'Undo', exact: true }).click();
+    await page.locator('[role="radio"][aria-label="Publication"][aria-checked="true"]').waitFor();
+    await page.getByRole('button', { name: 'Redo', exact: true }).click();
+    await page.locator('[role="radio"][aria-label="Slides"][aria-checked="true"]').waitFor();
+    await page.getByRole('button', { name: 'Save as a new version', exact: true }).click();
+    await page.getByText('Saved as version 2.').waitFor();
+    await fullShot(page, vp, 'composer-slides');
+
+    // Downloads of the saved version.
+    const svgHref = await page.getByRole('link', { name: 'SVG', exact: true }).getAttribute('href');
+    const pdfHref = await page.getByRole('link', { name: 'PDF', exact: true }).getAttribute('href');
+    const svg = await context.request.get(`${e.base}${svgHref}`);
+    expect(svg.status()).toBe(200);
+    expect(svg.headers()['content-type']).toContain('image/svg+xml');
+    const svgText = await svg.text();
+    expect(svgText).toContain('<svg');
+    expect(svgText).not.toContain('<text');
+    const pdf = await context.request.get(`${e.base}${pdfHref}`);
+    expect(pdf.status()).toBe(200);
+    expect((await pdf.body()).subarray(0, 5).toString()).toBe('%PDF-');
+
+    await page.goto('/figures');
+    await page.getByRole('link', { name: `Figure Vector overlay ${vp}` }).waitFor();
+    await fullShot(page, vp, 'figures-list');
+    expect(pageErrors(page)).toEqual([]);
+    await context.close();
+  });
+});
