@@ -19,13 +19,17 @@ export async function insertFigure(db: Executor, f: { groupId: string; title: st
   return row!;
 }
 
-/** The figure in the group, locked for the rest of the transaction (version numbers are given out under it). */
-export async function lockFigure(db: Executor, groupId: string, figureId: string): Promise<FigureRow | undefined> {
+/**
+ * The figure in the group, locked for the rest of the transaction (version numbers are given out
+ * under it). `no key update`: a concurrent render may still insert its cache row (which only
+ * key-shares the figure); `update` is for deleting it.
+ */
+export async function lockFigure(db: Executor, groupId: string, figureId: string, mode: 'no key update' | 'update' = 'no key update'): Promise<FigureRow | undefined> {
   const rows = await db
     .select()
     .from(figures)
     .where(and(eq(figures.id, figureId), eq(figures.groupId, groupId)))
-    .for('update');
+    .for(mode);
   return rows[0];
 }
 

@@ -102,7 +102,7 @@ function benchFigure(): { spec: FigureSpec; data: FigureLayerData[] } {
  * connection open (as a browser does), so the time is the server's work plus one local round trip.
  */
 type Timing = { roundTrip: number; server: number };
-async function httpCached(): Promise<{ member: Timing; publicRoute: Timing; health: Timing; bytes: number }> {
+async function httpCached(): Promise<{ member: Timing; publicRoute: Timing; health: Timing; me: Timing; bytes: number }> {
   const home = tmpRoot();
   const cluster = await startCluster({ home, throwaway: true });
   let server: Server | undefined;
@@ -166,7 +166,11 @@ async function httpCached(): Promise<{ member: Timing; publicRoute: Timing; heal
       await (await fetch(`${base}/api/health`)).arrayBuffer();
     });
     await closeContext(ctx);
-    return { member, publicRoute, health, bytes };
+    // For scale: what the session lookup alone costs (the signed-in user's own record).
+    const me = await serverSide(async () => {
+      await (await fetch(`${base}/api/me`, { headers: { cookie } })).arrayBuffer();
+    });
+    return { member, publicRoute, health, me, bytes };
   } finally {
     server?.closeAllConnections();
     server?.close();
@@ -198,6 +202,7 @@ async function main() {
     rows.push(['cached render served, signed-in member: in the server (session cookie)', cached.member.server, 5]);
     rows.push(['  the same, HTTP round trip seen by the client', cached.member.roundTrip, Number.NaN]);
     rows.push(['for scale: GET /api/health (one select 1), in the server', cached.health.server, Number.NaN]);
+    rows.push(['for scale: GET /api/me (the session lookup and one query), in the server', cached.me.server, Number.NaN]);
   }
 
   console.log(`\nFigure renderers (${LAYERS} layers × ${POINTS} points, one-column publication figure; medians)\n`);

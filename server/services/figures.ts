@@ -13,6 +13,7 @@ import type {
 import { figureSizeCm, type FigureSpec, type FigureTheme, type HouseStyle, type RenderFormat, type SIZE_PRESETS } from '../../shared/schemas/figures';
 import type { VersionMeta } from '../../shared/schemas/results';
 import * as q from '../../db/queries/figures';
+import { lockGroupStorage } from '../../db/queries/billing';
 import { addStorage, getResultInGroup } from '../../db/queries/results';
 import type { Ctx } from '../context';
 import type { Executor } from '../db';
@@ -262,12 +263,16 @@ export async function createFigure(ctx: Ctx, groupId: string, actor: Actor, inpu
  * re-made on request) so that a figure's storage is what its current version needs.
  */
 export async function saveFigure(ctx: Ctx, groupId: string, actor: Actor, figureId: string, input: { spec: FigureSpec; note: string }): Promise<FigureDetail> {
+  // Lock order: the figure (no key update), the pinned results (key share, by the layer rows),
+  // the group row, the figure's cached renders — results before the group, as the registry does.
   await ctx.db.transaction(async (tx) => {
     if (!(await q.lockFigure(tx, groupId, figureId))) throw notFound('Figure');
     await assertLayersUsable(tx, groupId, input.spec);
     const version = await q.takeNextFigureVersion(tx, figureId, input.spec.title);
     await q.insertFigureVersion(tx, { figureId, version, spec: input.spec, note: input.note, createdBy: actor.id });
     await assignHues(tx, groupId, input.spec);
+    // The group row before the render rows, as a render storing its bytes takes them.
+    await lockGroupStorage(tx, groupId);
     const freed = await q.deleteStaleRenders(tx, figureId, { keepVersion: version });
     await addStorage(tx, groupId, -freed);
   });
@@ -283,7 +288,10 @@ export async function setVisibility(ctx: Ctx, groupId: string, figureId: string,
 /** Deletes a figure with its versions and cached renders, giving their bytes back to the group. */
 export async function deleteFigure(ctx: Ctx, groupId: string, figureId: string): Promise<void> {
   await ctx.db.transaction(async (tx) => {
-    if (!(await q.lockFigure(tx, groupId, figureId))) throw notFound('Figure');
+    // Group row first, as a render that stores its bytes does (then the figure): the two queue
+    // instead of deadlocking, and the render's bytes are counted here if it committed first.
+    await lockGroupStorage(tx, groupId);
+    if (!(await q.lockFigure(tx, groupId, figureId, 'update'))) throw notFound('Figure');
     const bytes = await q.renderBytes(tx, figureId);
     await q.deleteFigure(tx, groupId, figureId);
     await addStorage(tx, groupId, -bytes);
@@ -546,6 +554,8 @@ async function cacheRender(ctx: Ctx, key: q.RenderKey, groupId: string, out: { b
     return 'miss';
   } catch (e) {
     if (e instanceof AppError && (e.status === 402 || e.status === 413)) return 'uncached';
+    // The figure was deleted while this render was being made: serve it, keep nothing.
+    if (pgCode(e) === '23503') return 'uncached';
     throw e;
   }
 }
@@ -590,6 +600,13 @@ async function renderWithCache(ctx: Ctx, figureId: string, userId: string | null
   }
   const out = await flight;
   return { ...out, contentType, fileName, etag };
+}
+
+/** The PostgreSQL error code of a failed query (drizzle wraps the driver's error as `cause`). */
+function pgCode(e: unknown): string | undefined {
+  const err = e as { code?: unknown; cause?: { code?: unknown } };
+  const code = err?.cause?.code ?? err?.code;
+  return typeof code === 'string' ? code : undefined;
 }
 
 const inFlight = new Map<string, Promise<{ body: Buffer; notes: string[]; cache: RenderOutput['cache'] }>>();

@@ -272,6 +272,23 @@ describe('render cache and storage', () => {
     await crew.curator.agent.put(`/api/groups/${groupId}/style`).send({ style: {} });
   });
 
+  test('renders, a save and a delete at the same time all finish, and storage adds up', async () => {
+    const before = await storage();
+    const a = await makeFigure(spec([{ resultId: r.P, version: 1 }]));
+    const b = await makeFigure(spec([{ resultId: r.P, version: 1 }]));
+    const calls = [
+      ...['svg', 'pdf', 'png?dpi=72'].flatMap((f) => [buffer(crew.viewer.agent.get(`/api/figures/${a.id}/render.${f}`)), buffer(crew.viewer.agent.get(`/api/figures/${b.id}/render.${f}`))]),
+      crew.editor.agent.put(`/api/groups/${groupId}/figures/${a.id}`).send({ spec: spec([{ resultId: r.P, version: 1 }], { title: 'Saved meanwhile' }) }),
+      crew.editor.agent.delete(`/api/groups/${groupId}/figures/${b.id}`),
+    ];
+    const statuses = (await Promise.all(calls)).map((res) => res.status);
+    expect(statuses.slice(-2)).toEqual([200, 204]);
+    // A render of the deleted figure may have come before or after the delete.
+    for (const s of statuses.slice(0, -2)) expect([200, 404]).toContain(s);
+    const kept = (await renderRows(a.id)).reduce((n, row) => n + row.byteLength, 0);
+    expect(await storage()).toBe(before + kept);
+  });
+
   test('deleting a figure gives its renders’ bytes back', async () => {
     const fig = await makeFigure(spec([{ resultId: r.P, version: 1 }]));
     const before = await storage();
