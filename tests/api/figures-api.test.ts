@@ -3,6 +3,7 @@ import type { FigureDetail, FigureVersionDetail, PublicFigurePage, TypesetRespon
 import type { FigureSpecInput } from '@/shared/schemas/figures';
 import { labelKey, type FigureLayerData } from '@/shared/figure/types';
 import { startTestApp, type TestApp } from '../helpers/app';
+import { figureSpec, makeFigure } from '../helpers/figures';
 import { makeGroup, makeGroupWithRoles, makePerson, makeResult, makeVersion, publishVersion, type Crew, type Person } from '../helpers/factories';
 
 /**
@@ -18,15 +19,7 @@ let other: Person;
 let otherGroup: string;
 const ids = {} as Record<'own' | 'ownDraft' | 'otherPublic' | 'otherPrivate', string>;
 
-const spec = (layers: FigureSpecInput['layers'], over: Partial<FigureSpecInput> = {}): FigureSpecInput => ({
-  title: 'Dijet V′ limits, one column',
-  theme: 'publication',
-  size: { preset: 'one-column' },
-  x: { scale: 'linear', label: "$m_{V'}$ [TeV]" },
-  y: { scale: 'log', label: '$\\sigma \\times B$ [fb]' },
-  layers,
-  ...over,
-});
+const spec = figureSpec;
 
 beforeAll(async () => {
   t = await startTestApp();
@@ -48,11 +41,7 @@ beforeAll(async () => {
 }, 90_000);
 afterAll(async () => t?.close());
 
-async function create(person: Person, body: { spec: FigureSpecInput; public?: boolean }): Promise<FigureDetail> {
-  const res = await person.agent.post(`/api/groups/${groupId}/figures`).send(body);
-  if (res.status !== 201) throw new Error(`figure creation failed: ${res.status} ${JSON.stringify(res.body)}`);
-  return res.body as FigureDetail;
-}
+const create = (person: Person, body: { spec: FigureSpecInput; public?: boolean }) => makeFigure(person, groupId, body.spec, body.public);
 
 describe('create, save and read versions', () => {
   test('an editor creates a figure (version 1) pinning own, own draft and public results of others', async () => {

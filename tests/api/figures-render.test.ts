@@ -11,6 +11,7 @@ import type { FigureDetail } from '@/shared/schemas/figure-views';
 import type { FigureSpecInput } from '@/shared/schemas/figures';
 import type { Curve } from '@/shared/schemas/results';
 import { startTestApp, type TestApp } from '../helpers/app';
+import { figureSpec, makeFigure as makeFigureAs } from '../helpers/figures';
 import { makeGroup, makeGroupWithRoles, makePerson, makeResult, publishVersion, registryProbe, type Crew, type Person } from '../helpers/factories';
 
 /**
@@ -34,21 +35,9 @@ const SECRET_VALUE = 987654.321;
 const W_PT = (8.6 / 2.54) * 72;
 const H_PT = (6.45 / 2.54) * 72;
 
-const spec = (layers: FigureSpecInput['layers'], over: Partial<FigureSpecInput> = {}): FigureSpecInput => ({
-  title: 'Overlay for the render tests',
-  theme: 'publication',
-  size: { preset: 'one-column' },
-  x: { scale: 'linear', label: "$m_{V'}$ [TeV]" },
-  y: { scale: 'log', label: '$\\sigma \\times B$ [fb]' },
-  layers,
-  ...over,
-});
+const spec = (layers: FigureSpecInput['layers'], over: Partial<FigureSpecInput> = {}) => figureSpec(layers, { title: 'Overlay for the render tests', ...over });
 
-async function makeFigure(s: FigureSpecInput, isPublic = false): Promise<FigureDetail> {
-  const res = await crew.editor.agent.post(`/api/groups/${groupId}/figures`).send({ spec: s, public: isPublic });
-  if (res.status !== 201) throw new Error(`figure creation failed: ${res.status} ${JSON.stringify(res.body)}`);
-  return res.body as FigureDetail;
-}
+const makeFigure = (s: FigureSpecInput, isPublic = false) => makeFigureAs(crew.editor, groupId, s, isPublic);
 
 /** Supertest gives text bodies as text; binary ones need a buffer parser. */
 function binary(res: Response & { body: unknown }): Buffer {

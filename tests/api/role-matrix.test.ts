@@ -7,6 +7,7 @@ import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
 import { uniqueEmail, type Agent, type TestApp } from '../helpers/app';
 import { giveCustomer, signedEvent, startBillingTestApp, type BillingTestApp } from '../helpers/billing';
+import { figureSpec as oneColumnSpec, makeFigure as makeFigureAs } from '../helpers/figures';
 import {
   makeCrew,
   makeGroup,
@@ -623,11 +624,9 @@ function sharedScan(w: World, groupId: string) {
 }
 
 /** A minimal figure spec pinning one result of the group. */
-const figureSpec = (title: string, resultId: string) => ({ title, theme: 'publication', size: { preset: 'one-column' }, layers: [{ resultId, version: 1 }] });
+const figureSpec = (title: string, resultId: string) => oneColumnSpec([{ resultId, version: 1 }], { title });
 async function makeFigure(w: World, groupId: string, isPublic = false): Promise<string> {
-  const res = await w.crew.editor.agent.post(`/api/groups/${groupId}/figures`).send({ spec: figureSpec(uniqueGroupName('Matrix Figure'), (await sharedResult(w, groupId)).resultId), public: isPublic });
-  if (res.status !== 201) throw new Error(`figure creation failed: ${res.status} ${JSON.stringify(res.body)}`);
-  return res.body.id as string;
+  return (await makeFigureAs(w.crew.editor, groupId, figureSpec(uniqueGroupName('Matrix Figure'), (await sharedResult(w, groupId)).resultId), isPublic)).id;
 }
 async function figuresOf(w: World, groupId: string) {
   return w.t.ctx.db.select().from(figures).where(eq(figures.groupId, groupId));
@@ -645,9 +644,7 @@ function publicFigure(w: World) {
     const groupId = await makeGroup(w.t, w.host);
     const v = await makeResult(w.host, groupId);
     await publishVersion(w.host, groupId, v.resultId, 1, true);
-    const res = await w.host.agent.post(`/api/groups/${groupId}/figures`).send({ spec: figureSpec('Matrix public figure', v.resultId), public: true });
-    if (res.status !== 201) throw new Error(`figure creation failed: ${res.status} ${JSON.stringify(res.body)}`);
-    return res.body.id as string;
+    return (await makeFigureAs(w.host, groupId, figureSpec('Matrix public figure', v.resultId), true)).id;
   })();
   return publicFig;
 }
