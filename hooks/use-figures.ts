@@ -2,6 +2,7 @@ import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tansta
 import { useEffect, useMemo, useRef, useState } from 'react';
 import { labelKey, type FigureLayerData, type Glyphs, type LabelRequest, type TypesetLabel } from '@/shared/figure/types';
 import type { FigureSpec, FigureSpecInput, LayerSpec } from '@/shared/schemas/figures';
+import type { PublicFigureListQuery } from '@/shared/schemas/figure-views';
 import { api } from './api';
 
 const figureKeys = {
@@ -106,4 +107,9 @@ export function useFigureActions(groupId: string, figureId: string) {
     }),
     remove: useMutation({ mutationFn: () => api.figures.remove(groupId, figureId), onSuccess: refresh }),
   };
+}
+
+/** Public figures of every group (anyone, signed in or not). */
+export function usePublicFigures(query: PublicFigureListQuery) {
+  return useQuery({ queryKey: ['public-figures', query] as const, queryFn: () => api.publicFigures.list(query), placeholderData: keepPreviousData });
 }

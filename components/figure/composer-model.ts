@@ -2,7 +2,7 @@
  * The composer's editing rules as pure functions over a figure spec, with an undo history.
  * Tested in tests/unit/composer-model.test.ts.
  */
-import type { FigureSpec, LayerParts, LayerSpec } from '@/shared/schemas/figures';
+import type { FigureSpec, FigureTheme, LayerParts, LayerSpec } from '@/shared/schemas/figures';
 
 export type History = { past: FigureSpec[]; present: FigureSpec; future: FigureSpec[] };
 export const UNDO_DEPTH = 30;
@@ -60,4 +60,16 @@ export function moveLayer(spec: FigureSpec, index: number, delta: -1 | 1): Figur
 
 export function updateLayer(spec: FigureSpec, index: number, patch: Partial<LayerSpec>): FigureSpec {
   return { ...spec, layers: spec.layers.map((l, i) => (i === index ? { ...l, ...patch, show: { ...l.show, ...(patch.show ?? {}) } } : l)) };
+}
+
+/** The size each theme is made for. */
+export const THEME_SIZE: Record<FigureTheme, Exclude<FigureSpec['size']['preset'], 'custom'>> = { publication: 'one-column', slides: 'slide', outreach: 'web' };
+
+/**
+ * Another theme; the size follows to the new theme's usual size when it was the old theme's usual
+ * size (slide type on a journal column is unreadable), and stays when someone chose it.
+ */
+export function withTheme(spec: FigureSpec, theme: FigureTheme): FigureSpec {
+  const usual = spec.size.preset === THEME_SIZE[spec.theme] && spec.size.widthCm === undefined && spec.size.heightCm === undefined;
+  return { ...spec, theme, size: usual ? { preset: THEME_SIZE[theme] } : spec.size };
 }

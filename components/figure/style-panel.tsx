@@ -1,6 +1,7 @@
 import { StyleSheet, View } from 'react-native';
 import { FIGURE_THEMES, LEGEND_POSITIONS, SIZE_PRESETS, type AxisSpec, type FigureSpec, type FigureTheme } from '@/shared/schemas/figures';
 import { space } from '@/themes/tokens';
+import { withTheme } from './composer-model';
 import { Button } from '../ui/button';
 import { Checkbox } from '../ui/checkbox';
 import { ChoiceGroup } from '../ui/choice-group';
@@ -8,7 +9,7 @@ import { Select } from '../ui/select';
 import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
 
-const THEME_LABELS: Record<FigureTheme, string> = { publication: 'Publication', slides: 'Slides', outreach: 'Outreach (plain words)' };
+export const THEME_LABELS: Record<FigureTheme, string> = { publication: 'Publication', slides: 'Slides', outreach: 'Outreach (plain words)' };
 type Preset = keyof typeof SIZE_PRESETS;
 
 function num(s: string): number | null {
@@ -44,7 +45,7 @@ export function StylePanel({ spec, onChange }: { spec: FigureSpec; onChange: (ne
     <View style={styles.col}>
       <TextField label="Figure name" value={spec.title} onChangeText={(t) => onChange({ ...spec, title: t }, 'title')} hint="Not drawn: names the figure in lists and downloads" />
       <Text variant="label">Theme</Text>
-      <ChoiceGroup<FigureTheme> label="Theme" value={spec.theme} onChange={(theme) => onChange({ ...spec, theme })} choices={FIGURE_THEMES.map((t) => ({ value: t, label: THEME_LABELS[t] }))} />
+      <ChoiceGroup<FigureTheme> label="Theme" value={spec.theme} onChange={(theme) => onChange(withTheme(spec, theme))} choices={FIGURE_THEMES.map((t) => ({ value: t, label: THEME_LABELS[t] }))} />
       <Select<Preset> label="Size" value={preset} onChange={(p) => onChange({ ...spec, size: { preset: p } })} options={(Object.keys(SIZE_PRESETS) as Preset[]).map((p) => ({ value: p, label: SIZE_PRESETS[p].label }))} />
       <AxisControls name="x" axis={spec.x} onChange={(x, k) => onChange({ ...spec, x }, k)} />
       <AxisControls name="y" axis={spec.y} onChange={(y, k) => onChange({ ...spec, y }, k)} />

@@ -17,8 +17,11 @@ export function PublicFrame({ children }: { children: ReactNode }) {
           Bandwright
         </Link>
         <View style={styles.links}>
-          <Link href="/public" style={styles.link}>
-            Public results
+          <Link href="/public" style={styles.link} aria-label="Public results">
+            Results
+          </Link>
+          <Link href="/public/figures" style={styles.link} aria-label="Public figures">
+            Figures
           </Link>
           {me.isPending ? null : signedIn ? (
             <Link href="/" style={styles.link}>
@@ -50,7 +53,7 @@ const styles = StyleSheet.create({
     borderBottomColor: colors.border,
   },
   brand: { fontFamily: fonts.bold, fontSize: 18, color: colors.primary },
-  links: { flexDirection: 'row', gap: space.lg, alignItems: 'center' },
+  links: { flexDirection: 'row', flexWrap: 'wrap', columnGap: space.lg, alignItems: 'center', justifyContent: 'flex-end', flexShrink: 1 },
   link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22, paddingVertical: space.sm },
   main: { flex: 1 },
 });

@@ -2,6 +2,7 @@ import { useLocalSearchParams, useRouter } from 'expo-router';
 import { useEffect, useRef, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { figureSpecSchema, type FigureSpec } from '@/shared/schemas/figures';
+import type { FigureLayerInfo } from '@/shared/schemas/figure-views';
 import { api } from '@/hooks/api';
 import { useCurrentGroup } from '@/hooks/use-current-group';
 import { useFigure, useFigureActions, useHouseStyle, useLayerData, useSaveFigure } from '@/hooks/use-figures';
@@ -131,6 +132,7 @@ export function FigureComposerScreen() {
         <Card>
           <Text variant="title">Copies and sharing</Text>
           <Checkbox label="Public: anyone can see and download this figure" checked={f.isPublic} onChange={(p) => actions.visibility.mutate(p)} />
+          {publicNote(f.latest.layers, f.isPublic)}
           <View style={styles.links}>
             <Button compact variant="secondary" label="Duplicate" loading={actions.duplicate.isPending} onPress={() => actions.duplicate.mutate(undefined, { onSuccess: (c) => router.push(`/groups/${groupId}/figures/${c.id}`) })} />
             <Button
@@ -148,6 +150,18 @@ export function FigureComposerScreen() {
       ) : null}
     </Screen>
   );
+}
+
+/**
+ * What the public will see of the saved version: layers whose results are drafts or not public are
+ * left out of public renders (with a note on the figure), so say so before and after sharing.
+ */
+function publicNote(layers: FigureLayerInfo[], isPublic: boolean) {
+  const hidden = layers.filter((l) => !l.publiclyVisible).length;
+  if (hidden === 0) return null;
+  const which = hidden === layers.length ? (hidden === 1 ? 'Its only layer shows a result' : `All ${hidden} layers show results`) : `${hidden} of ${layers.length} layers ${hidden === 1 ? 'shows a result' : 'show results'}`;
+  const message = `${which} the public cannot see (a draft, or not public). Public copies leave ${hidden === 1 ? 'it' : 'them'} out and say so on the figure; publish ${hidden === 1 ? 'that result' : 'those results'} as public to show ${hidden === 1 ? 'it' : 'them'}.`;
+  return isPublic ? <Banner tone="warning" message={message} /> : <Text variant="caption">{message}</Text>;
 }
 
 const styles = StyleSheet.create({

@@ -3,7 +3,7 @@ import { Pressable, StyleSheet, View } from 'react-native';
 import { figureSpecSchema } from '@/shared/schemas/figures';
 import { useCurrentGroup } from '@/hooks/use-current-group';
 import { useCreateFigure, useFigures } from '@/hooks/use-figures';
-import { colors, space } from '@/themes/tokens';
+import { colors, fonts, space } from '@/themes/tokens';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
@@ -60,8 +60,15 @@ export function FiguresScreen() {
           </Link>
         ))}
       </View>
+      <Link href="/public/figures" style={styles.link}>
+        Browse public figures of all groups
+      </Link>
     </Screen>
   );
 }
 
-const styles = StyleSheet.create({ list: { gap: space.md }, item: { borderRadius: 12, backgroundColor: colors.surface } });
+const styles = StyleSheet.create({
+  list: { gap: space.md },
+  item: { borderRadius: 12, backgroundColor: colors.surface },
+  link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22 },
+});

@@ -46,14 +46,20 @@ export function SignInScreen() {
           Create an account
         </Link>
       </View>
-      <Link href="/public" style={styles.link}>
-        Browse public results
-      </Link>
+      <View style={styles.links}>
+        <Link href="/public" style={styles.link}>
+          Browse public results
+        </Link>
+        <Link href="/public/figures" style={styles.link}>
+          Browse public figures
+        </Link>
+      </View>
     </AuthFrame>
   );
 }
 
 const styles = StyleSheet.create({
   row: { flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' },
+  links: { flexDirection: 'row', columnGap: space.lg, rowGap: space.sm, flexWrap: 'wrap' },
   link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22 },
 });

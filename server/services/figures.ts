@@ -164,6 +164,7 @@ async function layerInfo(db: Executor, groupId: string, spec: FigureSpec): Promi
       title: available ? row.title : null,
       state: available ? row.state : null,
       available,
+      publiclyVisible: layerVisible(row, groupId, 'public'),
       latestPublished,
       newerPublished: latestPublished !== null && latestPublished > l.version,
       hue: hueOf(spec, position, hues),

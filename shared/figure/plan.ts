@@ -313,6 +313,19 @@ export function planLabels(spec: FigureSpec, plan: FigurePlan): LabelRequest[] {
   for (const i of plan.info) add(i.label, t.annotation);
   for (const a of spec.annotations) add(a.text, t.annotation);
   for (const e of plan.legend) add(e.label, t.legend);
-  for (const n of plan.notes) add(n, t.note);
+  for (const n of plan.notes) for (const line of [n, ...noteHalves(n)]) add(line, t.note);
   return out;
+}
+
+/**
+ * A note too wide for its page (large type on a small page) is drawn on two lines, broken after its
+ * first colon, or else at the space nearest the middle; both halves are typeset with the rest.
+ */
+export function noteHalves(note: string): string[] {
+  const colon = note.indexOf(': ');
+  if (colon > 0) return [note.slice(0, colon + 1), note.slice(colon + 2)];
+  const spaces = [...note.matchAll(/ /g)].map((x) => x.index!);
+  if (spaces.length === 0) return [];
+  const mid = spaces.reduce((best, i) => (Math.abs(i - note.length / 2) < Math.abs(best - note.length / 2) ? i : best));
+  return [note.slice(0, mid), note.slice(mid + 1)];
 }

@@ -8,7 +8,7 @@ import { area, line } from 'd3-shape';
 import type { FigureSpec } from '../schemas/figures';
 import { rangesBelow, type ExcludedRange } from '../stats/exclusion';
 import { cornerBox, densify, layoutLegend, n, overlaps, placeBoxes, rectPath, type Corner } from './legend';
-import { bandColors, planFigure, planLabels, type DrawnLayer, type FigurePlan } from './plan';
+import { bandColors, noteHalves, planFigure, planLabels, type DrawnLayer, type FigurePlan } from './plan';
 import type { ResolvedTheme } from './theme';
 import { thinLabels, type AxisPlan } from './ticks';
 import type { FigureLayerData, LabelRequest, Measure, Primitive, Rect, Scene, TextMetrics } from './types';
@@ -96,7 +96,13 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   const yLabels = plan.y.major.map((tk) => m(tk.label, t.tick));
   const xTitle = plan.xTitle ? m(plan.xTitle, t.axisTitle) : null;
   const yTitle = plan.yTitle ? m(plan.yTitle, t.axisTitle) : null;
-  const notes = plan.notes.map((note) => m(note, t.note));
+  const noteLines = plan.notes.flatMap((note) => {
+    // Both halves are measured either way, so the labels measured are exactly those collected.
+    const halves = noteHalves(note);
+    halves.forEach((h) => m(h, t.note));
+    return m(note, t.note).width <= W - 2 * s.edge || halves.length === 0 ? [note] : halves;
+  });
+  const notes = noteLines.map((line) => m(line, t.note));
   const notesH = notes.reduce((a, x) => a + height(x) + 0.2 * t.note, 0);
   const xLabelAscent = Math.max(0, ...xLabels.map((x) => x.ascent));
   const xLabelH = Math.max(0, ...xLabels.map(height));
@@ -259,7 +265,7 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   }
 
   let y = s.edge;
-  plan.notes.forEach((note, i) => {
+  noteLines.forEach((note, i) => {
     const nm = notes[i]!;
     items.push({ kind: 'text', x: s.edge, y: y + nm.ascent, label: note, size: t.note, font, anchor: 'start', color: theme.colors.muted, rotate: 0, role: 'note' });
     y += height(nm) + 0.2 * t.note;

@@ -99,6 +99,8 @@ export type FigureLayerInfo = {
   title: string | null;
   state: ResultState | null;
   available: boolean;
+  /** Whether the public sees this layer when the figure is public (a published, public result). */
+  publiclyVisible: boolean;
   /** The newest published version the group may use, or null when there is none. */
   latestPublished: number | null;
   newerPublished: boolean;

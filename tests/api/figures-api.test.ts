@@ -54,10 +54,11 @@ describe('create, save and read versions', () => {
     });
     expect(fig).toMatchObject({ groupId, title: 'Dijet V′ limits, one column', theme: 'publication', version: 1, isPublic: false, derivedFrom: null });
     expect(fig.versions.map((v) => v.version)).toEqual([1]);
-    expect(fig.latest.layers.map((l) => [l.title, l.state, l.available])).toEqual([
-      ['Own dijet search', 'published', true],
-      ['Own preliminary search', 'draft', true],
-      ['Public search of another group', 'published', true],
+    // The group sees all three; the public would see only the published public one (the composer warns with this).
+    expect(fig.latest.layers.map((l) => [l.title, l.state, l.available, l.publiclyVisible])).toEqual([
+      ['Own dijet search', 'published', true, false],
+      ['Own preliminary search', 'draft', true, false],
+      ['Public search of another group', 'published', true, true],
     ]);
     // Defaults filled in by the spec schema.
     expect(fig.latest.spec.layers[0]!.show).toMatchObject({ observed: true, expected: true, band1: true, band2: true });

@@ -24,13 +24,19 @@ function resultBody(title: string, scale: number) {
   };
 }
 
-/** Creates a result through the API from the page (same session cookie). */
-async function createResult(page: Page, groupId: string, title: string, scale: number) {
+/** POSTs JSON through the API from the page (same session cookie); the status and the answer. */
+async function postFromPage(page: Page, url: string, body: unknown): Promise<[number, { resultId?: string }]> {
   // Code as text: it runs in the page as written (the test's transpiler would add helpers the page lacks).
-  const url = JSON.stringify(`/api/groups/${groupId}/results`);
-  const body = JSON.stringify(JSON.stringify(resultBody(title, scale)));
-  const status = await page.evaluate(`fetch(${url}, { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: ${body} }).then((r) => r.status)`);
+  const u = JSON.stringify(url);
+  const b = JSON.stringify(JSON.stringify(body));
+  return (await page.evaluate(`fetch(${u}, { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: ${b} }).then((r) => r.json().then((j) => [r.status, j]))`)) as [number, { resultId?: string }];
+}
+
+/** Creates a result (a draft, version 1) through the API from the page; its id. */
+async function createResult(page: Page, groupId: string, title: string, scale: number): Promise<string> {
+  const [status, body] = await postFromPage(page, `/api/groups/${groupId}/results`, resultBody(title, scale));
   expect(status).toBe(201);
+  return body.resultId!;
 }
 
 describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
@@ -44,9 +50,11 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.getByRole('button', { name: 'Create group', exact: true }).click();
     await page.getByRole('heading', { name: 'Members', exact: true }).waitFor();
     const groupId = (await page.evaluate(`fetch('/api/groups').then((r) => r.json()).then((b) => b.groups[0].id)`)) as string;
-    await createResult(page, groupId, `Dijet V prime ${vp}`, 1);
-    await createResult(page, groupId, `Lepton pair V prime ${vp}`, 0.6);
-    await createResult(page, groupId, `Top pair V prime ${vp}`, 1.7);
+    const resultIds = [
+      await createResult(page, groupId, `Dijet V prime ${vp}`, 1),
+      await createResult(page, groupId, `Lepton pair V prime ${vp}`, 0.6),
+      await createResult(page, groupId, `Top pair V prime ${vp}`, 1.7),
+    ];
 
     await page.goto('/figures');
     await page.getByRole('region', { name: 'No figures yet' }).waitFor();
@@ -95,7 +103,40 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.goto('/figures');
     await page.getByRole('link', { name: `Figure Vector overlay ${vp}` }).waitFor();
     await fullShot(page, vp, 'figures-list');
+
+    // The composer says which layers the public would not see; two results published as public leave one hidden.
+    await page.getByRole('link', { name: `Figure Vector overlay ${vp}` }).click();
+    await page.getByText(/^All 3 layers show results the public cannot see/).waitFor();
+    for (const id of resultIds.slice(0, 2)) expect((await postFromPage(page, `/api/groups/${groupId}/results/${id}/versions/1/publish`, { public: true }))[0]).toBe(200);
+    await page.reload();
+    await page.getByText(/^1 of 3 layers shows a result the public cannot see/).waitFor();
+    // Made public, the figure appears to signed-out visitors on the public figures page with its picture and downloads.
+    await page.getByRole('checkbox', { name: 'Public: anyone can see and download this figure', exact: true }).click();
+    await page.locator('[role="checkbox"][aria-label="Public: anyone can see and download this figure"][aria-checked="true"]').waitFor();
+    await page.getByRole('status').filter({ hasText: 'Public copies leave it out and say so on the figure' }).waitFor();
     expect(pageErrors(page)).toEqual([]);
     await context.close();
+
+    const visitor = await newPage(e, vp);
+    const v = visitor.page;
+    await v.goto('/sign-in');
+    await v.getByRole('link', { name: 'Browse public figures', exact: true }).click();
+    await v.getByRole('heading', { name: 'Public figures', exact: true }).waitFor();
+    await v.getByLabel('Search public figures').fill(`Vector overlay ${vp}`);
+    const picture = v.getByRole('img', { name: `Figure: Vector overlay ${vp}`, exact: true });
+    await picture.waitFor();
+    // The picture really loaded (an <img> with pixels), not just a frame.
+    await v.waitForFunction(`Array.from(document.querySelectorAll('img')).some((i) => i.complete && i.naturalWidth > 0 && i.src.includes('/api/public/figures/'))`);
+    const png = await visitor.context.request.get(`${e.base}${await v.getByRole('link', { name: `Vector overlay ${vp}: PNG at 300 dpi`, exact: true }).getAttribute('href')}`);
+    expect(png.status()).toBe(200);
+    expect(png.headers()['content-type']).toBe('image/png');
+    // Other themes filter it out; a search for nothing public says so.
+    await v.getByRole('radio', { name: 'Outreach (plain words)', exact: true }).click();
+    await v.getByRole('region', { name: 'No public figures match' }).waitFor();
+    await v.getByRole('radio', { name: 'All themes', exact: true }).click();
+    await picture.waitFor();
+    await fullShot(v, vp, 'public-figures');
+    expect(pageErrors(v)).toEqual([]);
+    await visitor.context.close();
   });
 });

@@ -1,4 +1,4 @@
-import { addLayer, edit, moveLayer, redo, removeLayer, startHistory, undo } from '@/components/figure/composer-model';
+import { addLayer, edit, moveLayer, redo, removeLayer, startHistory, undo, withTheme } from '@/components/figure/composer-model';
 import { figureSpecSchema, type FigureSpec } from '@/shared/schemas/figures';
 
 const A = '00000000-0000-4000-8000-00000000000a';
@@ -44,4 +44,19 @@ test('undo and redo walk the edits; typing in one field is one step', () => {
   expect(undo(h)).toBe(h);
   h = redo(redo(h));
   expect(h.present.theme).toBe('slides');
+});
+
+describe('switching the theme', () => {
+  const base = figureSpecSchema.parse({ title: 'T', theme: 'publication', size: { preset: 'one-column' }, layers: [] });
+  test('the usual size follows the theme (slide type on a journal column would be unreadable)', () => {
+    expect(withTheme(base, 'slides')).toMatchObject({ theme: 'slides', size: { preset: 'slide' } });
+    expect(withTheme(withTheme(base, 'slides'), 'outreach')).toMatchObject({ theme: 'outreach', size: { preset: 'web' } });
+    expect(withTheme(withTheme(base, 'slides'), 'publication')).toMatchObject({ theme: 'publication', size: { preset: 'one-column' } });
+  });
+  test('a size someone chose stays', () => {
+    const twoCol = { ...base, size: { preset: 'two-column' as const } };
+    expect(withTheme(twoCol, 'slides').size).toEqual({ preset: 'two-column' });
+    const custom = { ...base, size: { preset: 'custom' as const, widthCm: 12, heightCm: 9 } };
+    expect(withTheme(custom, 'outreach').size).toEqual(custom.size);
+  });
 });

@@ -243,6 +243,17 @@ describe('layers the viewer may not see', () => {
     const two = build(spec({ layers: [{ resultId: ID[2], version: 2 }, { resultId: ID[1], version: 1 }, { resultId: ID[0], version: 3 }] }), [hiddenLayer, hiddenLayer]);
     expect(two.notes).toEqual(['3 layers are not shown: you may not see their results']);
   });
+  test('a note wider than the page (slide type on a journal column) is drawn on two lines inside the page', () => {
+    const narrow = { ...s, theme: 'slides' as const, size: { preset: 'one-column' as const } };
+    const scene = build(narrow, [dijet, hiddenLayer]);
+    const lines = texts(scene, 'note');
+    expect(lines.map((t) => t.label)).toEqual(['1 layer is not shown:', 'you may not see its result']);
+    for (const t of lines) expect(t.x + stubMeasure(t.label, t.size, t.font).width).toBeLessThanOrEqual(scene.widthPt);
+    expect(lines[1]!.y).toBeGreaterThan(lines[0]!.y);
+    // The plot starts below both lines.
+    expect(scene.plot.y).toBeGreaterThan(lines[1]!.y);
+    expect(scene.notes).toEqual(['1 layer is not shown: you may not see its result']);
+  });
 });
 
 describe('excluded shading', () => {

@@ -1,0 +1,2 @@
+import { PublicFiguresScreen } from '@/components/screens/public-figures-screen';
+export default PublicFiguresScreen;
