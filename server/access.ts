@@ -1,5 +1,4 @@
 import type { Request, RequestHandler } from 'express';
-import { fromNodeHeaders } from 'better-auth/node';
 import { ACTION_MIN_ROLE, can, type GroupAction, type GroupRole } from '../shared/access';
 import { uuidParam } from '../shared/schemas/common';
 import { getRole } from '../db/queries/groups';
@@ -36,10 +35,10 @@ async function resolveUser(ctx: Ctx, req: Request) {
     req.authVia = 'token';
     return u;
   }
-  const session = await ctx.auth.api.getSession({ headers: fromNodeHeaders(req.headers) });
-  if (!session) return undefined;
+  const u = await ctx.sessions.lookup(req.headers);
+  if (!u) return undefined;
   req.authVia = 'session';
-  return { id: session.user.id, name: session.user.name, email: session.user.email };
+  return u;
 }
 
 /** 401 unless the request carries a valid session or API token. */

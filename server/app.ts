@@ -53,6 +53,13 @@ export function createApp(ctx: Ctx): Express {
   app.post('/api/auth/sign-up/email', authLimiter, authJson, validate({ body: signUpSchema }));
   app.post('/api/auth/sign-in/email', authLimiter, authJson, validate({ body: signInSchema }));
   app.post(['/api/auth/forget-password', '/api/auth/request-password-reset', '/api/auth/reset-password'], authLimiter);
+  // Any auth request may end or change sessions: the remembered sessions are dropped before it runs
+  // and again once it has answered (server/session-cache.ts).
+  app.all('/api/auth/{*any}', (_req, res, next) => {
+    ctx.sessions.clear();
+    res.on('close', () => ctx.sessions.clear());
+    next();
+  });
   app.all('/api/auth/{*any}', authNodeHandler(ctx.auth));
 
   // Payment provider events: verified on their raw bytes, so before any JSON parser.

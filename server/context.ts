@@ -5,17 +5,20 @@ import { createDb, type Db } from './db';
 import type { Env } from './env';
 import { createStripeClient } from './services/billing';
 import { createMailer, type Mailer } from './services/mail';
+import { createSessionCache, type SessionCache } from './session-cache';
 
 /**
  * Everything a route or service needs, built once per process (or per test file). `jobs` is the
  * job queue, set once it has started (scan routes answer 503 without it). `stripe` is the payment
  * provider's SDK client (the local fake outside production; null when billing is not configured).
+ * `sessions` answers "who is this session cookie" from memory for a few seconds (server/session-cache.ts).
  */
-export type Ctx = { env: Env; db: Db; auth: Auth; mail: Mailer; jobs?: PgBoss; stripe: Stripe | null };
+export type Ctx = { env: Env; db: Db; auth: Auth; sessions: SessionCache; mail: Mailer; jobs?: PgBoss; stripe: Stripe | null };
 
 export function createContext(env: Env): Ctx {
   const db = createDb(env.DATABASE_URL);
-  return { env, db, auth: createAuth(db, env), mail: createMailer(db, env), stripe: createStripeClient(env.stripe) };
+  const auth = createAuth(db, env);
+  return { env, db, auth, sessions: createSessionCache(auth), mail: createMailer(db, env), stripe: createStripeClient(env.stripe) };
 }
 
 export async function closeContext(ctx: Ctx): Promise<void> {

@@ -130,6 +130,24 @@ describe('signing in and out', () => {
     expect((await request(t.app).get('/api/groups').set('Cookie', cookie)).status).toBe(401);
   });
 
+  test('remembered sessions never outlive a revocation: another device signed out through revoke-sessions is refused at once', async () => {
+    const email = uniqueEmail('two-devices');
+    const laptop = anon();
+    await laptop.post('/api/auth/sign-up/email').send({ name: 'Two Devices', email, password: PASSWORD });
+    const phone = anon();
+    const signIn = await phone.post('/api/auth/sign-in/email').send({ email, password: PASSWORD });
+    const phoneCookie = sessionCookie(signIn)!.split(';')[0]!;
+    // Both sessions answered once, so both are remembered by the server's session cache.
+    expect((await laptop.get('/api/me')).status).toBe(200);
+    expect((await request(t.app).get('/api/me').set('Cookie', phoneCookie)).status).toBe(200);
+    expect(t.ctx.sessions.size).toBeGreaterThanOrEqual(2);
+    // The laptop ends every session of the account (better-auth's route; the app has no button for it yet).
+    expect((await laptop.post('/api/auth/revoke-sessions').send({})).status).toBe(200);
+    expect((await request(t.app).get('/api/me').set('Cookie', phoneCookie)).status).toBe(401);
+    expect((await request(t.app).get('/api/groups').set('Cookie', phoneCookie)).status).toBe(401);
+    expect((await laptop.get('/api/me')).status).toBe(401);
+  });
+
   test('a made-up session cookie is not a session', async () => {
     const res = await request(t.app).get('/api/me').set('Cookie', 'better-auth.session_token=forged.value');
     expect(res.status).toBe(401);
