@@ -2,6 +2,7 @@ import { and, asc, count, desc, eq, ilike, inArray, lt, ne, or, sql, type SQL } 
 import type { FigureSpec, HouseStyle } from '../../shared/schemas/figures';
 import type { Db, Executor } from '../../server/db';
 import { figureLayers, figureRenders, figures, figureVersions, groups, groupStyles, resultHues, results, resultVersions, user } from '../schema';
+import { containsPattern } from './results';
 
 /**
  * Data access of figures. Everything is scoped by the group whose membership the route checked,
@@ -194,10 +195,6 @@ export async function deleteFigure(db: Executor, groupId: string, figureId: stri
   await db.delete(figures).where(and(eq(figures.id, figureId), eq(figures.groupId, groupId)));
 }
 
-/** `%text%` for ILIKE with the pattern characters of the text escaped. */
-function containsPattern(text: string): string {
-  return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
-}
 
 /** Public figures of every group, most recently changed first, paged. */
 export async function listPublicFigures(db: Executor, f: { q?: string; theme?: string; page: number; pageSize: number }) {

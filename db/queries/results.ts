@@ -41,7 +41,7 @@ function versionVisible(viewer: Viewer): SQL {
 }
 
 /** `%text%` for ILIKE with the pattern characters of the text escaped. */
-function containsPattern(text: string): string {
+export function containsPattern(text: string): string {
   return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 }
 
