@@ -2,6 +2,7 @@ import { Link } from 'expo-router';
 import type { ReactNode } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
+import { useIsWide } from '@/hooks/use-layout';
 import { useMe } from '@/hooks/use-session';
 import { colors, fonts, space } from '@/themes/tokens';
 
@@ -10,6 +11,8 @@ export function PublicFrame({ children }: { children: ReactNode }) {
   const me = useMe();
   const insets = useSafeAreaInsets();
   const signedIn = !!me.data;
+  // Phones get the short words (the header has room for three links); the names stay whole for screen readers.
+  const wide = useIsWide();
   return (
     <View style={[styles.page, { paddingTop: insets.top }]}>
       <View style={styles.header} role="navigation" aria-label="Site">
@@ -18,10 +21,10 @@ export function PublicFrame({ children }: { children: ReactNode }) {
         </Link>
         <View style={styles.links}>
           <Link href="/public" style={styles.link} aria-label="Public results">
-            Results
+            {wide ? 'Public results' : 'Results'}
           </Link>
           <Link href="/public/figures" style={styles.link} aria-label="Public figures">
-            Figures
+            {wide ? 'Public figures' : 'Figures'}
           </Link>
           {me.isPending ? null : signedIn ? (
             <Link href="/" style={styles.link}>
