@@ -386,7 +386,7 @@ export async function setResultHue(ctx: Ctx, groupId: string, resultId: string, 
 // Rendering
 
 /** Bumped when the renderers change what they draw, so cached renders of the old look are not served. */
-const RENDER_REVISION = 'r1';
+const RENDER_REVISION = 'r2';
 /** PNG resolutions whose renders are kept; others are made on request and not stored. */
 const CACHED_DPIS = new Set([72, 96, 150, 300, 600]);
 

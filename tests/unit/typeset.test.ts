@@ -29,6 +29,33 @@ describe('label syntax', () => {
 });
 
 describe('typesetting', () => {
+  test('decade labels ($10^{k}$) are set in the text font, like the other tick labels, with a raised smaller exponent', () => {
+    for (const font of ['sans', 'serif'] as const) {
+      const ten = one('10', 10, font);
+      const power = one('$10^{3}$', 10, font);
+      const negative = one('$10^{-2}$', 10, font);
+      expect(power.error).toBeUndefined();
+      // "1" and "0" are the very glyphs of the plain label "10" (same outlines, same places).
+      expect(power.paths.slice(0, 2)).toEqual(ten.paths.slice(0, 2));
+      expect(negative.paths.slice(0, 2)).toEqual(ten.paths.slice(0, 2));
+      // One more glyph for "3", two for "−2"; the exponent sits above the digits' cap height.
+      expect(power.paths).toHaveLength(3);
+      expect(negative.paths).toHaveLength(4);
+      expect(power.width).toBeGreaterThan(ten.width);
+      expect(power.ascent).toBeGreaterThan(ten.ascent + 1);
+      const sup = pathBox(power.paths[2]!)!;
+      expect(sup.y2).toBeLessThan(-2.5); // its bottom 0.42 em above the baseline, minus rounding
+      expect(sup.y2 - sup.y1).toBeLessThan(0.8 * ten.ascent); // smaller than a full-size digit
+    }
+    // A bare exponent after plain text (fb$^{-1}$) is set the same way: "fb" then a raised "−1".
+    const fb = one('140 fb$^{-1}$');
+    expect(fb.paths.slice(0, 5)).toEqual(one('140 fb').paths);
+    expect(fb.paths).toHaveLength(7);
+    expect(pathBox(fb.paths[6]!)!.y2).toBeLessThan(-2.5);
+    // Anything else in math stays with MathJax.
+    expect(one('$10^{3} \\times 2$').paths.length).toBeGreaterThan(3);
+  });
+
   test('plain text becomes non-empty outline paths with a positive width and the font’s box', () => {
     const g = one('Mass of the new particle [TeV]');
     expect(g.error).toBeUndefined();
