@@ -3,7 +3,7 @@ import { createApp } from './app';
 import { runMigrations } from './db';
 import { loadEnv } from './env';
 import { startQueue } from './jobs/queue';
-import { startScanWorkers } from './jobs/scan-worker';
+import { startWorkerProcesses, type WorkerProcesses } from './jobs/worker-processes';
 import { startStripeFake, type StripeFake } from './fakes/stripe';
 
 /** Server entry: `node --import tsx server/index.ts` (npm start runs it with its own database). */
@@ -12,10 +12,10 @@ async function main() {
   const ctx = createContext(env);
   await runMigrations(ctx.db);
   ctx.jobs = await startQueue(env);
-  let stopWorkers = () => {};
+  let workers: WorkerProcesses | undefined;
   if (env.WORKERS > 0) {
-    stopWorkers = await startScanWorkers(ctx, ctx.jobs, env.WORKERS);
-    console.log(`[server] ${env.WORKERS} scan worker(s) running in this process`);
+    workers = startWorkerProcesses(env.WORKERS, process.env);
+    console.log(`[server] ${env.WORKERS} scan worker process(es) started beside the server`);
   }
   // Development without a configured payment provider: the local fake, on loopback, sending its
   // webhooks to this server.
@@ -42,10 +42,10 @@ async function main() {
   });
   const stop = (signal: string) => {
     console.log(`[server] ${signal}: closing`);
-    stopWorkers();
     void stripeFake?.close();
-    server.close(() => void closeContext(ctx).finally(() => process.exit(0)));
-    setTimeout(() => process.exit(0), 12_000).unref();
+    const workersDone = workers?.stop() ?? Promise.resolve();
+    server.close(() => void Promise.all([workersDone, closeContext(ctx)]).finally(() => process.exit(0)));
+    setTimeout(() => process.exit(0), 20_000).unref();
   };
   process.on('SIGINT', () => stop('SIGINT'));
   process.on('SIGTERM', () => stop('SIGTERM'));

@@ -5,8 +5,9 @@ import { startQueue } from './jobs/queue';
 import { startScanWorkers } from './jobs/scan-worker';
 
 /**
- * A stand-alone scan worker (`npm run worker`): point it at the same DATABASE_URL as the server,
- * on this machine or another, to compute scans in parallel. Ctrl-C lets the current point finish.
+ * A scan worker process. The server starts `WORKERS` of them beside itself; `npm run worker` starts
+ * more by hand: point it at the same DATABASE_URL as the server, on this machine or another, to
+ * compute scans in parallel. Ctrl-C lets the current point finish.
  */
 async function main() {
   const env = loadEnv();
@@ -26,6 +27,8 @@ async function main() {
   };
   process.on('SIGINT', () => stop('SIGINT'));
   process.on('SIGTERM', () => stop('SIGTERM'));
+  // Started by the server (server/jobs/worker-processes.ts): stop with it, even when it was killed.
+  if (process.send) process.on('disconnect', () => stop('server gone'));
 }
 
 main().catch((err) => {

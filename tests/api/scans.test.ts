@@ -4,6 +4,7 @@ import { eq } from 'drizzle-orm';
 import { scanPoints } from '@/db/schema/scans';
 import { startQueue } from '@/server/jobs/queue';
 import { runScanPoint, startScanWorkers } from '@/server/jobs/scan-worker';
+import { startWorkerProcesses, type WorkerProcesses } from '@/server/jobs/worker-processes';
 import type { CountingModelInput } from '@/shared/schemas/counting-model';
 import type { ScanDetail } from '@/shared/schemas/scan-views';
 import { computeScan } from '@/shared/stats';
@@ -215,5 +216,46 @@ describe('cancel, and workers that crash', () => {
     const v = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${done.resultId}/versions/${done.resultVersion}`);
     expect(v.body.curve.x).toEqual(points.map((p) => p.x));
     expect(v.body.meta.method).toBe('toys');
+  });
+});
+
+describe('worker processes started by the server', () => {
+  let t: TestApp;
+  let crew: Crew;
+  let groupId: string;
+  let workers: WorkerProcesses | undefined;
+  beforeAll(async () => {
+    t = await startTestApp({ JOB_MAINTENANCE_SECONDS: '1', JOB_EXPIRE_SECONDS: '3' });
+    t.ctx.jobs = await startQueue(t.ctx.env); // the API only queues; the children compute
+    ({ groupId, crew } = await makeGroupWithRoles(t));
+  });
+  afterAll(async () => {
+    await workers?.stop();
+    await t?.close();
+  });
+
+  test('a child that dies is started again, the scan completes in the children, and stop() ends them all', async () => {
+    const lines: string[] = [];
+    const env = { ...process.env, DATABASE_URL: t.ctx.env.DATABASE_URL, NODE_ENV: 'test', JOB_EXPIRE_SECONDS: '3', JOB_MAINTENANCE_SECONDS: '1' } as NodeJS.ProcessEnv;
+    workers = startWorkerProcesses(1, env, { restartMs: 100, graceMs: 10_000, log: (l) => lines.push(l) });
+    const [first] = workers.pids();
+    expect(first).toBeGreaterThan(0);
+    process.kill(first!, 'SIGKILL');
+    for (let i = 0; workers.pids().length === 0 || workers.pids()[0] === first; i++) {
+      if (i > 200) throw new Error('no new worker process was started');
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    const [second] = workers.pids();
+    expect(second).not.toBe(first);
+    expect(lines.join('\n')).toContain(`scan worker ${first} stopped (SIGKILL)`);
+
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(3), options: {}, meta: META });
+    expect(res.status).toBe(201);
+    const done = await waitFor(t, crew.analyst.agent, groupId, res.body.id, (s) => s.state === 'done', 60_000);
+    expect(done.donePoints).toBe(3);
+
+    await workers.stop();
+    expect(workers.pids()).toEqual([]);
+    expect(() => process.kill(second!, 0)).toThrow();
   });
 });
