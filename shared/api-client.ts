@@ -1,4 +1,5 @@
 import type { SignInInput, SignUpInput } from './schemas/auth';
+import type { ServerLimits } from './schemas/common';
 import type {
   ChangeRoleInput,
   CreateGroupInput,
@@ -113,6 +114,7 @@ export function createApiClient(opts: ApiClientOptions = {}) {
   const enc = encodeURIComponent;
   return {
     health: () => call<{ ok: boolean; db: string }>('GET', '/api/health'),
+    limits: () => call<ServerLimits>('GET', '/api/limits'),
     auth: {
       signUp: (input: SignUpInput) => call<{ user: { id: string } }>('POST', '/api/auth/sign-up/email', input),
       signIn: (input: SignInInput) => call<{ user: { id: string } }>('POST', '/api/auth/sign-in/email', input),

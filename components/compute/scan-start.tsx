@@ -8,6 +8,7 @@ import { versionMetaSchema } from '@/shared/schemas/results';
 import { scanFileSchema, type ScanInputPoint } from '@/shared/schemas/scans';
 import { ApiError } from '@/shared/api-client';
 import { useStartScan } from '@/hooks/use-scans';
+import { useUploadLimit } from '@/hooks/use-limits';
 import { space } from '@/themes/tokens';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
@@ -18,7 +19,7 @@ import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
 import { MetaForm } from '../upload/meta-form';
 import { ProblemList } from '../upload/problem-list';
-import { EMPTY_META, MAX_UPLOAD_BYTES, MAX_UPLOAD_LABEL, metaInput, PICKER_TYPES, type MetaDraft, type Problem } from '../upload/upload-model';
+import { EMPTY_META, metaInput, PICKER_TYPES, sizeProblem, type MetaDraft, type Problem } from '../upload/upload-model';
 import { AsimovChoice } from './asimov-choice';
 import { readNumber } from './model-draft';
 
@@ -50,6 +51,7 @@ export function ScanStart({ groupId }: { groupId: string }) {
   const router = useRouter();
   const start = useStartScan(groupId);
   const [picked, setPicked] = useState<Picked | null>(null);
+  const uploadLimit = useUploadLimit();
   const [meta, setMeta] = useState<MetaDraft>({ ...EMPTY_META, method: 'asymptotic' });
   const [touched, setTouched] = useState<Set<string>>(new Set());
   const [method, setMethod] = useState<'asymptotic' | 'toys'>('asymptotic');
@@ -72,8 +74,9 @@ export function ScanStart({ groupId }: { groupId: string }) {
     if (r.canceled || !r.assets[0]) return;
     const asset = r.assets[0];
     const file = asset.file ?? (await (await fetch(asset.uri)).blob());
-    if (file.size > MAX_UPLOAD_BYTES) {
-      setPicked({ name: asset.name, problems: [{ column: 'file', reason: `is ${(file.size / 1048576).toFixed(1)} MB; the limit is ${MAX_UPLOAD_LABEL}` }] });
+    const tooBig = sizeProblem(file.size, uploadLimit);
+    if (tooBig) {
+      setPicked({ name: asset.name, problems: [tooBig] });
       return;
     }
     const a = analyse(asset.name, new Uint8Array(await file.arrayBuffer()));

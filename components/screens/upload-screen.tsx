@@ -7,6 +7,7 @@ import type { ColumnMapping } from '@/shared/curves/csv';
 import { createVersionSchema, versionMetaSchema, type Curve, type Theory } from '@/shared/schemas/results';
 import { useCurrentGroup } from '@/hooks/use-current-group';
 import { useIsWide } from '@/hooks/use-layout';
+import { useUploadLimit } from '@/hooks/use-limits';
 import { useAddVersion, useCreateResult, useResult, useResultVersion } from '@/hooks/use-results';
 import { useMe } from '@/hooks/use-session';
 import { colors, fonts, space } from '@/themes/tokens';
@@ -33,11 +34,11 @@ import {
   EMPTY_META,
   guessMeta,
   isMappingProblem,
-  MAX_UPLOAD_LABEL,
   metaInput,
   PICKER_TYPES,
   previewCurve,
   sizeProblem,
+  uploadLimitLabel,
   splitServerDetails,
   uploadForm,
   type Analysed,
@@ -51,14 +52,14 @@ type Target = { groupId: string; groupName: string; resultId?: string; resultTit
 const changeNoteSchema = createVersionSchema.pick({ changeNote: true });
 
 /** Reads the picked file's bytes (a File on the web) after the size check. */
-async function readPicked(asset: DocumentPicker.DocumentPickerAsset): Promise<Picked> {
+async function readPicked(asset: DocumentPicker.DocumentPickerAsset, limit: number): Promise<Picked> {
   const size = asset.size ?? asset.file?.size ?? 0;
-  const tooBig = sizeProblem(size);
+  const tooBig = sizeProblem(size, limit);
   if (tooBig) return { name: asset.name, size, file: null, analysed: { kind: 'invalid', problems: [tooBig] } };
   const buffer = asset.file ? await asset.file.arrayBuffer() : await (await fetch(asset.uri)).arrayBuffer();
   const bytes = new Uint8Array(buffer);
   const file = asset.file ?? new Blob([bytes], { type: asset.mimeType ?? 'text/csv' });
-  return { name: asset.name, size: bytes.length, file, analysed: analyseFile(asset.name, bytes) };
+  return { name: asset.name, size: bytes.length, file, analysed: analyseFile(asset.name, bytes, limit) };
 }
 
 function Step({ n, title, children, done }: { n: number; title: string; children: ReactNode; done?: boolean }) {
@@ -83,6 +84,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const addVersion = useAddVersion(target.groupId, target.resultId ?? '');
   const save = isVersion ? addVersion : create;
 
+  const uploadLimit = useUploadLimit();
   const [picked, setPicked] = useState<Picked | null>(null);
   const [reading, setReading] = useState(false);
   const [pickError, setPickError] = useState<string | null>(null);
@@ -107,7 +109,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
       const res = await DocumentPicker.getDocumentAsync({ type: PICKER_TYPES, multiple: false, base64: false, copyToCacheDirectory: false });
       if (res.canceled || !res.assets[0]) return;
       setReading(true);
-      const p = await readPicked(res.assets[0]);
+      const p = await readPicked(res.assets[0], uploadLimit);
       setPicked(p);
       const a = p.analysed;
       if (a.kind === 'csv') {
@@ -191,7 +193,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const fileStep = (
     <Step n={1} title="Choose a file" done={fileOk}>
       <Text variant="muted">
-        A CSV table (comma, semicolon or tab between columns; any column names) or a Bandwright JSON file. At most {MAX_UPLOAD_LABEL}, UTF-8 text.
+        A CSV table (comma, semicolon or tab between columns; any column names) or a Bandwright JSON file. At most {uploadLimitLabel(uploadLimit)}, UTF-8 text.
       </Text>
       <View style={styles.row}>
         <Button label={picked ? 'Choose another file' : 'Choose a file'} variant={picked ? 'secondary' : 'primary'} loading={reading} onPress={() => void pick()} />

@@ -31,17 +31,26 @@ import {
 
 export type Problem = CurveProblem;
 
-/** Uploads above this size are refused before reading (the server has the same limit). */
+/**
+ * Uploads above the server's limit (`GET /api/limits`, UPLOAD_LIMIT_BYTES) are refused before
+ * reading; this is its default, used until the server has answered.
+ */
 export const MAX_UPLOAD_BYTES = 5 * 1024 * 1024;
-export const MAX_UPLOAD_LABEL = '5 MB';
+
+/** A byte limit in words: "5 MB", "2.5 MB", "800 KB". */
+export function uploadLimitLabel(limit: number): string {
+  const mb = limit / (1024 * 1024);
+  if (mb >= 1) return `${Number(mb.toFixed(1))} MB`;
+  return `${Math.max(1, Math.round(limit / 1024))} KB`;
+}
 
 /** What the document picker may offer (CSV, TSV, plain text and the project's JSON). */
 export const PICKER_TYPES = ['text/csv', 'text/comma-separated-values', 'text/tab-separated-values', 'text/plain', 'application/json'];
 
 /** A file too large to read, named with its size and the limit. */
-export function sizeProblem(bytes: number): Problem | null {
-  if (bytes <= MAX_UPLOAD_BYTES) return null;
-  return { column: 'file', reason: `is ${(bytes / (1024 * 1024)).toFixed(1)} MB; the limit is ${MAX_UPLOAD_LABEL}` };
+export function sizeProblem(bytes: number, limit = MAX_UPLOAD_BYTES): Problem | null {
+  if (bytes <= limit) return null;
+  return { column: 'file', reason: `is ${(bytes / (1024 * 1024)).toFixed(1)} MB; the limit is ${uploadLimitLabel(limit)}` };
 }
 
 const problemsOf = (e: unknown): Problem[] => {
@@ -60,8 +69,8 @@ function looksLikeJson(name: string, text: string): boolean {
 }
 
 /** Bytes of a picked file → what it holds. Never throws for a bad file; problems say why. */
-export function analyseFile(name: string, bytes: Uint8Array): Analysed {
-  const size = sizeProblem(bytes.length);
+export function analyseFile(name: string, bytes: Uint8Array, limit = MAX_UPLOAD_BYTES): Analysed {
+  const size = sizeProblem(bytes.length, limit);
   if (size) return { kind: 'invalid', problems: [size] };
   let text: string;
   try {

@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { Router } from 'express';
+import type { ServerLimits } from '../../shared/schemas/common';
 import type { Ctx } from '../context';
 
 export function healthRouter(ctx: Ctx) {
@@ -11,6 +12,10 @@ export function healthRouter(ctx: Ctx) {
     } catch {
       res.status(503).json({ ok: false, db: 'down' });
     }
+  });
+  /** Limits the app checks before sending (anyone; they are the server's settings). */
+  r.get('/limits', (_req, res) => {
+    res.json({ uploadLimitBytes: ctx.env.UPLOAD_LIMIT_BYTES } satisfies ServerLimits);
   });
   return r;
 }

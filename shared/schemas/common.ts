@@ -22,3 +22,6 @@ export const apiErrorSchema = z.object({
   }),
 });
 export type ApiErrorBody = z.infer<typeof apiErrorSchema>;
+
+/** `GET /api/limits`: server settings the app checks before sending. */
+export type ServerLimits = { uploadLimitBytes: number };

@@ -13,6 +13,18 @@ test('GET /api/health answers ok with the database up', async () => {
   expect(res.body).toEqual({ ok: true, db: 'up' });
 });
 
+test('GET /api/limits gives anyone the upload limit the server enforces (the app checks files against it)', async () => {
+  const res = await request(t.app).get('/api/limits');
+  expect(res.status).toBe(200);
+  expect(res.body).toEqual({ uploadLimitBytes: t.ctx.env.UPLOAD_LIMIT_BYTES });
+  const small = await startTestApp({ UPLOAD_LIMIT_BYTES: '800000' });
+  try {
+    expect((await request(small.app).get('/api/limits')).body).toEqual({ uploadLimitBytes: 800000 });
+  } finally {
+    await small.close();
+  }
+});
+
 test('unknown API routes answer 404 JSON in the error shape', async () => {
   const res = await request(t.app).get('/api/nope');
   expect(res.status).toBe(404);

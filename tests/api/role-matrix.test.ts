@@ -69,6 +69,7 @@ type Entry = {
 
 const MATRIX: Entry[] = [
   { method: 'get', path: '/api/health', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  { method: 'get', path: '/api/limits', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   { method: 'get', path: '/api/me', access: 'signed-in', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   { method: 'get', path: '/api/groups', access: 'signed-in', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   {
