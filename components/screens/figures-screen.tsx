@@ -1,12 +1,17 @@
 import { Link, useRouter } from 'expo-router';
-import { Pressable, StyleSheet, View } from 'react-native';
+import { Pressable, StyleSheet } from 'react-native';
 import { figureSpecSchema } from '@/shared/schemas/figures';
 import { useCurrentGroup } from '@/hooks/use-current-group';
+import { api } from '@/hooks/api';
 import { useCreateFigure, useFigures } from '@/hooks/use-figures';
-import { colors, fonts, space } from '@/themes/tokens';
+import { colors, fonts, radii, space } from '@/themes/tokens';
+import { FigureThumb } from '../figure/figure-thumb';
+import { THEME_LABELS } from '../figure/style-panel';
+import { formatDate } from '../results/format';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
+import { CardGrid } from '../ui/card-grid';
 import { EmptyState } from '../ui/empty-state';
 import { errorMessage } from '../ui/form';
 import { Loading } from '../ui/loading';
@@ -46,20 +51,25 @@ export function FiguresScreen() {
           message={can('figure.write') ? 'Compose a figure from the registry’s results: overlays, bands, theory, labels with TeX.' : 'Figures made by this group will be listed here.'}
         />
       ) : null}
-      <View style={styles.list} role="list">
-        {list.data?.map((f) => (
-          <Link key={f.id} href={`/groups/${group.id}/figures/${f.id}`} asChild>
-            <Pressable role="link" aria-label={`Figure ${f.title}`} style={styles.item}>
-              <Card>
-                <Text variant="label">{f.title}</Text>
-                <Text variant="caption">
-                  {f.theme} · version {f.version} · {f.isPublic ? 'public' : 'group only'} · updated {new Date(f.updatedAt).toLocaleDateString()}
-                </Text>
-              </Card>
-            </Pressable>
-          </Link>
-        ))}
-      </View>
+      {list.data && list.data.length > 0 ? (
+        <CardGrid label="Figures of the group">
+          {list.data.map((f) => (
+            <Link key={f.id} href={`/groups/${group.id}/figures/${f.id}`} asChild>
+              <Pressable role="link" aria-label={`Figure ${f.title}`} style={styles.item}>
+                <Card style={styles.card}>
+                  <FigureThumb uri={api.figures.renderUrl(f.id, 'svg', { version: f.version })} title={f.title} />
+                  <Text variant="label" numberOfLines={2}>
+                    {f.title}
+                  </Text>
+                  <Text variant="caption">
+                    {THEME_LABELS[f.theme]} · version {f.version} · {f.isPublic ? 'public' : 'group only'} · updated {formatDate(f.updatedAt)}
+                  </Text>
+                </Card>
+              </Pressable>
+            </Link>
+          ))}
+        </CardGrid>
+      ) : null}
       <Link href="/public/figures" style={styles.link}>
         Browse public figures of all groups
       </Link>
@@ -68,7 +78,7 @@ export function FiguresScreen() {
 }
 
 const styles = StyleSheet.create({
-  list: { gap: space.md },
-  item: { borderRadius: 12, backgroundColor: colors.surface },
+  item: { borderRadius: radii.lg, backgroundColor: colors.surface },
+  card: { gap: space.sm },
   link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22 },
 });

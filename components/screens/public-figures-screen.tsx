@@ -1,18 +1,20 @@
 import { useLocalSearchParams, useRouter } from 'expo-router';
 import { useEffect, useState } from 'react';
-import { Image, StyleSheet, View } from 'react-native';
+import { StyleSheet, View } from 'react-native';
 import { useDebounced } from '@/hooks/use-debounced';
 import { usePublicFigures } from '@/hooks/use-figures';
 import { api } from '@/hooks/api';
 import { FIGURE_THEMES, type FigureTheme } from '@/shared/schemas/figures';
 import type { PublicFigureSummary } from '@/shared/schemas/figure-views';
-import { colors, radii, space } from '@/themes/tokens';
+import { space } from '@/themes/tokens';
+import { FigureThumb } from '../figure/figure-thumb';
 import { THEME_LABELS } from '../figure/style-panel';
 import { PublicFrame } from '../nav/public-frame';
 import { formatDate } from '../results/format';
 import { Anchor } from '../ui/anchor';
 import { Banner } from '../ui/banner';
 import { Card } from '../ui/card';
+import { CardGrid } from '../ui/card-grid';
 import { ChoiceGroup } from '../ui/choice-group';
 import { EmptyState } from '../ui/empty-state';
 import { errorMessage } from '../ui/form';
@@ -32,10 +34,6 @@ type ThemeFilter = FigureTheme | 'all';
 export function PublicFiguresScreen() {
   const params = useLocalSearchParams<{ q?: string; theme?: string; page?: string }>();
   const router = useRouter();
-  // Cards in as many columns of ≥ 300 px as the list's own width allows (measured, so side navigation or margins count).
-  const [listWidth, setListWidth] = useState(0);
-  const columns = Math.max(1, Math.min(3, Math.floor((listWidth + space.md) / (300 + space.md))));
-  const cardWidth = listWidth > 0 ? (listWidth - space.md * (columns - 1)) / columns : undefined;
   const [search, setSearch] = useState(params.q ?? '');
   const q = useDebounced(search.trim(), 350);
   useEffect(() => {
@@ -71,13 +69,11 @@ export function PublicFiguresScreen() {
         ) : null}
         {data && data.items.length > 0 ? (
           <View style={[styles.list, list.isPlaceholderData && styles.stale]}>
-            <View style={styles.grid} role="list" aria-label="Public figures" onLayout={(ev) => setListWidth(ev.nativeEvent.layout.width)}>
+            <CardGrid label="Public figures">
               {data.items.map((f) => (
-                <View key={f.id} role="listitem" style={{ width: cardWidth ?? '100%' }}>
-                  <FigureCard figure={f} />
-                </View>
+                <FigureCard key={f.id} figure={f} />
               ))}
-            </View>
+            </CardGrid>
             <Pager noun="figures" page={data.page} pageSize={data.pageSize} total={data.total} onPage={(p) => router.setParams({ page: p > 1 ? String(p) : undefined })} />
           </View>
         ) : null}
@@ -87,19 +83,10 @@ export function PublicFiguresScreen() {
 }
 
 function FigureCard({ figure: f }: { figure: PublicFigureSummary }) {
-  const [failed, setFailed] = useState(false);
   const url = (format: 'svg' | 'pdf' | 'png', dpi?: number) => api.publicFigures.renderUrl(f.id, format, { version: f.version, dpi });
   return (
     <Card style={styles.card}>
-      <View style={styles.picture}>
-        {failed ? (
-          <Text variant="muted" style={styles.failed}>
-            The picture could not be drawn; the downloads below may still work.
-          </Text>
-        ) : (
-          <Image source={{ uri: url('svg') }} resizeMode="contain" style={styles.image} accessibilityLabel={`Figure: ${f.title}`} onError={() => setFailed(true)} />
-        )}
-      </View>
+      <FigureThumb uri={url('svg')} title={f.title} />
       <View style={styles.meta}>
         <Text variant="title" numberOfLines={2}>
           {f.title}
@@ -121,11 +108,7 @@ const styles = StyleSheet.create({
   filters: { gap: space.md },
   list: { gap: space.md },
   stale: { opacity: 0.6 },
-  grid: { flexDirection: 'row', flexWrap: 'wrap', gap: space.md },
   card: { gap: space.sm },
-  picture: { aspectRatio: 4 / 3, backgroundColor: colors.surface, borderRadius: radii.md, borderWidth: 1, borderColor: colors.border, overflow: 'hidden', justifyContent: 'center' },
-  image: { width: '100%', height: '100%' },
-  failed: { padding: space.md, textAlign: 'center' },
   meta: { gap: space.xs },
   downloads: { flexDirection: 'row', flexWrap: 'wrap', gap: space.lg },
 });
