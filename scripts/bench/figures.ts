@@ -19,7 +19,7 @@ import { createApp } from '../../server/app';
 import { closeContext, createContext } from '../../server/context';
 import { runMigrations } from '../../server/db';
 import { loadEnv } from '../../server/env';
-import { reuseGlyphs, svgToPdf, svgToPng } from '../../server/figures/render';
+import { reuseGlyphs, svgToPdf, svgToPngAsync } from '../../server/figures/render';
 import { buildFigure } from '../../server/figures/scene';
 import { buildScene, resolveFigureTheme, sceneToSvg } from '../../shared/figure';
 import type { FigureLayerData, Glyphs } from '../../shared/figure/types';
@@ -196,7 +196,7 @@ async function main() {
   ]);
   const finalSvg = svg();
   rows.push(['PDF (svg2pdf + jsPDF, fonts embedded)', await timeMs(() => svgToPdf(finalSvg, built.scene, built.glyphs, { title: spec.title, created: new Date(0) }), 15), 300]);
-  rows.push(['PNG at 300 dpi (resvg)', await timeMs(() => svgToPng(finalSvg, built.scene.widthPt, 300), 15), 500]);
+  rows.push(['PNG at 300 dpi (resvg, on the thread pool as the server draws it)', await timeMs(() => svgToPngAsync(finalSvg, built.scene.widthPt, 300), 15), 500]);
   if (!process.argv.includes('--no-http')) {
     const cached = await httpCached();
     rows.push([`cached render served, public route: in the server (PNG 300 dpi, ${Math.round(cached.bytes / 1024)} KB)`, cached.publicRoute.server, 5]);

@@ -1,4 +1,4 @@
-import { Resvg } from '@resvg/resvg-js';
+import { renderAsync, Resvg } from '@resvg/resvg-js';
 import { createHash } from 'node:crypto';
 import { deflateSync } from 'node:zlib';
 import { JSDOM } from 'jsdom';
@@ -80,13 +80,22 @@ export function pngProblem(widthPt: number, heightPt: number, dpi: number): stri
 }
 
 /** The SVG as a PNG at `dpi` (its width in points × dpi / 72 pixels wide). */
+const pngOptions = (widthPt: number, dpi: number) => ({
+  fitTo: { mode: 'width' as const, value: Math.round((widthPt / 72) * dpi) },
+  // Every label is a path: no font is needed, and none from the machine may change the output.
+  font: { loadSystemFonts: false },
+});
+
 export function svgToPng(svg: string, widthPt: number, dpi: number): Buffer {
-  const resvg = new Resvg(svg, {
-    fitTo: { mode: 'width', value: Math.round((widthPt / 72) * dpi) },
-    // Every label is a path: no font is needed, and none from the machine may change the output.
-    font: { loadSystemFonts: false },
-  });
-  return Buffer.from(resvg.render().asPng());
+  return Buffer.from(new Resvg(svg, pngOptions(widthPt, dpi)).render().asPng());
+}
+
+/**
+ * The same PNG drawn on libuv's thread pool (resvg's `renderAsync`), so the server keeps answering
+ * other requests meanwhile (a 600 dpi slide takes over a second).
+ */
+export async function svgToPngAsync(svg: string, widthPt: number, dpi: number): Promise<Buffer> {
+  return Buffer.from((await renderAsync(svg, pngOptions(widthPt, dpi))).asPng());
 }
 
 // ---------------------------------------------------------------------------------------------

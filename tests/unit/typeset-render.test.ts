@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { PDFDocument, PDFDict, PDFName } from 'pdf-lib';
 import { labelKey, type Scene } from '@/shared/figure/types';
-import { pngProblem, pngSize, svgToPdf, svgToPng } from '@/server/figures/render';
+import { pngProblem, pngSize, svgToPdf, svgToPng, svgToPngAsync } from '@/server/figures/render';
 import { typesetLabels } from '@/server/figures/typeset';
 
 /**
@@ -109,6 +109,10 @@ describe('PNG', () => {
     expect(width).toBe(Math.round((W / 72) * dpi));
     expect(height).toBe(Math.round((H / 72) * dpi));
     expect(pngSize(W, H, dpi)).toEqual({ width, height });
+  });
+
+  test('the server draws off the main thread (resvg renderAsync) the very same bytes', async () => {
+    expect((await svgToPngAsync(svg, W, 150)).equals(svgToPng(svg, W, 150))).toBe(true);
   });
 
   test('absurd resolutions are refused before rendering', () => {
