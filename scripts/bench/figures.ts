@@ -19,6 +19,7 @@ import { createApp } from '../../server/app';
 import { closeContext, createContext } from '../../server/context';
 import { runMigrations } from '../../server/db';
 import { loadEnv } from '../../server/env';
+import { stopPdfThread, svgToPdfOffThread } from '../../server/figures/pdf-pool';
 import { reuseGlyphs, svgToPdf, svgToPngAsync } from '../../server/figures/render';
 import { buildFigure } from '../../server/figures/scene';
 import { buildScene, resolveFigureTheme, sceneToSvg } from '../../shared/figure';
@@ -196,6 +197,8 @@ async function main() {
   ]);
   const finalSvg = svg();
   rows.push(['PDF (svg2pdf + jsPDF, fonts embedded)', await timeMs(() => svgToPdf(finalSvg, built.scene, built.glyphs, { title: spec.title, created: new Date(0) }), 15), 300]);
+  rows.push(['  the same on the server\'s PDF thread (as the routes make it)', await timeMs(() => svgToPdfOffThread(finalSvg, built.scene, built.glyphs, { title: spec.title, created: new Date(0) }), 15), 300]);
+  await stopPdfThread();
   rows.push(['PNG at 300 dpi (resvg, on the thread pool as the server draws it)', await timeMs(() => svgToPngAsync(finalSvg, built.scene.widthPt, 300), 15), 500]);
   if (!process.argv.includes('--no-http')) {
     const cached = await httpCached();

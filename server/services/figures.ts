@@ -17,7 +17,8 @@ import { lockGroupStorage } from '../../db/queries/billing';
 import { addStorage, getResultInGroup } from '../../db/queries/results';
 import type { Ctx } from '../context';
 import type { Executor } from '../db';
-import { pngProblem, reuseGlyphs, svgToPdf, svgToPngAsync } from '../figures/render';
+import { svgToPdfOffThread } from '../figures/pdf-pool';
+import { pngProblem, reuseGlyphs, svgToPngAsync } from '../figures/render';
 import { buildFigure, captionOf, csvOf } from '../figures/scene';
 import { labelPlainText } from '../figures/typeset';
 import { AppError, notFound, type ErrorDetail } from '../lib/errors';
@@ -531,7 +532,7 @@ async function renderPrepared(ctx: Ctx, p: Prepared, format: RenderFormat, dpi: 
   const svg = reuseGlyphs(built.svg);
   if (format === 'svg') return { body: Buffer.from(svg, 'utf8'), notes: scene.notes };
   if (format === 'png') return { body: await svgToPngAsync(svg, scene.widthPt, dpi), notes: scene.notes };
-  return { body: await svgToPdf(svg, scene, glyphs, { title: p.spec.title, subject: scene.notes.join(' '), created: p.createdAt }), notes: scene.notes };
+  return { body: await svgToPdfOffThread(svg, scene, glyphs, { title: p.spec.title, subject: scene.notes.join(' '), created: p.createdAt }), notes: scene.notes };
 }
 
 /**

@@ -4,6 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { PDFDocument, PDFDict, PDFName } from 'pdf-lib';
 import { labelKey, type Scene } from '@/shared/figure/types';
+import { stopPdfThread, svgToPdfOffThread } from '@/server/figures/pdf-pool';
 import { pngProblem, pngSize, svgToPdf, svgToPng, svgToPngAsync } from '@/server/figures/render';
 import { typesetLabels } from '@/server/figures/typeset';
 
@@ -97,6 +98,18 @@ describe('PDF', () => {
     const again = await svgToPdf(svg, scene, glyphs, { title: 'Test figure', created });
     expect(again.equals(pdf)).toBe(true);
   });
+
+  test('the server writes it on its PDF thread: the very same bytes; a thread that is stopped is started again', async () => {
+    try {
+      const [a, b] = await Promise.all([svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created }), svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created })]);
+      expect(a.equals(pdf)).toBe(true);
+      expect(b.equals(pdf)).toBe(true);
+      await stopPdfThread();
+      expect((await svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created })).equals(pdf)).toBe(true);
+    } finally {
+      await stopPdfThread();
+    }
+  }, 30_000);
 });
 
 describe('PNG', () => {
