@@ -12,11 +12,15 @@ import type { PdfMeta } from './render';
  */
 let worker: Worker | null = null;
 let nextId = 1;
-const pending = new Map<number, { resolve: (b: Buffer) => void; reject: (e: Error) => void }>();
+const pending = new Map<number, { thread: Worker; resolve: (b: Buffer) => void; reject: (e: Error) => void }>();
 
-function failAll(reason: string) {
-  for (const p of pending.values()) p.reject(new Error(`the PDF writer stopped: ${reason}`));
-  pending.clear();
+/** Fails the requests the thread `w` held (not those of a thread started since). */
+function failAll(w: Worker, reason: string) {
+  for (const [id, p] of pending) {
+    if (p.thread !== w) continue;
+    pending.delete(id);
+    p.reject(new Error(`the PDF writer stopped: ${reason}`));
+  }
 }
 
 function thread(): Worker {
@@ -29,15 +33,15 @@ function thread(): Worker {
     pending.delete(a.id);
     if ('error' in a) p.reject(new Error(a.error));
     else p.resolve(Buffer.from(a.pdf.buffer, a.pdf.byteOffset, a.pdf.byteLength));
-    if (pending.size === 0) w.unref();
+    if (![...pending.values()].some((p) => p.thread === w)) w.unref();
   });
   w.on('error', (e) => {
     if (worker === w) worker = null;
-    failAll(e.message);
+    failAll(w, e.message);
   });
   w.on('exit', (code) => {
     if (worker === w) worker = null;
-    failAll(`exit code ${code}`);
+    failAll(w, `exit code ${code}`);
   });
   worker = w;
   return w;
@@ -48,7 +52,7 @@ export function svgToPdfOffThread(svg: string, scene: Scene, glyphs: Glyphs, met
   const w = thread();
   const id = nextId++;
   return new Promise<Buffer>((resolve, reject) => {
-    pending.set(id, { resolve, reject });
+    pending.set(id, { thread: w, resolve, reject });
     // Keep the process alive while a PDF is being written (a server shutting down waits for it).
     w.ref();
     w.postMessage({ id, svg, scene, glyphs, meta } satisfies PdfJob);

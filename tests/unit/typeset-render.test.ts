@@ -106,6 +106,13 @@ describe('PDF', () => {
       expect(b.equals(pdf)).toBe(true);
       await stopPdfThread();
       expect((await svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created })).equals(pdf)).toBe(true);
+      // A request the stopped thread held fails with the reason; one made meanwhile goes to a new thread.
+      const held = svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created });
+      const stopping = stopPdfThread();
+      const meanwhile = svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created });
+      await stopping;
+      await expect(held).rejects.toThrow('the PDF writer stopped');
+      expect((await meanwhile).equals(pdf)).toBe(true);
     } finally {
       await stopPdfThread();
     }
