@@ -4,6 +4,7 @@ import { useMemo, useState } from 'react';
 import { StyleSheet, View, type LayoutChangeEvent } from 'react-native';
 import Svg, { G, Line, Path, Text as SvgText } from 'react-native-svg';
 import type { ClsSample } from '@/shared/schemas/counting-model';
+import { powerOfTen } from '@/components/plot/quick-plot-geometry';
 import { Text } from '@/components/ui/text';
 import { fonts, plotColors, space } from '@/themes/tokens';
 
@@ -37,7 +38,7 @@ export function ClsPlot({ samples, cl, limit, height = 240 }: { samples: ClsSamp
             <G key={`y${v}`}>
               <Line x1={M.left} x2={width - M.right} y1={geom.y(v)} y2={geom.y(v)} stroke={plotColors.grid} />
               <SvgText x={M.left - 6} y={geom.y(v) + 4} fontSize={10} textAnchor="end" fill={plotColors.axis} fontFamily={fonts.regular}>
-                {v >= 0.01 ? String(v) : `1e${Math.round(Math.log10(v))}`}
+                {v >= 0.01 ? String(v) : powerOfTen(Math.round(Math.log10(v)))}
               </SvgText>
             </G>
           ))}

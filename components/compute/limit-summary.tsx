@@ -17,7 +17,7 @@ export function LimitSummary({ observed, expected, unit, muHat, observedError, o
           {observedError ? ` ± ${fmt(observedError, 2)}` : ''}
           {u}
         </Text>
-        {muHat !== undefined ? <Text variant="caption">best-fit μ̂ = {fmt(muHat)}</Text> : null}
+        {muHat !== undefined ? <Text variant="caption">best-fit signal strength: {fmt(muHat)}</Text> : null}
       </View>
       <View style={styles.box} role="group" aria-label="Expected limit">
         <Text variant="caption">Expected median{on ? ` on ${on}` : ''}</Text>
