@@ -85,6 +85,9 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.locator('[role="radio"][aria-label="Slides"][aria-checked="true"]').waitFor();
     await page.getByRole('button', { name: 'Save as a new version', exact: true }).click();
     await page.getByText('Saved as version 2.').waitFor();
+    // The saved slide is drawn in the preview (labels as paths) before the picture is taken.
+    await preview.waitFor();
+    await page.waitForFunction(`(document.querySelector('[aria-label^="Preview of the figure"] svg')?.querySelectorAll('path').length ?? 0) > 50`);
     await fullShot(page, vp, 'composer-slides');
 
     // Downloads of the saved version.
