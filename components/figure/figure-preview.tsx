@@ -1,6 +1,6 @@
 import { useMemo } from 'react';
 import { StyleSheet, View } from 'react-native';
-import { buildScene, collectLabels, labelKey, resolveFigureTheme, type FigureLayerData, type Glyphs, type Measure } from '@/shared/figure';
+import { buildScene, collectLabels, labelKey, labelsOffPage, resolveFigureTheme, type FigureLayerData, type Glyphs, type Measure } from '@/shared/figure';
 import type { FigureSpec, HouseStyle } from '@/shared/schemas/figures';
 import { useDebounced } from '@/hooks/use-debounced';
 import { useGlyphs } from '@/hooks/use-figures';
@@ -39,6 +39,7 @@ export function FigurePreview({ spec, style, data }: { spec: FigureSpec; style: 
     () => (ready && data.data && sameLayers(data.data, settled) ? buildScene(settled, data.data, theme, measureFrom(glyphs)) : null),
     [ready, data.data, settled, theme, glyphs],
   );
+  const offPage = useMemo(() => (scene ? labelsOffPage(scene, measureFrom(glyphs)) : []), [scene, glyphs]);
   const texErrors = labels.map((l) => ({ l, g: glyphs.get(labelKey(l)) })).filter((x) => x.g?.error);
   const unique = [...new Map(texErrors.map((x) => [x.l.label, x])).values()];
   return (
@@ -50,6 +51,12 @@ export function FigurePreview({ spec, style, data }: { spec: FigureSpec; style: 
       {scene?.notes.map((n) => (
         <Banner key={n} tone="warning" message={n} />
       ))}
+      {offPage.length > 0 ? (
+        <Banner
+          tone="warning"
+          message={`${offPage.length === 1 ? 'A label sticks' : `${offPage.length} labels stick`} out of the page at this size (${offPage.slice(0, 2).map((l) => `“${l}”`).join(', ')}${offPage.length > 2 ? ', …' : ''}): choose a larger size, another theme or shorter words.`}
+        />
+      ) : null}
       {unique.map(({ l, g }) => (
         <Banner key={l.label} tone="warning" message={`The TeX in “${l.label}” could not be read (${g!.error}); it is shown as plain text.`} />
       ))}

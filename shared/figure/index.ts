@@ -7,7 +7,7 @@
  * `sceneToSvg(scene, glyphs, { title })` or draw `scene.items` directly.
  */
 export { resolveFigureTheme, layerColor, type ResolvedTheme } from './theme';
-export { collectLabels, buildScene } from './scene';
+export { collectLabels, buildScene, labelsOffPage } from './scene';
 export { sceneToSvg, escapeXml } from './svg';
 export { figureCsv, captionDraft } from './export';
 export { sizePt } from './plan';

@@ -342,3 +342,19 @@ function axisPrimitives(plan: FigurePlan, theme: ResolvedTheme, plot: Rect, X: (
   if (d) out.push({ kind: 'path', d, fill: null, stroke: theme.colors.frame, strokeWidth: theme.lines.tick, dash: null, clip: false, role: 'tick' });
   return out;
 }
+
+/**
+ * Labels that stick out of the page (large type on a small page, a long legend entry): the scene
+ * never shrinks type, so the composer says which ones, to pick a larger size or shorter words.
+ * Horizontal labels only (rotated axis titles are placed inside by construction).
+ */
+export function labelsOffPage(scene: Scene, measure: Measure): string[] {
+  const out = new Set<string>();
+  for (const it of scene.items) {
+    if (it.kind !== 'text' || it.rotate !== 0) continue;
+    const w = measure(it.label, it.size, it.font).width;
+    const left = it.anchor === 'start' ? it.x : it.anchor === 'end' ? it.x - w : it.x - w / 2;
+    if (left < -0.5 || left + w > scene.widthPt + 0.5) out.add(it.label);
+  }
+  return [...out];
+}

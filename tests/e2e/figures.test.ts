@@ -83,6 +83,14 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.locator('[role="radio"][aria-label="Publication"][aria-checked="true"]').waitFor();
     await page.getByRole('button', { name: 'Redo', exact: true }).click();
     await page.locator('[role="radio"][aria-label="Slides"][aria-checked="true"]').waitFor();
+    // The theme brought its own size; slide type squeezed onto a journal column is flagged, and undone.
+    await page.getByRole('button', { name: 'Size: Slide, 16:9 (25.4 cm)', exact: true }).click();
+    await page.getByRole('radio', { name: 'Journal, one column (8.6 cm)', exact: true }).click();
+    const offPage = page.getByRole('status').filter({ hasText: 'out of the page at this size' });
+    await offPage.waitFor();
+    await page.getByRole('button', { name: 'Undo', exact: true }).click();
+    await page.getByRole('button', { name: 'Size: Slide, 16:9 (25.4 cm)', exact: true }).waitFor();
+    await offPage.waitFor({ state: 'detached' });
     await page.getByRole('button', { name: 'Save as a new version', exact: true }).click();
     await page.getByText('Saved as version 2.').waitFor();
     // The saved slide is drawn in the preview (labels as paths) before the picture is taken.

@@ -1,4 +1,4 @@
-import { buildScene, collectLabels, labelKey, resolveFigureTheme, sizePt, type FigureLayerData, type Measure, type Scene } from '@/shared/figure';
+import { buildScene, collectLabels, labelKey, labelsOffPage, resolveFigureTheme, sizePt, type FigureLayerData, type Measure, type Scene } from '@/shared/figure';
 import { FIGURE_THEMES, type FigureSpec } from '@/shared/schemas/figures';
 import { exclusionRanges } from '@/shared/stats/exclusion';
 import { placeBoxes } from '@/shared/figure/legend';
@@ -327,5 +327,16 @@ describe('sizes and robustness', () => {
     const mu = { ...dijet, meta: meta({ quantity: 'mu', quantityUnit: '' }) } as FigureLayerData;
     const titles = texts(build(spec({ layers: [{ resultId: ID[0], version: 3 }] }), [mu]), 'axis-title').map((t) => t.label);
     expect(titles).toEqual(["$m_{V'}$ [TeV]", 'Signal strength $\\mu$']);
+  });
+});
+
+describe('labels off the page', () => {
+  test('none on the usual sizes; slide type with long legend entries on a journal column sticks out and is named', () => {
+    const usual = { publication: 'one-column', slides: 'slide', outreach: 'web' } as const;
+    for (const theme of FIGURE_THEMES) expect(labelsOffPage(build(spec({ theme, size: { preset: usual[theme] } }), [dijet, dilepton]), stubMeasure)).toEqual([]);
+    const long = 'A very long legend entry for a channel with many words in it';
+    const cramped = spec({ theme: 'slides', size: { preset: 'one-column' }, layers: [{ resultId: ID[0], version: 3, label: long }] });
+    const off = labelsOffPage(build(cramped, [dijet]), stubMeasure);
+    expect(off.some((l) => l.startsWith(long))).toBe(true);
   });
 });
