@@ -1,3 +1,4 @@
+import compression from 'compression';
 import express, { type Express } from 'express';
 import { rateLimit } from 'express-rate-limit';
 import fs from 'node:fs';
@@ -37,6 +38,8 @@ export function createApp(ctx: Ctx): Express {
     res.setHeader('X-Frame-Options', 'DENY');
     next();
   });
+  // gzip for text answers over 1 KB (the web bundle, JSON, SVG); PNG and PDF are left as they are.
+  app.use(compression());
 
   // Sign-in and sign-up: rate-limited per IP and validated with the shared schemas before
   // better-auth sees them, so bad input gets the same error shape as the rest of the API.
@@ -82,7 +85,20 @@ export function createApp(ctx: Ctx): Express {
 
   const dist = ctx.env.WEB_DIST ?? DEFAULT_WEB_DIST;
   const index = path.join(dist, 'index.html');
-  app.use(express.static(dist, { extensions: ['html'], index: 'index.html', maxAge: '1h' }));
+  const hashed = `${path.sep}_expo${path.sep}static${path.sep}`;
+  app.use(
+    express.static(dist, {
+      extensions: ['html'],
+      index: 'index.html',
+      maxAge: '1h',
+      // The bundle's file names carry its content hash: kept for a year. Pages are asked again
+      // every time, so a new release is seen at once.
+      setHeaders: (res, file) => {
+        if (file.includes(hashed)) res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+        else if (file.endsWith('.html')) res.setHeader('Cache-Control', 'no-cache');
+      },
+    }),
+  );
   // Client-side routes: any other GET that wants HTML gets the single-page app.
   app.get('/{*splat}', (req, res, next) => {
     if (!req.accepts('html') || !fs.existsSync(index)) return next();
