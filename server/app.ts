@@ -38,6 +38,15 @@ export function createApp(ctx: Ctx): Express {
     res.setHeader('X-Frame-Options', 'DENY');
     next();
   });
+  // A request that may write makes the remembered registry reads stale, from its start until it has
+  // answered (server/read-cache.ts; writes of other processes arrive as database notifications).
+  app.use((req, res, next) => {
+    if (req.method !== 'GET' && req.method !== 'HEAD') {
+      ctx.reads.invalidate();
+      res.on('close', () => ctx.reads.invalidate());
+    }
+    next();
+  });
   // gzip for text answers over 1 KB (the web bundle, JSON, SVG); PNG and PDF are left as they are.
   app.use(compression());
 

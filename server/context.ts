@@ -5,23 +5,26 @@ import { createDb, type Db } from './db';
 import type { Env } from './env';
 import { createStripeClient } from './services/billing';
 import { createMailer, type Mailer } from './services/mail';
+import { createReadCache, type ReadCache } from './read-cache';
 import { createSessionCache, type SessionCache } from './session-cache';
 
 /**
  * Everything a route or service needs, built once per process (or per test file). `jobs` is the
  * job queue, set once it has started (scan routes answer 503 without it). `stripe` is the payment
  * provider's SDK client (the local fake outside production; null when billing is not configured).
- * `sessions` answers "who is this session cookie" from memory for a few seconds (server/session-cache.ts).
+ * `sessions` answers "who is this session cookie" from memory for a few seconds (server/session-cache.ts);
+ * `reads` remembers registry reads until the registry changes (server/read-cache.ts).
  */
-export type Ctx = { env: Env; db: Db; auth: Auth; sessions: SessionCache; mail: Mailer; jobs?: PgBoss; stripe: Stripe | null };
+export type Ctx = { env: Env; db: Db; auth: Auth; sessions: SessionCache; reads: ReadCache; mail: Mailer; jobs?: PgBoss; stripe: Stripe | null };
 
 export function createContext(env: Env): Ctx {
   const db = createDb(env.DATABASE_URL);
   const auth = createAuth(db, env);
-  return { env, db, auth, sessions: createSessionCache(auth), mail: createMailer(db, env), stripe: createStripeClient(env.stripe) };
+  return { env, db, auth, sessions: createSessionCache(auth), reads: createReadCache(env.DATABASE_URL), mail: createMailer(db, env), stripe: createStripeClient(env.stripe) };
 }
 
 export async function closeContext(ctx: Ctx): Promise<void> {
   if (ctx.jobs) await ctx.jobs.stop({ graceful: true, wait: true, timeout: 10_000 });
+  await ctx.reads.close();
   await ctx.db.$client.end();
 }

@@ -104,17 +104,19 @@ function toPage(rows: Awaited<ReturnType<typeof q.listResults>>, query: ListQuer
 // Reads
 
 export async function listInGroup(ctx: Ctx, groupId: string, query: ListQuery): Promise<ResultPage> {
-  return toPage(await q.listResults(ctx.db, { kind: 'group', groupId }, { ...query, groupId: undefined }), query);
+  return ctx.reads.get(`list:group:${groupId}:${JSON.stringify(query)}`, async () =>
+    toPage(await q.listResults(ctx.db, { kind: 'group', groupId }, { ...query, groupId: undefined }), query),
+  );
 }
 
 /** Results the caller may see: their groups' (any state) and public ones (no drafts). */
 export async function listVisible(ctx: Ctx, userId: string | null, query: ListQuery): Promise<ResultPage> {
-  return toPage(await q.listResults(ctx.db, { kind: 'user', userId }, query), query);
+  return ctx.reads.get(`list:user:${userId ?? '-'}:${JSON.stringify(query)}`, async () => toPage(await q.listResults(ctx.db, { kind: 'user', userId }, query), query));
 }
 
 export async function listPublic(ctx: Ctx, query: Pick<ListQuery, 'q' | 'page' | 'pageSize'>): Promise<ResultPage> {
   const full: ListQuery = { ...query, sort: 'updated' };
-  return toPage(await q.listResults(ctx.db, { kind: 'public' }, full), full);
+  return ctx.reads.get(`list:public:${JSON.stringify(full)}`, async () => toPage(await q.listResults(ctx.db, { kind: 'public' }, full), full));
 }
 
 export async function getDetail(ctx: Ctx, groupId: string, resultId: string): Promise<ResultDetail> {
@@ -143,9 +145,11 @@ export async function getVersion(ctx: Ctx, groupId: string, resultId: string, ve
 
 /** A version by its permanent link; 404 (revealing nothing) when the caller may not see it. */
 export async function getByLink(ctx: Ctx, viewer: q.Viewer, slug: string, version: number): Promise<ResultVersion> {
-  const row = await q.getVersionByLink(ctx.db, viewer, slug, version);
-  if (!row) throw notFound('Result');
-  return toVersion(ctx, row);
+  return ctx.reads.get(`link:${JSON.stringify(viewer)}:${slug}:${version}`, async () => {
+    const row = await q.getVersionByLink(ctx.db, viewer, slug, version);
+    if (!row) throw notFound('Result');
+    return toVersion(ctx, row);
+  });
 }
 
 export type ExportFile = { fileName: string; contentType: string; body: string };
