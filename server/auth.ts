@@ -2,7 +2,7 @@ import { betterAuth } from 'better-auth';
 import { drizzleAdapter } from 'better-auth/adapters/drizzle';
 import { toNodeHandler } from 'better-auth/node';
 import * as schema from '../db/schema';
-import type { Db } from './db';
+import type { Db } from '../db/client';
 import type { Env } from './env';
 import { PASSWORD_MIN } from '../shared/schemas/auth';
 

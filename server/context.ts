@@ -1,7 +1,7 @@
 import type PgBoss from 'pg-boss';
 import type Stripe from 'stripe';
 import { createAuth, type Auth } from './auth';
-import { createDb, type Db } from './db';
+import { createDb, type Db } from '../db/client';
 import type { Env } from './env';
 import { createStripeClient } from './services/billing';
 import { createMailer, type Mailer } from './services/mail';

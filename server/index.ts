@@ -1,6 +1,6 @@
 import { closeContext, createContext } from './context';
 import { createApp } from './app';
-import { runMigrations } from './db';
+import { runMigrations } from '../db/client';
 import { loadEnv } from './env';
 import { startQueue } from './jobs/queue';
 import { startWorkerProcesses, type WorkerProcesses } from './jobs/worker-processes';

@@ -1,5 +1,5 @@
 import { closeContext, createContext } from './context';
-import { runMigrations } from './db';
+import { runMigrations } from '../db/client';
 import { loadEnv } from './env';
 import { startQueue } from './jobs/queue';
 import { startScanWorkers } from './jobs/scan-worker';

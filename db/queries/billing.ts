@@ -1,5 +1,5 @@
 import { and, desc, eq, isNull, lte, or, sql } from 'drizzle-orm';
-import type { Executor } from '../../server/db';
+import type { Executor } from '../client';
 import { billingAccounts, groups, invoices, memberships, providerEvents, user } from '../schema';
 
 /**

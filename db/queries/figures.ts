@@ -1,6 +1,6 @@
 import { and, asc, count, desc, eq, ilike, inArray, lt, ne, or, sql, type SQL } from 'drizzle-orm';
 import type { FigureSpec, HouseStyle } from '../../shared/schemas/figures';
-import type { Db, Executor } from '../../server/db';
+import type { Db, Executor } from '../client';
 import { figureLayers, figureRenders, figures, figureVersions, groups, groupStyles, resultHues, results, resultVersions, user } from '../schema';
 import { containsPattern } from './results';
 

@@ -1,6 +1,6 @@
 import { and, asc, count, eq, sql } from 'drizzle-orm';
 import type { GroupRole } from '../../shared/access';
-import type { Executor } from '../../server/db';
+import type { Executor } from '../client';
 import { groups, memberships, user } from '../schema';
 
 /** Inserts a group; undefined when its slug is taken (also by a concurrent insert). */

@@ -1,6 +1,6 @@
 import { and, desc, eq, sql } from 'drizzle-orm';
 import type { GroupRole } from '../../shared/access';
-import type { Executor } from '../../server/db';
+import type { Executor } from '../client';
 import { groups, invitations, user } from '../schema';
 
 export async function insertInvitation(

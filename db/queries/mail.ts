@@ -1,5 +1,5 @@
 import { desc, eq, sql } from 'drizzle-orm';
-import type { Db } from '../../server/db';
+import type { Db } from '../client';
 import { devMail } from '../schema';
 
 export type NewMail = typeof devMail.$inferInsert;

@@ -1,6 +1,6 @@
 import { and, asc, count, desc, eq, exists, getTableColumns, ilike, max, ne, or, sql, type SQL } from 'drizzle-orm';
 import type { ResultListQuery } from '../../shared/schemas/results';
-import type { Executor } from '../../server/db';
+import type { Executor } from '../client';
 import { figureLayers, figures, groups, memberships, results, resultVersions, user } from '../schema';
 
 /**

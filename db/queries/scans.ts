@@ -1,7 +1,7 @@
 import { and, asc, desc, eq, sql } from 'drizzle-orm';
 import type { ExpectedLimits } from '../../shared/schemas/counting-model';
 import type { ScanOptions } from '../../shared/schemas/scans';
-import type { Executor } from '../../server/db';
+import type { Executor } from '../client';
 import { scanPoints, scans } from '../schema/scans';
 
 export type ScanRow = typeof scans.$inferSelect;

@@ -1,5 +1,5 @@
 import { and, desc, eq, isNull, lt, or, sql } from 'drizzle-orm';
-import type { Executor } from '../../server/db';
+import type { Executor } from '../client';
 import { apiTokens, user } from '../schema';
 
 export async function insertToken(db: Executor, t: { userId: string; name: string; prefix: string; tokenHash: string }) {

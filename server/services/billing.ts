@@ -3,7 +3,7 @@ import { BILLING_INTERVALS, formatBytes, formatMoney, FREE_PLAN, INSTITUTIONAL_P
 import * as q from '../../db/queries/billing';
 import { getGroupName } from '../../db/queries/groups';
 import type { Ctx } from '../context';
-import type { Executor } from '../db';
+import type { Executor } from '../../db/client';
 import type { StripeSettings } from '../env';
 import { AppError, notFound } from '../lib/errors';
 import { linkMail, type OutgoingMail } from './mail';

@@ -16,7 +16,7 @@ import * as q from '../../db/queries/figures';
 import { lockGroupStorage } from '../../db/queries/billing';
 import { addStorage, getResultInGroup } from '../../db/queries/results';
 import type { Ctx } from '../context';
-import type { Executor } from '../db';
+import type { Executor } from '../../db/client';
 import { svgToPdfOffThread } from '../figures/pdf-pool';
 import { pngProblem, reuseGlyphs, svgToPngAsync } from '../figures/render';
 import { buildFigure, captionOf, csvOf } from '../figures/scene';

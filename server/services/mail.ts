@@ -1,5 +1,5 @@
 import nodemailer from 'nodemailer';
-import type { Db } from '../db';
+import type { Db } from '../../db/client';
 import type { Env } from '../env';
 import { insertMail, listMailTo } from '../../db/queries/mail';
 import { escapeHtml } from '../lib/html';

@@ -1,6 +1,6 @@
 import { FREE_PLAN, formatBytes, INSTITUTIONAL_PLAN, type Plan } from '../../shared/plans';
 import * as q from '../../db/queries/billing';
-import type { Executor } from '../db';
+import type { Executor } from '../../db/client';
 import { AppError, notFound } from '../lib/errors';
 
 /**

@@ -9,7 +9,7 @@ import type { ScanDetail, ScanPointDetail, ScanSummary } from '../../shared/sche
 import * as q from '../../db/queries/scans';
 import { getRole } from '../../db/queries/groups';
 import type { Ctx } from '../context';
-import { dbOnClient } from '../db';
+import { dbOnClient } from '../../db/client';
 import { AppError, notFound, validationError, type ErrorDetail } from '../lib/errors';
 import { SCAN_POINT_QUEUE, type ScanPointTask } from '../jobs/queue';
 import { addVersion, createResult, getDetail } from './results';

@@ -1,4 +1,8 @@
+import net, { type AddressInfo } from 'node:net';
 import request from 'supertest';
+import { createApp } from '@/server/app';
+import { closeContext, createContext } from '@/server/context';
+import { loadEnv } from '@/server/env';
 import { startTestApp, signUp, TEST_ORIGIN, type TestApp } from '../helpers/app';
 
 let t: TestApp;
@@ -49,4 +53,20 @@ test('sign-up sets an httpOnly, sameSite session cookie and /api/me knows the us
 test('signUp helper works', async () => {
   const { agent } = await signUp(t.app);
   expect((await agent.get('/api/me')).status).toBe(200);
+});
+
+test('GET /api/health answers 503 when the database does not answer', async () => {
+  // A port on loopback where nothing listens: every query fails.
+  const probe = net.createServer();
+  await new Promise<void>((r) => probe.listen(0, '127.0.0.1', r));
+  const port = (probe.address() as AddressInfo).port;
+  await new Promise((r) => probe.close(r));
+  const ctx = createContext(loadEnv({ DATABASE_URL: `postgres://postgres@127.0.0.1:${port}/none`, NODE_ENV: 'test', PUBLIC_URL: TEST_ORIGIN }));
+  try {
+    const res = await request(createApp(ctx)).get('/api/health');
+    expect(res.status).toBe(503);
+    expect(res.body).toEqual({ ok: false, db: 'down' });
+  } finally {
+    await closeContext(ctx);
+  }
 });

@@ -2,11 +2,11 @@ import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres';
 import { migrate } from 'drizzle-orm/node-postgres/migrator';
 import path from 'node:path';
 import { Pool, type PoolClient } from 'pg';
-import * as schema from '../db/schema';
+import * as schema from './schema';
 
 export type Db = NodePgDatabase<typeof schema> & { $client: Pool };
 
-export const MIGRATIONS_FOLDER = path.resolve(__dirname, '../db/migrations');
+export const MIGRATIONS_FOLDER = path.resolve(__dirname, 'migrations');
 
 export function createDb(url: string, max = 10): Db {
   const pool = new Pool({ connectionString: url, max });
