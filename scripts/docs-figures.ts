@@ -10,7 +10,7 @@ import { figures } from '../db/schema';
 import { seedDemo } from '../db/seed';
 import { DEMO_FIGURES } from '../db/seed-figures';
 import { closeContext, createContext } from '../server/context';
-import { runMigrations } from '../server/db';
+import { runMigrations } from '../db/client';
 import { loadEnv } from '../server/env';
 import { renderPublic } from '../server/services/figures';
 import { ensureDatabase, startCluster, stopCluster, tmpRoot } from './lib/postgres';

@@ -1,7 +1,7 @@
 import path from 'node:path';
 import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../db/seed';
 import { closeContext, createContext } from '../server/context';
-import { runMigrations } from '../server/db';
+import { runMigrations } from '../db/client';
 import { loadEnv } from '../server/env';
 import { buildWebIfChanged } from './build-web';
 import { clusterHome, ensureDatabase, startCluster, stopCluster, type Cluster } from './lib/postgres';

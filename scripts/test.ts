@@ -2,7 +2,7 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { createContext, closeContext } from '../server/context';
-import { runMigrations } from '../server/db';
+import { runMigrations } from '../db/client';
 import { loadEnv } from '../server/env';
 import { buildWebIfChanged } from './build-web';
 import { ensureDatabase, startCluster, stopCluster, tmpRoot, type Cluster } from './lib/postgres';

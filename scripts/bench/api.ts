@@ -15,7 +15,7 @@ import path from 'node:path';
 import { Client } from 'pg';
 import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../../db/seed';
 import { closeContext, createContext } from '../../server/context';
-import { runMigrations } from '../../server/db';
+import { runMigrations } from '../../db/client';
 import { loadEnv } from '../../server/env';
 import { ensureDatabase, freePort, startCluster, stopCluster, tmpRoot } from '../lib/postgres';
 

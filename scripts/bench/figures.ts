@@ -17,7 +17,7 @@ import express from 'express';
 import request from 'supertest';
 import { createApp } from '../../server/app';
 import { closeContext, createContext } from '../../server/context';
-import { runMigrations } from '../../server/db';
+import { runMigrations } from '../../db/client';
 import { loadEnv } from '../../server/env';
 import { stopPdfThread, svgToPdfOffThread } from '../../server/figures/pdf-pool';
 import { reuseGlyphs, svgToPdf, svgToPngAsync } from '../../server/figures/render';

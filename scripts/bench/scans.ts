@@ -12,7 +12,7 @@ import request from 'supertest';
 import { scans } from '../../db/schema';
 import { createApp } from '../../server/app';
 import { closeContext, createContext } from '../../server/context';
-import { runMigrations } from '../../server/db';
+import { runMigrations } from '../../db/client';
 import { loadEnv } from '../../server/env';
 import { startQueue } from '../../server/jobs/queue';
 import type { CountingModelInput } from '../../shared/schemas/counting-model';
