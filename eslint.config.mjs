@@ -5,7 +5,7 @@ import reactHooks from 'eslint-plugin-react-hooks';
 import tseslint from 'typescript-eslint';
 
 /** Import patterns of a project folder: through the `@/` alias or relative from any depth. */
-const anyDepth = (name) => [`@/${name}/**`, `@/${name}`, ...[1, 2, 3, 4].map((d) => `${'../'.repeat(d)}${name}/**`), ...[1, 2, 3, 4].map((d) => `${'../'.repeat(d)}${name}`)];
+const anyDepth = (name) => name.startsWith('.') ? [name, `${name}/**`] : [`@/${name}/**`, `@/${name}`, ...[1, 2, 3, 4].map((d) => `${'../'.repeat(d)}${name}/**`), ...[1, 2, 3, 4].map((d) => `${'../'.repeat(d)}${name}`)];
 
 const restrict = (rules) => ({
   'no-restricted-imports': [
@@ -38,11 +38,11 @@ export default tseslint.config(
   {
     files: ['shared/**/*.{ts,tsx}'],
     rules: restrict([
-      [['server', 'db', 'app', 'components', 'hooks', 'themes', 'scripts'], 'shared/ is the bottom layer: it imports no other folder of the project.', ['react', 'react-native', 'express', 'pg', 'drizzle-orm']],
+      [['server', 'db', 'app', 'components', 'hooks', 'scripts'], 'shared/ imports only themes/ (the design tokens below it).', ['react', 'react-native', 'express', 'pg', 'drizzle-orm']],
     ]),
   },
-  // themes/: tokens and figure themes; they may use shared/, never the app or the server.
-  { files: ['themes/**/*.{ts,tsx}'], rules: restrict([[['server', 'db', 'app', 'components', 'hooks', 'scripts'], 'themes/ may import shared/ only.']]) },
+  // themes/: design tokens and figure themes, the bottom layer: pure data, no imports of the project.
+  { files: ['themes/**/*.{ts,tsx}'], rules: restrict([[['shared', 'server', 'db', 'app', 'components', 'hooks', 'scripts'], 'themes/ is the bottom layer (pure data): it imports no other folder of the project.', ['react', 'react-native']]]) },
   // The app: app → components → hooks → shared (and themes).
   { files: ['hooks/**/*.{ts,tsx}'], rules: restrict([[['server', 'db', 'app', 'components', 'scripts'], 'hooks/ sit below components/: they import shared/ and themes/ only.', ['pg', 'express', 'drizzle-orm']]]) },
   { files: ['components/**/*.{ts,tsx}'], rules: restrict([[['server', 'db', 'app', 'scripts'], 'components/ import hooks/, shared/ and themes/, never routes (app/) or the server.', ['pg', 'express', 'drizzle-orm']]]) },
@@ -56,11 +56,11 @@ export default tseslint.config(
   },
   {
     files: ['server/services/**/*.ts'],
-    rules: restrict([[['server/routes', 'server/jobs', 'app', 'components', 'hooks', 'scripts'], 'Services never import routes, jobs (jobs call services) or the app.']]),
+    rules: restrict([[['server/routes', 'server/jobs', 'app', 'components', 'hooks', 'scripts', '../routes', '../jobs'], 'Services never import routes, jobs (jobs call services) or the app.']]),
   },
   {
     files: ['server/jobs/**/*.ts'],
-    rules: restrict([[['server/routes', 'app', 'components', 'hooks', 'scripts'], 'Jobs never import routes or the app.']]),
+    rules: restrict([[['server/routes', 'app', 'components', 'hooks', 'scripts', '../routes'], 'Jobs never import routes or the app.']]),
   },
   {
     files: ['server/{access,auth,context,db,env,read-cache,session-cache}.ts', 'server/lib/**/*.ts'],

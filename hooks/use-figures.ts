@@ -50,7 +50,8 @@ export function useGlyphs(requests: LabelRequest[]): { glyphs: Glyphs; ready: bo
       seen.add(k);
       return true;
     });
-    // `version` makes the list recompute after an answer arrives.
+    // `version` makes the list recompute after an answer arrives (the cache is a ref).
+    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [requests, version]);
   useEffect(() => {
     if (missing.length === 0) return;

@@ -57,7 +57,7 @@ function pgExec(bin: string, tool: string, args: string[]): string {
     return execFileSync(cmd, argv, { encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'] });
   } catch (err) {
     const e = err as { stderr?: string; stdout?: string; message: string };
-    throw new Error(`${tool} failed: ${e.stderr || e.stdout || e.message}`);
+    throw new Error(`${tool} failed: ${e.stderr || e.stdout || e.message}`, { cause: err });
   }
 }
 

@@ -127,11 +127,20 @@ function shownPoints(l: DrawnLayer, xDomain: [number, number]): [number, number]
   };
   if (l.spec.show.observed) push(c.x, c.observed);
   if (l.spec.show.expected) push(c.x, c.expected?.['0']);
-  if (l.band1) (push(c.x, c.expected?.['-1']), push(c.x, c.expected?.['1']));
-  if (l.band2) (push(c.x, c.expected?.['-2']), push(c.x, c.expected?.['2']));
+  if (l.band1) {
+    push(c.x, c.expected?.['-1']);
+    push(c.x, c.expected?.['1']);
+  }
+  if (l.band2) {
+    push(c.x, c.expected?.['-2']);
+    push(c.x, c.expected?.['2']);
+  }
   if (l.theory) {
     push(l.theory.x, l.theory.central);
-    if (l.spec.show.theoryBand) (push(l.theory.x, l.theory.lower), push(l.theory.x, l.theory.upper));
+    if (l.spec.show.theoryBand) {
+      push(l.theory.x, l.theory.lower);
+      push(l.theory.x, l.theory.upper);
+    }
   }
   return out;
 }

@@ -32,7 +32,6 @@ export type AxisPlan = {
 };
 
 const EPS = 1e-9;
-const finitePositive = (v: number) => Number.isFinite(v) && v > 0;
 
 /** Rounds away floating noise (3 * 0.1 = 0.30000000000000004) without losing real digits. */
 const clean = (v: number) => Number(v.toPrecision(12));

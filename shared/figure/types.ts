@@ -7,7 +7,9 @@
  */
 import type { Curve, Theory, VersionMeta } from '../schemas/results';
 
-export type FontRole = 'sans' | 'serif';
+import type { FontRole } from '../../themes/figure/types';
+
+export type { FontRole };
 
 /** Size of a typeset label: width, and extent above (ascent) and below (descent) the baseline. */
 export type TextMetrics = { width: number; ascent: number; descent: number };

@@ -7,6 +7,7 @@ export const shortText = (max: number) =>
     .trim()
     .min(1, 'must not be empty')
     .max(max, `must be at most ${max} characters`)
+    // eslint-disable-next-line no-control-regex -- control characters are exactly what is refused
     .refine((s) => !/[\u0000-\u001f\u007f]/.test(s), 'must not contain control characters');
 
 export const email = z.string().trim().toLowerCase().pipe(z.email('must be a valid e-mail address').max(254));

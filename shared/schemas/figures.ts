@@ -6,8 +6,10 @@
  */
 import { z } from 'zod';
 
-export const FIGURE_THEMES = ['publication', 'slides', 'outreach'] as const;
-export type FigureTheme = (typeof FIGURE_THEMES)[number];
+import { FIGURE_THEMES, type FigureTheme } from '../../themes/figure/types';
+
+// The theme names are the themes' own (themes/ is the layer below shared/).
+export { FIGURE_THEMES, type FigureTheme };
 
 /**
  * Size presets in centimetres. Journal column widths 8.6 cm and 17.8 cm follow the Physical Review

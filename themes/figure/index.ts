@@ -1,11 +1,10 @@
 /** The three figure themes by name (see shared/figure `resolveFigureTheme` for house styles). */
-import type { FigureTheme } from '../../shared/schemas/figures';
 import { outreachTheme } from './outreach';
 import { publicationTheme } from './publication';
 import { slidesTheme } from './slides';
-import type { FigureThemeTokens } from './types';
+import type { FigureTheme, FigureThemeTokens } from './types';
 
-export type { FigureThemeTokens, FigureWords } from './types';
+export { FIGURE_THEMES, type FigureTheme, type FigureThemeTokens, type FigureWords, type FontRole } from './types';
 export { LAYER_PALETTE } from './palette';
 
 export const FIGURE_THEME_TOKENS: Record<FigureTheme, FigureThemeTokens> = {

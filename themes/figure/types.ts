@@ -3,8 +3,13 @@
  * theme. Pure data; `shared/figure` resolves it (with a group's house style) and draws with it.
  * Sizes and widths are points (1/72 inch) at the figure's final size.
  */
-import type { FontRole } from '../../shared/figure/types';
-import type { FigureTheme } from '../../shared/schemas/figures';
+
+/** The figure themes by name (the spec's `theme` field takes one of these). */
+export const FIGURE_THEMES = ['publication', 'slides', 'outreach'] as const;
+export type FigureTheme = (typeof FIGURE_THEMES)[number];
+
+/** The two type families a figure draws with (they ship with the app). */
+export type FontRole = 'sans' | 'serif';
 
 /**
  * Legend and label wording. `{layer}` is a layer's name, `{cl}` the confidence level in percent,
