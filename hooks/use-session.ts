@@ -1,6 +1,6 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { ApiError } from '@/shared/api-client';
-import type { SignInInput, SignUpInput } from '@/shared/schemas/auth';
+import type { ResendVerificationInput, SignInInput, SignUpInput } from '@/shared/schemas/auth';
 import type { Me } from '@/shared/schemas/groups';
 import { api, keys } from './api';
 
@@ -43,5 +43,22 @@ export function useSignOut() {
       qc.clear();
       qc.setQueryData(keys.me, null);
     },
+  });
+}
+
+/** Mails a new verification link; `me` is refetched so a verification done meanwhile shows. */
+export function useResendVerification() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: ResendVerificationInput) => api.auth.sendVerificationEmail(input),
+    onSettled: () => qc.invalidateQueries({ queryKey: keys.me }),
+  });
+}
+
+export function useVerifyEmail() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (token: string) => api.auth.verifyEmail(token),
+    onSuccess: () => qc.invalidateQueries({ queryKey: keys.me }),
   });
 }

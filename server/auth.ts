@@ -4,9 +4,11 @@ import { toNodeHandler } from 'better-auth/node';
 import * as schema from '../db/schema';
 import type { Db } from './db';
 import type { Env } from './env';
-import { PASSWORD_MIN } from '../shared/schemas/auth';
+import { PASSWORD_MAX, PASSWORD_MIN } from '../shared/schemas/auth';
+import { VERIFICATION_HOURS, verificationMail } from './services/account';
+import type { Mailer } from './services/mail';
 
-export function createAuth(db: Db, env: Env) {
+export function createAuth(db: Db, env: Env, mail: Mailer) {
   const origin = new URL(env.PUBLIC_URL);
   const alt = origin.hostname === '127.0.0.1' ? 'localhost' : origin.hostname === 'localhost' ? '127.0.0.1' : null;
   return betterAuth({
@@ -14,7 +16,18 @@ export function createAuth(db: Db, env: Env) {
     basePath: '/api/auth',
     secret: env.AUTH_SECRET,
     database: drizzleAdapter(db, { provider: 'pg', schema }),
-    emailAndPassword: { enabled: true, minPasswordLength: PASSWORD_MIN, maxPasswordLength: 128, autoSignIn: true },
+    emailAndPassword: { enabled: true, minPasswordLength: PASSWORD_MIN, maxPasswordLength: PASSWORD_MAX, autoSignIn: true },
+    // Signing in does not need a verified address; accepting an invitation does
+    // (server/services/invitations.ts). The link is mailed at sign-up and on request.
+    emailVerification: {
+      sendOnSignUp: true,
+      expiresIn: VERIFICATION_HOURS * 3600,
+      // better-auth's own link would verify and then redirect; ours opens the app's screen, which
+      // verifies through GET /api/auth/verify-email?token=… and says so. The path to come back to
+      // (sign-up's or the resend's callbackURL) is carried along as `next`.
+      sendVerificationEmail: async ({ user, url, token }) =>
+        mail.send(verificationMail(user, env.PUBLIC_URL, token, new URL(url).searchParams.get('callbackURL') ?? '/')),
+    },
     trustedOrigins: [env.PUBLIC_URL, ...(alt ? [`${origin.protocol}//${alt}${origin.port ? `:${origin.port}` : ''}`] : [])],
     session: { expiresIn: 60 * 60 * 24 * 14, updateAge: 60 * 60 * 24 },
     // Our own limiter (express-rate-limit in app.ts) guards sign-in and sign-up per IP.

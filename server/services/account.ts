@@ -1,0 +1,40 @@
+import { getEmailVerified } from '../../db/queries/users';
+import type { Executor } from '../db';
+import { linkMail, type OutgoingMail } from './mail';
+
+/**
+ * The account's own mail (address verification, password reset) and its state. better-auth
+ * makes the tokens and calls these builders (server/auth.ts); the mail goes through the same
+ * outbox as every other message.
+ */
+
+/** How long a mailed verification link works. */
+export const VERIFICATION_HOURS = 24;
+
+/**
+ * The link leads to the app's verification screen (app/verify-email.tsx), which confirms the token
+ * with better-auth and then offers the way on to `next` (an app path, e.g. the invitation).
+ */
+export function verificationMail(to: { email: string; name: string }, publicUrl: string, token: string, next: string): OutgoingMail {
+  const query = new URLSearchParams({ token, ...(next !== '/' ? { next } : {}) });
+  return linkMail({
+    to: to.email,
+    kind: 'verification',
+    subject: 'Verify your address on Bandwright',
+    lines: [
+      `Hello ${to.name},`,
+      `Please confirm that ${to.email} is your address. Invitations to groups can only be accepted from a verified address.`,
+      `The link works for ${VERIFICATION_HOURS} hours. If you did not create a Bandwright account, ignore this mail.`,
+    ],
+    linkLabel: 'Verify my address',
+    url: `${publicUrl}/verify-email?${query.toString()}`,
+  });
+}
+
+/**
+ * Read from the database on every call (in the caller's transaction when given one), never from
+ * the session cache: the invitation rule depends on it.
+ */
+export async function isAddressVerified(db: Executor, userId: string): Promise<boolean> {
+  return getEmailVerified(db, userId);
+}
