@@ -10,6 +10,8 @@ import { linkMail, type OutgoingMail } from './mail';
 
 /** How long a mailed verification link works. */
 export const VERIFICATION_HOURS = 24;
+/** How long a password reset link works; it works once. */
+export const RESET_MINUTES = 60;
 
 /**
  * The link leads to the app's verification screen (app/verify-email.tsx), which confirms the token
@@ -28,6 +30,22 @@ export function verificationMail(to: { email: string; name: string }, publicUrl:
     ],
     linkLabel: 'Verify my address',
     url: `${publicUrl}/verify-email?${query.toString()}`,
+  });
+}
+
+/** The link leads to the app's reset screen (app/reset-password.tsx) with the token. */
+export function passwordResetMail(to: { email: string; name: string }, publicUrl: string, token: string): OutgoingMail {
+  return linkMail({
+    to: to.email,
+    kind: 'password-reset',
+    subject: 'Reset your Bandwright password',
+    lines: [
+      `Hello ${to.name},`,
+      `Someone asked to reset the password of the Bandwright account ${to.email}. Choose a new one with the link below.`,
+      `The link works once, within ${RESET_MINUTES} minutes; after the reset every device is signed out. If you did not ask for this, ignore this mail: your password stays as it is.`,
+    ],
+    linkLabel: 'Choose a new password',
+    url: `${publicUrl}/reset-password?token=${encodeURIComponent(token)}`,
   });
 }
 
