@@ -1,6 +1,6 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { ApiError } from '@/shared/api-client';
-import type { SignInInput, SignUpInput } from '@/shared/schemas/auth';
+import type { RequestPasswordResetInput, ResendVerificationInput, ResetPasswordInput, SignInInput, SignUpInput } from '@/shared/schemas/auth';
 import type { Me } from '@/shared/schemas/groups';
 import { api, keys } from './api';
 
@@ -39,6 +39,40 @@ export function useSignOut() {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: () => api.auth.signOut(),
+    onSuccess: () => {
+      qc.clear();
+      qc.setQueryData(keys.me, null);
+    },
+  });
+}
+
+/** Mails a new verification link; `me` is refetched so a verification done meanwhile shows. */
+export function useResendVerification() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: ResendVerificationInput) => api.auth.sendVerificationEmail(input),
+    onSettled: () => qc.invalidateQueries({ queryKey: keys.me }),
+  });
+}
+
+export function useVerifyEmail() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (token: string) => api.auth.verifyEmail(token),
+    onSuccess: () => qc.invalidateQueries({ queryKey: keys.me }),
+  });
+}
+
+/** Asks for a reset link; the answer is the same whether or not the address has an account. */
+export function useRequestPasswordReset() {
+  return useMutation({ mutationFn: (input: RequestPasswordResetInput) => api.auth.requestPasswordReset(input) });
+}
+
+/** Sets the new password; the server ends every session of the account, this one included. */
+export function useResetPassword() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: ResetPasswordInput) => api.auth.resetPassword(input),
     onSuccess: () => {
       qc.clear();
       qc.setQueryData(keys.me, null);

@@ -3,7 +3,7 @@ import express, { type Express } from 'express';
 import { rateLimit } from 'express-rate-limit';
 import fs from 'node:fs';
 import path from 'node:path';
-import { signInSchema, signUpSchema } from '../shared/schemas/auth';
+import { requestPasswordResetSchema, resendVerificationSchema, resetPasswordSchema, signInSchema, signUpSchema } from '../shared/schemas/auth';
 import { authNodeHandler } from './auth';
 import type { Ctx } from './context';
 import { AppError, errorHandler } from './lib/errors';
@@ -64,7 +64,9 @@ export function createApp(ctx: Ctx): Express {
   const authJson = express.json({ limit: '16kb' });
   app.post('/api/auth/sign-up/email', authLimiter, authJson, validate({ body: signUpSchema }));
   app.post('/api/auth/sign-in/email', authLimiter, authJson, validate({ body: signInSchema }));
-  app.post(['/api/auth/forget-password', '/api/auth/request-password-reset', '/api/auth/reset-password'], authLimiter);
+  app.post('/api/auth/request-password-reset', authLimiter, authJson, validate({ body: requestPasswordResetSchema }));
+  app.post('/api/auth/reset-password', authLimiter, authJson, validate({ body: resetPasswordSchema }));
+  app.post('/api/auth/send-verification-email', authLimiter, authJson, validate({ body: resendVerificationSchema }));
   // Any auth request may end or change sessions: the remembered sessions are dropped before it runs
   // and again once it has answered (server/session-cache.ts).
   app.all('/api/auth/{*any}', (_req, res, next) => {

@@ -19,8 +19,9 @@ export type Ctx = { env: Env; db: Db; auth: Auth; sessions: SessionCache; reads:
 
 export function createContext(env: Env): Ctx {
   const db = createDb(env.DATABASE_URL);
-  const auth = createAuth(db, env);
-  return { env, db, auth, sessions: createSessionCache(auth), reads: createReadCache(env.DATABASE_URL), mail: createMailer(db, env), stripe: createStripeClient(env.stripe) };
+  const mail = createMailer(db, env);
+  const auth = createAuth(db, env, mail);
+  return { env, db, auth, sessions: createSessionCache(auth), reads: createReadCache(env.DATABASE_URL), mail, stripe: createStripeClient(env.stripe) };
 }
 
 export async function closeContext(ctx: Ctx): Promise<void> {

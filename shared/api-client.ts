@@ -1,4 +1,4 @@
-import type { SignInInput, SignUpInput } from './schemas/auth';
+import type { RequestPasswordResetInput, ResendVerificationInput, ResetPasswordInput, SignInInput, SignUpInput } from './schemas/auth';
 import type { ServerLimits } from './schemas/common';
 import type {
   ChangeRoleInput,
@@ -119,6 +119,13 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       signUp: (input: SignUpInput) => call<{ user: { id: string } }>('POST', '/api/auth/sign-up/email', input),
       signIn: (input: SignInInput) => call<{ user: { id: string } }>('POST', '/api/auth/sign-in/email', input),
       signOut: () => call<{ success: boolean }>('POST', '/api/auth/sign-out', {}),
+      /** Confirms the address with the token of a verification mail (no session needed). */
+      verifyEmail: (token: string) => call<{ status: boolean }>('GET', `/api/auth/verify-email?token=${enc(token)}`),
+      /** Mails a new verification link to the caller's own address (signed out: neutral answer). */
+      sendVerificationEmail: (input: ResendVerificationInput) => call<{ status: boolean }>('POST', '/api/auth/send-verification-email', input),
+      /** The same answer whether or not the address has an account. */
+      requestPasswordReset: (input: RequestPasswordResetInput) => call<{ status: boolean; message: string }>('POST', '/api/auth/request-password-reset', input),
+      resetPassword: (input: ResetPasswordInput) => call<{ status: boolean }>('POST', '/api/auth/reset-password', input),
     },
     me: () => call<Me>('GET', '/api/me'),
     groups: {

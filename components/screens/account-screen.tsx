@@ -3,6 +3,7 @@ import { StyleSheet } from 'react-native';
 import { colors, fonts } from '@/themes/tokens';
 import { useMe, useSignOut } from '@/hooks/use-session';
 import { ROLE_LABELS } from '@/shared/access';
+import { VerifyAddress } from '../account/verify-address';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
@@ -20,6 +21,10 @@ export function AccountScreen() {
       <Card>
         <Text variant="title">{user?.name}</Text>
         <Text variant="muted">{user?.email}</Text>
+        {user?.emailVerified ? <Text variant="caption">Address verified</Text> : null}
+        {user && !user.emailVerified ? (
+          <VerifyAddress email={user.email} callbackURL="/account" why="You need a verified address to accept invitations." devTools={me.data?.devTools} />
+        ) : null}
       </Card>
       <Card>
         <Text variant="label">Your groups</Text>

@@ -3,6 +3,8 @@ import { ROLE_DESCRIPTIONS, ROLE_LABELS } from '@/shared/access';
 import { useCurrentGroup } from '@/hooks/use-current-group';
 import { useAcceptInvitation, useInvitationPreview } from '@/hooks/use-groups';
 import { useMe } from '@/hooks/use-session';
+import { ApiError } from '@/shared/api-client';
+import { VerifyAddress } from '../account/verify-address';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { errorMessage } from '../ui/form';
@@ -24,6 +26,8 @@ export function InvitationScreen() {
   const inv = preview.data!;
   const signedIn = !!me.data;
   const wrongUser = signedIn && me.data!.user.email.toLowerCase() !== inv.email.toLowerCase();
+  // The server refuses an unverified address too (403 email_unverified); this only shows why first.
+  const unverified = signedIn && !wrongUser && !me.data!.user.emailVerified;
 
   return (
     <AuthFrame title={`Join ${inv.groupName}`}>
@@ -42,7 +46,15 @@ export function InvitationScreen() {
       {inv.state === 'pending' && wrongUser ? (
         <Banner tone="warning" message={`You are signed in as ${me.data!.user.email}. Sign in as ${inv.email} to accept this invitation.`} />
       ) : null}
-      {inv.state === 'pending' && signedIn && !wrongUser ? (
+      {inv.state === 'pending' && unverified ? (
+        <VerifyAddress
+          email={me.data!.user.email}
+          callbackURL={next}
+          why="Invitations can only be accepted from a verified address."
+          devTools={me.data!.devTools}
+        />
+      ) : null}
+      {inv.state === 'pending' && signedIn && !wrongUser && !unverified ? (
         <Button
           label="Accept invitation"
           loading={accept.isPending}
@@ -52,11 +64,15 @@ export function InvitationScreen() {
                 select(groupId);
                 router.replace('/members');
               },
+              // Verified state seen here was stale: refetch it, which shows the notice above.
+              onError: (err) => {
+                if (err instanceof ApiError && err.code === 'email_unverified') void me.refetch();
+              },
             })
           }
         />
       ) : null}
-      {accept.error ? <Banner tone="error" message={errorMessage(accept.error)!} /> : null}
+      {accept.error && !unverified ? <Banner tone="error" message={errorMessage(accept.error)!} /> : null}
     </AuthFrame>
   );
 }

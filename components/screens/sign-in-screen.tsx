@@ -17,7 +17,8 @@ export function safeNext(next: unknown): string {
 }
 
 export function SignInScreen() {
-  const params = useLocalSearchParams<{ next?: string; email?: string }>();
+  // `reset=done`: back from setting a new password (every session was ended).
+  const params = useLocalSearchParams<{ next?: string; email?: string; reset?: string }>();
   const router = useRouter();
   const signIn = useSignIn();
   const [email, setEmail] = useState(params.email ?? '');
@@ -36,9 +37,13 @@ export function SignInScreen() {
 
   return (
     <AuthFrame title="Sign in">
+      {params.reset === 'done' && !signIn.error ? <Banner tone="success" message="Your password was changed and every device was signed out. Sign in with the new password." /> : null}
       {signIn.error && !Object.keys(errors).length ? <Banner tone="error" message={errorMessage(signIn.error)!} /> : null}
       <TextField label="E-mail" value={email} onChangeText={setEmail} autoComplete="email" inputMode="email" autoCapitalize="none" error={errors.email} onSubmitEditing={submit} />
       <TextField label="Password" value={password} onChangeText={setPassword} secureTextEntry autoComplete="current-password" error={errors.password} onSubmitEditing={submit} />
+      <Link href={{ pathname: '/forgot-password', params: email ? { email } : {} }} style={[styles.link, styles.forgot]}>
+        Forgot password?
+      </Link>
       <Button label="Sign in" onPress={submit} loading={signIn.isPending} />
       <View style={styles.row}>
         <Text variant="muted">New here?</Text>
@@ -62,4 +67,5 @@ const styles = StyleSheet.create({
   row: { flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' },
   links: { flexDirection: 'row', columnGap: space.lg, rowGap: space.sm, flexWrap: 'wrap' },
   link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22 },
+  forgot: { alignSelf: 'flex-start' },
 });

@@ -22,7 +22,8 @@ export function SignUpScreen() {
   const [errors, setErrors] = useState<FieldErrors>({});
 
   const submit = () => {
-    const { data, errors: e } = checkForm(signUpSchema, { name, email, password });
+    // The verification link in the sign-up mail leads back to where the visitor was heading.
+    const { data, errors: e } = checkForm(signUpSchema, { name, email, password, callbackURL: safeNext(params.next) });
     setErrors(e);
     if (!data) return;
     signUp.mutate(data, {

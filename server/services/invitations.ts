@@ -5,6 +5,7 @@ import * as gq from '../../db/queries/groups';
 import * as q from '../../db/queries/invitations';
 import type { Ctx } from '../context';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
+import { isAddressVerified } from './account';
 import { linkMail } from './mail';
 
 const INVITATION_DAYS = 14;
@@ -37,7 +38,7 @@ export async function invite(ctx: Ctx, groupId: string, actor: { id: string; nam
       subject: `${actor.name} invited you to ${groupName} on Bandwright`,
       lines: [
         `${actor.name} invited you to join “${groupName}” on Bandwright as ${ROLE_LABELS[input.role].toLowerCase()}.`,
-        `The invitation is valid for ${INVITATION_DAYS} days. Sign in or create an account with this address (${input.email}) to accept it.`,
+        `The invitation is valid for ${INVITATION_DAYS} days. Sign in or create an account with this address (${input.email}), and verify it, to accept it.`,
       ],
       linkLabel: 'Open the invitation',
       url: `${ctx.env.PUBLIC_URL}/invite/${token}`,
@@ -57,7 +58,11 @@ export async function previewInvitation(ctx: Ctx, token: string): Promise<Invita
   return { groupName: inv.groupName, role: inv.role, email: inv.email, invitedBy: inv.invitedBy, state };
 }
 
-/** Accepts an invitation for the signed-in user, whose address must be the invited one. */
+/**
+ * Accepts an invitation for the signed-in user, whose address must be the invited one and
+ * verified: otherwise anyone could sign up with an address they do not own and take the place
+ * meant for its owner.
+ */
 export async function acceptInvitation(ctx: Ctx, token: string, user: { id: string; email: string }) {
   return ctx.db.transaction(async (tx) => {
     const inv = await q.findInvitationByTokenHash(tx, hashToken(token), true);
@@ -66,6 +71,13 @@ export async function acceptInvitation(ctx: Ctx, token: string, user: { id: stri
     if (inv.expiresAt < new Date()) throw new AppError(410, 'expired', 'This invitation has expired; ask for a new one');
     if (inv.email.toLowerCase() !== user.email.toLowerCase()) {
       throw forbidden(`This invitation is for ${inv.email}; sign in with that address to accept it`);
+    }
+    if (!(await isAddressVerified(tx, user.id))) {
+      throw new AppError(
+        403,
+        'email_unverified',
+        `Verify your address ${user.email} first: open the link in the verification mail, or have a new one sent (POST /api/auth/send-verification-email)`,
+      );
     }
     await gq.addMember(tx, inv.groupId, user.id, inv.role);
     await q.markInvitationAccepted(tx, inv.id);

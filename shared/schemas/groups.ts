@@ -73,7 +73,8 @@ export const invitationPreviewSchema = z.object({
 export type InvitationPreview = z.infer<typeof invitationPreviewSchema>;
 
 export const meSchema = z.object({
-  user: z.object({ id: z.string(), name: z.string(), email: z.string() }),
+  /** `emailVerified`: the address was confirmed through the mailed link (needed to accept invitations). */
+  user: z.object({ id: z.string(), name: z.string(), email: z.string(), emailVerified: z.boolean() }),
   groups: z.array(groupSchema),
   devTools: z.boolean(),
 });

@@ -5,7 +5,7 @@ import { apiTokens, billingAccounts, figures, groups, groupStyles, providerEvent
 import { startQueue } from '@/server/jobs/queue';
 import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
-import { uniqueEmail, type Agent, type TestApp } from '../helpers/app';
+import { uniqueEmail, verifyAddress, type Agent, type TestApp } from '../helpers/app';
 import { giveCustomer, signedEvent, startBillingTestApp, type BillingTestApp } from '../helpers/billing';
 import { figureSpec as oneColumnSpec, makeFigure as makeFigureAs } from '../helpers/figures';
 import {
@@ -183,6 +183,8 @@ const MATRIX: Entry[] = [
     mutates: true,
     prepare: async (w, _groupId, caller) => {
       const hostGroup = await makeGroup(w.t, w.host);
+      // Accepting needs a verified address (tests/api/invitations.test.ts has the unverified case).
+      if (caller.person) await verifyAddress(caller.person.agent);
       const inv = await makeInvitation(w.t, w.host, hostGroup, caller.person?.email ?? uniqueEmail('anon-invitee'), 'analyst');
       return {
         params: { token: inv.token },

@@ -2,7 +2,7 @@ import request from 'supertest';
 import { eq } from 'drizzle-orm';
 import { DEMO_RESULTS } from '@/db/demo-results';
 import { DEMO_GROUPS, DEMO_PASSWORD, DEMO_USERS, seedDemo } from '@/db/seed';
-import { figures, groups, results, user } from '@/db/schema';
+import { devMail, figures, groups, results, user } from '@/db/schema';
 import { startTestApp, TEST_ORIGIN, type TestApp } from '../helpers/app';
 import type { ResultPage, ResultVersion } from '@/shared/schemas/results';
 
@@ -38,6 +38,15 @@ test('the seed adds the demo world once; a second run changes nothing', async ()
   expect(first).toMatchObject({ users: DEMO_USERS.length, groups: DEMO_GROUPS.length, results: DEMO_RESULTS.length });
   expect(await seedDemo(t.ctx)).toEqual({ created: false });
   expect(await counts()).toEqual(first);
+});
+
+test('the demo people have verified addresses (they may accept invitations at once) and were sent no verification mail', async () => {
+  const people = await t.ctx.db.select({ email: user.email, verified: user.emailVerified }).from(user);
+  expect(people.map((p) => p.email).sort()).toEqual(DEMO_USERS.map((u) => u.email).sort());
+  expect(people.every((p) => p.verified)).toBe(true);
+  expect((await t.ctx.db.select().from(devMail)).filter((m) => m.kind === 'verification')).toEqual([]);
+  const me = await (await signIn(DEMO_USERS[0].email)).get('/api/me');
+  expect(me.body.user).toMatchObject({ email: DEMO_USERS[0].email, emailVerified: true });
 });
 
 test('the demo results cover every state, with bands, theory and derived exclusions', async () => {

@@ -70,6 +70,25 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await shot(m, vp, 'inbox');
     await m.getByRole('link', { name: /\/invite\// }).click();
     await m.getByRole('heading', { name: `Join ${groupName}`, exact: true }).waitFor();
+
+    // Not with an unverified address: the screen says so and sends a new verification mail,
+    // whose link (in the development inbox) verifies the address and leads back here.
+    await m.getByText(/^Verify your address first\./).waitFor();
+    await expect(m.getByRole('button', { name: 'Accept invitation', exact: true }).count()).resolves.toBe(0);
+    await m.getByRole('button', { name: 'Send the verification mail again', exact: true }).click();
+    await m.getByText(`A new verification mail was sent to ${memberEmail}.`).waitFor();
+    await shot(m, vp, 'invitation-unverified');
+    await m.goto('/inbox');
+    const verification = m.getByRole('button', { name: 'Mail: Verify your address on Bandwright' });
+    await verification.first().waitFor();
+    await expect(verification.count()).resolves.toBe(2);
+    await verification.first().click();
+    await m.getByRole('link', { name: /\/verify-email\?token=/ }).click();
+    await m.getByText(`Your address ${memberEmail} is verified.`).waitFor();
+    await shot(m, vp, 'address-verified');
+    await m.getByRole('button', { name: 'Back to the invitation', exact: true }).click();
+
+    await m.getByRole('heading', { name: `Join ${groupName}`, exact: true }).waitFor();
     await shot(m, vp, 'invitation');
     await m.getByRole('button', { name: 'Accept invitation', exact: true }).click();
     await m.getByText('you are analyst').waitFor();

@@ -1,0 +1,2 @@
+import { ForgotPasswordScreen } from '@/components/screens/forgot-password-screen';
+export default ForgotPasswordScreen;

@@ -1,0 +1,2 @@
+import { ResetPasswordScreen } from '@/components/screens/reset-password-screen';
+export default ResetPasswordScreen;

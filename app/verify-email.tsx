@@ -1,0 +1,2 @@
+import { VerifyEmailScreen } from '@/components/screens/verify-email-screen';
+export default VerifyEmailScreen;
