@@ -5,8 +5,10 @@
  * Cranmer, Gross, Vitells (Eur. Phys. J. C 71 (2011) 1554, "CCGV") re-implemented here in log
  * space with @stdlib's normal log-CDF.
  */
-import normal from '@stdlib/stats-base-dists-normal';
 import { computeLimit, type CountingModelInput } from '@/shared/stats';
+import { FittedProfile } from '@/shared/stats/asymptotic';
+import { prepareModel } from '@/shared/stats/model';
+import { bruteForce, ccgvObservedLimit } from './reference';
 
 function oneBin(n: number, s: number, b: number): CountingModelInput {
   return { observed: [n], signal: [s], backgrounds: b === 0 ? [] : [{ name: 'flat', yields: [b] }] };
@@ -38,32 +40,6 @@ describe('CLs from the logs of its tail probabilities', () => {
       previous = r.observed;
     }
   });
-
-  /**
-   * CCGV for one bin without systematics, written independently of the engine: q̃_μ and q_μ,A in
-   * closed form, CLs from eqs. (65)-(66) with ln(1 − Φ(x)) = ln Φ(−x) from @stdlib's normal
-   * log-CDF, the limit by bisection in ln μ.
-   */
-  function ccgvObservedLimit(n: number, s: number, b: number, alpha = 0.05): number {
-    const dev = (nu: number, k: number) => (k === 0 ? 2 * nu : 2 * (nu - k - k * Math.log(nu / k)));
-    const muHat = (n - b) / s;
-    const lnSf = (x: number) => normal.logcdf(-x, 0, 1);
-    const lnCls = (mu: number) => {
-      const q = mu <= Math.max(0, muHat) ? 0 : Math.max(0, dev(mu * s + b, n) - (muHat < 0 ? dev(b, n) : 0));
-      const qA = dev(mu * s + b, b);
-      const sA = Math.sqrt(qA);
-      if (q <= qA) return lnSf(Math.sqrt(q)) - normal.logcdf(sA - Math.sqrt(q), 0, 1);
-      return lnSf((q + qA) / (2 * sA)) - lnSf((q - qA) / (2 * sA));
-    };
-    let lo = Math.log(1e-3 / s);
-    let hi = Math.log(1e6 / s);
-    for (let i = 0; i < 200; i++) {
-      const mid = 0.5 * (lo + hi);
-      if (lnCls(Math.exp(mid)) > Math.log(alpha)) lo = mid;
-      else hi = mid;
-    }
-    return Math.exp(0.5 * (lo + hi));
-  }
 
   test('asymptotic, one bin with b = 10⁴: the limit stays finite, falls steadily with the deficit and matches CCGV in log space', () => {
     const b = 1e4;
@@ -101,5 +77,68 @@ describe('CLs from the logs of its tail probabilities', () => {
       // Read (2002): CLs = e^{−μs} for n = 0 in one bin
       expect(p.cls).toBeCloseTo(Math.exp(-p.mu), 10);
     }
+  });
+});
+
+describe('fits at large counts', () => {
+  const notConverged = /did not converge/;
+
+  test.each([
+    [9e5, 1e6, 0.003],
+    [1.002e6, 1e6, 0.01],
+    [4e7, 5e7, 0.001],
+  ])('n = %f over b = %f with a %f background uncertainty: no false warning, the limit of a golden-section brute force', (n, b, delta) => {
+    const model: CountingModelInput = { observed: [n], signal: [3.1], backgrounds: [{ name: 'flat', yields: [b] }], systematics: [{ name: 'norm', effects: { flat: delta } }] };
+    const r = computeLimit(model);
+    expect(r.warnings.join(' ')).not.toMatch(notConverged);
+    // CCGV + Read (CLs), profiled by golden-section search with no Newton steps: CLs(μ_up) = α
+    expect(bruteForce(n, 3.1, b, 1 + delta, 'profiled').cls(r.observed) / 0.05).toBeCloseTo(1, 3);
+  });
+
+  /** The benchmark's 30-bin resonance search, its counts multiplied by `scale`. */
+  function scaled(scale: number): CountingModelInput {
+    const bins = 30;
+    const background = Array.from({ length: bins }, (_, i) => scale * (400 * Math.exp(-(50 * i) / 400) + 2));
+    const signal = Array.from({ length: bins }, (_, i) => Math.sqrt(scale) * 12 * Math.exp(-0.5 * ((500 + 50 * i - 1200) / 72) ** 2) + 1e-3);
+    // Observed: the background with a ±√b wiggle, whole numbers.
+    const observed = background.map((v, i) => Math.round(v + Math.sqrt(v) * Math.sin(1.7 * i)));
+    return {
+      observed,
+      signal,
+      backgrounds: [{ name: 'falling', yields: background }],
+      systematics: [
+        { name: 'luminosity', effects: { signal: 0.025, falling: 0.025 } },
+        { name: 'background normalisation', effects: { falling: 0.08 } },
+        { name: 'background slope', effects: { falling: background.map((_, i) => -0.1 + (0.3 * i) / (bins - 1)) } },
+      ],
+    };
+  }
+
+  test.each([1e2, 1e4, 1e6])('30 bins with 3 nuisance parameters at %f × the benchmark counts: every fit converges', (scale) => {
+    const r = computeLimit(scaled(scale));
+    expect(r.warnings.join(' ')).not.toMatch(notConverged);
+    for (const v of [r.observed, ...Object.values(r.expected)]) expect(Number.isFinite(v) && v > 0).toBe(true);
+  });
+
+  test('conditional fits near the minimum at 10⁶ events stop there in a few iterations instead of repeating a zero-length step', () => {
+    // The Asimov dataset of a 10% deficit under a 0.3% uncertainty: θ̂̂(0) ≈ −31, ν ≈ 9.1e5; warm
+    // starts near θ̂̂(0), as the limit search gives them, leave decrements that −ln L cannot resolve.
+    const model: CountingModelInput = { observed: [9e5], signal: [3.1], backgrounds: [{ name: 'flat', yields: [1e6] }], systematics: [{ name: 'norm', effects: { flat: 0.003 } }] };
+    const profile = new FittedProfile(prepareModel(model), 'profiled');
+    const lik = profile.asimovLikelihood;
+    lik.maxIterations = 25;
+    const failedBefore = lik.failedFits;
+    for (let j = 0; j < 50; j++) {
+      const mu = 20 + 1.7 * j;
+      for (const offset of [-0.1, -0.04, -0.01, 0, 0.01]) {
+        const theta = Float64Array.from(profile.thetaAtZero);
+        theta[0] = (theta[0] as number) + offset;
+        const nll = lik.fitConditional(mu, theta);
+        // common practice: at a minimum no step of θ by ±1e-3 lowers −ln L beyond its rounding
+        // (ε·Σ(n + ν) ≈ 4e-10 here)
+        for (const h of [-1e-3, 1e-3]) expect(lik.nll(mu, [(theta[0] as number) + h])).toBeGreaterThan(nll - 1e-9);
+      }
+    }
+    expect(lik.failedFits - failedBefore).toBe(0);
   });
 });
