@@ -5,7 +5,8 @@
  * Cranmer, Gross, Vitells (Eur. Phys. J. C 71 (2011) 1554, "CCGV") re-implemented here in log
  * space with @stdlib's normal log-CDF.
  */
-import { computeLimit, type CountingModelInput } from '@/shared/stats';
+import normal from '@stdlib/stats-base-dists-normal';
+import { computeLimit, EXPECTED_KEYS, type CountingModelInput } from '@/shared/stats';
 import { FittedProfile } from '@/shared/stats/asymptotic';
 import { prepareModel } from '@/shared/stats/model';
 import { bruteForce, ccgvObservedLimit } from './reference';
@@ -140,5 +141,59 @@ describe('fits at large counts', () => {
       }
     }
     expect(lik.failedFits - failedBefore).toBe(0);
+  });
+});
+
+describe('pseudo-experiment bands', () => {
+  const ordered = (r: { expected: Record<string, number> }) => EXPECTED_KEYS.slice(1).every((k, j) => r.expected[k]! >= r.expected[EXPECTED_KEYS[j]!]!);
+
+  test('are never inverted, whatever the counts, the number of pseudo-experiments or the seed', () => {
+    // common practice: the band edges are limits at increasing quantiles of one background-only
+    // distribution, so −2σ ≤ −1σ ≤ median ≤ +1σ ≤ +2σ (equal where discrete quantiles tie)
+    const cases: Array<[CountingModelInput, number, number]> = [];
+    for (const b of [0.05, 0.3, 1, 5, 12]) for (const toys of [50, 100, 300]) for (const seed of [1, 2]) cases.push([oneBin(Math.round(b), 1, b), toys, seed]);
+    for (const b of [0.3, 1, 3]) {
+      for (const seed of [1, 2]) {
+        cases.push([{ observed: [Math.round(b), 1], signal: [1, 0.5], backgrounds: [{ name: 'f', yields: [b, 0.7] }], systematics: [{ name: 'n', effects: { f: 0.2 } }] }, 200, seed]);
+      }
+    }
+    const inverted = cases.filter(([model, toys, seed]) => !ordered(computeLimit(model, { method: 'toys', toys, seed })));
+    expect(inverted.map(([m, toys, seed]) => `b=${m.backgrounds?.[0]?.yields[0]} toys=${toys} seed=${seed}`)).toEqual([]);
+  });
+
+  test('edges whose quantiles fall on the same count are equal, and equal to the exact limit of that count', () => {
+    // b = 0.3: P(n = 0) = e^{−0.3} = 74% (exact), so the 2.3%, 15.9% and 50% quantiles of the
+    // background-only test statistic are all n = 0, whose CLs is e^{−s} (Read, J. Phys. G 28 (2002) 2693)
+    const r = computeLimit(oneBin(0, 1, 0.3), { method: 'toys', toys: 4000, seed: 7 });
+    expect(r.expected['-2']).toBe(r.expected['0']);
+    expect(r.expected['-1']).toBe(r.expected['0']);
+    expect(Math.abs(r.expected['0'] - -Math.log(0.05))).toBeLessThan(4 * (r.expectedError?.['0'] as number) + 1e-3);
+  });
+});
+
+describe('how many pseudo-experiments', () => {
+  const fewToys = /use at least ([\d,]+) pseudo-experiments/;
+
+  test.each([0.95, 0.9])('the default at %f CL is enough for the −2σ edge: ≥ 20 of each hypothesis beyond the test statistic', (cl) => {
+    // Rule (common practice for Monte-Carlo p-values): at the −2σ limit CLb ≈ Φ(−2) and CLs+b = α·Φ(−2);
+    // 20 pseudo-experiments beyond it (±22%) need n ≥ 20/(α·Φ(−2)) (@stdlib normal for Φ)
+    const needed = 20 / ((1 - cl) * normal.cdf(-2, 0, 1));
+    const r = computeLimit(oneBin(12, 1, 12), { method: 'toys', cl, seed: 4 });
+    expect(r.toys?.perHypothesis).toBeGreaterThanOrEqual(needed);
+    expect(r.toys?.perHypothesis).toBeLessThan(needed + 1000);
+    expect(r.warnings.join(' ')).not.toMatch(/pseudo-experiments fall beyond/);
+  });
+
+  test('too few: the warning says how many are needed, and that many are enough', () => {
+    const model = oneBin(12, 1, 12);
+    const few = computeLimit(model, { method: 'toys', toys: 2000, seed: 4 });
+    const match = fewToys.exec(few.warnings.join(' '));
+    expect(match).not.toBeNull();
+    const needed = Number((match?.[1] ?? '').replace(/,/g, ''));
+    // same rule as above: about 20/(α·Φ(−2)) ≈ 17,600 for this −2σ edge (@stdlib normal)
+    expect(needed).toBeGreaterThan(0.5 * (20 / (0.05 * normal.cdf(-2, 0, 1))));
+    expect(needed).toBeLessThan(2 * (20 / (0.05 * normal.cdf(-2, 0, 1))));
+    const enough = computeLimit(model, { method: 'toys', toys: needed, seed: 4 });
+    expect(enough.warnings.join(' ')).not.toMatch(fewToys);
   });
 });
