@@ -12,7 +12,7 @@
  *   ("signal" or a background name) in that bin; empty means no effect there.
  * Comma, semicolon or tab separated; lines starting with '#' are comments.
  */
-import type { CountingModelInput } from '../schemas/counting-model';
+import { RESERVED_PROCESS_NAME, type CountingModelInput } from '../schemas/counting-model';
 import type { ScanInputPoint } from '../schemas/scans';
 import { CsvFileError, parseCsv, parseNumber } from '../curves/csv';
 import type { CurveProblem } from '../curves/check';
@@ -22,19 +22,40 @@ type Column =
   | { kind: 'background'; name: string; index: number }
   | { kind: 'systematic'; name: string; process: string; index: number };
 
-const FIXED: Record<string, Column['kind']> = { x: 'x', sigma_nominal: 'sigma', bin: 'bin', observed: 'observed', signal: 'signal' };
+// A Map, not an object literal: a header such as "constructor" must not find Object.prototype's.
+const FIXED = new Map<string, Column['kind']>([
+  ['x', 'x'],
+  ['sigma_nominal', 'sigma'],
+  ['bin', 'bin'],
+  ['observed', 'observed'],
+  ['signal', 'signal'],
+]);
+
+/** The engine refuses "__proto__" as a process name; say so at once, for the column. */
+const reservedProblem = (column: string): CurveProblem => ({
+  column,
+  reason: `"${RESERVED_PROCESS_NAME}" cannot name a process (JavaScript objects cannot hold it as a key); choose another name`,
+});
 
 function classify(headers: string[]): { columns: Column[]; problems: CurveProblem[] } {
   const columns: Column[] = [];
   const problems: CurveProblem[] = [];
   headers.forEach((raw, index) => {
     const h = raw.trim();
-    const fixed = FIXED[h.toLowerCase()];
+    const fixed = FIXED.get(h.toLowerCase());
     if (fixed) return void columns.push({ kind: fixed, index } as Column);
     const bg = /^background:(.+)$/i.exec(h);
-    if (bg) return void columns.push({ kind: 'background', name: bg[1]!.trim(), index });
+    if (bg) {
+      const name = bg[1]!.trim();
+      if (name === RESERVED_PROCESS_NAME) return void problems.push(reservedProblem(h));
+      return void columns.push({ kind: 'background', name, index });
+    }
     const sy = /^systematic:([^:]+):(.+)$/i.exec(h);
-    if (sy) return void columns.push({ kind: 'systematic', name: sy[1]!.trim(), process: sy[2]!.trim(), index });
+    if (sy) {
+      const process = sy[2]!.trim();
+      if (process === RESERVED_PROCESS_NAME) return void problems.push(reservedProblem(h));
+      return void columns.push({ kind: 'systematic', name: sy[1]!.trim(), process, index });
+    }
     problems.push({ column: h || `column ${index + 1}`, reason: 'is not a column of the scan layout (x, sigma_nominal, bin, observed, signal, background:<name>, systematic:<name>:<process>)' });
   });
   for (const k of ['x', 'observed', 'signal'] as const) {
@@ -142,7 +163,9 @@ export function scanToCsv(points: ScanInputPoint[]): string {
       for (const n of bgNames) cells.push((p.model.backgrounds ?? []).find((b) => b.name === n)?.yields[i] ?? 0);
       for (const c of systCols) {
         const [name, proc] = [c.slice(0, c.indexOf(':')), c.slice(c.indexOf(':') + 1)];
-        const eff = (p.model.systematics ?? []).find((s) => s.name === name)?.effects[proc];
+        const effects = (p.model.systematics ?? []).find((s) => s.name === name)?.effects;
+        // Own keys only: a process named "constructor" must not read Object.prototype.constructor.
+        const eff = effects && Object.prototype.hasOwnProperty.call(effects, proc) ? effects[proc] : undefined;
         cells.push(eff === undefined ? '' : Array.isArray(eff) ? (eff[i] ?? '') : eff);
       }
       lines.push(cells.map((v) => (typeof v === 'string' && /[",\n]/.test(v) ? `"${v.replace(/"/g, '""')}"` : String(v))).join(','));

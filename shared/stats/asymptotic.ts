@@ -6,14 +6,15 @@
  * A. L. Read, J. Phys. G 28 (2002) 2693; T. Junk, Nucl. Instrum. Meth. A 434 (1999) 435.
  */
 import { EXPECTED_KEYS, type AsimovChoice, type ClsSample, type ExpectedLimits } from '../schemas/counting-model';
-import { normalCdf, normalQuantileUpper, normalSf } from './distributions';
+import { logNormalCdf, logNormalSf, normalCdf, normalQuantileUpper } from './distributions';
 import { Likelihood } from './fit';
 import type { PreparedModel } from './model';
 import { findDecreasingRoot, type RootResult } from './roots';
 
 // Module-scope aliases: cheaper than global lookups in sandboxed runtimes (test runners' VM contexts).
-const { log, max, sqrt } = Math;
+const { exp, log, max, sqrt } = Math;
 const INF = Number.POSITIVE_INFINITY;
+const LN2 = Math.LN2;
 const isFiniteNumber = Number.isFinite;
 
 /** The profile-likelihood quantities a limit needs, on observed and Asimov data. */
@@ -185,30 +186,53 @@ export interface ClsValues {
   clb: number;
 }
 
+/** ln CLs+b and ln CLb. */
+export interface LogClValues {
+  lnClsb: number;
+  lnClb: number;
+}
+
 /**
- * CLs+b, CLb and CLs from q̃_μ (observed) and q_μ,A, with σ² = μ²/q_μ,A (CCGV eqs. (30)-(32)).
+ * ln CLs+b and ln CLb from q̃_μ (observed) and q_μ,A, with σ² = μ²/q_μ,A (CCGV eqs. (30)-(32)).
  * For q̃_μ ≤ μ²/σ²: CLs+b = 1 − Φ(√q̃_μ), CLb = Φ(√q_μ,A − √q̃_μ); for q̃_μ > μ²/σ² (reached by
  * deficits, μ̂ < 0) the second branch of CCGV eqs. (65)-(66): CLs+b = 1 − Φ((q̃_μ + μ²/σ²)/(2μ/σ)),
- * CLb = 1 − Φ((q̃_μ − μ²/σ²)/(2μ/σ)).
+ * CLb = 1 − Φ((q̃_μ − μ²/σ²)/(2μ/σ)). In that branch both tails underflow for a deep deficit
+ * over a large background (arguments beyond 38.5) while their ratio stays ordinary
+ * (ln CLs → −q̃_μ/2 as q_μ,A → 0): the logs are computed directly.
  */
-export function asymptoticCls(q: number, qA: number, out?: ClsValues): ClsValues {
-  const res = out ?? { cls: 1, clsb: 1, clb: 1 };
+export function asymptoticLogCl(q: number, qA: number, out: LogClValues): LogClValues {
   if (!(qA > 0)) {
-    res.cls = 1;
-    res.clsb = 0.5;
-    res.clb = 0.5;
-    return res;
+    out.lnClsb = -LN2;
+    out.lnClb = -LN2;
+    return out;
+  }
+  if (q === INF) {
+    // No fit at this μ explains the data at all: excluded outright.
+    out.lnClsb = -INF;
+    out.lnClb = 0;
+    return out;
   }
   const sA = sqrt(qA);
   if (q <= qA) {
     const sq = sqrt(q);
-    res.clsb = normalSf(sq);
-    res.clb = normalCdf(sA - sq);
+    out.lnClsb = logNormalSf(sq);
+    out.lnClb = logNormalCdf(sA - sq);
   } else {
-    res.clsb = normalSf((q + qA) / (2 * sA));
-    res.clb = normalSf((q - qA) / (2 * sA));
+    out.lnClsb = logNormalSf((q + qA) / (2 * sA));
+    out.lnClb = logNormalSf((q - qA) / (2 * sA));
   }
-  res.cls = res.clb > 0 ? res.clsb / res.clb : 1;
+  return out;
+}
+
+const logScratch: LogClValues = { lnClsb: 0, lnClb: 0 };
+
+/** CLs+b, CLb and CLs from q̃_μ and q_μ,A (see asymptoticLogCl); CLs is exp(ln CLs+b − ln CLb). */
+export function asymptoticCls(q: number, qA: number, out?: ClsValues): ClsValues {
+  const res = out ?? { cls: 1, clsb: 1, clb: 1 };
+  const l = asymptoticLogCl(q, qA, logScratch);
+  res.clsb = exp(l.lnClsb);
+  res.clb = exp(l.lnClb);
+  res.cls = exp(l.lnClsb - l.lnClb);
   return res;
 }
 
@@ -260,12 +284,12 @@ export function asymptoticExpected(source: ProfileSource, alpha: number): { limi
 
 /** Observed limit: CLs(μ) = α (or CLs+b(μ) = α with `clsb`), searched in ln CL for a smooth root. */
 export function asymptoticObserved(source: ProfileSource, alpha: number, guess: number, clsb = false): LimitSearch {
-  const values: ClsValues = { cls: 1, clsb: 1, clb: 1 };
+  const values: LogClValues = { lnClsb: 0, lnClb: 0 };
   const lnAlpha = log(alpha);
   return searchLimit(
     (mu) => {
-      asymptoticCls(source.qObserved(mu), source.qAsimov(mu), values);
-      return log(max(clsb ? values.clsb : values.cls, 1e-300)) - lnAlpha;
+      asymptoticLogCl(source.qObserved(mu), source.qAsimov(mu), values);
+      return (clsb ? values.lnClsb : values.lnClsb - values.lnClb) - lnAlpha;
     },
     guess,
     source.muScale,

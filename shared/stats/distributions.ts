@@ -11,6 +11,7 @@ const INF = Number.POSITIVE_INFINITY;
 const SQRT2 = Math.SQRT2;
 const SQRT_PI = sqrt(Math.PI);
 const LN_SQRT_2PI = 0.5 * log(2 * Math.PI);
+const LN2 = Math.LN2;
 
 // ---------------------------------------------------------------------------------------------
 // erfc. Runtime form: erfc(z) = t·exp(−z² + Σ c_k T_k(2t−1)), t = 2/(2+z), z ≥ 0 (the Chebyshev
@@ -71,10 +72,9 @@ const ERFC_COEFFS: Float64Array = (() => {
   return Float64Array.from(coeffs.slice(0, 28));
 })();
 
-function erfcNonNegative(z: number): number {
-  const t = 2 / (2 + z);
+/** Σ c_k T_k(2t−1) = ln(erfc(z)/t) + z² at t = 2/(2+z), by the Clenshaw recurrence. */
+function erfcSeries(t: number): number {
   const y2 = 2 * (2 * t - 1);
-  // Clenshaw recurrence for Σ c_k T_k(y).
   let d = 0;
   let dd = 0;
   for (let k = ERFC_COEFFS.length - 1; k > 0; k--) {
@@ -82,8 +82,12 @@ function erfcNonNegative(z: number): number {
     d = y2 * d - dd + (ERFC_COEFFS[k] as number);
     dd = tmp;
   }
-  const series = 0.5 * y2 * d - dd + (ERFC_COEFFS[0] as number);
-  return t * exp(-z * z + series);
+  return 0.5 * y2 * d - dd + (ERFC_COEFFS[0] as number);
+}
+
+function erfcNonNegative(z: number): number {
+  const t = 2 / (2 + z);
+  return t * exp(-z * z + erfcSeries(t));
 }
 
 /** Complementary error function erfc(x) = 1 − erf(x), accurate in relative terms in both tails. */
@@ -91,6 +95,21 @@ export function erfc(x: number): number {
   if (Number.isNaN(x)) return NaN;
   if (x >= 0) return x > 27 ? 0 : erfcNonNegative(x);
   return x < -6 ? 2 : 2 - erfcNonNegative(-x);
+}
+
+/**
+ * ln erfc(x), also where erfc(x) itself underflows (x > 26.5): the Chebyshev form above is a
+ * fit of ln(erfc(z)/t) + z² over all z ≥ 0 (t = 2/(2+z) runs over (0, 1]), so its log needs no
+ * exponential and keeps full relative precision of ln erfc up to z ≈ 1e154, where z² overflows.
+ */
+export function logErfc(x: number): number {
+  if (Number.isNaN(x)) return NaN;
+  if (x >= 0) {
+    if (x === INF) return -INF;
+    const t = 2 / (2 + x);
+    return log(t) - x * x + erfcSeries(t);
+  }
+  return x < -6 ? LN2 : log(2 - erfcNonNegative(-x));
 }
 
 /** Error function. */
@@ -111,6 +130,16 @@ export function normalCdf(x: number): number {
 /** Standard normal upper tail 1 − Φ(x), computed directly (no cancellation for large x). */
 export function normalSf(x: number): number {
   return 0.5 * erfc(x / SQRT2);
+}
+
+/** ln(1 − Φ(x)), finite far beyond where 1 − Φ(x) underflows (x > 38.5): ≈ −x²/2 − ln(x√(2π)). */
+export function logNormalSf(x: number): number {
+  return logErfc(x / SQRT2) - LN2;
+}
+
+/** ln Φ(x), finite far below where Φ(x) underflows (x < −38.5). */
+export function logNormalCdf(x: number): number {
+  return logErfc(-x / SQRT2) - LN2;
 }
 
 // Rational first guess of the normal quantile (P. J. Acklam's approximation, relative error
@@ -194,9 +223,13 @@ export function lnFactorial(k: number): number {
   return k < LN_FACTORIAL_TABLE_SIZE ? (LN_FACTORIAL[k] as number) : lnGamma(k + 1);
 }
 
-/** e^{−x} x^a / Γ(a), the common factor of the incomplete gamma series and fraction. */
+/** ln(e^{−x} x^a / Γ(a)), the common factor of the incomplete gamma series and fraction. */
+function logGammaPrefactor(a: number, x: number): number {
+  return -x + a * log(x) - lnGamma(a);
+}
+
 function gammaPrefactor(a: number, x: number): number {
-  return exp(-x + a * log(x) - lnGamma(a));
+  return exp(logGammaPrefactor(a, x));
 }
 
 /** Regularized lower incomplete gamma P(a, x) = γ(a, x)/Γ(a). */
@@ -228,7 +261,25 @@ function gammaSeries(a: number, x: number): number {
   return sum * gammaPrefactor(a, x);
 }
 
+/**
+ * ln Q(a, x), also where Q underflows (x ≫ a: e.g. P(N = 0 | λ = 10⁴) = e^{−10⁴}). Below x = a + 1
+ * Q = 1 − P is not small (Q > e^{−2} for a ≥ 1, which covers every Poisson CDF, a = k + 1), so
+ * ln(1 − P) loses nothing there; in the fraction's range the log is taken factor by factor.
+ */
+export function logRegularizedGammaQ(a: number, x: number): number {
+  if (!(a > 0) || !(x >= 0)) return NaN;
+  if (x === 0) return 0;
+  if (x === INF) return -INF;
+  if (x < a + 1) return Math.log1p(-gammaSeries(a, x));
+  return log(gammaFractionRatio(a, x)) + logGammaPrefactor(a, x);
+}
+
 function gammaFraction(a: number, x: number): number {
+  return gammaFractionRatio(a, x) * gammaPrefactor(a, x);
+}
+
+/** Q(a, x) divided by e^{−x} x^a / Γ(a): Legendre's continued fraction (modified Lentz). */
+function gammaFractionRatio(a: number, x: number): number {
   const tiny = 1e-300;
   let b = x + 1 - a;
   let c = 1 / tiny;
@@ -246,7 +297,7 @@ function gammaFraction(a: number, x: number): number {
     h *= delta;
     if (abs(delta - 1) < 1e-16) break;
   }
-  return h * gammaPrefactor(a, x);
+  return h;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -267,6 +318,14 @@ export function poissonCdf(k: number, lambda: number): number {
   if (k < 0) return 0;
   if (lambda === 0) return 1;
   return regularizedGammaQ(floor(k) + 1, lambda);
+}
+
+/** ln P(N ≤ k | λ), finite where the CDF underflows (a deficit far below a large mean). */
+export function logPoissonCdf(k: number, lambda: number): number {
+  if (Number.isNaN(k) || !(lambda >= 0)) return NaN;
+  if (k < 0) return -INF;
+  if (lambda === 0) return 0;
+  return logRegularizedGammaQ(floor(k) + 1, lambda);
 }
 
 /** Poisson upper tail P(N ≥ k | λ) = P(k, λ) for k ≥ 1. */

@@ -5,12 +5,12 @@
  */
 import { EXPECTED_KEYS, type ExpectedLimits } from '../schemas/counting-model';
 import { BAND_SIGMAS, searchLimit, type ClsValues } from './asymptotic';
-import { normalCdf, poissonCdf, poissonQuantile } from './distributions';
+import { logPoissonCdf, normalCdf, poissonQuantile } from './distributions';
 import { StatsInputError } from './errors';
 import type { PreparedModel } from './model';
 
 // Module-scope aliases: cheaper than global lookups in sandboxed runtimes (test runners' VM contexts).
-const { log, max, sqrt } = Math;
+const { exp, log, sqrt } = Math;
 
 export interface ExactOutcome {
   observed: number;
@@ -20,11 +20,20 @@ export interface ExactOutcome {
   clsAt: (mu: number) => ClsValues;
 }
 
+/**
+ * ln CLs of n observed events at signal s = μ·signal over background b, from the logs of the two
+ * Poisson CDFs: both underflow for a deficit far below a large background (n = 0 over b ≳ 745
+ * events), their ratio does not (it is e^{−s} for n = 0).
+ */
+export function exactLogCls(n: number, mu: number, signal: number, background: number): number {
+  return logPoissonCdf(n, mu * signal + background) - logPoissonCdf(n, background);
+}
+
 /** CLs, CLs+b and CLb of n observed events at signal s = μ·signal over background b. */
 export function exactCls(n: number, mu: number, signal: number, background: number): ClsValues {
-  const clb = poissonCdf(n, background);
-  const clsb = poissonCdf(n, mu * signal + background);
-  return { cls: clb > 0 ? clsb / clb : 1, clsb, clb };
+  const lnClb = logPoissonCdf(n, background);
+  const lnClsb = logPoissonCdf(n, mu * signal + background);
+  return { cls: exp(lnClsb - lnClb), clsb: exp(lnClsb), clb: exp(lnClb) };
 }
 
 /** Exact CLs limits on μ; throws StatsInputError unless the model is one bin without systematics. */
@@ -46,7 +55,7 @@ export function exactLimits(model: PreparedModel, alpha: number): ExactOutcome {
   const limitFor = (count: number): number => {
     // Classical guess s_up ≈ n + 2√(n+1) + 2 events keeps the bracket search short.
     const guess = (count + 2 * sqrt(count + 1) + 2) / s;
-    const result = searchLimit((mu) => log(max(exactCls(count, mu, s, b).cls, 1e-300)) - lnAlpha, guess, 1 / s);
+    const result = searchLimit((mu) => exactLogCls(count, mu, s, b) - lnAlpha, guess, 1 / s);
     atEdge ||= result.atEdge;
     return result.value;
   };

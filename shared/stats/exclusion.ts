@@ -81,7 +81,20 @@ function logInterpolate(xs: number[], logs: Float64Array, x: number): number {
   return (logs[lo] as number) + t * ((logs[hi] as number) - (logs[lo] as number));
 }
 
-/** Ranges of x where the limit (xl, yl) is below the theory (xt, yt). Inputs already checked. */
+/**
+ * ln(limit/theory) within this of zero is a touch: the same σ computed two ways (a table and a
+ * formula, or interpolated on different grids) agrees only to rounding, and a 1e-12 relative
+ * difference is no physical crossing.
+ */
+const TOUCH = 1e-12;
+
+/**
+ * Ranges of x where the limit (xl, yl) is below the theory (xt, yt). Inputs already checked.
+ *
+ * A range ends only where the limit crosses above the theory. Where it only touches it (equal at
+ * a point, below on both sides) the range goes on: touching is not crossing. Where it stays equal
+ * over a stretch and then rises above, the range ends where the equality began.
+ */
 export function rangesBelow(xl: number[], yl: number[], xt: number[], yt: number[]): ExcludedRange[] {
   const start = Math.max(xl[0] as number, xt[0] as number);
   const end = Math.min(xl[xl.length - 1] as number, xt[xt.length - 1] as number);
@@ -89,9 +102,14 @@ export function rangesBelow(xl: number[], yl: number[], xt: number[], yt: number
   const grid = [...new Set([start, end, ...xl.filter((v) => v > start && v < end), ...xt.filter((v) => v > start && v < end)])].sort((a, b) => a - b);
   const ll = Float64Array.from(yl, Math.log);
   const lt = Float64Array.from(yt, Math.log);
-  const d = grid.map((x) => logInterpolate(xl, ll, x) - logInterpolate(xt, lt, x));
+  const d = grid.map((x) => {
+    const v = logInterpolate(xl, ll, x) - logInterpolate(xt, lt, x);
+    return Math.abs(v) <= TOUCH ? 0 : v;
+  });
   const ranges: ExcludedRange[] = [];
   let open: ExcludedRange | undefined;
+  /** Where the limit reached the theory after being below it (undefined: it is below, or no range is open). */
+  let touchedAt: number | undefined;
   if ((d[0] as number) < 0) open = { from: start, to: start, fromOpen: true };
   for (let k = 0; k + 1 < grid.length; k++) {
     const d0 = d[k] as number;
@@ -99,18 +117,29 @@ export function rangesBelow(xl: number[], yl: number[], xt: number[], yt: number
     const x0 = grid[k] as number;
     const x1 = grid[k + 1] as number;
     const crossing = () => x0 + ((x1 - x0) * d0) / (d0 - d1);
-    if (open === undefined && d1 < 0) {
-      open = { from: d0 > 0 ? crossing() : x0, to: x1 };
-    } else if (open !== undefined && d1 >= 0) {
-      open.to = d0 < 0 && d1 > 0 ? crossing() : x1;
+    if (open === undefined) {
+      if (d1 < 0) open = { from: d0 > 0 ? crossing() : x0, to: x1 };
+    } else if (d1 < 0) {
+      touchedAt = undefined;
+    } else if (d1 === 0) {
+      touchedAt ??= x1;
+    } else {
+      open.to = d0 < 0 ? crossing() : (touchedAt ?? x0);
       if (open.to > open.from || open.fromOpen) ranges.push(open);
       open = undefined;
+      touchedAt = undefined;
     }
   }
   if (open !== undefined) {
-    open.to = end;
-    open.toOpen = true;
-    ranges.push(open);
+    if (touchedAt !== undefined) {
+      // Equal to the theory at the end of the common range: the range ends there.
+      open.to = touchedAt;
+      if (open.to > open.from || open.fromOpen) ranges.push(open);
+    } else {
+      open.to = end;
+      open.toOpen = true;
+      ranges.push(open);
+    }
   }
   return ranges;
 }

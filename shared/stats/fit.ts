@@ -25,8 +25,17 @@ const isFiniteNumber = Number.isFinite;
 export type MuBound = 'zero' | 'feasible';
 
 const MAX_ITERATIONS = 100;
-/** Newton decrement (expected gain in −ln L) below which a fit has converged. */
+/** Newton decrement (expected gain in −ln L) below which a fit has converged, for small counts. */
 const DECREMENT_TOLERANCE = 1e-11;
+/**
+ * −ln L is a sum of terms ν_i − n_i − n_i ln(ν_i/n_i) that cancel to O(1) from O(n_i): its
+ * rounding is ≈ ε·Σ(n_i + ν_i), 2e-10 at 10⁶ events. A decrement below a few times that cannot
+ * be resolved by evaluating −ln L (nor can it change q̃_μ = 2Δ(−ln L) by more than as much), so
+ * the tolerance grows with the counts: relative to Σ(n_i + ν_i), absolute for small counts.
+ */
+const RELATIVE_DECREMENT_TOLERANCE = 4 * Number.EPSILON;
+/** When the line search finds no decrease, a decrement this small (or within rounding) is a minimum. */
+const STALL_TOLERANCE = 1e-7;
 /** Longest step in any θ per iteration: keeps (1+δ)^θ finite while far from the minimum. */
 const MAX_THETA_STEP = 3;
 
@@ -46,6 +55,8 @@ export class Likelihood {
   failedFits = 0;
   /** Newton iterations allowed per fit. */
   maxIterations = MAX_ITERATIONS;
+  /** Σ_i (n_i + ν_i) at the last point whose derivatives were taken: the size of −ln L's rounding. */
+  private countScale = 0;
 
   private readonly y: Float64Array;
   private readonly s: Float64Array;
@@ -191,9 +202,11 @@ export class Likelihood {
     const d = nPar + off;
     const f = this.nllFromYields(mu, x, off);
     if (!isFiniteNumber(f)) return f;
+    let countScale = 0;
     for (let i = 0; i < nBins; i++) {
       const n = data[i] as number;
       const nu = mu * (s[i] as number) + (b[i] as number);
+      countScale += n + abs(nu);
       if (n > 0) {
         const r = n / nu;
         w[i] = 1 - r;
@@ -203,6 +216,7 @@ export class Likelihood {
         v[i] = 0;
       }
     }
+    this.countScale = countScale;
     // dν_i/dθ_k = μ s_i ln(1+δ_k0i) + Σ_j b_ij ln(1+δ_kji)
     for (let k = 0; k < nPar; k++) {
       const row = k * nBins;
@@ -337,7 +351,8 @@ export class Likelihood {
           break;
         }
         const dec = this.solveStep(d, m);
-        if (!(dec > DECREMENT_TOLERANCE)) {
+        const rounding = RELATIVE_DECREMENT_TOLERANCE * this.countScale;
+        if (!(dec > DECREMENT_TOLERANCE + rounding)) {
           converged = true;
           break;
         }
@@ -352,6 +367,11 @@ export class Likelihood {
           for (let a = 0; a < m; a++) trial[idx[a] as number] = (x[idx[a] as number] as number) + t * (step[a] as number);
           this.setYields(trial, off);
           if (freeMu) trial[0] = max(trial[0] as number, this.muLowerBound(bound));
+          // A step shorter than the rounding of x (or projected away onto the bound) moves
+          // nothing: accepting it would repeat the same iteration until the budget runs out.
+          let moved = false;
+          for (let j = 0; j < d; j++) if (trial[j] !== x[j]) moved = true;
+          if (!moved) break;
           const fTrial = this.nllFromYields(freeMu ? (trial[0] as number) : mu0, trial, off);
           // Armijo condition on the (possibly projected) step actually taken.
           let slope = 0;
@@ -363,8 +383,9 @@ export class Likelihood {
           t *= 0.5;
         }
         if (!accepted) {
-          // No decrease along a descent direction: we sit at the minimum to rounding.
-          converged = dec < 1e-7;
+          // No decrease along a descent direction: we sit at the minimum to rounding (a larger
+          // decrement that −ln L cannot resolve, 64× its rounding, counts as such too).
+          converged = dec < STALL_TOLERANCE + 64 * rounding;
           this.setYields(x, off);
           break;
         }

@@ -24,19 +24,19 @@ import {
 import { errorFromZod } from './errors';
 import { exactLimits } from './exact';
 import { prepareModel, type PreparedModel } from './model';
-import { ToyCalculator, toyLimits } from './toys';
+import { MIN_TAIL_TOYS, ToyCalculator, toyLimits, toysForBands } from './toys';
 
 /** Options after defaults. */
 export interface ResolvedOptions {
   cl: number | undefined;
   method: LimitMethod;
   asimov: AsimovChoice;
-  toys: number;
+  /** Pseudo-experiments per hypothesis; undefined: enough for the −2σ edge at the CL used (toysForBands). */
+  toys: number | undefined;
   seed: number;
   curvePoints: number;
 }
 
-export const DEFAULT_TOYS = 5000;
 export const DEFAULT_CURVE_POINTS = 40;
 /** Below this many expected background events in a bin that carries signal, asymptotics are doubtful. */
 export const FEW_EVENTS = 5;
@@ -51,7 +51,7 @@ export function resolveOptions(options: unknown, fieldPrefix = 'options'): Resol
     cl: o.cl,
     method: o.method ?? 'asymptotic',
     asimov: o.asimov ?? 'profiled',
-    toys: o.toys ?? DEFAULT_TOYS,
+    toys: o.toys,
     seed: o.seed ?? 1,
     curvePoints: curve === true ? DEFAULT_CURVE_POINTS : typeof curve === 'number' ? curve : 0,
   };
@@ -106,14 +106,11 @@ export function limitForPrepared(model: PreparedModel, options: ResolvedOptions)
   warnings.push(...source.notes);
 
   if (options.method === 'toys') {
-    const calc = new ToyCalculator(model, source, options.toys, options.seed);
+    const perHypothesis = options.toys ?? toysForBands(alpha);
+    const calc = new ToyCalculator(model, source, perHypothesis, options.seed);
     const toys = toyLimits(calc, alpha, { observed: observed.value, expected: expected.limits }, source.muScale);
     if (toys.atEdge) warnings.push(edgeWarning());
-    if (toys.fewestInTail < 20) {
-      warnings.push(
-        `Only ${toys.fewestInTail} pseudo-experiments fall beyond the observed or expected test statistic at a limit: the Monte-Carlo uncertainty is large; use more pseudo-experiments.`,
-      );
-    }
+    if (toys.fewestInTail < MIN_TAIL_TOYS) warnings.push(fewToysWarning(toys.fewestInTail, toys.toysNeeded));
     const result: LimitResult = {
       method: 'toys',
       cl,
@@ -128,7 +125,7 @@ export function limitForPrepared(model: PreparedModel, options: ResolvedOptions)
     if (options.curvePoints > 0) result.cls = curve(toys.clsAt, toys.observed, toys.expected['2'], options.curvePoints);
     const fitWarning = fitFailureWarning(addCounts(source.fitCounts(), calc.fitCounts()));
     if (fitWarning) warnings.push(fitWarning);
-    result.toys = { perHypothesis: options.toys, total: calc.generated, seed: options.seed };
+    result.toys = { perHypothesis, total: calc.generated, seed: options.seed };
     return result;
   }
 
@@ -165,6 +162,16 @@ function addCounts(a: { fits: number; failed: number }, b: { fits: number; faile
 
 function edgeWarning(): string {
   return 'A limit sits at the edge of the range of μ searched: the data barely constrain μ; treat that limit as a bound of the search, not a result.';
+}
+
+/**
+ * The warning for too few pseudo-experiments beyond a limit's test statistic, with how many per
+ * hypothesis would put MIN_TAIL_TOYS there (rounded up to two significant digits).
+ */
+export function fewToysWarning(fewest: number, needed: number): string {
+  const digits = 10 ** Math.max(0, Math.floor(Math.log10(needed)) - 1);
+  const rounded = Math.ceil(needed / digits) * digits;
+  return `Only ${fewest} pseudo-experiments fall beyond the observed or expected test statistic at a limit: the Monte-Carlo uncertainty is large (${MIN_TAIL_TOYS} or more are needed for about ±20%); use at least ${rounded.toLocaleString('en')} pseudo-experiments per hypothesis.`;
 }
 
 /** The warning for fits that did not converge, or undefined when all did. */

@@ -10,11 +10,12 @@
  * is a deterministic function that the bracketing root finder can narrow.
  */
 import { EXPECTED_KEYS, type ExpectedKey, type ExpectedLimits } from '../schemas/counting-model';
-import { BAND_SIGMAS, FittedProfile, OneBinProfile, searchLimit, type ClsValues, type ProfileSource } from './asymptotic';
+import { BAND_SIGMAS, FittedProfile, MU_RANGE, OneBinProfile, type ClsValues, type ProfileSource } from './asymptotic';
 import { normalCdf } from './distributions';
 import { Likelihood } from './fit';
 import type { PreparedModel } from './model';
 import { Random } from './rng';
+import { findDecreasingRoot } from './roots';
 
 // Module-scope aliases: cheaper than global lookups in sandboxed runtimes (test runners' VM contexts).
 const { ceil, log, max, min, round, sqrt } = Math;
@@ -39,6 +40,22 @@ export interface ToyPoint {
   cls: Float64Array;
   clsb: Float64Array;
   clb: Float64Array;
+  /** The test statistic each CLs was taken at (observed q̃_μ, then the background-only quantiles). */
+  q: Float64Array;
+}
+
+/**
+ * How many pseudo-experiments of each hypothesis must lie at or beyond the test statistic at a
+ * limit: a tail count k estimates CLs+b or CLb with relative error ≈ 1/√k (binomial), 22% for 20
+ * (common practice for Monte-Carlo p-values). The −2σ edge is the hardest: there CLb ≈ Φ(−2) =
+ * 2.3% and CLs+b = α·CLb, so it needs n ≥ 20/(α·Φ(−2)) per hypothesis (17,600 at 95% CL, 8,800
+ * at 90%, 88,000 at 99%); a deficit can make the observed limit need more (its CLb is small).
+ */
+export const MIN_TAIL_TOYS = 20;
+
+/** Pseudo-experiments per hypothesis for which the −2σ edge meets MIN_TAIL_TOYS (rounded up to 1000). */
+export function toysForBands(alpha: number): number {
+  return 1000 * ceil(MIN_TAIL_TOYS / (alpha * normalCdf(BAND_SIGMAS['-2'])) / 1000);
 }
 
 /** Seeds of the two hypotheses' streams: different, and the same at every μ. */
@@ -86,7 +103,7 @@ export class ToyCalculator {
     this.qsb.sort();
     this.qb.sort();
     const n = this.toys;
-    const point: ToyPoint = { mu, cls: new Float64Array(6), clsb: new Float64Array(6), clb: new Float64Array(6) };
+    const point: ToyPoint = { mu, cls: new Float64Array(6), clsb: new Float64Array(6), clb: new Float64Array(6), q: new Float64Array(6) };
     const fill = (slot: number, q: number) => {
       // Pseudo-experiments tie with the observed value when their data are the same: compare with
       // a tolerance above the fits' precision so that ties count as "at least as extreme".
@@ -95,6 +112,7 @@ export class ToyCalculator {
       const kb = countAtLeast(this.qb, threshold);
       // No background-only pseudo-experiment as extreme: CLb is below 1/n; take half a count.
       const clb = (kb > 0 ? kb : 0.5) / n;
+      point.q[slot] = q;
       point.clsb[slot] = clsb;
       point.clb[slot] = clb;
       point.cls[slot] = min(1, clsb / clb);
@@ -168,27 +186,50 @@ export interface ToyLimits {
   atEdge: boolean;
   /** Fewest pseudo-experiments behind a CLs+b or CLb at a limit (for a warning). */
   fewestInTail: number;
+  /** Pseudo-experiments per hypothesis that would put MIN_TAIL_TOYS behind every CLs+b and CLb at a limit. */
+  toysNeeded: number;
   clsAt: (mu: number) => ClsValues;
 }
+
+/**
+ * The order in which the band edges are searched, each bounded by the one before it: the median
+ * first, then outwards. `below`: the edge lies at or below its neighbour's limit; `above`: at or above.
+ */
+const BAND_SEARCH: ReadonlyArray<{ key: ExpectedKey; neighbour?: ExpectedKey; side?: 'below' | 'above' }> = [
+  { key: '0' },
+  { key: '-1', neighbour: '0', side: 'below' },
+  { key: '-2', neighbour: '-1', side: 'below' },
+  { key: '1', neighbour: '0', side: 'above' },
+  { key: '2', neighbour: '1', side: 'above' },
+];
 
 /**
  * Limits from pseudo-experiments, each searched from its asymptotic counterpart. The Monte-Carlo
  * uncertainty propagates the binomial errors of CLs+b and CLb to μ through the slope of CLs(μ)
  * measured between 0.9 and 1.1 times the limit.
+ *
+ * The band edges are never inverted: their CLs(μ) come from increasing quantiles of one
+ * background-only sample, ordered in expectation but not toy by toy, and a step-shaped CLs(μ) can
+ * cross α more than once. So each edge is searched only on its side of its inner neighbour's limit
+ * (−1σ below the median, −2σ below −1σ, +1σ above it, +2σ above +1σ); where it has no crossing
+ * there, or where its quantile is the same test statistic as the neighbour's (discrete counts:
+ * the same number of events), it takes the neighbour's limit — a tie, not an edge of the search.
  */
 export function toyLimits(calc: ToyCalculator, alpha: number, guesses: { observed: number; expected: ExpectedLimits }, muScale: number): ToyLimits {
   const lnAlpha = log(alpha);
   const n = calc.toys;
+  const searchLow = MU_RANGE.low * muScale;
+  const searchHigh = MU_RANGE.high * muScale;
   let atEdge = false;
   let fewestInTail = INF;
-  const solve = (slot: number, guess: number): { value: number; error: number } => {
-    const result = searchLimit((mu) => log(max(calc.evaluate(mu).cls[slot] as number, 1e-300)) - lnAlpha, guess, muScale, 1e-4);
-    atEdge ||= result.atEdge;
-    const mu = result.value;
+  let smallestTail = 1;
+  const measure = (slot: number, mu: number): { value: number; error: number } => {
     const at = calc.evaluate(mu);
     const clsb = at.clsb[slot] as number;
     const clb = at.clb[slot] as number;
     fewestInTail = min(fewestInTail, round(clsb * n), round(clb * n));
+    // A tail that is empty here still holds fewer than one pseudo-experiment in n.
+    smallestTail = min(smallestTail, max(clsb, 0.5 / n), max(clb, 0.5 / n));
     const cls = at.cls[slot] as number;
     const relVar = (clsb > 0 ? (1 - clsb) / (n * clsb) : 1) + (clb > 0 ? (1 - clb) / (n * clb) : 1);
     const sigmaCls = cls * sqrt(relVar);
@@ -197,17 +238,35 @@ export function toyLimits(calc: ToyCalculator, alpha: number, guesses: { observe
     const error = slope > 0 ? min(sigmaCls / slope, mu) : 0.1 * mu;
     return { value: mu, error };
   };
-  const obs = solve(0, guesses.observed);
+  const solve = (slot: number, guess: number, low: number, high: number, tie?: number): { value: number; error: number } => {
+    const f = (mu: number) => log(max(calc.evaluate(mu).cls[slot] as number, 1e-300)) - lnAlpha;
+    const root = findDecreasingRoot(f, min(max(guess, low), high), low, high, 1e-4);
+    // Out of its bracket at the neighbour's side: the tie; at the other end: the edge of the search.
+    if (!root.bracketed && root.x !== tie) atEdge = true;
+    return measure(slot, root.x);
+  };
+  const obs = solve(0, guesses.observed, searchLow, searchHigh);
   const expected = {} as ExpectedLimits;
   const expectedError = {} as ExpectedLimits;
-  EXPECTED_KEYS.forEach((key: ExpectedKey, j) => {
-    const r = solve(j + 1, guesses.expected[key]);
+  for (const { key, neighbour, side } of BAND_SEARCH) {
+    const slot = EXPECTED_KEYS.indexOf(key) + 1;
+    let r: { value: number; error: number };
+    if (neighbour === undefined) {
+      r = solve(slot, guesses.expected[key], searchLow, searchHigh);
+    } else {
+      const bound = expected[neighbour];
+      const at = calc.evaluate(bound);
+      if (at.q[slot] === at.q[EXPECTED_KEYS.indexOf(neighbour) + 1]) r = measure(slot, bound);
+      else if (side === 'below') r = solve(slot, guesses.expected[key], searchLow, bound, bound);
+      else r = solve(slot, guesses.expected[key], bound, searchHigh, bound);
+    }
     expected[key] = r.value;
     expectedError[key] = r.error;
-  });
+  }
   const clsAt = (mu: number): ClsValues => {
     const p = calc.evaluate(mu);
     return { cls: p.cls[0] as number, clsb: p.clsb[0] as number, clb: p.clb[0] as number };
   };
-  return { observed: obs.value, expected, observedError: obs.error, expectedError, atEdge, fewestInTail, clsAt };
+  const toysNeeded = ceil(MIN_TAIL_TOYS / smallestTail);
+  return { observed: obs.value, expected, observedError: obs.error, expectedError, atEdge, fewestInTail, toysNeeded, clsAt };
 }

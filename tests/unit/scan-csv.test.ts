@@ -59,3 +59,45 @@ test('missing required columns, unknown columns and split grid points are refuse
   const sigma = problemsOf('x,sigma_nominal,observed,signal\n1,5,2,3\n1,6,2,3\n');
   expect(sigma[0]).toEqual(expect.objectContaining({ row: 3, column: 'sigma_nominal' }));
 });
+
+describe('process and systematic names that are also properties of JavaScript objects', () => {
+  const header = 'x,bin,observed,signal,background:constructor,background:toString,systematic:hasOwnProperty:constructor,systematic:hasOwnProperty:toString,systematic:__proto__:toString';
+  const rows = ['1000,1,12,2,9.5,1.1,0.05,,0.2', '1000,2,4,1,3.2,0.4,0.1,,', '1100,1,8,2,7.9,0.9,,0.3,0.2', '1100,2,3,1,2.6,0.3,,0.3,'];
+  const csv = [header, ...rows].join('\n') + '\n';
+
+  test('are ordinary names in a scan CSV: parsed, computed like plain names, written back unchanged', () => {
+    const points = parseScanCsv(csv);
+    expect(points[0]!.model.backgrounds?.map((b) => b.name)).toEqual(['constructor', 'toString']);
+    expect(points[0]!.model.systematics?.map((s) => [s.name, Object.keys(s.effects)])).toEqual([
+      ['hasOwnProperty', ['constructor']],
+      ['__proto__', ['toString']],
+    ]);
+    expect(points[1]!.model.systematics?.map((s) => [s.name, Object.keys(s.effects)])).toEqual([
+      ['hasOwnProperty', ['toString']],
+      ['__proto__', ['toString']],
+    ]);
+    // exact: renaming processes and systematics does not change a limit
+    const plain = parseScanCsv(csv.replace(header, 'x,bin,observed,signal,background:dijet,background:fakes,systematic:shape:dijet,systematic:shape:fakes,systematic:rate:fakes'));
+    const [a, b] = [computeScan(points), computeScan(plain)];
+    a.forEach((p, i) => expect(p).toEqual(b[i]));
+    // The second point's "hasOwnProperty" has no effect on "constructor": the writer must not read
+    // Object.prototype.constructor in its place.
+    const text = scanToCsv(points);
+    expect(text).not.toMatch(/function|native code/);
+    expect(parseScanCsv(text)).toEqual(points);
+  });
+
+  test('a bare column named like an object property is not a column of the layout', () => {
+    for (const name of ['constructor', 'toString', '__proto__']) {
+      const problems = problemsOf(`x,bin,observed,signal,${name}\n1000,1,3,1,2\n`);
+      expect(problems).toEqual([expect.objectContaining({ column: name, reason: expect.stringMatching(/not a column of the scan layout/) })]);
+    }
+  });
+
+  test('"__proto__" as a process name is refused at once, naming the column', () => {
+    for (const column of ['background:__proto__', 'systematic:norm:__proto__']) {
+      const problems = problemsOf(`x,bin,observed,signal,background:flat,${column}\n1000,1,3,1,2,0.1\n`);
+      expect(problems).toEqual([expect.objectContaining({ column, reason: expect.stringMatching(/"__proto__" cannot name a process/) })]);
+    }
+  });
+});

@@ -11,6 +11,11 @@ import {
   chiSquareSf,
   erfc,
   lnGamma,
+  logErfc,
+  logNormalCdf,
+  logNormalSf,
+  logPoissonCdf,
+  logRegularizedGammaQ,
   normalCdf,
   normalQuantile,
   normalQuantileUpper,
@@ -86,6 +91,32 @@ describe('normal distribution', () => {
   });
 });
 
+describe('logs of normal tails, where the tails underflow', () => {
+  test('ln Φ(x) and ln(1 − Φ(x)) match @stdlib normal.logcdf from −10⁶ to 10⁶', () => {
+    const xs = [...grid(-40, 40, 0.0731), -1e6, -1e4, -500, -100, -60, 100, 500, 1e4, 1e6];
+    for (const x of xs) {
+      // @stdlib/stats-base-dists-normal (logcdf, and by symmetry ln(1 − Φ(x)) = ln Φ(−x))
+      const ref = normal.logcdf(x, 0, 1);
+      const refSf = normal.logcdf(-x, 0, 1);
+      expect(Math.abs(logNormalCdf(x) - ref)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(ref)));
+      expect(Math.abs(logNormalSf(x) - refSf)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(refSf)));
+    }
+  });
+
+  test('ln erfc agrees with erfc where erfc is representable, and follows −x² − ln(x√π) beyond', () => {
+    for (const x of grid(-5, 26, 0.0917)) expect(Math.abs(logErfc(x) - Math.log(erfc(x)))).toBeLessThan(1e-13 * Math.max(1, x * x));
+    for (const x of [30, 100, 1e3, 1e5]) {
+      // Abramowitz & Stegun 7.1.23 (from memory): erfc x ≈ e^{−x²}/(x√π)·Σ (−1)^m (2m−1)!!/(2x²)^m,
+      // here to m = 4 (the next term is below 1e-12 relative at x = 30)
+      const u = 1 / (2 * x * x);
+      const asym = -x * x - Math.log(x * Math.sqrt(Math.PI)) + Math.log1p(-u + 3 * u * u - 15 * u ** 3 + 105 * u ** 4);
+      expect(Math.abs(logErfc(x) - asym)).toBeLessThan(1e-12 * x * x);
+    }
+    expect(logErfc(Infinity)).toBe(-Infinity);
+    expect(logErfc(-Infinity)).toBeCloseTo(Math.LN2, 15);
+  });
+});
+
 describe('gamma functions', () => {
   test('ln Γ(n) = ln((n−1)!) for whole numbers', () => {
     let lnFact = 0;
@@ -139,6 +170,29 @@ describe('Poisson distribution', () => {
         const cdf = poisson.cdf(k, lambda);
         if (cdf > 1e-300) expect(relErr(poissonCdf(k, lambda), cdf)).toBeLessThan(1e-10);
       }
+    }
+  });
+
+  test('ln CDF matches a log-sum-exp of @stdlib Poisson logpmf, also where the CDF underflows', () => {
+    for (const lambda of [0.3, 4, 60, 745, 2000, 1e4, 1e5]) {
+      for (const k of [0, 1, 3, 10, 50, 0.5 * lambda, 0.9 * lambda, lambda, 1.2 * lambda].map(Math.floor)) {
+        // @stdlib/stats-base-dists-poisson logpmf, summed in log space (exact in k ≤ 1.2λ + 1 terms)
+        const terms = Array.from({ length: k + 1 }, (_, j) => poisson.logpmf(j, lambda));
+        const top = Math.max(...terms);
+        const ref = top + Math.log(terms.reduce((sum, t) => sum + Math.exp(t - top), 0));
+        // Both sides add terms of size λ and k ln λ (10⁶ for λ = 10⁵) to reach a log of order 1:
+        // double rounding of those terms, 2.2e-16 each, is the agreement possible.
+        const rounding = 4.4e-16 * (lambda + k * Math.abs(Math.log(lambda)));
+        expect(Math.abs(logPoissonCdf(k, lambda) - ref)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(ref)) + rounding);
+      }
+    }
+    // exact: P(N = 0 | λ) = e^{−λ}
+    expect(logPoissonCdf(0, 1e4)).toBeCloseTo(-1e4, 8);
+    expect(logPoissonCdf(-1, 3)).toBe(-Infinity);
+    expect(logPoissonCdf(2, 0)).toBe(0);
+    // @stdlib/stats-base-dists-chisquare: Q(a, x) = 1 − chi-square CDF(2x; 2a) where that is representable
+    for (const [a, x] of [[0.5, 0.2], [3, 1], [3, 9], [40, 55]] as const) {
+      expect(logRegularizedGammaQ(a, x)).toBeCloseTo(Math.log(1 - chisquare.cdf(2 * x, 2 * a)), 10);
     }
   });
 

@@ -70,3 +70,36 @@ test.each([
     expect((err as StatsInputError).field).toBe(field);
   }
 });
+
+describe('touching is not crossing', () => {
+  const x = [1, 2, 3, 4, 5];
+  const theory = { x, central: [1, 1, 1, 1, 1] };
+
+  test('a limit that touches the theory at one grid point from below keeps one excluded range', () => {
+    // common practice: an excluded range ends where the limit crosses above the theory; at a
+    // tangent point (limit = theory, below on both sides) nothing is crossed
+    expect(exclusionRanges({ x, observed: [0.5, 0.5, 1, 0.5, 0.5] }, theory).observed).toEqual([{ from: 1, to: 5, fromOpen: true, toOpen: true }]);
+    expect(exclusionRanges({ x, observed: [2, 0.5, 1, 0.5, 2] }, theory).observed).toEqual([{ from: 1.5, to: 4.5 }]);
+  });
+
+  test('a touch where the two values agree only to rounding (1e-15 relative) is still a touch', () => {
+    // The same σ computed two ways (a stored table and a re-evaluated formula) differs in the last
+    // digits; a "crossing" of 1e-15 in σ is no physical crossing (common practice).
+    const central = x.map((v) => 10 * Math.exp(-v / 2));
+    for (const eps of [0, 1e-15, -1e-15, 3e-13]) {
+      const observed = central.map((c, i) => (i === 2 ? c * (1 + eps) : 0.5 * c));
+      expect(exclusionRanges({ x, observed }, { x, central }).observed).toEqual([{ from: 1, to: 5, fromOpen: true, toOpen: true }]);
+    }
+  });
+
+  test('touching from above excludes nothing; a real crossing still splits; equality over a stretch ends the range', () => {
+    expect(exclusionRanges({ x, observed: [2, 2, 1, 2, 2] }, theory).observed).toEqual([]);
+    const split = exclusionRanges({ x, observed: [0.5, 2, 0.5, 0.5, 0.5] }, theory).observed ?? [];
+    expect(split).toHaveLength(2);
+    // exact (log-linear between 0.5 and 2): the crossings are halfway
+    expect(split[0]?.to).toBeCloseTo(1.5, 12);
+    expect(split[1]?.from).toBeCloseTo(2.5, 12);
+    // limit = theory from x = 2 to 3, then above: the range ends where the equality starts
+    expect(exclusionRanges({ x, observed: [0.5, 1, 1, 2, 2] }, theory).observed).toEqual([{ from: 1, to: 2, fromOpen: true }]);
+  });
+});

@@ -10,6 +10,7 @@ import poisson from '@stdlib/stats-base-dists-poisson';
 import { computeLimit, EXPECTED_KEYS, type CountingModelInput, type LimitResult } from '@/shared/stats';
 import { FittedProfile } from '@/shared/stats/asymptotic';
 import { prepareModel } from '@/shared/stats/model';
+import { bruteForce } from './reference';
 
 const ALPHA = 0.05;
 const Phi = (x: number) => normal.cdf(x, 0, 1);
@@ -124,61 +125,6 @@ describe('asymptotic formulae (CCGV)', () => {
     for (const key of EXPECTED_KEYS) expect(a.expected[key]).toBeCloseTo(b.expected[key], 6);
   });
 });
-
-/**
- * An independent brute-force implementation of CCGV for one bin with one log-normal background
- * uncertainty: profiles by golden-section search, no Newton steps, no shared code.
- */
-function goldenMin(f: (x: number) => number, lo: number, hi: number): { x: number; f: number } {
-  const g = (Math.sqrt(5) - 1) / 2;
-  let a = lo;
-  let b = hi;
-  let c = b - g * (b - a);
-  let d = a + g * (b - a);
-  let fc = f(c);
-  let fd = f(d);
-  for (let i = 0; i < 200 && b - a > 1e-12 * (1 + Math.abs(a)); i++) {
-    if (fc < fd) {
-      b = d;
-      d = c;
-      fd = fc;
-      c = b - g * (b - a);
-      fc = f(c);
-    } else {
-      a = c;
-      c = d;
-      fc = fd;
-      d = a + g * (b - a);
-      fd = f(d);
-    }
-  }
-  const x = 0.5 * (a + b);
-  return { x, f: f(x) };
-}
-
-function bruteForce(n: number, s: number, b: number, kappa: number, asimov: 'nominal' | 'profiled') {
-  const lnk = Math.log(kappa);
-  const nll = (data: number, centre: number, mu: number, theta: number) => {
-    const nu = mu * s + b * Math.exp(theta * lnk);
-    return nu - (data > 0 ? data * Math.log(nu) : 0) + 0.5 * (theta - centre) ** 2;
-  };
-  const profile = (data: number, centre: number, mu: number) => goldenMin((t) => nll(data, centre, mu, t), -10, 10).f;
-  const thetaZero = goldenMin((t) => nll(n, 0, 0, t), -10, 10).x;
-  const globalMin = goldenMin((mu) => profile(n, 0, mu), 0, 50 * (n + 5) / s);
-  const asimovTheta = asimov === 'profiled' ? thetaZero : 0;
-  const nA = b * Math.exp(asimovTheta * lnk);
-  const asimovMin = nll(nA, asimovTheta, 0, asimovTheta);
-  const qObs = (mu: number) => (mu <= globalMin.x ? 0 : Math.max(0, 2 * (profile(n, 0, mu) - globalMin.f)));
-  const qA = (mu: number) => 2 * (profile(nA, asimovTheta, mu) - asimovMin);
-  const cls = (mu: number) => {
-    const q = qObs(mu);
-    const a = qA(mu);
-    // CCGV eqs. (65)-(66), both branches, with @stdlib's normal CDF.
-    if (q <= a) return (1 - Phi(Math.sqrt(q))) / Phi(Math.sqrt(a) - Math.sqrt(q));
-    return (1 - Phi((q + a) / (2 * Math.sqrt(a)))) / (1 - Phi((q - a) / (2 * Math.sqrt(a))));
-  };
-  return { cls, qA, thetaZero };
-}
 
 describe.each([
   ['excess', 34, 24],

@@ -1,7 +1,7 @@
 /**
  * Bad input: every problem is a StatsInputError naming the field and the reason (the issue's list).
  */
-import { computeLimit, countingModelSchema, StatsInputError, type CountingModelInput, type LimitOptions } from '@/shared/stats';
+import { computeLimit, countingModelSchema, fitNuisanceParameters, StatsInputError, type CountingModelInput, type LimitOptions } from '@/shared/stats';
 
 const good: CountingModelInput = {
   cl: 0.95,
@@ -98,4 +98,50 @@ test('options.cl overrides the model cl, which overrides 0.95', () => {
   expect(computeLimit(model, { method: 'exact' }).cl).toBe(0.95);
   expect(computeLimit({ ...model, cl: 0.9 }, { method: 'exact' }).cl).toBe(0.9);
   expect(computeLimit({ ...model, cl: 0.9 }, { method: 'exact', cl: 0.99 }).cl).toBe(0.99);
+});
+
+describe('names that are also properties of JavaScript objects', () => {
+  /** The same model with its processes and systematics renamed. */
+  const named = (bg: [string, string], syst: [string, string]): CountingModelInput => ({
+    observed: [14, 6, 2],
+    signal: [1.2, 2.5, 1.1],
+    backgrounds: [
+      { name: bg[0], yields: [9.1, 4.3, 1.2] },
+      { name: bg[1], yields: [2, 1.5, 0.6] },
+    ],
+    systematics: [
+      { name: syst[0], effects: { [bg[0]]: [0.05, 0.1, 0.25], signal: 0.02 } },
+      { name: syst[1], effects: { [bg[1]]: 0.3 } },
+    ],
+  });
+
+  test.each([
+    [['constructor', 'toString'], ['hasOwnProperty', 'valueOf']],
+    [['hasOwnProperty', 'isPrototypeOf'], ['__proto__', 'constructor']],
+    [['valueOf', 'propertyIsEnumerable'], ['toString', 'toLocaleString']],
+  ] as Array<[[string, string], [string, string]]>)('processes %j and systematics %j are ordinary names: the same limits and pulls as plain names', (bg, syst) => {
+    // exact: renaming a process or a systematic does not change the model
+    const plain = computeLimit(named(['dijet', 'fakes'], ['shape', 'fake rate']));
+    const odd = computeLimit(JSON.parse(JSON.stringify(named(bg, syst))));
+    expect(odd).toEqual(plain);
+    const pulls = fitNuisanceParameters(named(bg, syst));
+    expect(pulls.pulls.map((p) => p.name)).toEqual(syst);
+    expect(pulls.pulls.map((p) => p.value)).toEqual(fitNuisanceParameters(named(['dijet', 'fakes'], ['shape', 'fake rate'])).pulls.map((p) => p.value));
+  });
+
+  test('an unknown process named like an object property is still unknown', () => {
+    const err = failure({ ...good, systematics: [{ name: 'x', effects: { constructor: 0.1 } }] });
+    expect(err.field).toBe('systematics[0].effects.constructor');
+    expect(err.reason).toMatch(/unknown process "constructor"/);
+  });
+
+  test('"__proto__" is refused as a process name, by name, wherever it appears', () => {
+    // A JSON body keeps "__proto__" as an own key; an object record cannot: the effect would vanish.
+    const asBackground = failure(JSON.parse('{"observed":[3],"signal":[1],"backgrounds":[{"name":"__proto__","yields":[2]}]}'));
+    expect(asBackground.field).toBe('backgrounds[0].name');
+    expect(asBackground.reason).toMatch(/"__proto__" cannot name a process.*choose another name/);
+    const asEffect = failure(JSON.parse('{"observed":[3],"signal":[1],"backgrounds":[{"name":"flat","yields":[2]}],"systematics":[{"name":"norm","effects":{"flat":0.1,"__proto__":[0.2]}}]}'));
+    expect(asEffect.field).toBe('systematics[0].effects.__proto__');
+    expect(asEffect.reason).toMatch(/"__proto__" cannot name a process/);
+  });
 });
