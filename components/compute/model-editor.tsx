@@ -109,7 +109,7 @@ export function ModelEditor({ draft, onChange, errors }: { draft: ModelDraft; on
               <View key={p} style={styles.field}>
                 <TextField
                   label={`${s.name || `Uncertainty ${k + 1}`} on ${p} (%)`}
-                  value={s.effects[p] ?? ''}
+                  value={Object.hasOwn(s.effects, p) ? s.effects[p] : ''}
                   error={errors[`systematics.${k}.effects.${p}`]}
                   onChangeText={(t) => onChange({ ...draft, systematics: draft.systematics.map((x, m) => (m === k ? { ...x, effects: { ...x.effects, [p]: t } } : x)) })}
                   {...num}
