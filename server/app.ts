@@ -8,6 +8,7 @@ import { authNodeHandler } from './auth';
 import type { Ctx } from './context';
 import { AppError, errorHandler } from './lib/errors';
 import { resultJson } from './lib/upload';
+import { cookieWriteGuard } from './lib/origins';
 import { validate } from './lib/validate';
 import { billingRouter, billingWebhook } from './routes/billing';
 import { devRouter } from './routes/dev';
@@ -41,6 +42,13 @@ export function createApp(ctx: Ctx): Express {
   // gzip for text answers over 1 KB (the web bundle, JSON, SVG); PNG and PDF are left as they are.
   app.use(compression());
 
+  // Payment provider events: verified on their raw bytes, so before any JSON parser; signed and
+  // sent without cookies, so before the cookie write guard as well.
+  app.post('/api/billing/webhook', ...billingWebhook(ctx));
+
+  // Writes with a session cookie only from the app's own pages (server/lib/origins.ts).
+  app.use(cookieWriteGuard(ctx.env.PUBLIC_URL));
+
   // Sign-in and sign-up: rate-limited per IP and validated with the shared schemas before
   // better-auth sees them, so bad input gets the same error shape as the rest of the API.
   const authLimiter = rateLimit({
@@ -64,9 +72,6 @@ export function createApp(ctx: Ctx): Express {
     next();
   });
   app.all('/api/auth/{*any}', authNodeHandler(ctx.auth));
-
-  // Payment provider events: verified on their raw bytes, so before any JSON parser.
-  app.post('/api/billing/webhook', ...billingWebhook(ctx));
 
   // Result uploads sent as JSON may be as large as uploaded files.
   app.use(['/api/groups/:groupId/results', '/api/groups/:groupId/scans'], resultJson(ctx.env.UPLOAD_LIMIT_BYTES));

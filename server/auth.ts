@@ -5,17 +5,17 @@ import * as schema from '../db/schema';
 import type { Db } from './db';
 import type { Env } from './env';
 import { PASSWORD_MIN } from '../shared/schemas/auth';
+import { trustedOrigins } from './lib/origins';
 
 export function createAuth(db: Db, env: Env) {
   const origin = new URL(env.PUBLIC_URL);
-  const alt = origin.hostname === '127.0.0.1' ? 'localhost' : origin.hostname === 'localhost' ? '127.0.0.1' : null;
   return betterAuth({
     baseURL: env.PUBLIC_URL,
     basePath: '/api/auth',
     secret: env.AUTH_SECRET,
     database: drizzleAdapter(db, { provider: 'pg', schema }),
     emailAndPassword: { enabled: true, minPasswordLength: PASSWORD_MIN, maxPasswordLength: 128, autoSignIn: true },
-    trustedOrigins: [env.PUBLIC_URL, ...(alt ? [`${origin.protocol}//${alt}${origin.port ? `:${origin.port}` : ''}`] : [])],
+    trustedOrigins: trustedOrigins(env.PUBLIC_URL),
     session: { expiresIn: 60 * 60 * 24 * 14, updateAge: 60 * 60 * 24 },
     // Our own limiter (express-rate-limit in app.ts) guards sign-in and sign-up per IP.
     rateLimit: { enabled: false },
