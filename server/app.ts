@@ -9,6 +9,7 @@ import type { Ctx } from './context';
 import { AppError, errorHandler } from './lib/errors';
 import { resultJson } from './lib/upload';
 import { cookieWriteGuard } from './lib/origins';
+import { securityHeaders } from './lib/security-headers';
 import { validate } from './lib/validate';
 import { billingRouter, billingWebhook } from './routes/billing';
 import { devRouter } from './routes/dev';
@@ -33,12 +34,8 @@ export function createApp(ctx: Ctx): Express {
   app.set('trust proxy', 'loopback');
   app.set('query parser', 'simple');
 
-  app.use((_req, res, next) => {
-    res.setHeader('X-Content-Type-Options', 'nosniff');
-    res.setHeader('Referrer-Policy', 'same-origin');
-    res.setHeader('X-Frame-Options', 'DENY');
-    next();
-  });
+  // CSP, no framing, nosniff, referrer policy… on every answer (server/lib/security-headers.ts).
+  app.use(securityHeaders(ctx.env.PUBLIC_URL));
   // gzip for text answers over 1 KB (the web bundle, JSON, SVG); PNG and PDF are left as they are.
   app.use(compression());
 
