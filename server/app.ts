@@ -31,7 +31,9 @@ export const DEFAULT_WEB_DIST = path.resolve(__dirname, '../dist');
 export function createApp(ctx: Ctx): Express {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // Only the proxies named in TRUST_PROXY may tell the client's address (none by default): the
+  // sign-in rate limit counts per address, and a spoofed X-Forwarded-For must not reset it.
+  app.set('trust proxy', ctx.env.TRUST_PROXY);
   app.set('query parser', 'simple');
 
   // CSP, no framing, nosniff, referrer policy… on every answer (server/lib/security-headers.ts).

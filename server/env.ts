@@ -1,3 +1,4 @@
+import { isIP } from 'node:net';
 import { z } from 'zod';
 
 /**
@@ -15,6 +16,21 @@ const schema = z
     AUTH_SECRET: z.string().min(32).optional(),
     /** Requests per minute per IP on /api/auth sign-in and sign-up. */
     AUTH_RATE_LIMIT: z.coerce.number().int().positive().default(20),
+    /**
+     * Which reverse proxies may tell the client's address (X-Forwarded-For), for Express's
+     * `trust proxy`: unset = none, the connecting address is the client. See `trustProxySetting`.
+     */
+    TRUST_PROXY: z
+      .string()
+      .optional()
+      .transform((v, ctx) => {
+        const r = trustProxySetting(v);
+        if (typeof r === 'object') {
+          ctx.addIssue({ code: 'custom', message: r.error });
+          return z.NEVER;
+        }
+        return r;
+      }),
     /** "outbox": mail is stored in the dev_mail table (the local mail fake); "smtp": sent via SMTP_URL. */
     MAIL_MODE: z.enum(['outbox', 'smtp']).optional(),
     SMTP_URL: z.string().optional(),
@@ -53,6 +69,36 @@ const schema = z
       ctx.addIssue({ code: 'custom', path: ['SMTP_URL'], message: 'SMTP_URL is required when mail is sent by SMTP (MAIL_MODE=smtp, the production default)' });
     }
   });
+
+const PROXY_WORDS = new Set(['loopback', 'linklocal', 'uniquelocal']);
+
+/**
+ * TRUST_PROXY as Express's `trust proxy` value. Unset, empty or `false`: no proxy is trusted and
+ * X-Forwarded-For is ignored (a client cannot choose the address the sign-in rate limit counts).
+ * A number: that many proxies in front (the address that many hops back). Otherwise a comma-separated
+ * list of the proxies' addresses or subnets (`10.0.0.2`, `10.0.0.0/8`, `::1`) or `loopback`,
+ * `linklocal`, `uniquelocal`. `true` (trust any sender) is refused: every client could then pick
+ * its own address.
+ */
+export function trustProxySetting(raw: string | undefined): false | number | string | { error: string } {
+  const v = raw?.trim() ?? '';
+  if (v === '' || v === 'false' || v === '0') return false;
+  if (v === 'true') return { error: 'TRUST_PROXY=true would let any client set its own address; give the number of proxies in front (e.g. 1) or their addresses (e.g. loopback, 10.0.0.2)' };
+  if (/^\d+$/.test(v)) {
+    const hops = Number(v);
+    return hops <= 10 ? hops : { error: 'TRUST_PROXY: at most 10 proxies in front of the server' };
+  }
+  const parts = v.split(',').map((p) => p.trim());
+  const bad = parts.filter((p) => {
+    if (PROXY_WORDS.has(p)) return false;
+    const [addr, bits, ...rest] = p.split('/');
+    if (rest.length || !addr || !isIP(addr)) return true;
+    if (bits === undefined) return false;
+    return !/^\d{1,3}$/.test(bits) || Number(bits) > (isIP(addr) === 4 ? 32 : 128);
+  });
+  if (bad.length) return { error: `TRUST_PROXY: not an address, subnet, number of proxies or one of loopback, linklocal, uniquelocal: ${bad.join(', ')}` };
+  return parts.join(',');
+}
 
 /**
  * The payment provider as the server reaches it; `fake` when it is the local fake that the server
