@@ -8,6 +8,8 @@ import { authNodeHandler } from './auth';
 import type { Ctx } from './context';
 import { AppError, errorHandler } from './lib/errors';
 import { resultJson } from './lib/upload';
+import { cookieWriteGuard } from './lib/origins';
+import { securityHeaders } from './lib/security-headers';
 import { validate } from './lib/validate';
 import { billingRouter, billingWebhook } from './routes/billing';
 import { devRouter } from './routes/dev';
@@ -29,15 +31,13 @@ export const DEFAULT_WEB_DIST = path.resolve(__dirname, '../dist');
 export function createApp(ctx: Ctx): Express {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // Only the proxies named in TRUST_PROXY may tell the client's address (none by default): the
+  // sign-in rate limit counts per address, and a spoofed X-Forwarded-For must not reset it.
+  app.set('trust proxy', ctx.env.TRUST_PROXY);
   app.set('query parser', 'simple');
 
-  app.use((_req, res, next) => {
-    res.setHeader('X-Content-Type-Options', 'nosniff');
-    res.setHeader('Referrer-Policy', 'same-origin');
-    res.setHeader('X-Frame-Options', 'DENY');
-    next();
-  });
+  // CSP, no framing, nosniff, referrer policy… on every answer (server/lib/security-headers.ts).
+  app.use(securityHeaders(ctx.env.PUBLIC_URL));
   // A request that may write makes the remembered registry reads stale, from its start until it has
   // answered (server/read-cache.ts; writes of other processes arrive as database notifications).
   app.use((req, res, next) => {
@@ -49,6 +49,13 @@ export function createApp(ctx: Ctx): Express {
   });
   // gzip for text answers over 1 KB (the web bundle, JSON, SVG); PNG and PDF are left as they are.
   app.use(compression());
+
+  // Payment provider events: verified on their raw bytes, so before any JSON parser; signed and
+  // sent without cookies, so before the cookie write guard as well.
+  app.post('/api/billing/webhook', ...billingWebhook(ctx));
+
+  // Writes with a session cookie only from the app's own pages (server/lib/origins.ts).
+  app.use(cookieWriteGuard(ctx.env.PUBLIC_URL));
 
   // Sign-in and sign-up: rate-limited per IP and validated with the shared schemas before
   // better-auth sees them, so bad input gets the same error shape as the rest of the API.
@@ -75,9 +82,6 @@ export function createApp(ctx: Ctx): Express {
     next();
   });
   app.all('/api/auth/{*any}', authNodeHandler(ctx.auth));
-
-  // Payment provider events: verified on their raw bytes, so before any JSON parser.
-  app.post('/api/billing/webhook', ...billingWebhook(ctx));
 
   // Result uploads sent as JSON may be as large as uploaded files.
   app.use(['/api/groups/:groupId/results', '/api/groups/:groupId/scans'], resultJson(ctx.env.UPLOAD_LIMIT_BYTES));

@@ -8,6 +8,7 @@ import { PASSWORD_MAX, PASSWORD_MIN } from '../shared/schemas/auth';
 import { deleteUserVerificationValues } from '../db/queries/users';
 import { passwordResetMail, RESET_MINUTES, VERIFICATION_HOURS, verificationMail } from './services/account';
 import type { Mailer, OutgoingMail } from './services/mail';
+import { trustedOrigins } from './lib/origins';
 
 export function createAuth(db: Db, env: Env, mail: Mailer) {
   // With real SMTP the reset request does not wait for the mail server: how long the answer took
@@ -17,7 +18,6 @@ export function createAuth(db: Db, env: Env, mail: Mailer) {
     void mail.send(m).catch((err: unknown) => console.error(`[mail] could not send the ${m.kind} mail: ${(err as Error).message}`));
   };
   const origin = new URL(env.PUBLIC_URL);
-  const alt = origin.hostname === '127.0.0.1' ? 'localhost' : origin.hostname === 'localhost' ? '127.0.0.1' : null;
   return betterAuth({
     baseURL: env.PUBLIC_URL,
     basePath: '/api/auth',
@@ -51,7 +51,7 @@ export function createAuth(db: Db, env: Env, mail: Mailer) {
       sendVerificationEmail: async ({ user, url, token }) =>
         mail.send(verificationMail(user, env.PUBLIC_URL, token, new URL(url).searchParams.get('callbackURL') ?? '/')),
     },
-    trustedOrigins: [env.PUBLIC_URL, ...(alt ? [`${origin.protocol}//${alt}${origin.port ? `:${origin.port}` : ''}`] : [])],
+    trustedOrigins: trustedOrigins(env.PUBLIC_URL),
     session: { expiresIn: 60 * 60 * 24 * 14, updateAge: 60 * 60 * 24 },
     // Our own limiter (express-rate-limit in app.ts) guards sign-in and sign-up per IP.
     rateLimit: { enabled: false },

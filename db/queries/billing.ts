@@ -96,12 +96,31 @@ export type SubscriptionState = Pick<BillingAccount, 'plan' | 'status' | 'interv
 };
 
 /**
- * Applies a subscription's state seen in a provider event at `eventAt`, unless a newer event was
- * applied already (events may arrive out of order). Returns whether it was applied.
+ * The group's account row (created when missing), locked until the transaction ends: webhook
+ * events of one group are applied one at a time, each with the state read from the provider
+ * after the lock was taken.
  */
-export async function applySubscriptionState(db: Executor, groupId: string, s: SubscriptionState, eventAt: Date): Promise<boolean> {
+export async function lockBillingAccount(db: Executor, groupId: string): Promise<BillingAccount> {
   await ensureBillingAccount(db, groupId);
-  const rows = await db
+  const rows = await db.select().from(billingAccounts).where(eq(billingAccounts.groupId, groupId)).for('update');
+  return rows[0]!;
+}
+
+/**
+ * Writes the subscription's state as the provider reported it (read after `lockBillingAccount`,
+ * so the last one read is the last one written). Returns whether anything changed; `lastEventAt`
+ * (shown as "since" of a lapse) moves only then.
+ */
+export async function applySubscriptionState(db: Executor, account: BillingAccount, s: SubscriptionState, eventAt: Date): Promise<boolean> {
+  const changed =
+    account.plan !== s.plan ||
+    account.status !== s.status ||
+    account.interval !== s.interval ||
+    account.subscriptionId !== s.subscriptionId ||
+    (account.currentPeriodEnd?.getTime() ?? null) !== (s.currentPeriodEnd?.getTime() ?? null) ||
+    (!account.customerId && !!s.customerId);
+  if (!changed) return false;
+  await db
     .update(billingAccounts)
     .set({
       plan: s.plan,
@@ -110,12 +129,11 @@ export async function applySubscriptionState(db: Executor, groupId: string, s: S
       currentPeriodEnd: s.currentPeriodEnd,
       subscriptionId: s.subscriptionId,
       ...(s.customerId ? { customerId: sql`coalesce(${billingAccounts.customerId}, ${s.customerId})` } : {}),
-      lastEventAt: eventAt,
+      lastEventAt: account.lastEventAt && account.lastEventAt > eventAt ? account.lastEventAt : eventAt,
       updatedAt: sql`now()`,
     })
-    .where(and(eq(billingAccounts.groupId, groupId), or(isNull(billingAccounts.lastEventAt), lte(billingAccounts.lastEventAt, eventAt))))
-    .returning({ groupId: billingAccounts.groupId });
-  return rows.length > 0;
+    .where(eq(billingAccounts.groupId, account.groupId));
+  return true;
 }
 
 /** Records a provider event by id; false when it was handled before (a replay). */
@@ -158,9 +176,4 @@ export async function listOwners(db: Executor, groupId: string) {
     .from(memberships)
     .innerJoin(user, eq(user.id, memberships.userId))
     .where(and(eq(memberships.groupId, groupId), eq(memberships.role, 'owner')));
-}
-
-export async function providerEventSeen(db: Executor, id: string): Promise<boolean> {
-  const rows = await db.select({ id: providerEvents.id }).from(providerEvents).where(eq(providerEvents.id, id));
-  return rows.length > 0;
 }

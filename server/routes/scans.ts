@@ -1,14 +1,11 @@
 import { Router } from 'express';
-import { z } from 'zod';
 import { groupParams } from '../../shared/schemas/groups';
+import { scanParams, scanPointParams } from '../../shared/schemas/scans';
 import { requireGroup } from '../access';
 import type { Ctx } from '../context';
 import { multipartUpload } from '../lib/upload';
 import { handle } from '../lib/validate';
 import * as scans from '../services/scans';
-
-const scanParams = groupParams.extend({ scanId: z.uuid('must be a valid id') });
-const pointParams = scanParams.extend({ index: z.coerce.number().int('must be a whole number').min(0, 'must be 0 or more') });
 
 export function scansRouter(ctx: Ctx) {
   const r = Router();
@@ -36,7 +33,7 @@ export function scansRouter(ctx: Ctx) {
     res.json(await scans.cancelScan(ctx, params.groupId, params.scanId));
   }));
 
-  r.get('/groups/:groupId/scans/:scanId/points/:index', requireGroup(ctx, 'group.read'), handle({ params: pointParams }, async ({ params }, _req, res) => {
+  r.get('/groups/:groupId/scans/:scanId/points/:index', requireGroup(ctx, 'group.read'), handle({ params: scanPointParams }, async ({ params }, _req, res) => {
     res.json(await scans.getPointDetail(ctx, params.groupId, params.scanId, params.index));
   }));
 

@@ -1,13 +1,9 @@
 import { Router } from 'express';
-import { z } from 'zod';
-import { uuidParam } from '../../shared/schemas/common';
-import { createTokenSchema } from '../../shared/schemas/results';
+import { createTokenSchema, tokenParams } from '../../shared/schemas/results';
 import { requireSession } from '../access';
 import type { Ctx } from '../context';
 import { handle } from '../lib/validate';
 import * as tokens from '../services/tokens';
-
-const tokenParams = z.object({ tokenId: uuidParam });
 
 /** Personal API tokens: managed from a signed-in session only, each user seeing only their own. */
 export function tokensRouter(ctx: Ctx) {

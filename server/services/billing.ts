@@ -230,10 +230,11 @@ function statusOf(s: Stripe.Subscription.Status): SubscriptionStatus {
   }
 }
 
-function subscriptionState(sub: Stripe.Subscription, ended: boolean, eventAt: Date): q.SubscriptionState {
+function subscriptionState(sub: Stripe.Subscription, eventAt: Date): q.SubscriptionState {
   const item = sub.items.data[0];
   const interval: string | undefined = item?.price.recurring?.interval;
-  const status = ended ? 'canceled' : statusOf(sub.status);
+  const status = statusOf(sub.status);
+  const ended = status === 'canceled';
   return {
     plan: status === 'canceled' ? 'free' : 'institutional',
     status,
@@ -298,11 +299,46 @@ async function billingMails(tx: Executor, ctx: Ctx, groupId: string, inv: Stripe
 export type WebhookOutcome = { received: true; duplicate: boolean; applied: boolean };
 
 /**
+ * The subscription as the provider has it now, or null when the provider does not know it. Events
+ * carry a snapshot from when they were made and are stamped in whole seconds, so two of the same
+ * second (an update and the cancellation right after it) cannot be put in order from the event;
+ * the provider's current object can. Unreachable: 502, the event is not recorded and the provider
+ * sends it again.
+ */
+async function currentSubscription(stripe: Stripe, id: string): Promise<Stripe.Subscription | null> {
+  return provider('the subscription of an event', async () => {
+    try {
+      return await stripe.subscriptions.retrieve(id);
+    } catch (e) {
+      if (!(e instanceof Stripe.errors.StripeInvalidRequestError && e.code === 'resource_missing')) throw e;
+      console.error(`[billing] subscription ${id} of an event is unknown to the provider; the event is recorded and changes nothing`);
+      return null;
+    }
+  });
+}
+
+/**
+ * Applies the provider's current state of subscription `subId` to the group: the account row is
+ * locked first and the subscription read after, so events of one group apply one at a time and
+ * the state read last is the state written last, whatever order the events came in. A late event
+ * about an earlier subscription must not end the one the group pays now.
+ */
+async function applyCurrentSubscription(tx: Executor, stripe: Stripe, groupId: string, subId: string, eventAt: Date): Promise<boolean> {
+  const account = await q.lockBillingAccount(tx, groupId);
+  if (account.subscriptionId && account.subscriptionId !== subId && account.status !== 'canceled' && account.status !== 'none') return false;
+  const sub = await currentSubscription(stripe, subId);
+  if (!sub) return false;
+  return q.applySubscriptionState(tx, account, subscriptionState(sub, eventAt), eventAt);
+}
+
+/**
  * Handles one provider event: verifies its signature on the raw bytes (400 when unsigned,
  * tampered, signed with another secret or older than the tolerance), records its id in the same
- * transaction as its effect (a replay is recognised and does nothing), applies subscription
- * changes only when no newer event was applied (events come in any order), always keeps invoices,
- * and mails receipts and payment failures to the group's owners after the change is committed.
+ * transaction as its effect (a replay is recognised and does nothing), applies the subscription's
+ * current state read from the provider (so events may come in any order, also within one second),
+ * always keeps invoices, and mails receipts and payment failures to the group's owners after the
+ * change is committed. The provider is asked while the group's account row is locked: one
+ * group's events queue behind each other (a slow provider holds that row, no other group's).
  */
 export async function handleWebhook(ctx: Ctx, raw: unknown, signature: string | undefined): Promise<WebhookOutcome> {
   const stripe = requireStripe(ctx);
@@ -318,13 +354,6 @@ export async function handleWebhook(ctx: Ctx, raw: unknown, signature: string | 
     throw new AppError(400, 'invalid_payload', `The event cannot be read: ${(e as Error).message}`);
   }
 
-  // The subscription behind a completed checkout, read before the transaction (a network call).
-  let checkoutSubscription: Stripe.Subscription | undefined;
-  if (event.type === 'checkout.session.completed' && !(await q.providerEventSeen(ctx.db, event.id))) {
-    const subId = idOf(event.data.object.subscription);
-    if (subId) checkoutSubscription = await provider('the subscription of a checkout', () => stripe.subscriptions.retrieve(subId));
-  }
-
   const eventAt = new Date(event.created * 1000);
   let applied = false;
   let mails: OutgoingMail[] = [];
@@ -337,7 +366,8 @@ export async function handleWebhook(ctx: Ctx, raw: unknown, signature: string | 
         if (!groupId) break;
         const customerId = idOf(s.customer);
         if (customerId) await q.setCustomerIfMissing(tx, groupId, customerId);
-        if (checkoutSubscription) applied = await q.applySubscriptionState(tx, groupId, subscriptionState(checkoutSubscription, false, eventAt), eventAt);
+        const subId = idOf(s.subscription);
+        if (subId) applied = await applyCurrentSubscription(tx, stripe, groupId, subId, eventAt);
         break;
       }
       case 'customer.subscription.created':
@@ -346,10 +376,7 @@ export async function handleWebhook(ctx: Ctx, raw: unknown, signature: string | 
         const sub = event.data.object;
         const groupId = await groupOf(tx, sub.metadata?.groupId, { customerId: idOf(sub.customer), subscriptionId: sub.id });
         if (!groupId) break;
-        // A late event about an earlier subscription must not end the one the group pays now.
-        const account = await q.getBillingAccount(tx, groupId);
-        if (account?.subscriptionId && account.subscriptionId !== sub.id && account.status !== 'canceled' && account.status !== 'none') break;
-        applied = await q.applySubscriptionState(tx, groupId, subscriptionState(sub, event.type === 'customer.subscription.deleted', eventAt), eventAt);
+        applied = await applyCurrentSubscription(tx, stripe, groupId, sub.id, eventAt);
         break;
       }
       case 'invoice.paid':

@@ -6,6 +6,7 @@ import { z } from 'zod';
 import type { FigureLayerData, TypesetLabel } from '../figure/types';
 import { FIGURE_LIMITS, FIGURE_THEMES, figureParams, houseStyleSchema, layerSchema, type FigureSpec, type FigureTheme, type HouseStyle } from './figures';
 import type { ResultState } from './results';
+import { pageParams, uuidParam, versionParam } from './common';
 
 // ---------------------------------------------------------------------------------------------
 // Requests
@@ -54,10 +55,10 @@ export const outreachFigureSchema = duplicateFigureSchema.extend({
   size: z.enum(['web', 'slide'], { error: 'must be "web" or "slide"' }).default('web'),
 });
 
-export const figureVersionParams = figureParams.extend({ version: z.coerce.number().int('must be a whole number').positive('must be positive') });
-export const figureIdParams = z.object({ figureId: z.uuid('must be a valid id') });
+export const figureVersionParams = figureParams.extend({ version: versionParam });
+export const figureIdParams = z.object({ figureId: uuidParam });
 
-export const hueParams = z.object({ groupId: z.uuid('must be a valid id'), resultId: z.uuid('must be a valid id') });
+export const hueParams = z.object({ groupId: uuidParam, resultId: uuidParam });
 export const hueSchema = z.object({ hue: z.number({ error: 'must be a number' }).int('must be a whole number').min(0, 'must be 0 to 11').max(11, 'must be 0 to 11') });
 
 export const houseStyleBodySchema = z.object({ style: houseStyleSchema });
@@ -65,8 +66,7 @@ export const houseStyleBodySchema = z.object({ style: houseStyleSchema });
 export const publicFigureListQuery = z.object({
   q: z.string().trim().max(200).optional(),
   theme: z.enum(FIGURE_THEMES).optional(),
-  page: z.coerce.number().int().min(1).default(1),
-  pageSize: z.coerce.number().int().min(1).max(100).default(20),
+  ...pageParams,
 });
 export type PublicFigureListQuery = Partial<z.output<typeof publicFigureListQuery>>;
 

@@ -5,6 +5,7 @@
  * font, math with MathJax) so every output shows the same glyphs.
  */
 import { z } from 'zod';
+import { intField, intParam, uuidParam } from './common';
 
 import { FIGURE_THEMES, type FigureTheme } from '../../themes/figure/types';
 
@@ -55,7 +56,7 @@ export type LayerParts = z.output<typeof layerPartsSchema>;
 export const layerSchema = z.object({
   resultId: z.uuid('must be a result id'),
   /** The pinned result version: the figure draws exactly this one. */
-  version: z.number().int('must be a whole number').positive('must be positive'),
+  version: intField({ min: 1 }),
   /** Legend entry; empty = the result's title. */
   label: label.default(''),
   show: layerPartsSchema.default({ observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false }),
@@ -135,13 +136,13 @@ export function figureSizeCm(spec: Pick<FigureSpec, 'size'>): { widthCm: number;
 
 export const createFigureSchema = z.object({ spec: figureSpecSchema, public: z.boolean().default(false) });
 export const saveFigureSchema = z.object({ spec: figureSpecSchema, note: z.string().trim().max(300).default('') });
-export const figureParams = z.object({ groupId: z.uuid('must be a valid id'), figureId: z.uuid('must be a valid id') });
+export const figureParams = z.object({ groupId: uuidParam, figureId: uuidParam });
 
 export const RENDER_FORMATS = ['svg', 'pdf', 'png'] as const;
 export type RenderFormat = (typeof RENDER_FORMATS)[number];
 /** Query of the render routes: version (default: latest), size preset override, PNG resolution. */
 export const renderQuery = z.object({
-  version: z.coerce.number().int().positive().optional(),
+  version: intParam({ min: 1 }).optional(),
   size: z.enum(SIZE_PRESET_IDS).exclude(['custom']).optional(),
-  dpi: z.coerce.number().int().min(FIGURE_LIMITS.minDpi, `must be at least ${FIGURE_LIMITS.minDpi}`).max(FIGURE_LIMITS.maxDpi, `must be at most ${FIGURE_LIMITS.maxDpi}`).default(300),
+  dpi: intParam({ min: FIGURE_LIMITS.minDpi, max: FIGURE_LIMITS.maxDpi }).default(300),
 });

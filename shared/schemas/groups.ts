@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { GROUP_ROLES } from '../access';
-import { email, shortText, uuidParam } from './common';
+import { email, shortText, userIdParam, uuidParam } from './common';
 
 export const groupRoleSchema = z.enum(GROUP_ROLES, { error: `must be one of ${GROUP_ROLES.join(', ')}` });
 
@@ -19,7 +19,7 @@ export const updateGroupSchema = z
 export type UpdateGroupInput = z.input<typeof updateGroupSchema>;
 
 export const groupParams = z.object({ groupId: uuidParam });
-export const memberParams = z.object({ groupId: uuidParam, userId: z.string().min(1).max(100) });
+export const memberParams = z.object({ groupId: uuidParam, userId: userIdParam });
 export const invitationParams = z.object({ groupId: uuidParam, invitationId: uuidParam });
 export const invitationTokenParams = z.object({ token: z.string().regex(/^[A-Za-z0-9_-]{20,100}$/, 'must be an invitation token') });
 

@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import { EXPECTED_KEYS } from './counting-model';
-import { shortText } from './common';
+import { intParam, pageParams, shortText, slugParam, uuidParam, versionParam } from './common';
 
 export const RESULT_STATES = ['draft', 'published', 'superseded', 'retracted'] as const;
 export type ResultState = (typeof RESULT_STATES)[number];
@@ -96,24 +96,20 @@ export const publishSchema = z.object({ public: z.boolean({ error: 'must be true
 export const retractSchema = z.object({ reason: z.string().trim().min(5, 'give a reason (at least 5 characters); it is shown to everyone who opens the result').max(1000) });
 export const visibilitySchema = z.object({ public: z.boolean({ error: 'must be true or false' }) });
 
-export const resultParams = z.object({ groupId: z.uuid('must be a valid id'), resultId: z.uuid('must be a valid id') });
-export const versionParams = resultParams.extend({ version: z.coerce.number().int('must be a whole number').positive('must be positive') });
-export const permalinkParams = z.object({
-  slug: z.string().regex(/^[a-z0-9-]{3,80}$/, 'must be a result link name'),
-  version: z.coerce.number().int().positive(),
-});
+export const resultParams = z.object({ groupId: uuidParam, resultId: uuidParam });
+export const versionParams = resultParams.extend({ version: versionParam });
+export const permalinkParams = z.object({ slug: slugParam, version: versionParam });
 
 export const RESULT_SORTS = ['updated', 'title', 'sqrtS'] as const;
 export const resultListQuery = z.object({
   q: z.string().trim().max(200).optional(),
-  groupId: z.uuid('must be a valid id').optional(),
+  groupId: uuidParam.optional(),
   parameter: z.string().trim().max(60).optional(),
-  sqrtS: z.coerce.number().positive().optional(),
+  sqrtS: z.coerce.number({ error: 'must be a number (TeV)' }).positive('must be positive').max(10_000, 'must be at most 10000 TeV').optional(),
   method: z.enum(RESULT_METHODS).optional(),
   state: z.enum(RESULT_STATES).optional(),
   sort: z.enum(RESULT_SORTS).default('updated'),
-  page: z.coerce.number().int().min(1).default(1),
-  pageSize: z.coerce.number().int().min(1).max(100).default(20),
+  ...pageParams,
 });
 export type ResultListQuery = Partial<z.output<typeof resultListQuery>>;
 
@@ -186,4 +182,5 @@ export const limitFileSchema = z.object({
 export type LimitFile = z.input<typeof limitFileSchema>;
 
 export const createTokenSchema = z.object({ name: shortText(80) });
+export const tokenParams = z.object({ tokenId: uuidParam });
 export type ApiTokenSummary = { id: string; name: string; prefix: string; createdAt: string; lastUsedAt: string | null };

@@ -5,6 +5,7 @@
 import { z } from 'zod';
 import { asimovChoiceSchema, type CountingModelInput } from './counting-model';
 import { versionMetaSchema } from './results';
+import { intParam, uuidParam } from './common';
 
 /**
  * One grid point: the parameter value, an optional nominal σ×B, and its counting model. The model
@@ -46,6 +47,10 @@ export const createScanSchema = z.object({
   options: scanOptionsSchema,
   meta: versionMetaSchema,
   /** Add the scan as a new draft version of this result instead of creating a result. */
-  resultId: z.uuid('must be a valid id').optional(),
+  resultId: uuidParam.optional(),
 });
 export type CreateScanInput = z.input<typeof createScanSchema>;
+
+/** Route parameters of one scan and of one of its grid points. */
+export const scanParams = z.object({ groupId: uuidParam, scanId: uuidParam });
+export const scanPointParams = scanParams.extend({ index: intParam({ min: 0 }) });

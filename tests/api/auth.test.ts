@@ -268,8 +268,40 @@ describe('rate limit on sign-in and sign-up', () => {
       .send({ name: 'Late', email: uniqueEmail('late'), password: PASSWORD });
     expect(up.status).toBe(429);
 
-    // The rest of the API is not limited, and another client (behind the trusted local proxy) is counted apart.
+    // The rest of the API is not limited.
     expect((await request(limited.app).get('/api/health')).status).toBe(200);
-    expect((await attempt('203.0.113.7')).status).toBe(401);
+  });
+
+  test('by default no proxy is trusted: a made-up X-Forwarded-For per attempt does not get around the limit', async () => {
+    const own = await startTestApp({ AUTH_RATE_LIMIT: '3' });
+    try {
+      const statuses = [];
+      for (let i = 0; i < 6; i++) {
+        const res = await request(own.app)
+          .post('/api/auth/sign-in/email')
+          .set('Origin', TEST_ORIGIN)
+          .set('X-Forwarded-For', `203.0.113.${i + 1}`)
+          .send({ email: 'someone@lab.example', password: 'guessing-passwords' });
+        statuses.push(res.status);
+      }
+      expect(statuses).toEqual([401, 401, 401, 429, 429, 429]);
+    } finally {
+      await own.close();
+    }
+  });
+
+  test('with TRUST_PROXY naming the proxy, clients behind it are counted by their forwarded address', async () => {
+    // The tests connect from 127.0.0.1: here that is the trusted proxy.
+    const proxied = await startTestApp({ AUTH_RATE_LIMIT: '3', TRUST_PROXY: 'loopback' });
+    try {
+      const attempt = (ip: string) =>
+        request(proxied.app).post('/api/auth/sign-in/email').set('Origin', TEST_ORIGIN).set('X-Forwarded-For', ip).send({ email: 'someone@lab.example', password: 'guessing-passwords' });
+      const one = [];
+      for (let i = 0; i < 4; i++) one.push((await attempt('203.0.113.7')).status);
+      expect(one).toEqual([401, 401, 401, 429]);
+      expect((await attempt('198.51.100.20')).status).toBe(401);
+    } finally {
+      await proxied.close();
+    }
   });
 });

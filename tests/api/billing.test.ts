@@ -3,6 +3,7 @@ import request from 'supertest';
 import { listMailTo } from '@/db/queries/mail';
 import { providerEvents, scans } from '@/db/schema';
 import { subscriptionJson, invoiceJson } from '@/server/fakes/stripe/objects';
+import { eventPayload } from '@/server/fakes/stripe/webhooks';
 import { FREE_PLAN, GB, INSTITUTIONAL_PLAN, MB, type PlanView } from '@/shared/plans';
 import { startQueue } from '@/server/jobs/queue';
 import { createStripeClient } from '@/server/services/billing';
@@ -302,6 +303,49 @@ describe('webhook signatures, replays and order', () => {
     expect(await plan(crew.owner, groupId)).toMatchObject({ plan: { id: 'institutional' }, status: 'active' });
     expect(await countRows(t, 'invoices', groupId)).toBe(1);
     expect(await mailsOf(crew.owner, 'billing_receipt')).toHaveLength(1);
+  });
+
+  test.each(['as they happened', 'reversed'] as const)(
+    'an update and the cancellation that follows it in the same second leave the plan canceled, arriving %s',
+    async (order) => {
+      const { groupId, crew } = await makeGroupWithRoles(t);
+      const subId = await subscribe(crew, groupId);
+      const yearly = t.fake.engine.alternativePrices(subId)[0]!;
+      // The owner switches to yearly billing and cancels right after: two subscription events
+      // that the provider stamps with the same second (`created` has whole seconds only).
+      const second = t.fake.engine.now();
+      const events = [...t.fake.engine.switchPrice(subId, yearly.id), ...t.fake.engine.cancel(subId)]
+        .filter((e) => e.type.startsWith('customer.subscription.'))
+        .map((e) => ({ ...e, created: second }));
+      expect(events.map((e) => e.type)).toEqual(['customer.subscription.updated', 'customer.subscription.deleted']);
+      for (const e of order === 'reversed' ? [...events].reverse() : events) {
+        const payload = eventPayload(e);
+        const res = await postEvent({ payload, signature: t.fake.webhooks.sign(payload) });
+        expect(res.status).toBe(200);
+      }
+      expect(await plan(crew.owner, groupId)).toMatchObject({ plan: { id: 'free' }, status: 'canceled' });
+      expect((await billingAccountOf(t, groupId))?.subscriptionId).toBe(subId);
+    },
+  );
+
+  test('a subscription event the provider cannot be asked about is not recorded, so the provider sends it again', async () => {
+    const { groupId, crew } = await makeGroupWithRoles(t);
+    const subId = await subscribe(crew, groupId);
+    const [update] = t.fake.engine.switchPrice(subId, t.fake.engine.alternativePrices(subId)[0]!.id).filter((e) => e.type === 'customer.subscription.updated');
+    const payload = eventPayload(update!);
+    const stripe = t.ctx.stripe;
+    t.ctx.stripe = createStripeClient({ ...t.ctx.env.stripe, port: 1 });
+    try {
+      const res = await postEvent({ payload, signature: t.fake.webhooks.sign(payload) });
+      expect(res.status).toBe(502);
+      expect(await t.ctx.db.select().from(providerEvents).where(eq(providerEvents.id, update!.id))).toHaveLength(0);
+    } finally {
+      t.ctx.stripe = stripe;
+    }
+    // The retry, with the provider reachable again, applies the yearly interval.
+    const again = await postEvent({ payload, signature: t.fake.webhooks.sign(payload) });
+    expect(again.body).toMatchObject({ duplicate: false, applied: true });
+    expect((await plan(crew.owner, groupId)).interval).toBe('year');
   });
 
   test('a state change older than the last applied one is ignored, but its invoice is still kept', async () => {

@@ -54,7 +54,7 @@ describe('the development inbox', () => {
 describe('in production', () => {
   let prod: TestApp;
   beforeAll(async () => {
-    prod = await startTestApp({ NODE_ENV: 'production', AUTH_SECRET: 'x'.repeat(40), MAIL_MODE: 'outbox' });
+    prod = await startTestApp({ NODE_ENV: 'production', AUTH_SECRET: 'tV7pQ2xL9mZc4rB8nK1sW6dF3hJ0yG5a', MAIL_MODE: 'outbox' });
   });
   afterAll(async () => prod?.close());
 

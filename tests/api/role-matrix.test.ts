@@ -7,6 +7,7 @@ import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
 import { uniqueEmail, verifyAddress, type Agent, type TestApp } from '../helpers/app';
 import { giveCustomer, signedEvent, startBillingTestApp, type BillingTestApp } from '../helpers/billing';
+import { apiRoutesOf, fillPath, type Method } from '../helpers/routes';
 import { figureSpec as oneColumnSpec, makeFigure as makeFigureAs } from '../helpers/figures';
 import {
   makeCrew,
@@ -31,7 +32,6 @@ import {
  * the Express router so that a route added without an entry here fails the suite.
  */
 
-type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
 /** Who may call: anyone; any signed-in user; or members of the group with at least this role. */
 type Access = 'anonymous' | 'signed-in' | GroupRole;
 type CallerKind = GroupRole | 'non-member' | 'anonymous';
@@ -688,14 +688,6 @@ function expectedStatus(entry: Entry, caller: CallerKind): number {
 
 const ERROR_CODE: Record<number, string> = { 401: 'unauthorized', 403: 'forbidden', 404: 'not_found' };
 
-function fill(path: string, params: Record<string, string>): string {
-  return path.replace(/:(\w+)/g, (_m, name: string) => {
-    const v = params[name];
-    if (v === undefined) throw new Error(`no value for :${name} in ${path}`);
-    return encodeURIComponent(v);
-  });
-}
-
 let t: BillingTestApp;
 let w: World;
 
@@ -728,7 +720,7 @@ describe('role × route matrix', () => {
       const person = caller === 'anonymous' ? undefined : caller === 'non-member' ? w.outsider : w.crew[caller];
       const prepared = await entry.prepare(w, groupId, { kind: caller, person });
       const agent: Agent = person?.agent ?? request.agent(t.app);
-      const url = fill(entry.path, prepared.params);
+      const url = fillPath(entry.path, prepared.params);
       let call = agent[entry.method](url);
       if (prepared.headers) call = call.set(prepared.headers);
       if (prepared.body !== undefined) call = call.send(prepared.body);
@@ -747,47 +739,7 @@ describe('role × route matrix', () => {
 // ---------------------------------------------------------------------------------------------
 // Every registered route has an entry.
 
-/** The parts of Express 5's router layers (package `router` 2.x) that the walk reads. */
-type RouterLayer = {
-  name: string;
-  rawPath?: unknown;
-  route?: { path: string | string[]; methods: Record<string, boolean> };
-  handle?: { stack?: RouterLayer[] };
-};
-
-function joinPath(prefix: string, p: string): string {
-  const joined = `${prefix.replace(/\/$/, '')}/${p.replace(/^\//, '')}`;
-  return joined.length > 1 ? joined.replace(/\/$/, '') : joined;
-}
-
-/** `METHOD /full/path` of every route layer, descending into mounted routers. */
-function registeredRoutes(stack: RouterLayer[], prefix = ''): string[] {
-  const out: string[] = [];
-  for (const layer of stack) {
-    if (layer.route) {
-      const paths = Array.isArray(layer.route.path) ? layer.route.path : [layer.route.path];
-      for (const p of paths) {
-        for (const [m, on] of Object.entries(layer.route.methods)) if (on && m !== '_all') out.push(`${m.toUpperCase()} ${joinPath(prefix, p)}`);
-      }
-    } else if (Array.isArray(layer.handle?.stack)) {
-      // A mounted router: router 2.x keeps the mount path as `rawPath` (its matchers are functions).
-      if (typeof layer.rawPath !== 'string') throw new Error(`cannot tell where the router "${layer.name}" is mounted`);
-      out.push(...registeredRoutes(layer.handle.stack, joinPath(prefix, layer.rawPath)));
-    }
-  }
-  return out;
-}
-
-const isOurApiRoute = (r: string) => {
-  const path = r.slice(r.indexOf(' ') + 1);
-  return path.startsWith('/api/') && !path.startsWith('/api/auth/');
-};
 const key = (e: Entry) => `${e.method.toUpperCase()} ${e.path}`;
-
-function apiRoutesOf(app: unknown): string[] {
-  const stack = (app as { router: { stack: RouterLayer[] } }).router.stack;
-  return [...new Set(registeredRoutes(stack).filter(isOurApiRoute))].sort();
-}
 
 describe('the matrix covers every route', () => {
   test('every /api route registered in the app (development mode) has a matrix entry, and every entry is registered', () => {

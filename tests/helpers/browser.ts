@@ -94,11 +94,16 @@ export async function newPage(e: E2E, viewport: ViewportName): Promise<{ context
   page.setDefaultTimeout(15_000);
   const errors: string[] = [];
   page.on('pageerror', (err) => errors.push(err.message));
+  // A resource, style or script the content security policy refused (server/lib/security-headers.ts)
+  // is a broken screen too: Chromium reports it on the console.
+  page.on('console', (m) => {
+    if (m.type() === 'error' && /Content Security Policy/i.test(m.text())) errors.push(`CSP: ${m.text()}`);
+  });
   uncaught.set(page, errors);
   return { context, page };
 }
 
-/** Uncaught errors the page threw so far (a screen that crashed fails its test). */
+/** Uncaught errors the page threw so far, and refusals of the content security policy (a screen that crashed fails its test). */
 export const pageErrors = (page: Page): string[] => uncaught.get(page) ?? [];
 const uncaught = new WeakMap<Page, string[]>();
 
