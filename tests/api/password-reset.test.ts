@@ -189,7 +189,7 @@ describe('choosing the new password', () => {
 describe('rate limit', () => {
   let limited: TestApp;
   beforeAll(async () => {
-    limited = await startTestApp({ AUTH_RATE_LIMIT: '3' });
+    limited = await startTestApp({ AUTH_RATE_LIMIT: '3', TRUST_PROXY: 'loopback' }) // behind a proxy on loopback: X-Forwarded-For names the client;
   });
   afterAll(async () => limited?.close());
 
