@@ -63,7 +63,7 @@ export default tseslint.config(
     rules: restrict([[['server/routes', 'app', 'components', 'hooks', 'scripts', '../routes'], 'Jobs never import routes or the app.']]),
   },
   {
-    files: ['server/{access,auth,context,db,env,read-cache,session-cache}.ts', 'server/lib/**/*.ts'],
+    files: ['server/{access,auth,context,env,read-cache,session-cache}.ts', 'server/lib/**/*.ts', 'server/clients/**/*.ts'],
     rules: {
       'no-restricted-imports': [
         'error',

@@ -4,7 +4,7 @@ import { uuidParam } from '../shared/schemas/common';
 import { getRole } from '../db/queries/groups';
 import type { Ctx } from './context';
 import { AppError, forbidden, notFound, unauthorized } from './lib/errors';
-import { userForToken } from './services/tokens';
+import { userForToken } from './lib/api-tokens';
 
 /**
  * The access-control module: who is calling, and what their role in a group allows. Every group
@@ -30,7 +30,7 @@ async function resolveUser(ctx: Ctx, req: Request) {
   if (header !== undefined) {
     const token = /^Bearer\s+(\S+)\s*$/i.exec(header)?.[1];
     if (!token) throw unauthorized('The Authorization header must be "Bearer <API token>"');
-    const u = await userForToken(ctx, token);
+    const u = await userForToken(ctx.db, token);
     if (!u) throw unauthorized('This API token is not valid: it was revoked or mistyped. Create a new one under Account, API tokens');
     req.authVia = 'token';
     return u;

@@ -6,8 +6,8 @@ import type { Db } from '../db/client';
 import type { Env } from './env';
 import { PASSWORD_MAX, PASSWORD_MIN } from '../shared/schemas/auth';
 import { deleteUserVerificationValues } from '../db/queries/users';
-import { passwordResetMail, RESET_MINUTES, VERIFICATION_HOURS, verificationMail } from './services/account';
-import type { Mailer, OutgoingMail } from './services/mail';
+import { passwordResetMail, RESET_MINUTES, VERIFICATION_HOURS, verificationMail } from './lib/account-mail';
+import type { Mailer, OutgoingMail } from './clients/mail';
 import { trustedOrigins } from './lib/origins';
 
 export function createAuth(db: Db, env: Env, mail: Mailer) {

@@ -3,8 +3,8 @@ import type Stripe from 'stripe';
 import { createAuth, type Auth } from './auth';
 import { createDb, type Db } from '../db/client';
 import type { Env } from './env';
-import { createStripeClient } from './services/billing';
-import { createMailer, type Mailer } from './services/mail';
+import { createStripeClient } from './clients/stripe';
+import { createMailer, type Mailer } from './clients/mail';
 import { createReadCache, type ReadCache } from './read-cache';
 import { createSessionCache, type SessionCache } from './session-cache';
 

@@ -4,9 +4,8 @@ import * as q from '../../db/queries/billing';
 import { getGroupName } from '../../db/queries/groups';
 import type { Ctx } from '../context';
 import type { Executor } from '../../db/client';
-import type { StripeSettings } from '../env';
 import { AppError, notFound } from '../lib/errors';
-import { linkMail, type OutgoingMail } from './mail';
+import { linkMail, type OutgoingMail } from '../clients/mail';
 import { effectivePlan, isReadOnly, lapseNotice } from './plans';
 
 /**
@@ -20,20 +19,6 @@ export const WEBHOOK_TOLERANCE_SECONDS = 300;
 
 const PRODUCT_ID = 'bandwright_institutional';
 const lookupKey = (interval: BillingInterval) => `bandwright_institutional_${interval}`;
-
-/** The SDK client for the configured provider (or the local fake); null when no key is configured. */
-export function createStripeClient(s: StripeSettings): Stripe | null {
-  if (!s.secretKey) return null;
-  return new Stripe(s.secretKey, {
-    ...(s.host ? { host: s.host } : {}),
-    ...(s.port ? { port: s.port } : {}),
-    ...(s.protocol ? { protocol: s.protocol } : {}),
-    // The fake answers at once or not at all; the real provider gets the SDK's safe retries.
-    maxNetworkRetries: s.fake || s.host === '127.0.0.1' ? 0 : 2,
-    timeout: 20_000,
-    telemetry: false,
-  });
-}
 
 function requireStripe(ctx: Ctx): Stripe {
   if (!ctx.stripe) throw new AppError(503, 'billing_unavailable', 'Billing is not configured on this server (STRIPE_SECRET_KEY is not set)');

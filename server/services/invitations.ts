@@ -6,7 +6,7 @@ import * as q from '../../db/queries/invitations';
 import type { Ctx } from '../context';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
 import { isAddressVerified } from './account';
-import { linkMail } from './mail';
+import { linkMail } from '../clients/mail';
 
 const INVITATION_DAYS = 14;
 const hashToken = (token: string) => createHash('sha256').update(token).digest('hex');

@@ -1,17 +1,15 @@
-import { createHash, randomBytes } from 'node:crypto';
+import { randomBytes } from 'node:crypto';
 import type { ApiTokenSummary } from '../../shared/schemas/results';
 import * as q from '../../db/queries/tokens';
 import type { Ctx } from '../context';
+import { hashToken } from '../lib/api-tokens';
 import { notFound } from '../lib/errors';
 
 /**
  * Personal API tokens: `bw_` + 32 random base64url characters (192 bits). Only the SHA-256 is
  * stored, with the first characters as a visible prefix so its owner can tell tokens apart.
  */
-export const TOKEN_PATTERN = /^bw_[A-Za-z0-9_-]{32}$/;
 const PREFIX_LENGTH = 10;
-
-export const hashToken = (token: string) => createHash('sha256').update(token).digest('hex');
 
 type Row = Awaited<ReturnType<typeof q.listTokens>>[number];
 const toSummary = (t: Row): ApiTokenSummary => ({
@@ -35,13 +33,4 @@ export async function createToken(ctx: Ctx, userId: string, name: string): Promi
 
 export async function revokeToken(ctx: Ctx, userId: string, tokenId: string): Promise<void> {
   if (!(await q.deleteToken(ctx.db, userId, tokenId))) throw notFound('Token');
-}
-
-/** The user behind a token (acting with their current roles), or undefined for unknown or revoked tokens. */
-export async function userForToken(ctx: Ctx, token: string) {
-  if (!TOKEN_PATTERN.test(token)) return undefined;
-  const found = await q.findUserByTokenHash(ctx.db, hashToken(token));
-  if (!found) return undefined;
-  await q.touchToken(ctx.db, found.tokenId);
-  return { id: found.id, name: found.name, email: found.email };
 }

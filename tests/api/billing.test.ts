@@ -6,7 +6,7 @@ import { subscriptionJson, invoiceJson } from '@/server/fakes/stripe/objects';
 import { eventPayload } from '@/server/fakes/stripe/webhooks';
 import { FREE_PLAN, GB, INSTITUTIONAL_PLAN, MB, type PlanView } from '@/shared/plans';
 import { startQueue } from '@/server/jobs/queue';
-import { createStripeClient } from '@/server/services/billing';
+import { createStripeClient } from '@/server/clients/stripe';
 import {
   billingAccountOf,
   countRows,
