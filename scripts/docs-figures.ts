@@ -1,5 +1,5 @@
 /**
- * `npm run docs:figures`: renders the public demo figures (db/seed-figures.ts) to docs/figures/ as
+ * `npm run docs:figures`: renders the public demo figures (server/seed/seed-figures.ts) to docs/figures/ as
  * SVG and PNG, through the same public render path the API serves, on a throwaway PostgreSQL
  * with the demo seed. Run it after changing the renderers or the themes, and commit the files.
  */
@@ -7,8 +7,8 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import { figures } from '../db/schema';
-import { seedDemo } from '../db/seed';
-import { DEMO_FIGURES } from '../db/seed-figures';
+import { seedDemo } from '../server/seed/seed';
+import { DEMO_FIGURES } from '../server/seed/seed-figures';
 import { closeContext, createContext } from '../server/context';
 import { runMigrations } from '../db/client';
 import { loadEnv } from '../server/env';

@@ -1,5 +1,5 @@
 import path from 'node:path';
-import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../db/seed';
+import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../server/seed/seed';
 import { closeContext, createContext } from '../server/context';
 import { runMigrations } from '../db/client';
 import { loadEnv } from '../server/env';

@@ -13,7 +13,7 @@ import autocannon from 'autocannon';
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
 import { Client } from 'pg';
-import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../../db/seed';
+import { DEMO_PASSWORD, DEMO_USERS, seedDemo } from '../../server/seed/seed';
 import { closeContext, createContext } from '../../server/context';
 import { runMigrations } from '../../db/client';
 import { loadEnv } from '../../server/env';

@@ -1,7 +1,7 @@
 import request from 'supertest';
 import { figures } from '@/db/schema';
-import { seedDemo } from '@/db/seed';
-import { DEMO_FIGURES } from '@/db/seed-figures';
+import { seedDemo } from '@/server/seed/seed';
+import { DEMO_FIGURES } from '@/server/seed/seed-figures';
 import type { PublicFigurePage } from '@/shared/schemas/figure-views';
 import { startTestApp, type TestApp } from '../helpers/app';
 

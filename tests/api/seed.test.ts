@@ -1,7 +1,7 @@
 import request from 'supertest';
 import { eq } from 'drizzle-orm';
-import { DEMO_RESULTS } from '@/db/demo-results';
-import { DEMO_GROUPS, DEMO_PASSWORD, DEMO_USERS, seedDemo } from '@/db/seed';
+import { DEMO_RESULTS } from '@/server/seed/demo-results';
+import { DEMO_GROUPS, DEMO_PASSWORD, DEMO_USERS, seedDemo } from '@/server/seed/seed';
 import { devMail, figures, groups, results, user } from '@/db/schema';
 import { startTestApp, TEST_ORIGIN, type TestApp } from '../helpers/app';
 import type { ResultPage, ResultVersion } from '@/shared/schemas/results';

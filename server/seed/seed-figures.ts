@@ -1,9 +1,9 @@
 import { and, eq } from 'drizzle-orm';
-import { figureSpecSchema, type FigureSpecInput } from '../shared/schemas/figures';
-import type { Ctx } from '../server/context';
-import * as figuresService from '../server/services/figures';
-import { getRole } from './queries/groups';
-import { figures, groups, results, user } from './schema';
+import { figureSpecSchema, type FigureSpecInput } from '../../shared/schemas/figures';
+import type { Ctx } from '../context';
+import * as figuresService from '../services/figures';
+import { getRole } from '../../db/queries/groups';
+import { figures, groups, results, user } from '../../db/schema';
 
 /**
  * Demo figures of the invented Lanternfish groups, made through the figure service (so versions,

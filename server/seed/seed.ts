@@ -1,20 +1,20 @@
 import { eq } from 'drizzle-orm';
-import type { GroupRole } from '../shared/access';
-import { curveToCsv } from '../shared/curves/csv';
-import type { Ctx } from '../server/context';
-import * as resultsService from '../server/services/results';
+import type { GroupRole } from '../../shared/access';
+import { curveToCsv } from '../../shared/curves/csv';
+import type { Ctx } from '../context';
+import * as resultsService from '../services/results';
 import { DEMO_RESULTS } from './demo-results';
 import { seedDemoFigures } from './seed-figures';
-import { addMember, getRole, insertGroup, slugTaken } from './queries/groups';
-import { slugExists } from './queries/results';
-import { groups, user } from './schema';
+import { addMember, getRole, insertGroup, slugTaken } from '../../db/queries/groups';
+import { slugExists } from '../../db/queries/results';
+import { groups, user } from '../../db/schema';
 
 /**
  * Demo data, all invented: the Halcyon Ring (a fictional 18 TeV collider) and the Lanternfish
  * experiment on it, with an analysis team, a combination board and an outreach office.
  * Idempotent: a second run finds the demo users and results and changes nothing. The results have
  * their own marker (their fixed link names), so a database seeded before the registry existed
- * gets them added once; so do the demo figures (db/seed-figures.ts, marked by their titles).
+ * gets them added once; so do the demo figures (server/seed/seed-figures.ts, marked by their titles).
  */
 export const DEMO_PASSWORD = 'halcyon-demo-2026';
 
@@ -82,7 +82,7 @@ async function seedDemoPeople(ctx: Ctx): Promise<boolean> {
 }
 
 /**
- * Adds the invented results (see db/demo-results.ts) through the registry's own services, so
+ * Adds the invented results (see server/seed/demo-results.ts) through the registry's own services, so
  * versions, states and storage use are what the app would have made. Skips each result whose link
  * name exists, and any whose group or people are missing. Returns how many were added.
  */

@@ -1,4 +1,4 @@
-import type { Curve, Theory, VersionMeta } from '../shared/schemas/results';
+import type { Curve, Theory, VersionMeta } from '../../shared/schemas/results';
 
 /**
  * Invented limit results of the Lanternfish experiment at the fictional 18 TeV Halcyon Ring, for
