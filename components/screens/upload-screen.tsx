@@ -137,9 +137,9 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   };
 
   const analysed = picked?.analysed;
-  const converted = useMemo((): { curve?: Curve; theory?: Theory | null; problems: Problem[] } => {
-    if (!analysed || analysed.kind === 'invalid') return { problems: analysed?.problems ?? [] };
-    if (analysed.kind === 'json') return { curve: analysed.curve, theory: analysed.theory, problems: analysed.problems };
+  const converted = useMemo((): { curve?: Curve; theory?: Theory | null; problems: Problem[]; total?: number } => {
+    if (!analysed || analysed.kind === 'invalid') return { problems: analysed?.problems ?? [], total: analysed?.total };
+    if (analysed.kind === 'json') return { curve: analysed.curve, theory: analysed.theory, problems: analysed.problems, total: analysed.total };
     return curveFromTable(analysed.table, mapping);
   }, [analysed, mapping]);
   const preview = useMemo(() => {
@@ -205,7 +205,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
         </Text>
       ) : null}
       {pickError ? <Banner tone="error" message={pickError} /> : null}
-      {analysed?.kind === 'invalid' ? <ProblemList problems={analysed.problems} title="This file cannot be used" rowWord={rowWord} /> : null}
+      {analysed?.kind === 'invalid' ? <ProblemList problems={analysed.problems} total={analysed.total} title="This file cannot be used" rowWord={rowWord} /> : null}
     </Step>
   );
 
@@ -221,7 +221,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const previewCard = preview ? (
     <Card>
       <Text variant="title">Preview</Text>
-      {problems.length && analysed?.kind !== 'invalid' ? <ProblemList problems={problems} rowWord={rowWord} /> : null}
+      {problems.length && analysed?.kind !== 'invalid' ? <ProblemList problems={problems} total={converted.total} rowWord={rowWord} /> : null}
       {problems.length === 0 && converted.curve ? <Banner tone="success" message={`All ${converted.curve.x.length} points are valid.`} /> : null}
       <QuickPlot curve={preview.curve} theory={preview.theory} xLabel={labels.x} yLabel={labels.y} height={wide ? 300 : 240} />
       {analysed?.kind === 'csv' ? <PreviewTable table={analysed.table} mapping={mapping} problems={problems} /> : null}

@@ -65,7 +65,7 @@ export function resultsRouter(ctx: Ctx) {
 
   r.post('/groups/:groupId/results', requireGroup(ctx, 'result.write'), upload, handle({ params: groupParams }, async ({ params }, req, res) => {
     const file = fileUploadOf(req);
-    const input = file ? fromFileUpload(file, { changeNote: false }) : fromJsonBody(parseBody(createResultSchema, req.body));
+    const input = file ? await fromFileUpload(file, { changeNote: false }) : fromJsonBody(parseBody(createResultSchema, req.body));
     res.status(201).json(await results.createResult(ctx, params.groupId, actor(req), input));
   }));
 
@@ -86,7 +86,7 @@ export function resultsRouter(ctx: Ctx) {
     const file = fileUploadOf(req);
     let input: Parameters<typeof results.addVersion>[4];
     if (file) {
-      const { changeNote = '', ...parsed } = fromFileUpload(file, { changeNote: true });
+      const { changeNote = '', ...parsed } = await fromFileUpload(file, { changeNote: true });
       input = { ...parsed, changeNote };
     } else {
       const body = parseBody(createVersionSchema, req.body);

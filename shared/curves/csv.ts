@@ -4,8 +4,8 @@
  * named by line and column. Used by the app (preview before upload) and the server (the authority).
  */
 import Papa from 'papaparse';
-import type { Curve, Theory } from '../schemas/results';
-import { checkCurve, type CurveProblem } from './check';
+import { MAX_CURVE_POINTS, type Curve, type Theory } from '../schemas/results';
+import { checkCurve, formatCount, ProblemCollector, type CurveProblem } from './check';
 
 export const COLUMN_ROLES = [
   'x',
@@ -39,9 +39,19 @@ export type ColumnMapping = Partial<Record<ColumnRole, number>>;
 
 export type CsvTable = { headers: string[]; rows: string[][]; delimiter: ',' | ';' | '\t'; /** file line of each data row */ lines: number[] };
 
+/** A file that cannot be used: the first problems (at most MAX_PROBLEMS) and how many there are in all. */
 export class CsvFileError extends Error {
-  constructor(readonly problems: CurveProblem[]) {
+  readonly total: number;
+  constructor(
+    readonly problems: CurveProblem[],
+    total?: number,
+  ) {
     super(problems[0] ? `${problems[0].row ? `line ${problems[0].row}, ` : ''}${problems[0].column}: ${problems[0].reason}` : 'invalid file');
+    this.total = Math.max(total ?? problems.length, problems.length);
+  }
+
+  static of(c: ProblemCollector): CsvFileError {
+    return new CsvFileError(c.list, c.total);
   }
 }
 
@@ -70,25 +80,40 @@ export function parseCsv(text: string): CsvTable {
   const delimiter = (Object.entries(counts).sort((a, b) => b[1] - a[1])[0]![1] > 0
     ? Object.entries(counts).sort((a, b) => b[1] - a[1])[0]![0]
     : ',') as CsvTable['delimiter'];
-  const parsed = Papa.parse<string[]>(text, { delimiter, skipEmptyLines: false });
-  const all = parsed.data;
+  // Row by row (papaparse's `step`), trimming in place: a 5 MB file of short rows is a million
+  // rows, and building the whole parse before copying it would hold it twice.
   // Keep file line numbers; skip blank lines and comment lines starting with '#'.
-  const kept: { cells: string[]; line: number }[] = [];
-  all.forEach((cells, i) => {
-    if (cells.every((c) => c.trim() === '')) return;
-    if ((cells[0] ?? '').trim().startsWith('#')) return;
-    kept.push({ cells: cells.map((c) => c.trim()), line: i + 1 });
+  const rows: string[][] = [];
+  const lines: number[] = [];
+  let index = 0;
+  Papa.parse<string[]>(text, {
+    delimiter,
+    skipEmptyLines: false,
+    step: ({ data: cells }) => {
+      index++;
+      let blank = true;
+      for (let c = 0; c < cells.length; c++) {
+        const v = cells[c]!.trim();
+        cells[c] = v;
+        if (v !== '') blank = false;
+      }
+      if (blank || (cells[0] ?? '').startsWith('#')) return;
+      rows.push(cells);
+      lines.push(index);
+    },
   });
-  if (kept.length === 0) throw new CsvFileError([{ column: 'file', reason: 'has no rows' }]);
-  const header = kept[0]!;
-  const headerLooksNumeric = header.cells.every((c) => parseNumber(c, delimiter) !== null);
-  if (headerLooksNumeric) throw new CsvFileError([{ row: header.line, column: 'header', reason: 'the first row must name the columns (e.g. mass, observed, expected)' }]);
-  if (header.cells.length < 2) {
-    throw new CsvFileError([{ row: header.line, column: 'header', reason: 'has one column only; use commas, semicolons or tabs between columns' }]);
+  if (rows.length === 0) throw new CsvFileError([{ column: 'file', reason: 'has no rows' }]);
+  const headers = rows[0]!;
+  const headerLine = lines[0]!;
+  const headerLooksNumeric = headers.every((c) => parseNumber(c, delimiter) !== null);
+  if (headerLooksNumeric) throw new CsvFileError([{ row: headerLine, column: 'header', reason: 'the first row must name the columns (e.g. mass, observed, expected)' }]);
+  if (headers.length < 2) {
+    throw new CsvFileError([{ row: headerLine, column: 'header', reason: 'has one column only; use commas, semicolons or tabs between columns' }]);
   }
-  const body = kept.slice(1);
-  if (body.length === 0) throw new CsvFileError([{ column: 'file', reason: 'has a header but no data rows' }]);
-  return { headers: header.cells, rows: body.map((r) => r.cells), lines: body.map((r) => r.line), delimiter };
+  rows.shift();
+  lines.shift();
+  if (rows.length === 0) throw new CsvFileError([{ column: 'file', reason: 'has a header but no data rows' }]);
+  return { headers, rows, lines, delimiter };
 }
 
 /** A cell as a number, or null. Semicolon and tab files may use a decimal comma ("1,25"). */
@@ -158,39 +183,43 @@ export function detectRoles(headers: string[]): ColumnMapping {
  * problem is named by file line and column header; nothing is returned unless all is valid.
  */
 export function tableToCurve(table: CsvTable, mapping: ColumnMapping): { curve: Curve; theory: Theory | null } {
-  const problems: CurveProblem[] = [];
+  const problems = new ProblemCollector();
   const seen = new Map<number, ColumnRole>();
   for (const [role, idx] of Object.entries(mapping) as [ColumnRole, number][]) {
-    if (idx < 0 || idx >= table.headers.length) problems.push({ column: ROLE_TITLES[role], reason: `points at column ${idx + 1}, but the file has ${table.headers.length}` });
-    else if (seen.has(idx)) problems.push({ column: table.headers[idx] ?? `column ${idx + 1}`, reason: `is mapped twice (${ROLE_TITLES[seen.get(idx)!]} and ${ROLE_TITLES[role]})` });
+    if (idx < 0 || idx >= table.headers.length) problems.add({ column: ROLE_TITLES[role], reason: `points at column ${idx + 1}, but the file has ${table.headers.length}` });
+    else if (seen.has(idx)) problems.add({ column: table.headers[idx] ?? `column ${idx + 1}`, reason: `is mapped twice (${ROLE_TITLES[seen.get(idx)!]} and ${ROLE_TITLES[role]})` });
     else seen.set(idx, role);
   }
-  if (mapping.x === undefined) problems.push({ column: 'mapping', reason: 'choose the column that holds the parameter (x)' });
+  if (mapping.x === undefined) problems.add({ column: 'mapping', reason: 'choose the column that holds the parameter (x)' });
   if (mapping.observed === undefined && mapping.expected === undefined) {
-    problems.push({ column: 'mapping', reason: 'choose at least an observed or an expected median column' });
+    problems.add({ column: 'mapping', reason: 'choose at least an observed or an expected median column' });
   }
-  if (problems.length) throw new CsvFileError(problems);
+  if (problems.total) throw CsvFileError.of(problems);
+  if (table.rows.length > MAX_CURVE_POINTS) {
+    problems.add({ column: 'file', reason: `has ${formatCount(table.rows.length)} data rows; a curve has at most ${formatCount(MAX_CURVE_POINTS)} points` });
+  }
 
-  const col = (role: ColumnRole): number[] | undefined => {
-    const idx = mapping[role];
-    if (idx === undefined) return undefined;
-    const name = table.headers[idx] ?? `column ${idx + 1}`;
-    return table.rows.map((row, r) => {
+  // Row by row, the cells of a row in file order: a list cut at MAX_PROBLEMS then shows the
+  // first lines with every bad cell in them, not one column down the whole file.
+  const mapped = (Object.entries(mapping) as [ColumnRole, number][]).sort((a, b) => a[1] - b[1]);
+  const values = new Map<ColumnRole, number[]>(mapped.map(([role]) => [role, new Array<number>(table.rows.length)]));
+  const width = table.headers.length;
+  for (let r = 0; r < table.rows.length; r++) {
+    const row = table.rows[r]!;
+    const line = table.lines[r];
+    if (row.length !== width) problems.add({ row: line, column: 'row', reason: `has ${row.length} cells but the header has ${width} (wrong delimiter or a stray separator?)` });
+    for (const [role, idx] of mapped) {
       const cell = row[idx];
-      if (cell === undefined || cell === '') {
-        problems.push({ row: table.lines[r], column: name, reason: 'is empty' });
-        return NaN;
+      let v: number | null = NaN;
+      if (cell === undefined || cell === '') problems.add({ row: line, column: table.headers[idx] ?? `column ${idx + 1}`, reason: 'is empty' });
+      else {
+        v = parseNumber(cell, table.delimiter);
+        if (v === null) problems.add({ row: line, column: table.headers[idx] ?? `column ${idx + 1}`, reason: `"${cell.slice(0, 40)}" is not a number` });
       }
-      const v = parseNumber(cell, table.delimiter);
-      if (v === null) problems.push({ row: table.lines[r], column: name, reason: `"${cell.slice(0, 40)}" is not a number` });
-      return v ?? NaN;
-    });
-  };
-  table.rows.forEach((row, r) => {
-    if (row.length !== table.headers.length) {
-      problems.push({ row: table.lines[r], column: 'row', reason: `has ${row.length} cells but the header has ${table.headers.length} (wrong delimiter or a stray separator?)` });
+      values.get(role)![r] = v ?? NaN;
     }
-  });
+  }
+  const col = (role: ColumnRole): number[] | undefined => values.get(role);
   const x = col('x')!;
   const expected = {
     '-2': col('expectedMinus2'),
@@ -206,9 +235,9 @@ export function tableToCurve(table: CsvTable, mapping: ColumnMapping): { curve: 
   const central = col('theory');
   const lower = col('theoryLower');
   const upper = col('theoryUpper');
-  if ((lower || upper) && !central) problems.push({ column: 'mapping', reason: 'a theory band needs the central theory column too' });
+  if ((lower || upper) && !central) problems.add({ column: 'mapping', reason: 'a theory band needs the central theory column too' });
   const theory: Theory | null = central ? { x: [...x], central, ...(lower ? { lower } : {}), ...(upper ? { upper } : {}) } : null;
-  if (problems.length) throw new CsvFileError(problems);
+  if (problems.total) throw CsvFileError.of(problems);
 
   // Semantic checks, reported with file lines and the user's own column names.
   const headerOf = (role: ColumnRole) => (mapping[role] !== undefined ? table.headers[mapping[role]!] : undefined);
@@ -225,13 +254,14 @@ export function tableToCurve(table: CsvTable, mapping: ColumnMapping): { curve: 
     'theory upper edge': headerOf('theoryUpper'),
     'theory parameter': headerOf('x'),
   };
-  const semantic = checkCurve(curve, theory, (i) => table.lines[i] ?? i + 1).map((p) => ({
+  const semanticProblems = new ProblemCollector();
+  const semantic = checkCurve(curve, theory, (i) => table.lines[i] ?? i + 1, semanticProblems).map((p) => ({
     ...p,
     column: columnNames[p.column] ?? p.column,
     // Theory rows share the table's grid: map their point number to the file line too.
     row: p.column.startsWith('theory') && p.row !== undefined ? table.lines[p.row - 1] : p.row,
   }));
-  if (semantic.length) throw new CsvFileError(semantic);
+  if (semantic.length) throw new CsvFileError(semantic, semanticProblems.total);
   return { curve, theory };
 }
 
