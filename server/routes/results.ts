@@ -1,5 +1,4 @@
 import { Router, type Request, type Response } from 'express';
-import type { ZodType, z } from 'zod';
 import { groupParams } from '../../shared/schemas/groups';
 import {
   createResultSchema,
@@ -15,10 +14,9 @@ import {
 } from '../../shared/schemas/results';
 import { optionalUser, requireGroup } from '../access';
 import type { Ctx } from '../context';
-import { validationError } from '../lib/errors';
 import { handle } from '../lib/validate';
 import { multipartUpload } from '../lib/upload';
-import { fromFileUpload, fromJsonBody, type FileUpload } from '../services/result-upload';
+import { fromFileUpload, fromJsonBody, parseJsonUpload, type FileUpload } from '../services/result-upload';
 import * as results from '../services/results';
 
 const groupListQuery = resultListQuery.omit({ groupId: true });
@@ -31,13 +29,6 @@ function fileUploadOf(req: Request): FileUpload | undefined {
   const fields = (req.body ?? {}) as Record<string, unknown>;
   const f = req.file;
   return { fields, file: f ? { name: (f.originalname || 'upload').slice(0, MAX_FILE_NAME), data: f.buffer } : undefined };
-}
-
-/** A JSON body parsed by its schema (400 with every field otherwise). */
-function parseBody<S extends ZodType>(schema: S, body: unknown): z.output<S> {
-  const parsed = schema.safeParse(body ?? {});
-  if (!parsed.success) throw validationError(parsed.error, 'body');
-  return parsed.data;
 }
 
 function sendExport(res: Response, file: results.ExportFile) {
@@ -65,7 +56,7 @@ export function resultsRouter(ctx: Ctx) {
 
   r.post('/groups/:groupId/results', requireGroup(ctx, 'result.write'), upload, handle({ params: groupParams }, async ({ params }, req, res) => {
     const file = fileUploadOf(req);
-    const input = file ? await fromFileUpload(file, { changeNote: false }) : fromJsonBody(parseBody(createResultSchema, req.body));
+    const input = file ? await fromFileUpload(file, { changeNote: false }) : fromJsonBody(parseJsonUpload(createResultSchema, req.body));
     res.status(201).json(await results.createResult(ctx, params.groupId, actor(req), input));
   }));
 
@@ -89,7 +80,7 @@ export function resultsRouter(ctx: Ctx) {
       const { changeNote = '', ...parsed } = await fromFileUpload(file, { changeNote: true });
       input = { ...parsed, changeNote };
     } else {
-      const body = parseBody(createVersionSchema, req.body);
+      const body = parseJsonUpload(createVersionSchema, req.body);
       input = { ...fromJsonBody(body), changeNote: body.changeNote };
     }
     res.status(201).json(await results.addVersion(ctx, params.groupId, actor(req), params.resultId, input));

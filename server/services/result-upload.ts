@@ -1,17 +1,18 @@
 import path from 'node:path';
 import { z } from 'zod';
-import { checkCurve, MAX_PROBLEMS, ProblemCollector } from '../../shared/curves/check';
+import { checkCurve, formatCount, MAX_PROBLEMS, ProblemCollector } from '../../shared/curves/check';
 import { COLUMN_ROLES, type ColumnMapping } from '../../shared/curves/csv';
 import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
 import {
   createVersionSchema,
   LIMIT_FILE_FORMAT,
+  MAX_CURVE_POINTS,
   versionMetaSchema,
   type Curve,
   type Theory,
   type VersionMeta,
 } from '../../shared/schemas/results';
-import { AppError, type ErrorDetail } from '../lib/errors';
+import { AppError, validationError, type ErrorDetail } from '../lib/errors';
 import { ThreadDied, ThreadPool, ThreadTimeout } from '../lib/thread-pool';
 import { boundedZodDetails, canonicalTheory, moreProblems, problemDetail, readLimitFile, type FileJob, type FileReading } from './limit-file';
 
@@ -143,6 +144,44 @@ export function assertCurveValid(curve: Curve, theory: Theory | null) {
   const details = new Details();
   details.addAll(problems.map((p) => problemDetail(p, 'point')), found.total);
   fail('validation_failed', details);
+}
+
+const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+
+/**
+ * A JSON upload body parsed by its schema, with the work bounded first: 5 MB of JSON holds half a
+ * million values, and zod would check and describe every bad one on the event loop (a second and
+ * a 20 MB answer). So the curve's and theory's arrays are looked at before: one longer than
+ * MAX_CURVE_POINTS is refused without reading it, and more than MAX_PROBLEMS values that are not
+ * numbers are refused counted. Everything else (and the messages of small mistakes) is zod's.
+ */
+export function parseJsonUpload<S extends z.ZodType>(schema: S, body: unknown): z.output<S> {
+  const details = new Details();
+  let tooLong = false;
+  const b = isRecord(body) ? body : {};
+  const curve = isRecord(b.curve) ? b.curve : {};
+  const groups: [string, unknown, readonly string[]][] = [
+    ['curve', curve, ['x', 'observed']],
+    ['curve.expected', curve.expected, EXPECTED_KEYS],
+    ['theory', b.theory, ['x', 'central', 'lower', 'upper']],
+  ];
+  for (const [prefix, holder, keys] of groups) {
+    if (!isRecord(holder)) continue;
+    for (const k of keys) {
+      const values = holder[k];
+      if (!Array.isArray(values)) continue;
+      if (values.length > MAX_CURVE_POINTS) {
+        tooLong = true;
+        details.add({ field: `${prefix}.${k}`, message: `must have at most ${formatCount(MAX_CURVE_POINTS)} points (has ${formatCount(values.length)})` });
+        continue;
+      }
+      for (let i = 0; i < values.length; i++) if (typeof values[i] !== 'number') details.add({ field: `${prefix}.${k}.${i}`, message: 'must be a number' });
+    }
+  }
+  if (tooLong || details.total > MAX_PROBLEMS) fail('validation_failed', details);
+  const parsed = schema.safeParse(body ?? {});
+  if (!parsed.success) throw validationError(parsed.error, 'body');
+  return parsed.data;
 }
 
 /** A JSON body (already checked against its zod schema). */
