@@ -85,6 +85,19 @@ export const createVersionSchema = createResultSchema.extend({
 });
 export type CreateVersionInput = z.input<typeof createVersionSchema>;
 
+/**
+ * Headers of an upload (`POST …/results`, `…/versions`). `Idempotency-Key` lets a pipeline retry
+ * after a dropped connection: the same key with the same request gets the first answer again
+ * instead of a second version (kept 24 h per group). Express gives header names in lower case.
+ */
+export const IDEMPOTENCY_KEY_HEADER = 'Idempotency-Key';
+export const uploadHeadersSchema = z.object({
+  'idempotency-key': z
+    .string()
+    .regex(/^[A-Za-z0-9_.:~+/=-]{8,128}$/, 'must be 8 to 128 letters, digits or - _ . : ~ + / = (a random UUID is a good key), sent once')
+    .optional(),
+});
+
 /** Edit a draft (published versions never change). */
 export const updateDraftSchema = z
   .object({ meta: versionMetaSchema.optional(), curve: curveSchema.optional(), theory: theorySchema.nullable().optional(), changeNote: z.string().trim().max(500).optional() })
@@ -174,6 +187,12 @@ export type ResultVersion = VersionSummary & {
   permalink: string | null;
   sourceFile: { name: string; bytes: number } | null;
 };
+
+/**
+ * The answer to an upload: the stored version, and what the upload left out without being wrong
+ * (`warnings`, e.g. a column with numbers but no role), in the error detail shape.
+ */
+export type UploadedVersion = ResultVersion & { warnings: import('../errors').ErrorDetail[] };
 
 /** The project's own JSON file format for one limit result (upload and download). */
 export const LIMIT_FILE_FORMAT = 'bandwright-limit-result/1';
