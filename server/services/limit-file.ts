@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { checkCurve, formatCount, MAX_PROBLEMS, ProblemCollector, type CurveProblem } from '../../shared/curves/check';
-import { CsvFileError, decodeText, detectRoles, parseCsv, tableToCurve, type ColumnMapping } from '../../shared/curves/csv';
+import { CsvFileError, decodeText, detectRoles, parseCsv, tableToCurve, unusedNumericColumns, type ColumnMapping } from '../../shared/curves/csv';
 import { limitFileSchema, type Curve, type Theory, type VersionMeta } from '../../shared/schemas/results';
 import type { ErrorDetail } from '../../shared/errors';
 
@@ -41,6 +41,14 @@ export function boundedZodDetails(error: z.ZodError, prefix?: string): { details
 
 const looksLikeJson = (name: string, text: string) => /\.json$/i.test(name) || text.trimStart().startsWith('{');
 
+/** Numeric columns that no role takes, as warnings of the answer: listed, never dropped silently. */
+export function unusedColumnWarnings(headers: string[], indexes: number[]): ErrorDetail[] {
+  return indexes.map((i) => ({
+    field: `column ${i + 1}, ${headers[i] || `column ${i + 1}`}`,
+    message: 'holds numbers but has no role, so it was not stored; send a "mapping" that gives it a role to keep it',
+  }));
+}
+
 export function readLimitFile(job: FileJob): FileReading {
   let kind: 'csv' | 'json' | 'unknown' = 'unknown';
   const bad = (problems: CurveProblem[], total: number, rowWord: 'line' | 'point'): FileReading => ({
@@ -72,7 +80,7 @@ export function readLimitFile(job: FileJob): FileReading {
     const table = parseCsv(text);
     const mapping = job.mapping ?? detectRoles(table.headers);
     const { curve, theory } = tableToCurve(table, mapping);
-    return { ok: true, kind, curve, theory, warnings: [] };
+    return { ok: true, kind, curve, theory, warnings: unusedColumnWarnings(table.headers, unusedNumericColumns(table, mapping)) };
   } catch (e) {
     if (!(e instanceof CsvFileError)) throw e;
     return bad(e.problems, e.total, 'line');

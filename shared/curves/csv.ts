@@ -134,48 +134,140 @@ function norm(h: string): string {
     .replace(/[\s_.:()[\]]+/g, '');
 }
 
+const SIGMA_WORDS = new Set(['sigma', 'sig', 's', 'sd', 'std']);
+const UP_WORDS = new Set(['up', 'upper', 'hi', 'high', 'plus', 'max']);
+const DOWN_WORDS = new Set(['down', 'dn', 'lo', 'low', 'lower', 'minus', 'min']);
+const EXPECTED_WORDS = new Set(['exp', 'expd', 'expect', 'expected', 'expectation', 'median', 'med']);
+/** What may follow "exp" glued to it ("expm1", "expUp", "explimit"). */
+const EXP_GLUED = new Set([...UP_WORDS, ...DOWN_WORDS, 'p', 'm', 'limit', 'lim', 'median']);
 
-/** Guesses the role of each column from its header; the user confirms or changes it. */
-export function detectRoles(headers: string[]): ColumnMapping {
-  const mapping: ColumnMapping = {};
-  const take = (role: ColumnRole, i: number) => {
-    if (mapping[role] === undefined && !Object.values(mapping).includes(i)) mapping[role] = i;
-  };
-  headers.forEach((raw, i) => {
-    const h = norm(raw);
-    // Short band names such as exp_m1 / exp_p2 (m = minus, p = plus, then the number of σ).
-    const short = /^exp(ected)?(limit)?([mp])([12])(sigma|s)?$/.exec(h);
-    if (short) {
-      const n = short[4] === '2' ? 2 : 1;
-      take(short[3] === 'm' ? (n === 2 ? 'expectedMinus2' : 'expectedMinus1') : n === 2 ? 'expectedPlus2' : 'expectedPlus1', i);
+/**
+ * A header as words and numbers: lower case, σ as "sigma", any minus sign as "-", units and
+ * brackets dropped as separators. A sign stays on the number after it ("exp -1sig" → exp, -1, sig;
+ * "exp+1s" → exp, +1, s), and "exp" glued to a band word is split ("expm2s" → exp, m, 2, s).
+ */
+export function headerTokens(raw: string): string[] {
+  const s = raw
+    .toLowerCase()
+    .replace(/σ/g, ' sigma ')
+    .replace(/[\u2212\u2010-\u2015\ufe63\uff0d]/g, '-')
+    .replace(/\uff0b/g, '+')
+    .replace(/±/g, ' pm ');
+  const out: string[] = [];
+  for (const [t] of s.matchAll(/[+-]?\d+(?:\.\d+)?|[a-z]+/g)) {
+    const glued = /^(expected|expect|exp)([a-z]+)$/.exec(t);
+    if (glued && EXP_GLUED.has(glued[2]!)) out.push(glued[1]!, glued[2]!);
+    else out.push(t);
+  }
+  return out;
+}
+
+type Direction = 'up' | 'down' | 'both' | null;
+
+/**
+ * The band a header names: its width (1 or 2 σ; 68 % and 95 % too) and its side (a sign on the
+ * number, plus/minus, up/down, hi/lo, and — after an "exp" word — p/m as in "exp_p1", "exp_m2s").
+ * Both sides at once ("±1σ", "up/down") is no side.
+ */
+function bandOf(tokens: string[], shortSides: boolean): { level: 0 | 1 | 2; side: Direction; sigmaWord: boolean } {
+  let level: 0 | 1 | 2 = 0;
+  let up = false;
+  let down = false;
+  const isSide = (t: string | undefined) => t !== undefined && (UP_WORDS.has(t) || DOWN_WORDS.has(t) || (shortSides && (t === 'p' || t === 'm')));
+  tokens.forEach((t, i) => {
+    const num = /^([+-]?)(\d+(?:\.\d+)?)$/.exec(t);
+    if (num) {
+      const prev = tokens[i - 1];
+      const next = tokens[i + 1];
+      // "fb-1" is a unit, not a band edge.
+      if (prev === 'fb' || prev === 'pb' || prev === 'ab') return;
+      const v = Number(num[2]);
+      const percent = v === 68 || v === 95;
+      const l = v === 1 || v === 68 ? 1 : v === 2 || v === 95 ? 2 : 0;
+      // A bare 1 or 2 is a width only beside σ or a side ("1sigma", "p1", "up 1"), or signed:
+      // "μ = 1" or "2 fb" are not bands.
+      const width = num[1] !== '' || percent || SIGMA_WORDS.has(next ?? '') || isSide(prev) || isSide(next);
+      if (!l || !width) return;
+      level = l;
+      if (num[1] === '+') up = true;
+      if (num[1] === '-') down = true;
       return;
     }
-    const sigma = /(2sigma|2s$|2sd|95)/.test(h) ? 2 : /(1sigma|1s$|1sd|68)/.test(h) ? 1 : 0;
-    if (/^(theo|th$|thxs|prediction|xsecth|sigmath|nominal)/.test(h) || h.includes('theory')) {
-      // Band edges are whole words ("theory low", "theory_up", "theory -1σ"), so that words such
-      // as "NLO" or "top-philic" are not taken for an edge.
-      const words = raw.toLowerCase().split(/[\s_.:()[\],;/]+/).filter(Boolean);
-      const edge = (set: string[], sign: string) => words.some((w) => set.includes(w) || (w.length > 1 && w.startsWith(sign) && /\d/.test(w)));
-      if (edge(['down', 'dn', 'lo', 'low', 'lower', 'minus', 'min'], '-')) take('theoryLower', i);
-      else if (edge(['up', 'hi', 'high', 'upper', 'plus', 'max'], '+')) take('theoryUpper', i);
-      else take('theory', i);
-    } else if (h.includes('obs')) take('observed', i);
-    else if (h.includes('exp') || h.includes('median') || sigma > 0) {
-      if (sigma === 0) take('expected', i);
-      else {
-        const rest = h.replace(/expected|exp|limit|median/g, '');
-        const down = /(^-|minus|down|dn|lo(w|wer)?)/.test(rest) || /-[12]/.test(rest);
-        const up = /(^\+|plus|up|hi(gh|gher)?)/.test(rest) || /\+[12]/.test(rest);
-        if (down && !up) take(sigma === 2 ? 'expectedMinus2' : 'expectedMinus1', i);
-        else if (up && !down) take(sigma === 2 ? 'expectedPlus2' : 'expectedPlus1', i);
-      }
-    } else if (/^(x|m|mass|param|parameter)$/.test(h) || /^m[a-z]*$/.test(h) || h.startsWith('mass') || h.startsWith('m(') || h.startsWith('m_')) take('x', i);
+    if (UP_WORDS.has(t) || (shortSides && t === 'p')) up = true;
+    else if (DOWN_WORDS.has(t) || (shortSides && t === 'm')) down = true;
+    else if (t === 'pm') {
+      up = true;
+      down = true;
+    }
+  });
+  return { level, side: up && down ? 'both' : up ? 'up' : down ? 'down' : null, sigmaWord: tokens.some((t) => SIGMA_WORDS.has(t)) };
+}
+
+const EXPECTED_BANDS = { up: { 1: 'expectedPlus1', 2: 'expectedPlus2' }, down: { 1: 'expectedMinus1', 2: 'expectedMinus2' } } as const;
+
+/**
+ * The role a header names, or null. Recognised, among others: "mass", "M_Z' [GeV]"; "obs",
+ * "Obs. limit (fb)", "obs [pb]"; "expected", "Expected median"; bands as "exp +1sigma", "exp -1sig",
+ * "Expected +2σ", "exp (up 1)", "exp_1sigma_down", "expected_plus_1sigma", "expected_p1",
+ * "exp_m2s", "exp 68% low" (a band without its width is ±1σ: "exp_up"); "theory", "σ_th NLO",
+ * "theory low", "theory +1σ". Headers that say a width but no side ("exp 2σ") or both sides
+ * ("exp ±1σ") get no role.
+ */
+export function headerRole(raw: string): ColumnRole | null {
+  const h = norm(raw);
+  const tokens = headerTokens(raw);
+  if (/^(theo|th$|thxs|prediction|xsecth|sigmath|nominal)/.test(h) || h.includes('theory')) {
+    // Band edges are whole words or signed numbers, so that "NLO" or "top-philic" are not edges.
+    const { side } = bandOf(tokens, false);
+    return side === 'down' ? 'theoryLower' : side === 'up' ? 'theoryUpper' : 'theory';
+  }
+  if (tokens.some((t) => t.startsWith('obs'))) return 'observed';
+  const expectedWord = tokens.some((t) => EXPECTED_WORDS.has(t));
+  const band = bandOf(tokens, expectedWord);
+  // Without an "exp" word, only a signed or worded side with σ makes a band ("+1σ", "-2 sigma").
+  if (expectedWord || (band.sigmaWord && band.level && (band.side === 'up' || band.side === 'down'))) {
+    if (band.side === 'both') return null;
+    if (!band.side) return band.level ? null : 'expected';
+    return EXPECTED_BANDS[band.side][band.level || 1];
+  }
+  if (/^(x|m|mass|param|parameter)$/.test(h) || /^m[a-z]*$/.test(h) || h.startsWith('mass') || tokens[0] === 'm') return 'x';
+  return null;
+}
+
+/** Guesses the role of each column from its header (the first column naming a role gets it); the user confirms or changes them. */
+export function detectRoles(headers: string[]): ColumnMapping {
+  const mapping: ColumnMapping = {};
+  headers.forEach((raw, i) => {
+    const role = headerRole(raw);
+    if (role && mapping[role] === undefined) mapping[role] = i;
   });
   if (mapping.x === undefined) {
     const firstFree = headers.findIndex((_, i) => !Object.values(mapping).includes(i));
     if (firstFree >= 0) mapping.x = firstFree;
   }
   return mapping;
+}
+
+/**
+ * Columns without a role that hold numbers (most of their filled cells read as numbers): they are
+ * named before saving ("Not used: …") and in the upload's answer, never dropped silently.
+ */
+export function unusedNumericColumns(table: CsvTable, mapping: ColumnMapping): number[] {
+  const used = new Set(Object.values(mapping));
+  const out: number[] = [];
+  for (let c = 0; c < table.headers.length; c++) {
+    if (used.has(c)) continue;
+    let filled = 0;
+    let numbers = 0;
+    for (const row of table.rows) {
+      const cell = row[c];
+      if (cell === undefined || cell === '') continue;
+      filled++;
+      if (parseNumber(cell, table.delimiter) !== null) numbers++;
+    }
+    if (numbers > 0 && numbers * 2 >= filled) out.push(c);
+  }
+  return out;
 }
 
 /**

@@ -98,6 +98,31 @@ describe('good uploads', () => {
     expect(res.body.exclusion).toEqual({ ranges: null, problem: expect.stringContaining('No theory curve') });
   });
 
+  test('columns with numbers but no role are named in the answer as warnings, never dropped silently', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    const csv = 'mass,obs [pb],exp,xsec_alt,exp 2σ,comment\n1000,2.5,2.1,9,2.2,first\n1500,1.9,1.7,8,1.8,second\n2000,1.1,1.0,7,1.05,third\n';
+    const res = await uploadCsv(crew.analyst, groupId, csv);
+    expect(res.status).toBe(201);
+    expect(res.body.curve).toEqual({ x: [1000, 1500, 2000], observed: [2.5, 1.9, 1.1], expected: { '0': [2.1, 1.7, 1.0] } });
+    expect(res.body.warnings).toEqual([
+      { field: 'column 4, xsec_alt', message: expect.stringContaining('holds numbers but has no role') },
+      { field: 'column 5, exp 2σ', message: expect.stringContaining('holds numbers but has no role') },
+    ]);
+    // Replayed with its key, the answer keeps its warnings.
+    const keyed = () => crew.analyst.agent.post(`/api/groups/${groupId}/results`).set('Idempotency-Key', 'warnings-replay-01').field('meta', JSON.stringify(sampleMeta())).attach('file', Buffer.from(csv), 'limits.csv');
+    const first = await keyed();
+    const again = await keyed();
+    expect(again.headers['idempotent-replayed']).toBe('true');
+    expect(again.body.warnings).toEqual(first.body.warnings);
+    expect(again.body.warnings).toHaveLength(2);
+    // Every numeric column with a role: no warnings.
+    const all = await uploadCsv(crew.analyst, groupId, csv, { mapping: { x: 0, observed: 1, expected: 2, theory: 3 } });
+    expect(all.status).toBe(201);
+    expect(all.body.warnings).toEqual([{ field: 'column 5, exp 2σ', message: expect.any(String) }]);
+    const json = await crew.analyst.agent.post(`/api/groups/${groupId}/results`).send({ meta: sampleMeta(), curve: sampleCurve(3).curve });
+    expect(json.body.warnings).toEqual([]);
+  });
+
   test("the project's JSON file round-trips: download a version and upload it again, without a meta field", async () => {
     const { groupId } = await makeGroupWithRoles(t, { crew });
     const first = await uploadCsv(crew.analyst, groupId, sampleCsv());
