@@ -13,6 +13,7 @@ import {
   detectRoles,
   parseCsv,
   parseNumber,
+  ROLE_TITLES,
   tableToCurve,
   type ColumnMapping,
   type ColumnRole,
@@ -175,6 +176,33 @@ export function assignRole(mapping: ColumnMapping, index: number, role: ColumnRo
   }
   if (role) next[role] = index;
   return next;
+}
+
+/** A column as users know it: “its header” (or “column 3” when the header is empty). */
+export function columnLabel(headers: string[], index: number): string {
+  return headers[index] ? `column “${headers[index]}”` : `column ${index + 1}`;
+}
+
+/**
+ * What `assignRole(mapping, index, role)` takes from other columns, said aloud: a role is on one
+ * column only, so giving it to a second one moves it ("Observed limit moved from column “obs”
+ * to column “obs (rerun)”."), and the column gives up the role it had. Null when nothing moves.
+ */
+export function roleChangeNotice(headers: string[], mapping: ColumnMapping, index: number, role: ColumnRole | null): string | null {
+  if (!role) return null;
+  const parts: string[] = [];
+  const from = mapping[role];
+  if (from !== undefined && from !== index) parts.push(`${ROLE_TITLES[role]} moved from ${columnLabel(headers, from)} to ${columnLabel(headers, index)}.`);
+  const previous = roleOfColumn(mapping, index);
+  if (previous && previous !== role) parts.push(`${ROLE_TITLES[previous]} is no longer set (it was ${columnLabel(headers, index)}).`);
+  return parts.length ? parts.join(' ') : null;
+}
+
+/** "Not used: “exp+1s” (column 6), …": the preview's warning about numeric columns without a role. */
+export function notUsedMessage(headers: string[], indexes: number[]): string {
+  const names = indexes.map((i) => (headers[i] ? `“${headers[i]}” (column ${i + 1})` : `column ${i + 1}`)).join(', ');
+  const one = indexes.length === 1;
+  return `Not used: ${names}. ${one ? 'It holds' : 'They hold'} numbers but ${one ? 'has' : 'have'} no role, so ${one ? 'it' : 'they'} will not be stored; give ${one ? 'it' : 'them'} a role above if ${one ? 'it belongs' : 'they belong'} to the result.`;
 }
 
 /** Problems about the file as a whole or the mapping (no line): shown beside the mapping. */
