@@ -1,4 +1,5 @@
 import { spawn, type ChildProcess } from 'node:child_process';
+import http from 'node:http';
 import path from 'node:path';
 import { freePort } from '@/scripts/lib/postgres';
 import { createTestDatabase } from '../helpers/db';
@@ -60,11 +61,31 @@ afterAll(async () => {
   await drop?.();
 });
 
-function upload(file: Buffer, name: string) {
-  const form = new FormData();
-  form.append('meta', JSON.stringify(sampleMeta()));
-  form.append('file', new Blob([new Uint8Array(file)], { type: 'text/csv' }), name);
-  return fetch(`${base}/api/groups/${groupId}/results`, { method: 'POST', headers: { Origin: base, Cookie: cookie }, body: form });
+/**
+ * A multipart upload, its body built before it is sent and written at once: the test process's
+ * own work while sending stays out of what the health answers time.
+ */
+function upload(file: Buffer, name: string): Promise<{ status: number; body: unknown }> {
+  const boundary = `----bandwright-test-${Date.now()}`;
+  const body = Buffer.concat([
+    Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="meta"\r\n\r\n${JSON.stringify(sampleMeta())}\r\n`),
+    Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${name}"\r\nContent-Type: text/csv\r\n\r\n`),
+    file,
+    Buffer.from(`\r\n--${boundary}--\r\n`),
+  ]);
+  return new Promise((resolve, reject) => {
+    const req = http.request(
+      `${base}/api/groups/${groupId}/results`,
+      { method: 'POST', headers: { Origin: base, Cookie: cookie, 'Content-Type': `multipart/form-data; boundary=${boundary}`, 'Content-Length': body.length } },
+      (res) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (c: Buffer) => chunks.push(c));
+        res.on('end', () => resolve({ status: res.statusCode ?? 0, body: JSON.parse(Buffer.concat(chunks).toString('utf8')) }));
+      },
+    );
+    req.on('error', reject);
+    req.end(body);
+  });
 }
 
 type Detail = { field: string; message: string };
@@ -74,10 +95,12 @@ test('a 5 MB CSV with 1,250,000 bad rows: /api/health answers within 100 ms thro
   const csv = Buffer.from(`mass,obs\n${'1,x\n'.repeat(rows)}`);
   expect(csv.length).toBeLessThanOrEqual(5 * 1024 * 1024);
 
+  // One answer first, so that no poll below pays for opening the connection.
+  await (await fetch(`${base}/api/health`)).arrayBuffer();
   let done = false;
-  const sent = upload(csv, 'bad.csv').then(async (res) => {
+  const sent = upload(csv, 'bad.csv').then((res) => {
     done = true;
-    return { status: res.status, body: (await res.json()) as { error: { code: string; message: string; details: Detail[] } } };
+    return res as { status: number; body: { error: { code: string; message: string; details: Detail[] } } };
   });
   // Each answer is timed from when its request was due: a stalled test process would show too.
   const health: number[] = [];
@@ -117,7 +140,7 @@ test('a large valid file is still stored (read on the thread, the same numbers a
   expect(csv.length).toBeGreaterThan(64 * 1024);
   const res = await upload(csv, 'big.csv');
   expect(res.status).toBe(201);
-  const body = (await res.json()) as { curve: { x: number[]; observed: number[]; expected: Record<string, number[]> }; sourceFile: { bytes: number } };
+  const body = res.body as { curve: { x: number[]; observed: number[]; expected: Record<string, number[]> }; sourceFile: { bytes: number } };
   expect(body.curve.x).toHaveLength(n);
   expect(body.curve.x[n - 1]).toBe(1000 + n - 1);
   expect(body.curve.observed[0]).toBe(3);
