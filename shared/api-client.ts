@@ -22,6 +22,7 @@ import type {
   ResultListQuery,
   ResultPage,
   ResultVersion,
+  UploadedVersion,
   UpdateDraftInput,
 } from './schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from './schemas/scan-views';
@@ -157,13 +158,13 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       listInGroup: (groupId: string, query: Omit<ResultListQuery, 'groupId'> = {}) =>
         call<ResultPage>('GET', `/api/groups/${enc(groupId)}/results${qs(query)}`),
       /** JSON body, or FormData with `file` (CSV or the project's JSON), `meta` (JSON text) and optional `mapping` (JSON text). */
-      create: (groupId: string, input: CreateResultInput | FormData) => call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results`, input),
+      create: (groupId: string, input: CreateResultInput | FormData) => call<UploadedVersion>('POST', `/api/groups/${enc(groupId)}/results`, input),
       get: (groupId: string, resultId: string) => call<ResultDetail>('GET', `/api/groups/${enc(groupId)}/results/${enc(resultId)}`),
       setVisibility: (groupId: string, resultId: string, isPublic: boolean) =>
         call<ResultDetail>('PATCH', `/api/groups/${enc(groupId)}/results/${enc(resultId)}`, { public: isPublic }),
       remove: (groupId: string, resultId: string) => call<void>('DELETE', `/api/groups/${enc(groupId)}/results/${enc(resultId)}`),
       addVersion: (groupId: string, resultId: string, input: CreateVersionInput | FormData) =>
-        call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions`, input),
+        call<UploadedVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions`, input),
       version: (groupId: string, resultId: string, version: number) =>
         call<ResultVersion>('GET', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}`),
       updateDraft: (groupId: string, resultId: string, version: number, input: UpdateDraftInput) =>

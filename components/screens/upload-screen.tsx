@@ -3,7 +3,7 @@ import { Link, useLocalSearchParams, useRouter, type Href } from 'expo-router';
 import { useEffect, useMemo, useState, type ReactNode } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { can } from '@/shared/access';
-import type { ColumnMapping } from '@/shared/curves/csv';
+import { unusedNumericColumns, type ColumnMapping } from '@/shared/curves/csv';
 import { createVersionSchema, versionMetaSchema, type Curve, type Theory } from '@/shared/schemas/results';
 import { useCurrentGroup } from '@/hooks/use-current-group';
 import { useIsWide } from '@/hooks/use-layout';
@@ -25,6 +25,7 @@ import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
 import { MappingEditor } from '../upload/mapping-editor';
 import { META_FIELD_LABELS, MetaForm } from '../upload/meta-form';
+import { PreviewStatus } from '../upload/preview-status';
 import { PreviewTable } from '../upload/preview-table';
 import { ProblemList } from '../upload/problem-list';
 import {
@@ -137,9 +138,9 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   };
 
   const analysed = picked?.analysed;
-  const converted = useMemo((): { curve?: Curve; theory?: Theory | null; problems: Problem[] } => {
-    if (!analysed || analysed.kind === 'invalid') return { problems: analysed?.problems ?? [] };
-    if (analysed.kind === 'json') return { curve: analysed.curve, theory: analysed.theory, problems: analysed.problems };
+  const converted = useMemo((): { curve?: Curve; theory?: Theory | null; problems: Problem[]; total?: number } => {
+    if (!analysed || analysed.kind === 'invalid') return { problems: analysed?.problems ?? [], total: analysed?.total };
+    if (analysed.kind === 'json') return { curve: analysed.curve, theory: analysed.theory, problems: analysed.problems, total: analysed.total };
     return curveFromTable(analysed.table, mapping);
   }, [analysed, mapping]);
   const preview = useMemo(() => {
@@ -147,6 +148,9 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
     if (analysed?.kind === 'json') return { curve: analysed.curve, theory: analysed.theory };
     return null;
   }, [analysed, mapping]);
+
+  // Numeric columns without a role: named in the preview (they would not be stored).
+  const notUsed = useMemo(() => (analysed?.kind === 'csv' ? unusedNumericColumns(analysed.table, mapping) : []), [analysed, mapping]);
 
   const metaCheck = useMemo(() => checkForm(versionMetaSchema, metaInput(meta)), [meta]);
   const noteCheck = useMemo(() => (isVersion ? checkForm(changeNoteSchema, { changeNote }) : { errors: {} as FieldErrors }), [isVersion, changeNote]);
@@ -205,7 +209,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
         </Text>
       ) : null}
       {pickError ? <Banner tone="error" message={pickError} /> : null}
-      {analysed?.kind === 'invalid' ? <ProblemList problems={analysed.problems} title="This file cannot be used" rowWord={rowWord} /> : null}
+      {analysed?.kind === 'invalid' ? <ProblemList problems={analysed.problems} total={analysed.total} title="This file cannot be used" rowWord={rowWord} /> : null}
     </Step>
   );
 
@@ -221,8 +225,16 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const previewCard = preview ? (
     <Card>
       <Text variant="title">Preview</Text>
-      {problems.length && analysed?.kind !== 'invalid' ? <ProblemList problems={problems} rowWord={rowWord} /> : null}
-      {problems.length === 0 && converted.curve ? <Banner tone="success" message={`All ${converted.curve.x.length} points are valid.`} /> : null}
+      {analysed && analysed.kind !== 'invalid' ? (
+        <PreviewStatus
+          problems={problems}
+          total={converted.total}
+          rowWord={rowWord}
+          points={converted.curve?.x.length}
+          headers={analysed.kind === 'csv' ? analysed.table.headers : []}
+          notUsed={notUsed}
+        />
+      ) : null}
       <QuickPlot curve={preview.curve} theory={preview.theory} xLabel={labels.x} yLabel={labels.y} height={wide ? 300 : 240} />
       {analysed?.kind === 'csv' ? <PreviewTable table={analysed.table} mapping={mapping} problems={problems} /> : null}
       {analysed?.kind === 'json' ? <PointsTable curve={analysed.curve} theory={analysed.theory} xTitle={parameterLabel({ parameterName: meta.parameterName || 'x', parameterUnit: meta.parameterUnit })} /> : null}
@@ -259,7 +271,9 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
           ))}
         </View>
       ) : (
-        <Text variant="muted">Everything is valid. Saving stores a draft{isVersion ? ' version' : ''}; a curator or owner publishes it.</Text>
+        <Text variant="muted">
+          Everything is valid{notUsed.length ? ` (${notUsed.length === 1 ? 'one column with numbers is' : `${notUsed.length} columns with numbers are`} not used and will not be stored; see the preview)` : ''}. Saving stores a draft{isVersion ? ' version' : ''}; a curator or owner publishes it.
+        </Text>
       )}
       <ProblemList problems={fromServer} title="The server refused the upload" rowWord={rowWord} />
       {save.error && fromServer.length === 0 && !Object.keys(serverFields).length ? <Banner tone="error" message={errorMessage(save.error)!} /> : null}

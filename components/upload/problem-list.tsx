@@ -1,4 +1,5 @@
 import { StyleSheet, View } from 'react-native';
+import { formatCount } from '@/shared/curves/check';
 import { colors, fonts, radii, space } from '@/themes/tokens';
 import { Text } from '../ui/text';
 import type { Problem } from './upload-model';
@@ -9,10 +10,16 @@ export function problemText(p: Problem, rowWord = 'Line'): string {
   return `${where.charAt(0).toUpperCase()}${where.slice(1)}: ${p.reason}`;
 }
 
-/** Every problem of a file, each with its line (or point), column and reason. */
-export function ProblemList({ problems, title, rowWord = 'Line', max = 50 }: { problems: Problem[]; title?: string; rowWord?: string; max?: number }) {
+/**
+ * The problems of a file, each with its line (or point), column and reason: the first `max` of
+ * them, then how many more there are. `total` counts problems found beyond the list (the checks
+ * keep the first MAX_PROBLEMS of a file and count the rest).
+ */
+export function ProblemList({ problems, title, rowWord = 'Line', max = 50, total }: { problems: Problem[]; title?: string; rowWord?: string; max?: number; total?: number }) {
   if (problems.length === 0) return null;
-  const heading = title ?? (problems.length === 1 ? '1 problem to fix' : `${problems.length} problems to fix`);
+  const all = Math.max(total ?? problems.length, problems.length);
+  const heading = title ?? (all === 1 ? '1 problem to fix' : `${formatCount(all)} problems to fix`);
+  const shown = Math.min(max, problems.length);
   return (
     <View style={styles.box} role="alert" aria-label={heading}>
       <Text style={styles.title}>{heading}</Text>
@@ -23,7 +30,7 @@ export function ProblemList({ problems, title, rowWord = 'Line', max = 50 }: { p
           </Text>
         ))}
       </View>
-      {problems.length > max ? <Text variant="caption">…and {problems.length - max} more.</Text> : null}
+      {all > shown ? <Text variant="caption">…and {formatCount(all - shown)} more.</Text> : null}
     </View>
   );
 }

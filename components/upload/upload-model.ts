@@ -5,7 +5,7 @@
  */
 import { ApiError } from '@/shared/api-client';
 import type { CurveProblem } from '@/shared/curves/check';
-import { checkCurve } from '@/shared/curves/check';
+import { checkCurve, ProblemCollector } from '@/shared/curves/check';
 import {
   COLUMN_ROLES,
   CsvFileError,
@@ -13,6 +13,7 @@ import {
   detectRoles,
   parseCsv,
   parseNumber,
+  ROLE_TITLES,
   tableToCurve,
   type ColumnMapping,
   type ColumnRole,
@@ -53,16 +54,20 @@ export function sizeProblem(bytes: number, limit = MAX_UPLOAD_BYTES): Problem | 
   return { column: 'file', reason: `is ${(bytes / (1024 * 1024)).toFixed(1)} MB; the limit is ${uploadLimitLabel(limit)}` };
 }
 
-const problemsOf = (e: unknown): Problem[] => {
-  if (e instanceof CsvFileError) return e.problems;
+/** The problems of a refused file: the first ones (at most MAX_PROBLEMS) and how many there are in all. */
+const problemsOf = (e: unknown): { problems: Problem[]; total: number } => {
+  if (e instanceof CsvFileError) return { problems: e.problems, total: e.total };
   throw e;
 };
 
-/** A file as read: a CSV table to map, the project's JSON with its numbers, or the reasons it is unusable. */
+/**
+ * A file as read: a CSV table to map, the project's JSON with its numbers, or the reasons it is
+ * unusable. `total` counts every problem; `problems` holds the first of them.
+ */
 export type Analysed =
   | { kind: 'csv'; table: CsvTable; mapping: ColumnMapping }
-  | { kind: 'json'; meta: VersionMeta; curve: Curve; theory: Theory | null; problems: Problem[] }
-  | { kind: 'invalid'; problems: Problem[] };
+  | { kind: 'json'; meta: VersionMeta; curve: Curve; theory: Theory | null; problems: Problem[]; total?: number }
+  | { kind: 'invalid'; problems: Problem[]; total?: number };
 
 function looksLikeJson(name: string, text: string): boolean {
   return /\.json$/i.test(name) || text.trimStart().startsWith('{');
@@ -76,14 +81,14 @@ export function analyseFile(name: string, bytes: Uint8Array, limit = MAX_UPLOAD_
   try {
     text = decodeText(bytes);
   } catch (e) {
-    return { kind: 'invalid', problems: problemsOf(e) };
+    return { kind: 'invalid', ...problemsOf(e) };
   }
   if (looksLikeJson(name, text)) return analyseJson(text);
   try {
     const table = parseCsv(text);
     return { kind: 'csv', table, mapping: detectRoles(table.headers) };
   } catch (e) {
-    return { kind: 'invalid', problems: problemsOf(e) };
+    return { kind: 'invalid', ...problemsOf(e) };
   }
 }
 
@@ -112,16 +117,21 @@ export function analyseJson(text: string): Analysed {
     };
   }
   const { meta, curve, theory = null } = parsed.data;
-  return { kind: 'json', meta, curve, theory, problems: checkCurve(curve, theory) };
+  const found = new ProblemCollector();
+  const problems = checkCurve(curve, theory, undefined, found);
+  return { kind: 'json', meta, curve, theory, problems, total: found.total };
 }
 
 /** The curve of a mapped table, or every problem found (lines and columns as in the file). */
-export function curveFromTable(table: CsvTable, mapping: ColumnMapping): { curve: Curve; theory: Theory | null; problems: [] } | { curve?: undefined; theory?: undefined; problems: Problem[] } {
+export function curveFromTable(
+  table: CsvTable,
+  mapping: ColumnMapping,
+): { curve: Curve; theory: Theory | null; problems: []; total: 0 } | { curve?: undefined; theory?: undefined; problems: Problem[]; total: number } {
   try {
     const { curve, theory } = tableToCurve(table, mapping);
-    return { curve, theory, problems: [] };
+    return { curve, theory, problems: [], total: 0 };
   } catch (e) {
-    return { problems: problemsOf(e) };
+    return problemsOf(e);
   }
 }
 
@@ -166,6 +176,33 @@ export function assignRole(mapping: ColumnMapping, index: number, role: ColumnRo
   }
   if (role) next[role] = index;
   return next;
+}
+
+/** A column as users know it: “its header” (or “column 3” when the header is empty). */
+export function columnLabel(headers: string[], index: number): string {
+  return headers[index] ? `column “${headers[index]}”` : `column ${index + 1}`;
+}
+
+/**
+ * What `assignRole(mapping, index, role)` takes from other columns, said aloud: a role is on one
+ * column only, so giving it to a second one moves it ("Observed limit moved from column “obs”
+ * to column “obs (rerun)”."), and the column gives up the role it had. Null when nothing moves.
+ */
+export function roleChangeNotice(headers: string[], mapping: ColumnMapping, index: number, role: ColumnRole | null): string | null {
+  if (!role) return null;
+  const parts: string[] = [];
+  const from = mapping[role];
+  if (from !== undefined && from !== index) parts.push(`${ROLE_TITLES[role]} moved from ${columnLabel(headers, from)} to ${columnLabel(headers, index)}.`);
+  const previous = roleOfColumn(mapping, index);
+  if (previous && previous !== role) parts.push(`${ROLE_TITLES[previous]} is no longer set (it was ${columnLabel(headers, index)}).`);
+  return parts.length ? parts.join(' ') : null;
+}
+
+/** "Not used: “exp+1s” (column 6), …": the preview's warning about numeric columns without a role. */
+export function notUsedMessage(headers: string[], indexes: number[]): string {
+  const names = indexes.map((i) => (headers[i] ? `“${headers[i]}” (column ${i + 1})` : `column ${i + 1}`)).join(', ');
+  const one = indexes.length === 1;
+  return `Not used: ${names}. ${one ? 'It holds' : 'They hold'} numbers but ${one ? 'has' : 'have'} no role, so ${one ? 'it' : 'they'} will not be stored; give ${one ? 'it' : 'them'} a role above if ${one ? 'it belongs' : 'they belong'} to the result.`;
 }
 
 /** Problems about the file as a whole or the mapping (no line): shown beside the mapping. */

@@ -1,4 +1,4 @@
-import { and, desc, eq, isNull, lte, or, sql } from 'drizzle-orm';
+import { and, desc, eq, isNull, or, sql } from 'drizzle-orm';
 import type { Executor } from '../client';
 import { billingAccounts, groups, invoices, memberships, providerEvents, user } from '../schema';
 

@@ -6,3 +6,4 @@ export * from './tokens';
 export * from './scans';
 export * from './figures';
 export * from './billing';
+export * from './upload-idempotency';

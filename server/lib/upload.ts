@@ -1,4 +1,4 @@
-import express, { type RequestHandler } from 'express';
+import express, { type Request, type RequestHandler } from 'express';
 import multer from 'multer';
 import { AppError } from './errors';
 
@@ -11,12 +11,17 @@ export function formatMegabytes(bytes: number): string {
 const tooLarge = (limit: number) =>
   new AppError(413, 'too_large', `The upload is larger than the limit of ${formatMegabytes(limit)}; split the file or ask the administrator to raise the limit`);
 
+const rawBodies = new WeakMap<Request, Buffer>();
+
+/** The bytes of a JSON upload body as received (an `Idempotency-Key` retry is recognised by them). */
+export const rawJsonBody = (req: Request): Buffer | undefined => rawBodies.get(req);
+
 /**
  * JSON bodies of result uploads may be as large as files (the API-wide JSON limit is smaller).
  * Mounted before the API-wide parser, which then leaves the parsed body alone.
  */
 export function resultJson(limitBytes: number): RequestHandler {
-  const parse = express.json({ limit: limitBytes });
+  const parse = express.json({ limit: limitBytes, verify: (req, _res, buf) => void rawBodies.set(req as Request, buf) });
   return (req, res, next) =>
     parse(req, res, (err?: unknown) => {
       if ((err as { status?: number } | undefined)?.status === 413) return next(tooLarge(limitBytes));

@@ -1,5 +1,4 @@
 import { Router, type Request, type Response } from 'express';
-import type { ZodType, z } from 'zod';
 import { groupParams } from '../../shared/schemas/groups';
 import {
   createResultSchema,
@@ -10,15 +9,19 @@ import {
   resultParams,
   retractSchema,
   updateDraftSchema,
+  IDEMPOTENCY_KEY_HEADER,
+  uploadHeadersSchema,
   versionParams,
   visibilitySchema,
+  type UploadedVersion,
 } from '../../shared/schemas/results';
 import { optionalUser, requireGroup } from '../access';
 import type { Ctx } from '../context';
-import { validationError } from '../lib/errors';
+import { AppError } from '../lib/errors';
 import { handle } from '../lib/validate';
-import { multipartUpload } from '../lib/upload';
-import { fromFileUpload, fromJsonBody, type FileUpload } from '../services/result-upload';
+import { multipartUpload, rawJsonBody } from '../lib/upload';
+import { fromFileUpload, fromJsonBody, parseJsonUpload, type FileUpload } from '../services/result-upload';
+import { requestFingerprint, uploadOnce, type RequestContents, type UploadAnswer } from '../services/upload-idempotency';
 import * as results from '../services/results';
 
 const groupListQuery = resultListQuery.omit({ groupId: true });
@@ -33,11 +36,22 @@ function fileUploadOf(req: Request): FileUpload | undefined {
   return { fields, file: f ? { name: (f.originalname || 'upload').slice(0, MAX_FILE_NAME), data: f.buffer } : undefined };
 }
 
-/** A JSON body parsed by its schema (400 with every field otherwise). */
-function parseBody<S extends ZodType>(schema: S, body: unknown): z.output<S> {
-  const parsed = schema.safeParse(body ?? {});
-  if (!parsed.success) throw validationError(parsed.error, 'body');
-  return parsed.data;
+/** The upload's `Idempotency-Key`, checked (400 naming the header), or undefined. */
+function idempotencyKeyOf(req: Request): string | undefined {
+  const parsed = uploadHeadersSchema.safeParse({ 'idempotency-key': req.headers['idempotency-key'] });
+  if (parsed.success) return parsed.data['idempotency-key'];
+  const message = parsed.error.issues[0]?.message ?? 'is not valid';
+  throw new AppError(400, 'validation_failed', `Invalid header: ${IDEMPOTENCY_KEY_HEADER} ${message}`, [{ field: IDEMPOTENCY_KEY_HEADER, message }]);
+}
+
+/** What an upload request sent, for its fingerprint. */
+function contentsOf(req: Request, file: FileUpload | undefined): RequestContents {
+  return file ? { multipart: file } : { json: rawJsonBody(req) ?? Buffer.from(JSON.stringify(req.body ?? {})) };
+}
+
+function sendUpload(res: Response, answer: UploadAnswer) {
+  if (answer.replayed) res.setHeader('Idempotent-Replayed', 'true');
+  res.status(answer.status).json({ ...answer.version, warnings: answer.warnings } satisfies UploadedVersion);
 }
 
 function sendExport(res: Response, file: results.ExportFile) {
@@ -65,8 +79,17 @@ export function resultsRouter(ctx: Ctx) {
 
   r.post('/groups/:groupId/results', requireGroup(ctx, 'result.write'), upload, handle({ params: groupParams }, async ({ params }, req, res) => {
     const file = fileUploadOf(req);
-    const input = file ? fromFileUpload(file, { changeNote: false }) : fromJsonBody(parseBody(createResultSchema, req.body));
-    res.status(201).json(await results.createResult(ctx, params.groupId, actor(req), input));
+    const userId = req.user!.id;
+    const answer = await uploadOnce(
+      ctx,
+      params.groupId,
+      userId,
+      idempotencyKeyOf(req),
+      () => requestFingerprint(userId, { kind: 'result' }, contentsOf(req, file)),
+      async () => (file ? fromFileUpload(file, { changeNote: false }) : fromJsonBody(parseJsonUpload(createResultSchema, req.body))),
+      (input, hooks) => results.createResult(ctx, params.groupId, actor(req), input, { hooks }),
+    );
+    sendUpload(res, answer);
   }));
 
   r.get('/groups/:groupId/results/:resultId', requireGroup(ctx, 'group.read'), handle({ params: resultParams }, async ({ params }, _req, res) => {
@@ -84,15 +107,24 @@ export function resultsRouter(ctx: Ctx) {
 
   r.post('/groups/:groupId/results/:resultId/versions', requireGroup(ctx, 'result.write'), upload, handle({ params: resultParams }, async ({ params }, req, res) => {
     const file = fileUploadOf(req);
-    let input: Parameters<typeof results.addVersion>[4];
-    if (file) {
-      const { changeNote = '', ...parsed } = fromFileUpload(file, { changeNote: true });
-      input = { ...parsed, changeNote };
-    } else {
-      const body = parseBody(createVersionSchema, req.body);
-      input = { ...fromJsonBody(body), changeNote: body.changeNote };
-    }
-    res.status(201).json(await results.addVersion(ctx, params.groupId, actor(req), params.resultId, input));
+    const userId = req.user!.id;
+    const answer = await uploadOnce(
+      ctx,
+      params.groupId,
+      userId,
+      idempotencyKeyOf(req),
+      () => requestFingerprint(userId, { kind: 'version', resultId: params.resultId }, contentsOf(req, file)),
+      async (): Promise<Parameters<typeof results.addVersion>[4]> => {
+        if (file) {
+          const { changeNote = '', ...parsed } = await fromFileUpload(file, { changeNote: true });
+          return { ...parsed, changeNote };
+        }
+        const body = parseJsonUpload(createVersionSchema, req.body);
+        return { ...fromJsonBody(body), changeNote: body.changeNote };
+      },
+      (input, hooks) => results.addVersion(ctx, params.groupId, actor(req), params.resultId, input, { hooks }),
+    );
+    sendUpload(res, answer);
   }));
 
   r.get('/groups/:groupId/results/:resultId/versions/:version', requireGroup(ctx, 'group.read'), handle({ params: versionParams }, async ({ params }, _req, res) => {

@@ -1,22 +1,28 @@
+import path from 'node:path';
 import { z } from 'zod';
-import { checkCurve, type CurveProblem } from '../../shared/curves/check';
-import { COLUMN_ROLES, CsvFileError, decodeText, detectRoles, parseCsv, tableToCurve, type ColumnMapping } from '../../shared/curves/csv';
+import { checkCurve, formatCount, MAX_PROBLEMS, ProblemCollector } from '../../shared/curves/check';
+import { COLUMN_ROLES, type ColumnMapping } from '../../shared/curves/csv';
 import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
 import {
   createVersionSchema,
   LIMIT_FILE_FORMAT,
-  limitFileSchema,
+  MAX_CURVE_POINTS,
   versionMetaSchema,
   type Curve,
   type Theory,
   type VersionMeta,
 } from '../../shared/schemas/results';
-import { AppError, zodDetails, type ErrorDetail } from '../lib/errors';
+import { AppError, validationError, type ErrorDetail } from '../lib/errors';
+import { ThreadDied, ThreadPool, ThreadTimeout } from '../lib/thread-pool';
+import { boundedZodDetails, canonicalTheory, moreProblems, problemDetail, readLimitFile, type FileJob, type FileReading } from './limit-file';
+
+export { canonicalTheory };
 
 /**
  * Turns an upload (a CSV or project JSON file with form fields, or a JSON body) into one
  * normalized version: provenance, curve, theory and the file as received. Every problem is
- * collected and reported at once; nothing is returned unless all is valid.
+ * counted and reported at once (the first MAX_PROBLEMS by name, then "and N more problems");
+ * nothing is returned unless all is valid.
  */
 
 export type NormalizedVersion = {
@@ -24,12 +30,12 @@ export type NormalizedVersion = {
   curve: Curve;
   theory: Theory | null;
   source: { name: string; data: Buffer } | null;
+  /** What the upload left out without being wrong (numeric columns without a role): said in the answer. */
+  warnings?: ErrorDetail[];
 };
 
 /** A multipart upload as the route received it: the file and the text fields. */
 export type FileUpload = { file?: { name: string; data: Buffer }; fields: Record<string, unknown> };
-
-const MAX_DETAILS = 200;
 
 const mappingSchema = z
   .object(Object.fromEntries(COLUMN_ROLES.map((r) => [r, z.number({ error: 'must be a column number (0 = first column)' }).int('must be a whole number').min(0, 'must be 0 or more').optional()])))
@@ -37,42 +43,59 @@ const mappingSchema = z
 
 const changeNoteSchema = createVersionSchema.shape.changeNote;
 
-/** A curve problem as an error detail: `line 7, obs` for files with lines, `point 3, observed` for JSON curves. */
-function problemDetail(p: CurveProblem, rowWord: 'line' | 'point'): ErrorDetail {
-  return { field: p.row !== undefined ? `${rowWord} ${p.row}, ${p.column}` : p.column, message: p.reason };
+/**
+ * Problems of one request: kept up to MAX_PROBLEMS, all counted (`hidden` are those counted but
+ * not kept). Nothing here spreads an unbounded list into arguments.
+ */
+class Details {
+  readonly list: ErrorDetail[] = [];
+  hidden = 0;
+  add(d: ErrorDetail) {
+    if (this.list.length < MAX_PROBLEMS) this.list.push(d);
+    else this.hidden++;
+  }
+  addAll(ds: ErrorDetail[], total = ds.length) {
+    for (const d of ds) this.add(d);
+    this.hidden += total - ds.length;
+  }
+  get total() {
+    return this.list.length + this.hidden;
+  }
 }
 
-function fail(code: 'invalid_file' | 'validation_failed', details: ErrorDetail[]): never {
-  const shown = details.slice(0, MAX_DETAILS);
-  if (details.length > MAX_DETAILS) shown.push({ field: 'file', message: `and ${details.length - MAX_DETAILS} more problems` });
+function fail(code: 'invalid_file' | 'validation_failed', details: Details): never {
+  const shown = details.list.slice();
+  const total = details.total;
+  if (details.hidden > 0) shown.push(moreProblems(details.hidden));
   const first = shown[0]!;
-  const more = details.length > 1 ? ` (and ${details.length - 1} more problem${details.length > 2 ? 's' : ''})` : '';
+  const more = total > 1 ? ` (${moreProblems(total - 1).message})` : '';
   const what = code === 'invalid_file' ? 'The file cannot be stored' : 'The result cannot be stored';
   throw new AppError(400, code, `${what}: ${first.field}: ${first.message}${more}`, shown);
 }
 
 /** A form field holding JSON text, parsed; problems go to `details`. */
-function jsonField(fields: Record<string, unknown>, name: string, details: ErrorDetail[]): unknown {
+function jsonField(fields: Record<string, unknown>, name: string, details: Details): unknown {
   const raw = fields[name];
   if (raw === undefined || raw === '') return undefined;
   if (typeof raw !== 'string') {
-    details.push({ field: name, message: 'must be sent once, as JSON text' });
+    details.add({ field: name, message: 'must be sent once, as JSON text' });
     return undefined;
   }
   try {
     return JSON.parse(raw);
   } catch {
-    details.push({ field: name, message: 'is not valid JSON text' });
+    details.add({ field: name, message: 'is not valid JSON text' });
     return undefined;
   }
 }
 
 /** `raw` parsed by `schema` (undefined stays undefined); problems go to `details` under `field`. */
-function parseWith<T>(schema: z.ZodType<T>, raw: unknown, field: string, details: ErrorDetail[]): T | undefined {
+function parseWith<T>(schema: z.ZodType<T>, raw: unknown, field: string, details: Details): T | undefined {
   if (raw === undefined) return undefined;
   const parsed = schema.safeParse(raw);
   if (parsed.success) return parsed.data;
-  details.push(...zodDetails(parsed.error, field));
+  const bounded = boundedZodDetails(parsed.error, field);
+  details.addAll(bounded.details, bounded.total);
   return undefined;
 }
 
@@ -84,11 +107,6 @@ export function canonicalCurve(c: Curve): Curve {
   for (const k of EXPECTED_KEYS) if (c.expected?.[k]) expected[k] = c.expected[k];
   if (Object.keys(expected).length) out.expected = expected;
   return out;
-}
-
-export function canonicalTheory(t: Theory | null | undefined): Theory | null {
-  if (!t) return null;
-  return { ...(t.label ? { label: t.label } : {}), x: t.x, central: t.central, ...(t.lower ? { lower: t.lower } : {}), ...(t.upper ? { upper: t.upper } : {}) };
 }
 
 export function canonicalMeta(m: VersionMeta): VersionMeta {
@@ -120,8 +138,50 @@ export function storedBytesOf(v: { meta: VersionMeta; curve: Curve; theory: Theo
 
 /** Curve checks of a JSON curve (points numbered from 1); throws with every problem. */
 export function assertCurveValid(curve: Curve, theory: Theory | null) {
-  const problems = checkCurve(curve, theory);
-  if (problems.length) fail('validation_failed', problems.map((p) => problemDetail(p, 'point')));
+  const found = new ProblemCollector();
+  const problems = checkCurve(curve, theory, undefined, found);
+  if (!problems.length) return;
+  const details = new Details();
+  details.addAll(problems.map((p) => problemDetail(p, 'point')), found.total);
+  fail('validation_failed', details);
+}
+
+const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+
+/**
+ * A JSON upload body parsed by its schema, with the work bounded first: 5 MB of JSON holds half a
+ * million values, and zod would check and describe every bad one on the event loop (a second and
+ * a 20 MB answer). So the curve's and theory's arrays are looked at before: one longer than
+ * MAX_CURVE_POINTS is refused without reading it, and more than MAX_PROBLEMS values that are not
+ * numbers are refused counted. Everything else (and the messages of small mistakes) is zod's.
+ */
+export function parseJsonUpload<S extends z.ZodType>(schema: S, body: unknown): z.output<S> {
+  const details = new Details();
+  let tooLong = false;
+  const b = isRecord(body) ? body : {};
+  const curve = isRecord(b.curve) ? b.curve : {};
+  const groups: [string, unknown, readonly string[]][] = [
+    ['curve', curve, ['x', 'observed']],
+    ['curve.expected', curve.expected, EXPECTED_KEYS],
+    ['theory', b.theory, ['x', 'central', 'lower', 'upper']],
+  ];
+  for (const [prefix, holder, keys] of groups) {
+    if (!isRecord(holder)) continue;
+    for (const k of keys) {
+      const values = holder[k];
+      if (!Array.isArray(values)) continue;
+      if (values.length > MAX_CURVE_POINTS) {
+        tooLong = true;
+        details.add({ field: `${prefix}.${k}`, message: `must have at most ${formatCount(MAX_CURVE_POINTS)} points (has ${formatCount(values.length)})` });
+        continue;
+      }
+      for (let i = 0; i < values.length; i++) if (typeof values[i] !== 'number') details.add({ field: `${prefix}.${k}.${i}`, message: 'must be a number' });
+    }
+  }
+  if (tooLong || details.total > MAX_PROBLEMS) fail('validation_failed', details);
+  const parsed = schema.safeParse(body ?? {});
+  if (!parsed.success) throw validationError(parsed.error, 'body');
+  return parsed.data;
 }
 
 /** A JSON body (already checked against its zod schema). */
@@ -131,7 +191,45 @@ export function fromJsonBody(body: { meta: VersionMeta; curve: Curve; theory?: T
   return { meta: canonicalMeta(body.meta), curve: canonicalCurve(body.curve), theory, source: null };
 }
 
-const looksLikeJson = (name: string, text: string) => /\.json$/i.test(name) || text.trimStart().startsWith('{');
+/**
+ * Files above this size are read on a worker thread: a 5 MB CSV of short rows is a million rows
+ * and takes seconds to parse, which on the event loop would stall every other request. Smaller
+ * files (almost every real limit table) are read in place, sparing the round trip.
+ */
+export const INLINE_READ_BYTES = 64 * 1024;
+const READ_TIMEOUT_MS = 30_000;
+
+const readers = new ThreadPool<FileJob, FileReading>({
+  script: path.join(__dirname, 'limit-file-thread-boot.cjs'),
+  name: 'the upload reader',
+  // Two threads: a second large upload need not wait for the first; more would only compete for
+  // the cores the server itself needs.
+  size: 2,
+  timeoutMs: READ_TIMEOUT_MS,
+  // A 5 MB file of a million rows needs ≈ 350 MB while parsed; a crafted file cannot take more.
+  resourceLimits: { maxOldGenerationSizeMb: 1024 },
+});
+
+/** Stops the reader threads (tests); a later large upload starts them again. */
+export const stopUploadReaders = () => readers.stop();
+
+/** `readLimitFile` in place for small files, on a reader thread for large ones. */
+export async function readUploadedFile(job: FileJob): Promise<FileReading> {
+  if (job.data.length <= INLINE_READ_BYTES) return readLimitFile(job);
+  try {
+    // A copy goes to the thread: the route's buffer stays valid for storing the file as received.
+    return await readers.run(job);
+  } catch (e) {
+    const reason =
+      e instanceof ThreadTimeout
+        ? `could not be read within ${READ_TIMEOUT_MS / 1000} s; split it into smaller files`
+        : e instanceof ThreadDied && e.outOfMemory
+          ? 'needs more memory to read than an upload may use; split it into smaller files'
+          : undefined;
+    if (!reason) throw e;
+    return { ok: false, kind: 'unknown', details: [{ field: 'file', message: reason }], total: 1 };
+  }
+}
 
 /**
  * A multipart upload: `file` (CSV, or the project's JSON detected by extension or content),
@@ -139,68 +237,39 @@ const looksLikeJson = (name: string, text: string) => /\.json$/i.test(name) || t
  * `mapping` (JSON text, role → column number; detected from the headers when absent) and, for a
  * new version, `changeNote`.
  */
-export function fromFileUpload(upload: FileUpload, opts: { changeNote: boolean }): NormalizedVersion & { changeNote?: string } {
+export async function fromFileUpload(upload: FileUpload, opts: { changeNote: boolean }): Promise<NormalizedVersion & { changeNote?: string }> {
   const { fields } = upload;
-  const details: ErrorDetail[] = [];
-  let fileProblem = false;
+  const details = new Details();
 
   const metaRaw = jsonField(fields, 'meta', details);
   let meta = parseWith(versionMetaSchema, metaRaw, 'meta', details);
   const mapping = parseWith(mappingSchema, jsonField(fields, 'mapping', details), 'mapping', details);
   const changeNote = opts.changeNote ? parseWith(changeNoteSchema, fields.changeNote ?? '', 'changeNote', details) : undefined;
 
-  let curve: Curve | undefined;
-  let theory: Theory | null = null;
   const file = upload.file;
+  let reading: FileReading | undefined;
   if (!file) {
-    details.push({ field: 'file', message: 'is missing: send the CSV or JSON file in the form field "file"' });
+    details.add({ field: 'file', message: 'is missing: send the CSV or JSON file in the form field "file"' });
   } else {
-    try {
-      const text = decodeText(file.data);
-      if (looksLikeJson(file.name, text)) {
-        let json: unknown;
-        try {
-          json = JSON.parse(text);
-        } catch (e) {
-          throw new CsvFileError([{ column: 'file', reason: `is not valid JSON (${(e as Error).message})` }]);
-        }
-        const schema = meta || metaRaw !== undefined ? limitFileSchema.extend({ meta: z.unknown().optional() }) : limitFileSchema;
-        const parsed = schema.safeParse(json);
-        if (!parsed.success) {
-          fileProblem = true;
-          details.push(...zodDetails(parsed.error));
-        } else {
-          const fileMeta = parsed.data.meta as VersionMeta | undefined;
-          meta ??= metaRaw === undefined ? fileMeta : undefined;
-          theory = canonicalTheory(parsed.data.theory);
-          const problems = checkCurve(parsed.data.curve, theory);
-          if (problems.length) {
-            fileProblem = true;
-            details.push(...problems.map((p) => problemDetail(p, 'point')));
-          } else curve = parsed.data.curve;
-        }
-      } else {
-        if (metaRaw === undefined && !details.some((d) => d.field === 'meta')) {
-          details.push({ field: 'meta', message: 'is required with a CSV file: JSON text with title, parameterName, quantity, sqrtS, luminosity and method' });
-        }
-        const table = parseCsv(text);
-        const result = tableToCurve(table, mapping ?? detectRoles(table.headers));
-        curve = result.curve;
-        theory = result.theory;
-      }
-    } catch (e) {
-      if (!(e instanceof CsvFileError)) throw e;
-      fileProblem = true;
-      details.push(...e.problems.map((p) => problemDetail(p, 'line')));
+    reading = await readUploadedFile({ name: file.name, data: file.data, mapping, metaGiven: metaRaw !== undefined });
+    if (reading.kind === 'csv' && metaRaw === undefined && !details.list.some((d) => d.field === 'meta')) {
+      details.add({ field: 'meta', message: 'is required with a CSV file: JSON text with title, parameterName, quantity, sqrtS, luminosity and method' });
     }
+    if (reading.ok) meta ??= reading.fileMeta;
+    else details.addAll(reading.details, reading.total);
   }
 
-  if (details.length || !curve || !meta) fail(fileProblem ? 'invalid_file' : 'validation_failed', details.length ? details : [{ field: 'meta', message: 'is missing' }]);
+  const fileProblem = reading !== undefined && !reading.ok;
+  if (details.total || !reading?.ok || !meta) {
+    if (!details.total) details.add({ field: 'meta', message: 'is missing' });
+    fail(fileProblem ? 'invalid_file' : 'validation_failed', details);
+  }
   return {
     meta: canonicalMeta(meta),
-    curve: canonicalCurve(curve),
-    theory,
+    curve: canonicalCurve(reading.curve),
+    theory: reading.theory,
     source: { name: file!.name, data: file!.data },
+    ...(reading.warnings.length ? { warnings: reading.warnings } : {}),
     ...(changeNote !== undefined ? { changeNote } : {}),
   };
 }

@@ -15,6 +15,7 @@ import { exclusionRanges } from '../../shared/stats/exclusion';
 import { StatsInputError } from '../../shared/stats/errors';
 import * as q from '../../db/queries/results';
 import type { Ctx } from '../context';
+import type { Executor } from '../../db/client';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
 import { slugify } from './groups';
 import { assertStorageAvailable } from './plans';
@@ -180,6 +181,16 @@ export async function exportByLink(ctx: Ctx, viewer: q.Viewer, slug: string, ver
 // Writes
 
 /**
+ * Work of a caller inside the writing transaction (the upload's `Idempotency-Key`): `before` runs
+ * first, before the registry takes any lock (so it may wait for a concurrent twin and abort by
+ * throwing), `after` last, with what was written.
+ */
+export type WriteHooks = {
+  before?: (tx: Executor) => Promise<void>;
+  after?: (tx: Executor, written: { resultId: string; version: number }) => Promise<void>;
+};
+
+/**
  * Creates a result with version 1 as a draft. `opts.slug` is for the demo seed's fixed links;
  * `opts.admitted` skips the quota check for a scan's draft (its room was checked when the scan started).
  */
@@ -188,9 +199,10 @@ export async function createResult(
   groupId: string,
   actor: Actor,
   input: NormalizedVersion,
-  opts: { slug?: string; admitted?: boolean } = {},
+  opts: { slug?: string; admitted?: boolean; hooks?: WriteHooks } = {},
 ): Promise<ResultVersion> {
   const resultId = await ctx.db.transaction(async (tx) => {
+    await opts.hooks?.before?.(tx);
     const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
     if (!opts.admitted) await assertStorageAvailable(tx, groupId, storedBytes);
     let result: Awaited<ReturnType<typeof q.insertResult>>;
@@ -210,6 +222,7 @@ export async function createResult(
       createdBy: actor.id,
     });
     await q.addStorage(tx, groupId, storedBytes);
+    await opts.hooks?.after?.(tx, { resultId: result.id, version: 1 });
     return result.id;
   });
   return getVersion(ctx, groupId, resultId, 1);
@@ -222,9 +235,10 @@ export async function addVersion(
   actor: Actor,
   resultId: string,
   input: NormalizedVersion & { changeNote: string },
-  opts: { admitted?: boolean } = {},
+  opts: { admitted?: boolean; hooks?: WriteHooks } = {},
 ): Promise<ResultVersion> {
   const version = await ctx.db.transaction(async (tx) => {
+    await opts.hooks?.before?.(tx);
     if (!(await q.lockResult(tx, groupId, resultId))) throw notFound('Result');
     const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
     if (!opts.admitted) await assertStorageAvailable(tx, groupId, storedBytes);
@@ -240,6 +254,7 @@ export async function addVersion(
       createdBy: actor.id,
     });
     await q.addStorage(tx, groupId, storedBytes);
+    await opts.hooks?.after?.(tx, { resultId, version: n });
     return n;
   });
   return getVersion(ctx, groupId, resultId, version);

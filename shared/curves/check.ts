@@ -18,16 +18,41 @@ export const BAND_LABELS: Record<ExpectedKey, string> = {
 /** Names of curve columns as shown to users (and used in problems). */
 export const CURVE_COLUMN_LABELS = { x: 'parameter', observed: 'observed', ...BAND_LABELS } as const;
 
-const MAX_PROBLEMS = 200;
+/** Problems kept with their line and column; the rest are only counted. */
+export const MAX_PROBLEMS = 100;
+
+/**
+ * Problems as they are found: the first `limit` are kept, every one is counted. A file with a
+ * million bad cells costs a counter, not a million objects (nor a spread of a million arguments).
+ */
+export class ProblemCollector {
+  readonly list: CurveProblem[] = [];
+  total = 0;
+  constructor(readonly limit = MAX_PROBLEMS) {}
+  add(p: CurveProblem): void {
+    this.total++;
+    if (this.list.length < this.limit) this.list.push(p);
+  }
+  /** Problems found and not kept. */
+  get hidden(): number {
+    return this.total - this.list.length;
+  }
+}
+
+/** 1250000 → "1,250,000": counts as users read them. */
+export function formatCount(n: number): string {
+  return n.toLocaleString('en');
+}
 
 /**
  * Checks a curve as a physicist would before publishing it: finite numbers, increasing x without
  * duplicates, positive limits, complete bands, and −2σ ≤ −1σ ≤ median ≤ +1σ ≤ +2σ at every point.
- * Returns every problem (up to 200), each with its row and column.
+ * Returns the first MAX_PROBLEMS problems, each with its row and column; pass a collector to
+ * learn how many there were in all.
  */
-export function checkCurve(curve: Curve, theory?: Theory | null, rowLabel: (i: number) => number = (i) => i + 1): CurveProblem[] {
-  const problems: CurveProblem[] = [];
-  const add = (p: CurveProblem) => problems.length < MAX_PROBLEMS && problems.push(p);
+export function checkCurve(curve: Curve, theory?: Theory | null, rowLabel: (i: number) => number = (i) => i + 1, into = new ProblemCollector()): CurveProblem[] {
+  const problems = into;
+  const add = (p: CurveProblem) => problems.add(p);
   const n = curve.x.length;
 
   curve.x.forEach((v, i) => {
@@ -78,32 +103,32 @@ export function checkCurve(curve: Curve, theory?: Theory | null, rowLabel: (i: n
     }
   }
 
-  if (theory) problems.push(...checkTheory(theory).slice(0, Math.max(0, MAX_PROBLEMS - problems.length)));
-  return problems;
+  if (theory) checkTheory(theory, problems);
+  return problems.list;
 }
 
 /** Theory curve checks (its own grid): increasing x, positive values, lower ≤ central ≤ upper. */
-export function checkTheory(theory: Theory): CurveProblem[] {
-  const problems: CurveProblem[] = [];
+export function checkTheory(theory: Theory, into = new ProblemCollector()): CurveProblem[] {
+  const problems = into;
   const n = theory.x.length;
   theory.x.forEach((v, i) => {
-    if (!Number.isFinite(v)) problems.push({ row: i + 1, column: 'theory parameter', reason: 'must be a finite number' });
-    else if (i > 0 && !(v > theory.x[i - 1]!)) problems.push({ row: i + 1, column: 'theory parameter', reason: 'must increase from row to row' });
+    if (!Number.isFinite(v)) problems.add({ row: i + 1, column: 'theory parameter', reason: 'must be a finite number' });
+    else if (i > 0 && !(v > theory.x[i - 1]!)) problems.add({ row: i + 1, column: 'theory parameter', reason: 'must increase from row to row' });
   });
   for (const [name, values] of [['theory', theory.central], ['theory lower edge', theory.lower], ['theory upper edge', theory.upper]] as const) {
     if (!values) continue;
     if (values.length !== n) {
-      problems.push({ column: name, reason: `has ${values.length} values but the theory grid has ${n}` });
+      problems.add({ column: name, reason: `has ${values.length} values but the theory grid has ${n}` });
       continue;
     }
     values.forEach((v, i) => {
-      if (!Number.isFinite(v) || v <= 0) problems.push({ row: i + 1, column: name, reason: 'must be a positive number' });
+      if (!Number.isFinite(v) || v <= 0) problems.add({ row: i + 1, column: name, reason: 'must be a positive number' });
     });
   }
   for (let i = 0; i < n; i++) {
     const c = theory.central[i]!;
-    if (theory.lower?.[i] !== undefined && theory.lower[i]! > c) problems.push({ row: i + 1, column: 'theory lower edge', reason: 'is above the central theory value' });
-    if (theory.upper?.[i] !== undefined && theory.upper[i]! < c) problems.push({ row: i + 1, column: 'theory upper edge', reason: 'is below the central theory value' });
+    if (theory.lower?.[i] !== undefined && theory.lower[i]! > c) problems.add({ row: i + 1, column: 'theory lower edge', reason: 'is above the central theory value' });
+    if (theory.upper?.[i] !== undefined && theory.upper[i]! < c) problems.add({ row: i + 1, column: 'theory upper edge', reason: 'is below the central theory value' });
   }
-  return problems.slice(0, MAX_PROBLEMS);
+  return problems.list;
 }

@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import { EXPECTED_KEYS } from './counting-model';
-import { intParam, pageParams, shortText, slugParam, uuidParam, versionParam } from './common';
+import { pageParams, shortText, slugParam, uuidParam, versionParam } from './common';
 
 export const RESULT_STATES = ['draft', 'published', 'superseded', 'retracted'] as const;
 export type ResultState = (typeof RESULT_STATES)[number];
@@ -84,6 +84,19 @@ export const createVersionSchema = createResultSchema.extend({
   changeNote: z.string().trim().min(1, 'say what changed in this version').max(500, 'must be at most 500 characters'),
 });
 export type CreateVersionInput = z.input<typeof createVersionSchema>;
+
+/**
+ * Headers of an upload (`POST …/results`, `…/versions`). `Idempotency-Key` lets a pipeline retry
+ * after a dropped connection: the same key with the same request gets the first answer again
+ * instead of a second version (kept 24 h per group). Express gives header names in lower case.
+ */
+export const IDEMPOTENCY_KEY_HEADER = 'Idempotency-Key';
+export const uploadHeadersSchema = z.object({
+  'idempotency-key': z
+    .string()
+    .regex(/^[A-Za-z0-9_.:~+/=-]{8,128}$/, 'must be 8 to 128 letters, digits or - _ . : ~ + / = (a random UUID is a good key), sent once')
+    .optional(),
+});
 
 /** Edit a draft (published versions never change). */
 export const updateDraftSchema = z
@@ -170,6 +183,12 @@ export type ResultVersion = VersionSummary & {
   permalink: string | null;
   sourceFile: { name: string; bytes: number } | null;
 };
+
+/**
+ * The answer to an upload: the stored version, and what the upload left out without being wrong
+ * (`warnings`, e.g. a column with numbers but no role), in the error detail shape.
+ */
+export type UploadedVersion = ResultVersion & { warnings: import('../errors').ErrorDetail[] };
 
 /** The project's own JSON file format for one limit result (upload and download). */
 export const LIMIT_FILE_FORMAT = 'bandwright-limit-result/1';

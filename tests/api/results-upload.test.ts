@@ -98,6 +98,31 @@ describe('good uploads', () => {
     expect(res.body.exclusion).toEqual({ ranges: null, problem: expect.stringContaining('No theory curve') });
   });
 
+  test('columns with numbers but no role are named in the answer as warnings, never dropped silently', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    const csv = 'mass,obs [pb],exp,xsec_alt,exp 2σ,comment\n1000,2.5,2.1,9,2.2,first\n1500,1.9,1.7,8,1.8,second\n2000,1.1,1.0,7,1.05,third\n';
+    const res = await uploadCsv(crew.analyst, groupId, csv);
+    expect(res.status).toBe(201);
+    expect(res.body.curve).toEqual({ x: [1000, 1500, 2000], observed: [2.5, 1.9, 1.1], expected: { '0': [2.1, 1.7, 1.0] } });
+    expect(res.body.warnings).toEqual([
+      { field: 'column 4, xsec_alt', message: expect.stringContaining('holds numbers but has no role') },
+      { field: 'column 5, exp 2σ', message: expect.stringContaining('holds numbers but has no role') },
+    ]);
+    // Replayed with its key, the answer keeps its warnings.
+    const keyed = () => crew.analyst.agent.post(`/api/groups/${groupId}/results`).set('Idempotency-Key', 'warnings-replay-01').field('meta', JSON.stringify(sampleMeta())).attach('file', Buffer.from(csv), 'limits.csv');
+    const first = await keyed();
+    const again = await keyed();
+    expect(again.headers['idempotent-replayed']).toBe('true');
+    expect(again.body.warnings).toEqual(first.body.warnings);
+    expect(again.body.warnings).toHaveLength(2);
+    // Every numeric column with a role: no warnings.
+    const all = await uploadCsv(crew.analyst, groupId, csv, { mapping: { x: 0, observed: 1, expected: 2, theory: 3 } });
+    expect(all.status).toBe(201);
+    expect(all.body.warnings).toEqual([{ field: 'column 5, exp 2σ', message: expect.any(String) }]);
+    const json = await crew.analyst.agent.post(`/api/groups/${groupId}/results`).send({ meta: sampleMeta(), curve: sampleCurve(3).curve });
+    expect(json.body.warnings).toEqual([]);
+  });
+
   test("the project's JSON file round-trips: download a version and upload it again, without a meta field", async () => {
     const { groupId } = await makeGroupWithRoles(t, { crew });
     const first = await uploadCsv(crew.analyst, groupId, sampleCsv());
@@ -277,6 +302,51 @@ describe('bad files are refused with line, column and reason, and nothing is sto
     expect(shape.status).toBe(400);
     expect(details(shape.body).map((d) => d.field)).toEqual(expect.arrayContaining(['meta.sqrtS', 'curve.x']));
     expect(await registryProbe.resultCount(t, groupId)).toBe(0);
+  });
+});
+
+describe('huge bad inputs get a bounded answer', () => {
+  test('a JSON body with 72,000 values that are not numbers: the first 100 named, the rest counted', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    const n = 8_000;
+    const x = Array.from({ length: n }, (_, i) => i + 1);
+    const bad = Array.from({ length: n }, () => 'x');
+    const curve = { x, observed: bad, expected: Object.fromEntries(['-2', '-1', '0', '1', '2'].map((k) => [k, bad])) };
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/results`).send({ meta: sampleMeta(), curve, theory: { x, central: bad, lower: bad, upper: bad } });
+    expect(res.status).toBe(400);
+    const d = details(res.body);
+    expect(d).toHaveLength(101);
+    expect(d[0]).toEqual({ field: 'curve.observed.0', message: 'must be a number' });
+    // 6 curve columns and 3 theory columns of 8,000 bad values each.
+    expect(d[100]).toEqual({ field: 'file', message: `and ${(9 * n - 100).toLocaleString('en')} more problems` });
+    expect(await registryProbe.resultCount(t, groupId)).toBe(0);
+  });
+
+  test('a JSON curve longer than 10,000 points is refused without reading every value', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    const x = Array.from({ length: 20_000 }, (_, i) => i + 1);
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/results`).send({ meta: sampleMeta(), curve: { x, observed: x } });
+    expect(res.status).toBe(400);
+    expect(details(res.body)).toEqual([
+      { field: 'curve.x', message: 'must have at most 10,000 points (has 20,000)' },
+      { field: 'curve.observed', message: 'must have at most 10,000 points (has 20,000)' },
+    ]);
+  });
+
+  test('a CSV with more bad cells than are listed names the first lines with all their bad cells', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    const rows = Array.from({ length: 300 }, (_, i) => `${1000 + i},bad,,2`).join('\n');
+    const res = await uploadCsv(crew.analyst, groupId, `mass,obs,exp,exp_minus_1sigma\n${rows}\n`);
+    expect(res.status).toBe(400);
+    const d = details(res.body);
+    expect(d.slice(0, 3)).toEqual([
+      { field: 'line 2, obs', message: '"bad" is not a number' },
+      { field: 'line 2, exp', message: 'is empty' },
+      { field: 'line 3, obs', message: '"bad" is not a number' },
+    ]);
+    expect(d).toHaveLength(101);
+    expect(d[100]).toEqual({ field: 'file', message: 'and 500 more problems' });
+    expect(res.body.error.message).toContain('(and 599 more problems)');
   });
 });
 

@@ -80,6 +80,9 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await expect(o.getByLabel('Parameter name', { exact: true }).inputValue()).resolves.toBe("M_Z'");
     await expect(o.getByLabel('Parameter unit', { exact: true }).inputValue()).resolves.toBe('TeV');
 
+    // The unused rerun column holds numbers: the preview says it would not be stored.
+    await o.getByText(/^Not used: “exp\+1s \(rerun\)” \(column 8\)\. It holds numbers but has no role/).waitFor();
+
     // The deliberate error is named by line and column, and Save stays disabled.
     const problem = o.getByText(/Line 5, column “exp\+1s”: expected median \(0\.4\) is above expected \+1σ \(0\.38\)/);
     await problem.waitFor();
@@ -90,7 +93,11 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     // Fix it: the rerun column becomes the +1σ edge (the old column is then unused).
     await rolePicker(o, 'exp+1s (rerun)').click();
     await o.getByRole('radiogroup', { name: 'Role of column “exp+1s (rerun)”' }).getByRole('radio', { name: 'Expected +1σ', exact: true }).click();
-    await o.getByText('All 6 points are valid.').waitFor();
+    // The move is said, and the column left without a role is named; "all valid" is not claimed.
+    await o.getByText('Expected +1σ moved from column “exp+1s” to column “exp+1s (rerun)”.').waitFor();
+    await o.getByText(/^Not used: “exp\+1s” \(column 6\)\./).waitFor();
+    await o.getByText('The 6 points of the columns with a role are valid.').waitFor();
+    await expect(o.getByText('All 6 points are valid.').count()).resolves.toBe(0);
     await expect(problem.count()).resolves.toBe(0);
     await expect(rolePicker(o, 'exp+1s').getAttribute('aria-label')).resolves.toMatch(/: Not used$/);
 

@@ -1,4 +1,4 @@
-import { checkCurve } from '@/shared/curves/check';
+import { checkCurve, formatCount, MAX_PROBLEMS, ProblemCollector } from '@/shared/curves/check';
 import { CsvFileError, decodeText, detectRoles, parseCsv, tableToCurve, curveToCsv } from '@/shared/curves/csv';
 
 const problemsOf = (fn: () => unknown) => {
@@ -115,4 +115,46 @@ describe('parsing and conversion', () => {
 test('checkCurve asks for both edges of a band and for the median', () => {
   const p = checkCurve({ x: [1, 2], expected: { '-1': [1, 1] } });
   expect(p.map((q) => q.reason)).toEqual(expect.arrayContaining([expect.stringContaining('needs both edges'), expect.stringContaining('is needed when')]));
+});
+
+describe('bounded problem lists', () => {
+  test('a table with many bad cells keeps the first 100 problems and counts every one', () => {
+    const rows = 25_000;
+    const table = parseCsv(`mass,obs,exp\n${Array.from({ length: rows }, (_, i) => `${i + 1},x,`).join('\n')}\n`);
+    let error: CsvFileError | undefined;
+    try {
+      tableToCurve(table, detectRoles(table.headers));
+    } catch (e) {
+      error = e as CsvFileError;
+    }
+    expect(error).toBeInstanceOf(CsvFileError);
+    expect(error!.problems).toHaveLength(MAX_PROBLEMS);
+    // Two bad cells per row, and one more for a table longer than a curve may be.
+    expect(error!.total).toBe(2 * rows + 1);
+    // The whole-file problem comes first, then the cells in file order.
+    expect(error!.problems[0]).toEqual({ column: 'file', reason: 'has 25,000 data rows; a curve has at most 10,000 points' });
+    expect(error!.problems[1]).toEqual({ row: 2, column: 'obs', reason: '"x" is not a number' });
+    expect(error!.problems[2]).toEqual({ row: 2, column: 'exp', reason: 'is empty' });
+  });
+
+  test('checkCurve counts into a collector beyond what it returns', () => {
+    const n = 500;
+    const found = new ProblemCollector();
+    const problems = checkCurve({ x: Array.from({ length: n }, (_, i) => i), observed: Array.from({ length: n }, () => -1) }, null, undefined, found);
+    expect(problems).toHaveLength(MAX_PROBLEMS);
+    expect(found.total).toBe(n);
+    expect(found.hidden).toBe(n - MAX_PROBLEMS);
+  });
+
+  test('counts are written with thousands separators', () => {
+    expect(formatCount(1_249_900)).toBe('1,249,900');
+    expect(formatCount(999)).toBe('999');
+  });
+
+  test('parsing keeps file line numbers past blank and comment lines (row by row)', () => {
+    const table = parseCsv('# comment\nmass,obs\n\n1000, 2.5 \n# another\n2000,1.5\n');
+    expect(table.headers).toEqual(['mass', 'obs']);
+    expect(table.rows).toEqual([['1000', '2.5'], ['2000', '1.5']]);
+    expect(table.lines).toEqual([4, 6]);
+  });
 });

@@ -55,7 +55,7 @@ describe('reading a picked file', () => {
     expect(analyseFile('ok.csv', bytes('m,obs\n1,2\n2,1\n'), 800_000).kind).toBe('csv');
     expect(uploadLimitLabel(20 * 1024 * 1024)).toBe('20 MB');
     expect(uploadLimitLabel(2.5 * 1024 * 1024)).toBe('2.5 MB');
-    expect(analyseFile('e.csv', bytes(' \n'))).toEqual({ kind: 'invalid', problems: [{ column: 'file', reason: 'is empty' }] });
+    expect(analyseFile('e.csv', bytes(' \n'))).toEqual({ kind: 'invalid', problems: [{ column: 'file', reason: 'is empty' }], total: 1 });
     const latin1 = analyseFile('l.csv', new Uint8Array([0x6d, 0x2c, 0xb5, 0x0a, 0x31, 0x2c, 0x32]));
     expect(latin1.kind === 'invalid' && latin1.problems[0]!.reason).toMatch(/not UTF-8/);
     const pipes = analyseFile('p.csv', bytes('m|obs\n1|2\n'));
