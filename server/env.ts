@@ -1,3 +1,4 @@
+import { DEFAULT_UPLOAD_LIMIT_BYTES } from '../shared/bytes';
 import { isIP } from 'node:net';
 import { z } from 'zod';
 
@@ -45,7 +46,7 @@ const schema = z
     /** Largest scan accepted, in points × bins × pseudo-experiments (1 per point when asymptotic). */
     SCAN_COST_LIMIT: z.coerce.number().positive().default(200_000_000),
     /** Largest result upload accepted (file or JSON body), in bytes; larger ones get 413. */
-    UPLOAD_LIMIT_BYTES: z.coerce.number().int().positive().default(5 * 1024 * 1024),
+    UPLOAD_LIMIT_BYTES: z.coerce.number().int().positive().default(DEFAULT_UPLOAD_LIMIT_BYTES),
     /** The payment provider's secret key; outside production a fixed test key for the local fake. */
     STRIPE_SECRET_KEY: z.string().min(1).optional(),
     /** Signing secret of the provider's webhook events; outside production a fixed one shared with the fake. */

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { GB, MB } from './bytes';
 
 /**
  * Storage plans: the one place their numbers live. The server enforces them
@@ -6,10 +7,6 @@ import { z } from 'zod';
  * provider is sent the prices from here (no price objects to keep in sync elsewhere).
  * Sizes are binary: 1 MB = 1024² bytes, like the upload limit.
  */
-
-export const KB = 1024;
-export const MB = 1024 * KB;
-export const GB = 1024 * MB;
 
 export const PLAN_IDS = ['free', 'institutional'] as const;
 export type PlanId = (typeof PLAN_IDS)[number];
@@ -59,21 +56,6 @@ export const PLANS: Record<PlanId, Plan> = {
 
 export const FREE_PLAN = PLANS.free;
 export const INSTITUTIONAL_PLAN = PLANS.institutional;
-
-/** `v` cut (not rounded) to `digits` decimals, trailing zeros dropped: usage is never overstated. */
-const cut = (v: number, digits: number) => String(Math.floor(v * 10 ** digits + 1e-9) / 10 ** digits);
-
-/**
- * A byte count as people read it: "50 MB", "20 GB", "49.99 MB", "820 KB", "312 bytes". Cut, not
- * rounded, so 49.999 MB reads "49.99 MB" and never "50 MB" beside a 50 MB quota.
- */
-export function formatBytes(bytes: number): string {
-  const n = Math.max(0, Math.round(bytes));
-  if (n >= GB) return `${cut(n / GB, 2)} GB`;
-  if (n >= MB) return `${cut(n / MB, 2)} MB`;
-  if (n >= KB) return `${cut(n / KB, 1)} KB`;
-  return n === 1 ? '1 byte' : `${n} bytes`;
-}
 
 /** "€49.00" from cents. */
 export function formatMoney(cents: number, currency: string): string {

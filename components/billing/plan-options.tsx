@@ -1,7 +1,8 @@
 import { StyleSheet, View } from 'react-native';
 import { useIsWide } from '@/hooks/use-layout';
 import { colors, radii, space } from '@/themes/tokens';
-import { BILLING_INTERVALS, formatBytes, formatPrice, type BillingInterval, type Plan } from '@/shared/plans';
+import { BILLING_INTERVALS, formatPrice, type BillingInterval, type Plan } from '@/shared/plans';
+import { formatBytes } from '@/shared/bytes';
 import { Button } from '../ui/button';
 import { Text } from '../ui/text';
 

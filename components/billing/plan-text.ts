@@ -1,5 +1,6 @@
 import { chartPalette, colors } from '@/themes/tokens';
-import { formatBytes, formatPrice, INSTITUTIONAL_PLAN, type PlanView } from '@/shared/plans';
+import { formatPrice, INSTITUTIONAL_PLAN, type PlanView } from '@/shared/plans';
+import { formatBytes } from '@/shared/bytes';
 import { formatDate } from '../results/format';
 
 /**

@@ -1,6 +1,7 @@
 import { StyleSheet, View } from 'react-native';
 import { colors, radii, space } from '@/themes/tokens';
-import { formatBytes, type PlanView } from '@/shared/plans';
+import { type PlanView } from '@/shared/plans';
+import { formatBytes } from '@/shared/bytes';
 import { Text } from '../ui/text';
 import { usageKinds, usageSummary } from './plan-text';
 

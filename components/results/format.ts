@@ -69,13 +69,6 @@ export function formatDateTime(iso: string | null | undefined): string {
   return Number.isNaN(d.getTime()) ? '–' : d.toLocaleString(undefined, { year: 'numeric', month: 'short', day: 'numeric', hour: '2-digit', minute: '2-digit' });
 }
 
-/** "1.4 MB", "820 KB", "312 bytes". */
-export function formatBytes(n: number): string {
-  if (n >= 1024 * 1024) return `${Number((n / (1024 * 1024)).toFixed(1))} MB`;
-  if (n >= 1024) return `${Math.round(n / 1024)} KB`;
-  return `${n} bytes`;
-}
-
 /** The app path of a version's permanent link. */
 export function permalinkPath(slug: string, version: number): string {
   return `/r/${slug}/v${version}`;

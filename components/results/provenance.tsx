@@ -2,7 +2,8 @@ import { StyleSheet, View } from 'react-native';
 import { METHOD_LABELS, type ResultVersion } from '@/shared/schemas/results';
 import { space } from '@/themes/tokens';
 import { Text } from '../ui/text';
-import { conditionsLine, formatBytes, formatDate, parameterLabel, quantityLabel } from './format';
+import { formatBytes } from '@/shared/bytes';
+import { conditionsLine, formatDate, parameterLabel, quantityLabel } from './format';
 
 /** Label–value pairs, stacked on phones and side by side when there is room. */
 export function Facts({ rows }: { rows: [string, string][] }) {

@@ -12,7 +12,8 @@ import { useAddVersion, useCreateResult, useResult, useResultVersion } from '@/h
 import { useMe } from '@/hooks/use-session';
 import { colors, fonts, space } from '@/themes/tokens';
 import { QuickPlot } from '../plot/quick-plot';
-import { axisLabels, formatBytes, parameterLabel } from '../results/format';
+import { formatBytes } from '@/shared/bytes';
+import { axisLabels, parameterLabel } from '../results/format';
 import { PointsTable } from '../results/points-table';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
@@ -39,7 +40,6 @@ import {
   PICKER_TYPES,
   previewCurve,
   sizeProblem,
-  uploadLimitLabel,
   splitServerDetails,
   uploadForm,
   type Analysed,
@@ -197,7 +197,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const fileStep = (
     <Step n={1} title="Choose a file" done={fileOk}>
       <Text variant="muted">
-        A CSV table (comma, semicolon or tab between columns; any column names) or a Bandwright JSON file. At most {uploadLimitLabel(uploadLimit)}, UTF-8 text.
+        A CSV table (comma, semicolon or tab between columns; any column names) or a Bandwright JSON file. At most {formatBytes(uploadLimit)}, UTF-8 text.
       </Text>
       <View style={styles.row}>
         <Button label={picked ? 'Choose another file' : 'Choose a file'} variant={picked ? 'secondary' : 'primary'} loading={reading} onPress={() => void pick()} />

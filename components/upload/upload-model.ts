@@ -3,6 +3,7 @@
  * the curve with every problem named, a lenient preview, the provenance form and the multipart
  * body. The screen only wires these to controls; the server checks everything again.
  */
+import { DEFAULT_UPLOAD_LIMIT_BYTES, formatBytes } from '@/shared/bytes';
 import { ApiError } from '@/shared/api-client';
 import type { CurveProblem } from '@/shared/curves/check';
 import { checkCurve, ProblemCollector } from '@/shared/curves/check';
@@ -32,26 +33,16 @@ import {
 
 export type Problem = CurveProblem;
 
-/**
- * Uploads above the server's limit (`GET /api/limits`, UPLOAD_LIMIT_BYTES) are refused before
- * reading; this is its default, used until the server has answered.
- */
-export const MAX_UPLOAD_BYTES = 5 * 1024 * 1024;
-
-/** A byte limit in words: "5 MB", "2.5 MB", "800 KB". */
-export function uploadLimitLabel(limit: number): string {
-  const mb = limit / (1024 * 1024);
-  if (mb >= 1) return `${Number(mb.toFixed(1))} MB`;
-  return `${Math.max(1, Math.round(limit / 1024))} KB`;
-}
 
 /** What the document picker may offer (CSV, TSV, plain text and the project's JSON). */
 export const PICKER_TYPES = ['text/csv', 'text/comma-separated-values', 'text/tab-separated-values', 'text/plain', 'application/json'];
 
 /** A file too large to read, named with its size and the limit. */
-export function sizeProblem(bytes: number, limit = MAX_UPLOAD_BYTES): Problem | null {
+export function sizeProblem(bytes: number, limit = DEFAULT_UPLOAD_LIMIT_BYTES): Problem | null {
   if (bytes <= limit) return null;
-  return { column: 'file', reason: `is ${(bytes / (1024 * 1024)).toFixed(1)} MB; the limit is ${uploadLimitLabel(limit)}` };
+  const size = formatBytes(bytes);
+  const max = formatBytes(limit);
+  return { column: 'file', reason: size === max ? `is just over the limit of ${max}` : `is ${size}; the limit is ${max}` };
 }
 
 /** The problems of a refused file: the first ones (at most MAX_PROBLEMS) and how many there are in all. */
@@ -74,7 +65,7 @@ function looksLikeJson(name: string, text: string): boolean {
 }
 
 /** Bytes of a picked file → what it holds. Never throws for a bad file; problems say why. */
-export function analyseFile(name: string, bytes: Uint8Array, limit = MAX_UPLOAD_BYTES): Analysed {
+export function analyseFile(name: string, bytes: Uint8Array, limit = DEFAULT_UPLOAD_LIMIT_BYTES): Analysed {
   const size = sizeProblem(bytes.length, limit);
   if (size) return { kind: 'invalid', problems: [size] };
   let text: string;

@@ -1,15 +1,11 @@
 import express, { type Request, type RequestHandler } from 'express';
 import multer from 'multer';
+import { formatBytes } from '../../shared/bytes';
 import { AppError } from './errors';
 
-/** "5 MB", "0.002 MB": the upload limit as users read it. */
-export function formatMegabytes(bytes: number): string {
-  const mb = bytes / (1024 * 1024);
-  return `${Number(mb.toPrecision(mb >= 1 ? 3 : 2))} MB`;
-}
 
 const tooLarge = (limit: number) =>
-  new AppError(413, 'too_large', `The upload is larger than the limit of ${formatMegabytes(limit)}; split the file or ask the administrator to raise the limit`);
+  new AppError(413, 'too_large', `The upload is larger than the limit of ${formatBytes(limit)}; split the file or ask the administrator to raise the limit`);
 
 const rawBodies = new WeakMap<Request, Buffer>();
 

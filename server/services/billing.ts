@@ -1,5 +1,6 @@
 import Stripe from 'stripe';
-import { BILLING_INTERVALS, formatBytes, formatMoney, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, type BillingInterval, type Invoice, type PlanView, type SubscriptionStatus } from '../../shared/plans';
+import { BILLING_INTERVALS, formatMoney, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, type BillingInterval, type Invoice, type PlanView, type SubscriptionStatus } from '../../shared/plans';
+import { formatBytes } from '../../shared/bytes';
 import * as q from '../../db/queries/billing';
 import { getGroupName } from '../../db/queries/groups';
 import type { Ctx } from '../context';

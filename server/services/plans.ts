@@ -1,4 +1,5 @@
-import { FREE_PLAN, formatBytes, INSTITUTIONAL_PLAN, type Plan } from '../../shared/plans';
+import { FREE_PLAN, INSTITUTIONAL_PLAN, type Plan } from '../../shared/plans';
+import { formatBytes } from '../../shared/bytes';
 import * as q from '../../db/queries/billing';
 import type { Executor } from '../../db/client';
 import { AppError, notFound } from '../lib/errors';

@@ -4,7 +4,8 @@ import { listMailTo } from '@/db/queries/mail';
 import { providerEvents, scans } from '@/db/schema';
 import { subscriptionJson, invoiceJson } from '@/server/fakes/stripe/objects';
 import { eventPayload } from '@/server/fakes/stripe/webhooks';
-import { FREE_PLAN, GB, INSTITUTIONAL_PLAN, MB, type PlanView } from '@/shared/plans';
+import { FREE_PLAN, INSTITUTIONAL_PLAN, type PlanView } from '@/shared/plans';
+import { GB, MB } from '@/shared/bytes';
 import { startQueue } from '@/server/jobs/queue';
 import { createStripeClient } from '@/server/clients/stripe';
 import {

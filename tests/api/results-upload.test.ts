@@ -365,7 +365,7 @@ describe('size limit', () => {
     expect(Buffer.byteLength(big)).toBeGreaterThan(2048);
     const res = await smallCrew.analyst.agent.post(`/api/groups/${groupId}/results`).field('meta', JSON.stringify(sampleMeta())).attach('file', Buffer.from(big), 'big.csv');
     expect(res.status).toBe(413);
-    expect(res.body.error).toMatchObject({ code: 'too_large', message: expect.stringContaining('limit of 0.002 MB') });
+    expect(res.body.error).toMatchObject({ code: 'too_large', message: expect.stringContaining('limit of 2 KB') });
     expect(await registryProbe.resultCount(small, groupId)).toBe(0);
 
     // The same numbers as a JSON body are over the limit too.

@@ -1,7 +1,7 @@
 import { eq } from 'drizzle-orm';
 import { addMember } from '@/db/queries/groups';
 import { billingAccounts, groups, user } from '@/db/schema';
-import { MB } from '@/shared/plans';
+import { MB } from '@/shared/bytes';
 import { sampleCurve, sampleMeta } from '../helpers/factories';
 import { fullShot, newPage, pageErrors, shot, signUpInBrowser as signUp, startE2E, VIEWPORTS, type E2E, type ViewportName } from '../helpers/browser';
 

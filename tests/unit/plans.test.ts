@@ -1,6 +1,7 @@
 import { statusLine, usageKinds, usageSummary } from '@/components/billing/plan-text';
 import { effectivePlan, isReadOnly, lapseNotice, scanDraftAllowance, type AccountState } from '@/server/services/plans';
-import { checkoutSchema, formatBytes, formatMoney, formatPrice, FREE_PLAN, GB, INSTITUTIONAL_PLAN, KB, MB, PLANS, usageFraction } from '@/shared/plans';
+import { checkoutSchema, formatMoney, formatPrice, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, usageFraction } from '@/shared/plans';
+import { formatBytes, GB, KB, MB } from '@/shared/bytes';
 
 describe('formatting', () => {
   test.each([

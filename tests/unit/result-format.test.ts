@@ -1,4 +1,5 @@
-import { axisLabels, conditionsLine, formatBytes, formatCl, formatRange, formatRanges, parseVersionSegment, permalinkPath, quantityLabel } from '@/components/results/format';
+import { formatBytes } from '@/shared/bytes';
+import { axisLabels, conditionsLine, formatCl, formatRange, formatRanges, parseVersionSegment, permalinkPath, quantityLabel } from '@/components/results/format';
 import { describePlot } from '@/components/plot/quick-plot-geometry';
 
 test('provenance reads with its units', () => {
@@ -22,7 +23,7 @@ test('permanent links and sizes', () => {
   expect(parseVersionSegment('v12')).toBe(12);
   expect(parseVersionSegment('12')).toBeNull();
   expect(parseVersionSegment('v0')).toBeNull();
-  expect(formatBytes(1536)).toBe('2 KB');
+  expect(formatBytes(1536)).toBe('1.5 KB'); // one rounding everywhere (shared/bytes.ts)
   expect(formatBytes(5.5 * 1024 * 1024)).toBe('5.5 MB');
 });
 

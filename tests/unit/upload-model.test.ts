@@ -1,3 +1,4 @@
+import { DEFAULT_UPLOAD_LIMIT_BYTES } from '@/shared/bytes';
 import { ApiError } from '@/shared/api-client';
 import {
   analyseFile,
@@ -7,8 +8,6 @@ import {
   EMPTY_META,
   guessMeta,
   isMappingProblem,
-  MAX_UPLOAD_BYTES,
-  uploadLimitLabel,
   metaInput,
   previewCurve,
   readNumber,
@@ -48,13 +47,12 @@ describe('reading a picked file', () => {
   });
 
   test('too large, empty, Latin-1 and one-column files are refused with the reason', () => {
-    const big = new Uint8Array(MAX_UPLOAD_BYTES + 1);
-    expect(analyseFile('big.csv', big)).toEqual({ kind: 'invalid', problems: [{ column: 'file', reason: 'is 5.0 MB; the limit is 5 MB' }] });
+    const big = new Uint8Array(DEFAULT_UPLOAD_LIMIT_BYTES + 1);
+    expect(analyseFile('big.csv', big)).toEqual({ kind: 'invalid', problems: [{ column: 'file', reason: 'is just over the limit of 5 MB' }] });
     // The server's own limit when it has said one (GET /api/limits), in plain words.
-    expect(analyseFile('big.csv', new Uint8Array(900_000), 800_000)).toEqual({ kind: 'invalid', problems: [{ column: 'file', reason: 'is 0.9 MB; the limit is 781 KB' }] });
+    expect(analyseFile('big.csv', new Uint8Array(900_000), 800_000)).toEqual({ kind: 'invalid', problems: [{ column: 'file', reason: 'is 878.9 KB; the limit is 781.2 KB' }] });
     expect(analyseFile('ok.csv', bytes('m,obs\n1,2\n2,1\n'), 800_000).kind).toBe('csv');
-    expect(uploadLimitLabel(20 * 1024 * 1024)).toBe('20 MB');
-    expect(uploadLimitLabel(2.5 * 1024 * 1024)).toBe('2.5 MB');
+    expect(analyseFile('big.csv', new Uint8Array(6 * 1024 * 1024))).toEqual({ kind: 'invalid', problems: [{ column: 'file', reason: 'is 6 MB; the limit is 5 MB' }] });
     expect(analyseFile('e.csv', bytes(' \n'))).toEqual({ kind: 'invalid', problems: [{ column: 'file', reason: 'is empty' }], total: 1 });
     const latin1 = analyseFile('l.csv', new Uint8Array([0x6d, 0x2c, 0xb5, 0x0a, 0x31, 0x2c, 0x32]));
     expect(latin1.kind === 'invalid' && latin1.problems[0]!.reason).toMatch(/not UTF-8/);
