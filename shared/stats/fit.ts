@@ -339,10 +339,9 @@ export class Likelihood {
     if (isFiniteNumber(f)) {
       for (let iter = 0; iter < this.maxIterations; iter++) {
         let m = 0;
-        let muFixedAtBound = false;
         if (freeMu) {
           const lo = this.muLowerBound(bound);
-          muFixedAtBound = (x[0] as number) <= lo + 1e-12 * (1 + abs(lo)) && (grad[0] as number) > 0;
+          const muFixedAtBound = (x[0] as number) <= lo + 1e-12 * (1 + abs(lo)) && (grad[0] as number) > 0;
           if (!muFixedAtBound) idx[m++] = 0;
         }
         for (let k = 0; k < nPar; k++) idx[m++] = off + k;
