@@ -109,11 +109,8 @@ export function limitForPrepared(model: PreparedModel, options: ResolvedOptions)
     const calc = new ToyCalculator(model, source, options.toys, options.seed);
     const toys = toyLimits(calc, alpha, { observed: observed.value, expected: expected.limits }, source.muScale);
     if (toys.atEdge) warnings.push(edgeWarning());
-    if (toys.fewestInTail < 20) {
-      warnings.push(
-        `Only ${toys.fewestInTail} pseudo-experiments fall beyond the observed or expected test statistic at a limit: the Monte-Carlo uncertainty is large; use more pseudo-experiments.`,
-      );
-    }
+    const few = fewToysWarning(toys.fewestInTail);
+    if (few) warnings.push(few);
     const result: LimitResult = {
       method: 'toys',
       cl,
@@ -163,7 +160,13 @@ function addCounts(a: { fits: number; failed: number }, b: { fits: number; faile
   return { fits: a.fits + b.fits, failed: a.failed + b.failed };
 }
 
-function edgeWarning(): string {
+/** The warning for limits resting on few pseudo-experiments in a tail, or undefined when they do not. */
+export function fewToysWarning(fewestInTail: number): string | undefined {
+  if (fewestInTail >= 20) return undefined;
+  return `Only ${fewestInTail} pseudo-experiments fall beyond the observed or expected test statistic at a limit: the Monte-Carlo uncertainty is large; use more pseudo-experiments.`;
+}
+
+export function edgeWarning(): string {
   return 'A limit sits at the edge of the range of μ searched: the data barely constrain μ; treat that limit as a bound of the search, not a result.';
 }
 
