@@ -1,6 +1,6 @@
-import type PgBoss from 'pg-boss';
 import type Stripe from 'stripe';
 import { createAuth, type Auth } from './auth';
+import type { ScanQueue } from './jobs/queue';
 import { createDb, type Db } from './db';
 import type { Env } from './env';
 import { createStripeClient } from './services/billing';
@@ -13,7 +13,7 @@ import { createSessionCache, type SessionCache } from './session-cache';
  * provider's SDK client (the local fake outside production; null when billing is not configured).
  * `sessions` answers "who is this session cookie" from memory for a few seconds (server/session-cache.ts).
  */
-export type Ctx = { env: Env; db: Db; auth: Auth; sessions: SessionCache; mail: Mailer; jobs?: PgBoss; stripe: Stripe | null };
+export type Ctx = { env: Env; db: Db; auth: Auth; sessions: SessionCache; mail: Mailer; jobs?: ScanQueue; stripe: Stripe | null };
 
 export function createContext(env: Env): Ctx {
   const db = createDb(env.DATABASE_URL);
@@ -22,6 +22,6 @@ export function createContext(env: Env): Ctx {
 }
 
 export async function closeContext(ctx: Ctx): Promise<void> {
-  if (ctx.jobs) await ctx.jobs.stop({ graceful: true, wait: true, timeout: 10_000 });
+  if (ctx.jobs) await ctx.jobs.stop();
   await ctx.db.$client.end();
 }

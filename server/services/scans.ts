@@ -1,4 +1,3 @@
-import type PgBoss from 'pg-boss';
 import { z } from 'zod';
 import { CsvFileError, decodeText } from '../../shared/curves/csv';
 import { parseScanCsv } from '../../shared/scans/csv';
@@ -9,9 +8,10 @@ import type { ScanDetail, ScanPointDetail, ScanSummary } from '../../shared/sche
 import * as q from '../../db/queries/scans';
 import { getRole } from '../../db/queries/groups';
 import type { Ctx } from '../context';
-import { dbOnClient } from '../db';
 import { AppError, notFound, validationError, type ErrorDetail } from '../lib/errors';
-import { SCAN_POINT_QUEUE, type ScanPointTask } from '../jobs/queue';
+import type { ScanQueue } from '../jobs/queue';
+import * as tq from '../../db/queries/scan-tasks';
+import { toyChunkSizes } from '../../shared/stats/toy-chunks';
 import { addVersion, createResult, getDetail } from './results';
 import { addStorage } from '../../db/queries/results';
 import { assertStorageAvailable, scanDraftAllowance } from './plans';
@@ -109,26 +109,28 @@ function checkScan(ctx: Ctx, req: ScanRequest) {
   }
 }
 
-function requireQueue(ctx: Ctx): PgBoss {
+function requireQueue(ctx: Ctx): ScanQueue {
   if (!ctx.jobs) throw new AppError(503, 'no_queue', 'The job queue is not running on this server');
   return ctx.jobs;
 }
 
+/** The tasks of a point: one for an asymptotic point, one per chunk of pseudo-experiments. */
+function pointTasks(options: ScanOptions): number[] {
+  return options.method === 'toys' ? toyChunkSizes(options.toys) : [1];
+}
+
 /**
- * Stores the scan and its points and queues one task per point, in one transaction (pg-boss
- * inserts its tasks through the same connection), so a scan is either fully queued or absent.
+ * Stores the scan, its points and their tasks in one transaction, so a scan is either fully
+ * queued or absent.
  */
 export async function startScan(ctx: Ctx, groupId: string, userId: string, req: ScanRequest): Promise<ScanDetail> {
   checkScan(ctx, req);
-  const boss = requireQueue(ctx);
+  requireQueue(ctx);
   if (req.resultId) {
     await getDetail(ctx, groupId, req.resultId); // 404 unless the result is this group's
   }
-  const client = await ctx.db.$client.connect();
-  let scanId: string;
-  try {
-    await client.query('begin');
-    const tx = dbOnClient(client);
+  const costs = pointTasks(req.options);
+  const scanId = await ctx.db.transaction(async (tx) => {
     const storedBytes = req.sourceBytes + Buffer.byteLength(JSON.stringify(req.points));
     // Room for the inputs and for the draft the scan will save (that save is not refused later).
     await assertStorageAvailable(tx, groupId, storedBytes + scanDraftAllowance(req.points.length), 'this scan');
@@ -142,21 +144,17 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
       storedBytes,
       createdBy: userId,
     });
-    scanId = scan.id;
     await q.insertScanPoints(
       tx,
-      req.points.map((p, index) => ({ scanId: scan.id, index, x: p.x, sigmaNominal: p.sigmaNominal ?? null, model: p.model as Record<string, unknown> })),
+      req.points.map((p, index) => ({ scanId: scan.id, index, x: p.x, sigmaNominal: p.sigmaNominal ?? null, model: p.model as Record<string, unknown>, chunks: costs.length })),
     );
     await addStorage(tx, groupId, storedBytes);
-    const tasks = req.points.map((_, index) => ({ name: SCAN_POINT_QUEUE, data: { scanId: scan.id, index } satisfies ScanPointTask }));
-    await boss.insert(tasks, { db: { executeSql: (text: string, values: unknown[]) => client.query(text, values) } });
-    await client.query('commit');
-  } catch (e) {
-    await client.query('rollback').catch(() => undefined);
-    throw e;
-  } finally {
-    client.release();
-  }
+    await tq.insertTasks(
+      tx,
+      req.points.flatMap((_, pointIndex) => costs.map((cost, chunk) => ({ scanId: scan.id, groupId, pointIndex, chunk, cost }))),
+    );
+    return scan.id;
+  });
   return getScan(ctx, groupId, scanId);
 }
 
@@ -223,6 +221,8 @@ export async function cancelScan(ctx: Ctx, groupId: string, scanId: string): Pro
     if (!s) throw notFound('Scan');
     if (s.state !== 'queued' && s.state !== 'running') throw new AppError(409, 'finished', `This scan is already ${s.state}`);
     await q.cancelQueuedPoints(tx, scanId);
+    // A running chunk sees its task cancelled at its next heartbeat and stops there.
+    await tq.cancelOpenTasks(tx, scanId);
     await q.setScanOutcome(tx, scanId, { state: 'cancelled' });
     return s;
   });

@@ -1,0 +1,135 @@
+/**
+ * The scan job queue at the claim level, on real PostgreSQL: claims are fair between groups, never
+ * hand one task to two workers, take back the task of a worker that died, and hold a retry until
+ * it is due. No worker runs here: the tests claim and finish tasks themselves.
+ */
+import { eq, sql } from 'drizzle-orm';
+import * as tq from '@/db/queries/scan-tasks';
+import { scanTasks } from '@/db/schema/scans';
+import { ScanQueue, startQueue } from '@/server/jobs/queue';
+import type { CountingModelInput } from '@/shared/schemas/counting-model';
+import { startTestApp, type TestApp } from '../helpers/app';
+import { makeGroupWithRoles, type Crew } from '../helpers/factories';
+
+jest.setTimeout(60_000);
+
+const META = { title: 'Fictional resonance scan', parameterName: 'm(R)', parameterUnit: 'GeV', quantity: 'mu', sqrtS: 18, luminosity: 140, method: 'asymptotic' };
+
+function grid(n: number) {
+  return Array.from({ length: n }, (_, k) => {
+    const b = 40 * Math.exp(-k / 5);
+    const model: CountingModelInput = { observed: [Math.round(b)], signal: [3], backgrounds: [{ name: 'flat', yields: [b] }] };
+    return { x: 500 + 50 * k, model };
+  });
+}
+
+let t: TestApp;
+let queue: ScanQueue;
+let a: { groupId: string; crew: Crew };
+let b: { groupId: string; crew: Crew };
+let c: { groupId: string; crew: Crew };
+
+beforeAll(async () => {
+  t = await startTestApp({ JOB_EXPIRE_SECONDS: '30', JOB_RETRY_SECONDS: '60' });
+  t.ctx.jobs = await startQueue(t.ctx.env);
+  queue = t.ctx.jobs;
+  [a, b, c] = await Promise.all([makeGroupWithRoles(t), makeGroupWithRoles(t), makeGroupWithRoles(t)]);
+});
+afterAll(async () => t?.close());
+
+async function startScan(who: { groupId: string; crew: Crew }, points: number): Promise<string> {
+  const res = await who.crew.analyst.agent.post(`/api/groups/${who.groupId}/scans`).send({ points: grid(points), options: {}, meta: META });
+  if (res.status !== 201) throw new Error(JSON.stringify(res.body));
+  return res.body.id as string;
+}
+
+/** Claims the next task and names its group ("A", "B", …), or null when none is due. */
+async function claimGroup(names: Record<string, string>) {
+  const task = await queue.claim();
+  return task ? { task, group: names[task.groupId] ?? task.groupId } : null;
+}
+
+async function emptyQueue() {
+  await t.ctx.db.update(scanTasks).set({ state: 'cancelled' }).where(sql`${scanTasks.state} in ('queued', 'running')`);
+}
+
+test("a group's later task is claimed before another group's earlier backlog: fewest running first, then least recently served", async () => {
+  await emptyQueue();
+  const names = { [a.groupId]: 'A', [b.groupId]: 'B' };
+  await startScan(a, 6);
+  // One worker takes A's first task and is still busy with it when B queues its scan.
+  const first = await claimGroup(names);
+  expect(first?.group).toBe('A');
+  await startScan(b, 2);
+  // A has a task running, B none: B's first task goes next, ahead of A's five older ones.
+  const second = await claimGroup(names);
+  expect(second).toMatchObject({ group: 'B', task: { pointIndex: 0 } });
+  // One running each: the group served longer ago (A) is next.
+  const third = await claimGroup(names);
+  expect(third).toMatchObject({ group: 'A', task: { pointIndex: 1 } });
+  for (const r of [first, second, third]) await tq.finishTask(t.ctx.db, r!.task.id, { state: 'done' });
+  const rest: string[] = [];
+  for (let r = await claimGroup(names); r; r = await claimGroup(names)) {
+    rest.push(`${r.group}${r.task.pointIndex}`);
+    await tq.finishTask(t.ctx.db, r.task.id, { state: 'done' });
+  }
+  expect(rest).toEqual(['B1', 'A2', 'A3', 'A4', 'A5']);
+});
+
+test('one worker alternates between groups with queued work (round robin by last service)', async () => {
+  await emptyQueue();
+  const names = { [a.groupId]: 'A', [b.groupId]: 'B', [c.groupId]: 'C' };
+  await startScan(a, 5);
+  const order: string[] = [];
+  const runOne = async () => {
+    const r = await claimGroup(names);
+    if (!r) return false;
+    order.push(`${r.group}${r.task.pointIndex}`);
+    await tq.finishTask(t.ctx.db, r.task.id, { state: 'done' });
+    return true;
+  };
+  await runOne();
+  await startScan(b, 3);
+  await runOne();
+  await startScan(c, 2);
+  while (await runOne());
+  // B arrives after A0, C after B0; each claim serves the group served least recently.
+  expect(order).toEqual(['A0', 'B0', 'C0', 'A1', 'B1', 'C1', 'A2', 'B2', 'A3', 'A4']);
+});
+
+test('concurrent claims never hand out the same task', async () => {
+  await emptyQueue();
+  await startScan(a, 4);
+  await startScan(b, 4);
+  const claims = await Promise.all(Array.from({ length: 10 }, () => queue.claim()));
+  const got = claims.filter((x) => x !== undefined);
+  expect(got).toHaveLength(8);
+  expect(new Set(got.map((x) => x!.id)).size).toBe(8);
+  // Four each: the fairness holds under concurrency too.
+  expect(got.filter((x) => x!.groupId === a.groupId)).toHaveLength(4);
+});
+
+test("a task whose worker stopped renewing its lease is claimed again; a retry waits until it is due", async () => {
+  await emptyQueue();
+  await startScan(c, 2);
+  const lost = (await queue.claim())!;
+  expect(lost.attempts).toBe(1);
+  // The worker died: its lease runs out.
+  await t.ctx.db.update(scanTasks).set({ leaseUntil: sql`now() - interval '1 second'` }).where(eq(scanTasks.id, lost.id));
+  const again = (await queue.claim())!;
+  expect(again.id).toBe(lost.id);
+  expect(again.attempts).toBe(2);
+  // The old attempt can no longer renew the lease; the new one can.
+  expect(await tq.heartbeatTask(t.ctx.db, lost.id, 1, 30, 3)).toBe(false);
+  expect(await tq.heartbeatTask(t.ctx.db, again.id, 2, 30, 3)).toBe(true);
+  // It fails and is put back for a retry in a minute: the other task is claimed, then nothing.
+  expect(await tq.retryTaskLater(t.ctx.db, again.id, 2, queue.retryDelaySeconds(again.attempts), 'connection reset')).toBe(true);
+  expect(queue.retryDelaySeconds(2)).toBe(120);
+  const other = (await queue.claim())!;
+  expect(other.id).not.toBe(lost.id);
+  expect(await queue.claim()).toBeUndefined();
+  // Once due, the retry is claimed with its last error.
+  await t.ctx.db.update(scanTasks).set({ runAfter: sql`now()` }).where(eq(scanTasks.id, lost.id));
+  const retried = (await queue.claim())!;
+  expect(retried).toMatchObject({ id: lost.id, attempts: 3, lastError: 'connection reset' });
+});
