@@ -34,6 +34,13 @@ const DEFAULT_HEARTBEAT_MS = 500;
 
 type PointFailure = { field: string; reason: string };
 
+/**
+ * What became of a task: computed (and stored), stopped part-way (cancelled or taken over; `steps`
+ * grid values of μ were sampled), skipped (its point had already finished or its scan was over),
+ * or failed (its point failed for good).
+ */
+export type TaskOutcome = { outcome: 'computed' } | { outcome: 'stopped'; steps: number; of: number } | { outcome: 'skipped' } | { outcome: 'failed' };
+
 /** Options of one point's pseudo-experiments: the scan's, with the point's own seed (scan seed + index). */
 function toyOptions(o: ScanOptions, index: number): ToyPointOptions {
   return { cl: o.cl, asimov: o.asimov, toys: o.toys, seed: o.seed + index };
@@ -88,7 +95,7 @@ export async function mergePointIfComplete(ctx: Ctx, scanId: string, index: numb
 }
 
 /** One asymptotic grid point, computed whole. */
-async function runAsymptoticPoint(ctx: Ctx, task: ClaimedTask, point: NonNullable<Awaited<ReturnType<typeof q.claimPoint>>>) {
+async function runAsymptoticPoint(ctx: Ctx, task: ClaimedTask, point: NonNullable<Awaited<ReturnType<typeof q.claimPoint>>>): Promise<TaskOutcome> {
   const o = point.options;
   const started = performance.now();
   const [r] = computeScan(
@@ -106,6 +113,7 @@ async function runAsymptoticPoint(ctx: Ctx, task: ClaimedTask, point: NonNullabl
   }
   await tq.finishTask(ctx.db, task.id, { state: 'done' });
   await afterPoint(ctx, task.scanId, after);
+  return { outcome: 'computed' };
 }
 
 /**
@@ -113,7 +121,7 @@ async function runAsymptoticPoint(ctx: Ctx, task: ClaimedTask, point: NonNullabl
  * most every `heartbeatMs`) the lease is renewed; when that finds the task cancelled (the scan was
  * cancelled, or the point failed elsewhere) or taken over, the chunk stops there.
  */
-async function runToyChunk(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, point: NonNullable<Awaited<ReturnType<typeof q.claimPoint>>>, opts: WorkerOptions) {
+async function runToyChunk(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, point: NonNullable<Awaited<ReturnType<typeof q.claimPoint>>>, opts: WorkerOptions): Promise<TaskOutcome> {
   const started = performance.now();
   let plan: ToyPlan;
   try {
@@ -122,7 +130,7 @@ async function runToyChunk(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, point:
     if (!(e instanceof StatsInputError)) throw e;
     await tq.finishTask(ctx.db, task.id, { state: 'failed', error: `${e.field}: ${e.reason}` });
     await failPoint(ctx, task, { field: e.field, reason: e.reason }, performance.now() - started);
-    return;
+    return { outcome: 'failed' };
   }
   const run = new ToyChunkRun(plan, task.chunk);
   const heartbeatMs = opts.heartbeatMs ?? DEFAULT_HEARTBEAT_MS;
@@ -131,7 +139,7 @@ async function runToyChunk(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, point:
     run.step();
     if (!run.done && performance.now() - beat >= heartbeatMs) {
       await nextTurn();
-      if (!(await tq.heartbeatTask(ctx.db, task.id, task.attempts, queue.leaseSeconds, run.stepsDone))) return;
+      if (!(await tq.heartbeatTask(ctx.db, task.id, task.attempts, queue.leaseSeconds, run.stepsDone))) return { outcome: 'stopped', steps: run.stepsDone, of: run.steps };
       beat = performance.now();
     }
   }
@@ -142,28 +150,29 @@ async function runToyChunk(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, point:
     stats: { fits: r.fits, failed: r.failedFits, generated: r.generated, ms: performance.now() - started },
     steps: run.steps,
   });
-  if (stored) await mergePointIfComplete(ctx, task.scanId, task.pointIndex);
+  if (!stored) return { outcome: 'stopped', steps: run.steps, of: run.steps };
+  await mergePointIfComplete(ctx, task.scanId, task.pointIndex);
+  return { outcome: 'computed' };
 }
 
 /**
  * Runs one claimed task. Safe to run twice for the same task (a retry after a crash): a point that
  * already finished is skipped, and outcomes are only stored for a point still queued.
  */
-export async function runScanTask(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, opts: WorkerOptions = {}): Promise<void> {
+export async function runScanTask(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, opts: WorkerOptions = {}): Promise<TaskOutcome> {
   if (task.attempts > MAX_ATTEMPTS) {
     // Claimed again after its lease ran out that often: its workers keep dying on it.
     await tq.finishTask(ctx.db, task.id, { state: 'failed' });
     const why = task.lastError ? `; last error: ${task.lastError}` : ' (the worker computing it stopped each time)';
     await failPoint(ctx, task, { field: 'model', reason: `could not be computed in ${MAX_ATTEMPTS} attempts${why}` });
-    return;
+    return { outcome: 'failed' };
   }
   const point = await q.claimPoint(ctx.db, task.scanId, task.pointIndex, task.attempts);
   if (!point) {
     await tq.finishTask(ctx.db, task.id, { state: 'cancelled' });
-    return;
+    return { outcome: 'skipped' };
   }
-  if (point.options.method === 'toys') await runToyChunk(ctx, queue, task, point, opts);
-  else await runAsymptoticPoint(ctx, task, point);
+  return point.options.method === 'toys' ? runToyChunk(ctx, queue, task, point, opts) : runAsymptoticPoint(ctx, task, point);
 }
 
 /**
