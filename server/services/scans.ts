@@ -14,7 +14,7 @@ import * as tq from '../../db/queries/scan-tasks';
 import { toyChunkSizes } from '../../shared/stats/toy-chunks';
 import { addVersion, createResult, getDetail } from './results';
 import { addStorage } from '../../db/queries/results';
-import { assertStorageAvailable, scanDraftAllowance } from './plans';
+import { assertScanQueueRoom, assertStorageAvailable, scanDraftAllowance } from './plans';
 
 /**
  * Scans: a grid of counting models queued as one task per point, computed by workers, and turned
@@ -134,6 +134,8 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
     const storedBytes = req.sourceBytes + Buffer.byteLength(JSON.stringify(req.points));
     // Room for the inputs and for the draft the scan will save (that save is not refused later).
     await assertStorageAvailable(tx, groupId, storedBytes + scanDraftAllowance(req.points.length), 'this scan');
+    // The group's queued scan work within its plan (the group row is locked by the check above).
+    await assertScanQueueRoom(tx, groupId, { points: req.points.length, perPoint: costs.reduce((a, b) => a + b, 0), toys: req.options.method === 'toys' });
     const scan = await q.insertScan(tx, {
       groupId,
       options: req.options,

@@ -1,12 +1,16 @@
 /**
  * The scan job queue at the claim level, on real PostgreSQL: claims are fair between groups, never
  * hand one task to two workers, take back the task of a worker that died, and hold a retry until
- * it is due. No worker runs here: the tests claim and finish tasks themselves.
+ * it is due; and the plan bounds what a group may have queued. No worker runs here: the tests
+ * claim and finish tasks themselves.
  */
 import { eq, sql } from 'drizzle-orm';
 import * as tq from '@/db/queries/scan-tasks';
+import { ensureBillingAccount } from '@/db/queries/billing';
+import { billingAccounts } from '@/db/schema/billing';
 import { scanTasks } from '@/db/schema/scans';
 import { ScanQueue, startQueue } from '@/server/jobs/queue';
+import { FREE_PLAN, INSTITUTIONAL_PLAN } from '@/shared/plans';
 import type { CountingModelInput } from '@/shared/schemas/counting-model';
 import { startTestApp, type TestApp } from '../helpers/app';
 import { makeGroupWithRoles, type Crew } from '../helpers/factories';
@@ -132,4 +136,55 @@ test("a task whose worker stopped renewing its lease is claimed again; a retry w
   await t.ctx.db.update(scanTasks).set({ runAfter: sql`now()` }).where(eq(scanTasks.id, lost.id));
   const retried = (await queue.claim())!;
   expect(retried).toMatchObject({ id: lost.id, attempts: 3, lastError: 'connection reset' });
+});
+
+describe("the plan bounds the scan work a group may have queued (points × pseudo-experiments)", () => {
+  const toyScan = (who: { groupId: string; crew: Crew }, points: number, toys: number) =>
+    who.crew.analyst.agent.post(`/api/groups/${who.groupId}/scans`).send({ points: grid(points), options: { method: 'toys', toys }, meta: { ...META, method: 'toys' } });
+
+  test('a scan larger than the Free plan allows is refused with 413, naming options.toys and the limit; nothing is queued', async () => {
+    const d = await makeGroupWithRoles(t);
+    const res = await toyScan(d, 50, 5000);
+    expect(res.status).toBe(413);
+    expect(res.body.error.code).toBe('scan_over_plan');
+    expect(res.body.error.message).toContain('50 points × 5,000 pseudo-experiments = 250,000');
+    expect(res.body.error.message).toContain(`(${FREE_PLAN.scanQueueLimit.toLocaleString('en')} pseudo-experiments, scanQueueLimit)`);
+    expect(res.body.error.details).toEqual([{ field: 'options.toys', message: `at most 4,000 with 50 points: the Free plan's limit is 200,000 queued pseudo-experiments` }]);
+    expect((await d.crew.analyst.agent.get(`/api/groups/${d.groupId}/scans`)).body.scans).toHaveLength(0);
+    expect(await tq.queuedCost(t.ctx.db, d.groupId)).toBe(0);
+  });
+
+  test('queued and running work counts until it finishes: the next scan waits (429) and fits again after a cancel', async () => {
+    const e = await makeGroupWithRoles(t);
+    const first = await toyScan(e, 20, 5000);
+    expect(first.status).toBe(201);
+    expect((await toyScan(e, 20, 5000)).status).toBe(201);
+    expect(await tq.queuedCost(t.ctx.db, e.groupId)).toBe(FREE_PLAN.scanQueueLimit);
+    const full = await toyScan(e, 2, 100);
+    expect(full.status).toBe(429);
+    expect(full.body.error.code).toBe('scan_queue_full');
+    expect(full.body.error.details).toEqual([{ field: 'options.toys', message: 'room for 0 more pseudo-experiments now (limit 200,000 on the Free plan, 200,000 queued)' }]);
+    // An asymptotic point counts one, and its field is the points.
+    const asym = await e.crew.analyst.agent.post(`/api/groups/${e.groupId}/scans`).send({ points: grid(2), options: {}, meta: META });
+    expect(asym.status).toBe(429);
+    expect(asym.body.error.details[0].field).toBe('points');
+    // Another group is not held back by this one's queue.
+    expect((await toyScan(b, 2, 100)).status).toBe(201);
+    expect((await e.crew.analyst.agent.post(`/api/groups/${e.groupId}/scans/${first.body.id}/cancel`)).status).toBe(200);
+    expect(await tq.queuedCost(t.ctx.db, e.groupId)).toBe(100_000);
+    expect((await toyScan(e, 2, 100)).status).toBe(201);
+  });
+
+  test('the Institutional plan in force allows more', async () => {
+    const f = await makeGroupWithRoles(t);
+    await ensureBillingAccount(t.ctx.db, f.groupId);
+    await t.ctx.db.update(billingAccounts).set({ plan: 'institutional', status: 'active' }).where(eq(billingAccounts.groupId, f.groupId));
+    expect(INSTITUTIONAL_PLAN.scanQueueLimit).toBeGreaterThan(250_000);
+    expect((await toyScan(f, 50, 5000)).status).toBe(201);
+    // A lapsed plan falls back to the Free plan's limit.
+    await t.ctx.db.update(billingAccounts).set({ status: 'past_due' }).where(eq(billingAccounts.groupId, f.groupId));
+    const lapsed = await toyScan(f, 2, 100);
+    expect(lapsed.status).toBe(429);
+    expect(lapsed.body.error.message).toContain('Free plan');
+  });
 });
