@@ -151,20 +151,21 @@ export async function queuedCost(db: Executor, groupId: string): Promise<number>
 }
 
 /**
- * Per point of a scan: tasks done and in all, whether one is running, and when the last of its
- * tasks that wait for a retry becomes due (a failure's back-off, or the lease of a task whose
- * worker went silent). `now` is the database's clock.
+ * Per point of a scan: its tasks in all and still open (queued or running), done, running now,
+ * the highest attempt, and when the last of its tasks that wait for a retry becomes due: a failed
+ * task's back-off (`run_after`), or the lease of a task whose worker went silent (then already
+ * past: due, waiting for a free worker). `now` is the database's clock, which these times are on.
  */
 export async function taskProgress(db: Executor, scanId: string) {
-  const r = await db.execute<{ point_index: number; tasks: number; done: number; running: number; retry_at: Date | null; attempts: number; last_error: string | null; now: Date }>(sql`
+  const r = await db.execute<{ point_index: number; tasks: number; open: number; done: number; running: number; retry_at: Date | string | null; attempts: number; now: Date | string }>(sql`
     select point_index,
            count(*)::int as tasks,
+           count(*) filter (where state in ('queued', 'running'))::int as open,
            count(*) filter (where state = 'done')::int as done,
            count(*) filter (where state = 'running' and lease_until > now())::int as running,
-           max(case when state = 'queued' and attempts > 0 then run_after
+           max(case when state = 'queued' and attempts > 0 and run_after > now() then run_after
                     when state = 'running' and lease_until <= now() then lease_until end) as retry_at,
            max(attempts)::int as attempts,
-           (array_agg(last_error order by attempts desc) filter (where last_error is not null and state in ('queued', 'running')))[1] as last_error,
            now() as now
     from ${scanTasks}
     where scan_id = ${scanId}
@@ -173,11 +174,11 @@ export async function taskProgress(db: Executor, scanId: string) {
   return r.rows.map((row) => ({
     pointIndex: row.point_index,
     tasks: row.tasks,
+    open: row.open,
     done: row.done,
     running: row.running,
     retryAt: row.retry_at ? new Date(row.retry_at) : null,
     attempts: row.attempts,
-    lastError: row.last_error,
     now: new Date(row.now),
   }));
 }

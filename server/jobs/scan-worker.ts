@@ -179,7 +179,7 @@ export async function runScanTask(ctx: Ctx, queue: ScanQueue, task: ClaimedTask,
  * A task that threw (a database error, a bug): retried after the queue's back-off, or, after
  * MAX_ATTEMPTS, its point fails with the error.
  */
-async function taskFailed(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, e: unknown) {
+export async function recordTaskFailure(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, e: unknown) {
   const message = e instanceof Error ? e.message : String(e);
   console.error(`[worker] point ${task.pointIndex} (chunk ${task.chunk}) of scan ${task.scanId} failed:`, message);
   if (task.attempts < MAX_ATTEMPTS) {
@@ -197,7 +197,7 @@ export async function runNextTask(ctx: Ctx, queue: ScanQueue, opts: WorkerOption
   try {
     await runScanTask(ctx, queue, task, opts);
   } catch (e) {
-    await taskFailed(ctx, queue, task, e).catch((err) => console.error('[worker] cannot record the failure:', (err as Error).message));
+    await recordTaskFailure(ctx, queue, task, e).catch((err) => console.error('[worker] cannot record the failure:', (err as Error).message));
   }
   return true;
 }

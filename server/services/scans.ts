@@ -12,6 +12,7 @@ import { AppError, notFound, validationError, type ErrorDetail } from '../lib/er
 import type { ScanQueue } from '../jobs/queue';
 import * as tq from '../../db/queries/scan-tasks';
 import { toyChunkSizes } from '../../shared/stats/toy-chunks';
+import { estimateSecondsLeft } from '../../shared/scans/progress';
 import { addVersion, createResult, getDetail } from './results';
 import { addStorage } from '../../db/queries/results';
 import { assertScanQueueRoom, assertStorageAvailable, scanDraftAllowance } from './plans';
@@ -173,11 +174,23 @@ export async function listScans(ctx: Ctx, groupId: string): Promise<ScanSummary[
 export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promise<ScanDetail> {
   const s = await q.getScan(ctx.db, groupId, scanId);
   if (!s) throw notFound('Scan');
-  const points = await q.listPointSummaries(ctx.db, scanId);
-  const finished = s.donePoints + s.failedPoints;
-  const end = s.finishedAt ?? new Date();
-  const elapsed = s.startedAt ? (end.getTime() - s.startedAt.getTime()) / 1000 : 0;
-  const eta = s.state === 'running' && finished > 0 ? (elapsed / finished) * (s.totalPoints - finished) : null;
+  const [points, tasks] = await Promise.all([q.listPointSummaries(ctx.db, scanId), tq.taskProgress(ctx.db, scanId)]);
+  const byPoint = new Map(tasks.map((x) => [x.pointIndex, x]));
+  const now = tasks[0]?.now ?? new Date();
+  const active = s.state === 'queued' || s.state === 'running';
+  const end = s.finishedAt ?? now;
+  const elapsed = s.startedAt ? Math.max(0, (end.getTime() - s.startedAt.getTime()) / 1000) : 0;
+  // Retries count only for points still to compute (a finished point's stray tasks do not).
+  const retries = active ? points.flatMap((p) => (p.state === 'queued' && byPoint.get(p.index)?.retryAt ? [byPoint.get(p.index)!.retryAt!] : [])) : [];
+  const eta = active
+    ? estimateSecondsLeft({
+        elapsedSeconds: elapsed,
+        tasks: tasks.reduce((n, x) => n + x.tasks, 0),
+        openTasks: tasks.reduce((n, x) => n + x.open, 0),
+        retryDueInSeconds: retries.map((d) => (d.getTime() - now.getTime()) / 1000),
+      })
+    : null;
+  const lastRetry = retries.length ? new Date(Math.max(...retries.map((d) => d.getTime()))) : null;
   return {
     id: s.id,
     groupId: s.groupId,
@@ -190,6 +203,8 @@ export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promis
     failedPoints: s.failedPoints,
     elapsedSeconds: elapsed,
     etaSeconds: eta,
+    retryAt: lastRetry?.toISOString() ?? null,
+    now: now.toISOString(),
     resultId: s.resultId,
     resultVersion: s.resultVersion,
     error: s.error,
@@ -197,7 +212,11 @@ export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promis
     createdAt: s.createdAt.toISOString(),
     startedAt: s.startedAt?.toISOString() ?? null,
     finishedAt: s.finishedAt?.toISOString() ?? null,
-    points: points.map((p) => ({ ...p, sigmaNominal: p.sigmaNominal ?? null })),
+    points: points.map((p) => {
+      const t = byPoint.get(p.index);
+      const retryAt = active && p.state === 'queued' && t?.retryAt ? t.retryAt.toISOString() : null;
+      return { ...p, sigmaNominal: p.sigmaNominal ?? null, tasks: { done: t?.done ?? 0, total: t?.tasks ?? 0, running: t?.running ?? 0 }, retryAt };
+    }),
   };
 }
 

@@ -10,6 +10,9 @@ import { ensureBillingAccount } from '@/db/queries/billing';
 import { billingAccounts } from '@/db/schema/billing';
 import { scanTasks } from '@/db/schema/scans';
 import { ScanQueue, startQueue } from '@/server/jobs/queue';
+import { recordTaskFailure, runNextTask } from '@/server/jobs/scan-worker';
+import { retryNotice } from '@/shared/scans/progress';
+import type { ScanDetail } from '@/shared/schemas/scan-views';
 import { FREE_PLAN, INSTITUTIONAL_PLAN } from '@/shared/plans';
 import type { CountingModelInput } from '@/shared/schemas/counting-model';
 import { startTestApp, type TestApp } from '../helpers/app';
@@ -187,4 +190,39 @@ describe("the plan bounds the scan work a group may have queued (points × pseud
     expect(lapsed.status).toBe(429);
     expect(lapsed.body.error.message).toContain('Free plan');
   });
+});
+
+test('a point waiting for its retry: the status says when it is due, and the time left is not shorter than that wait', async () => {
+  await emptyQueue();
+  const g = await makeGroupWithRoles(t);
+  const scanId = await startScan(g, 3);
+  const status = async () => (await g.crew.viewer.agent.get(`/api/groups/${g.groupId}/scans/${scanId}`)).body as ScanDetail;
+  expect(await runNextTask(t.ctx, queue)).toBe(true); // point 0 computed
+  // Point 1 fails (say its database connection broke): the worker puts it back for a retry in JOB_RETRY_SECONDS.
+  const failing = (await queue.claim())!;
+  expect(failing.pointIndex).toBe(1);
+  await recordTaskFailure(t.ctx, queue, failing, new Error('connection reset by peer'));
+  // Point 2's worker died mid-point: its lease has run out, so it is due again at once.
+  const lost = (await queue.claim())!;
+  expect(lost.pointIndex).toBe(2);
+  await t.ctx.db.update(scanTasks).set({ leaseUntil: sql`now() - interval '2 seconds'` }).where(eq(scanTasks.id, lost.id));
+
+  const s = await status();
+  const now = Date.parse(s.now);
+  const due = Date.parse(s.points[1]!.retryAt!);
+  expect((due - now) / 1000).toBeGreaterThan(55);
+  expect((due - now) / 1000).toBeLessThanOrEqual(60);
+  expect(Date.parse(s.points[2]!.retryAt!)).toBeLessThanOrEqual(now);
+  expect(s.points[0]!.retryAt).toBeNull();
+  expect(s.retryAt).toBe(s.points[1]!.retryAt);
+  // One point of three took well under a second, yet the scan cannot end before point 1's retry.
+  expect(s.etaSeconds).toBeGreaterThanOrEqual((due - now) / 1000);
+  expect(s.points[1]).toMatchObject({ state: 'queued', tasks: { done: 0, total: 1, running: 0 } });
+  expect(retryNotice(s.points, new Date(now))).toMatch(/^2 points wait for a retry .* in \d+ s\./);
+
+  // Once both have run, nothing waits and nothing is left.
+  await t.ctx.db.update(scanTasks).set({ runAfter: sql`now()` }).where(eq(scanTasks.id, failing.id));
+  while (await runNextTask(t.ctx, queue));
+  const done = await status();
+  expect(done).toMatchObject({ state: 'done', donePoints: 3, retryAt: null, etaSeconds: null });
 });
