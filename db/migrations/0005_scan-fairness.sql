@@ -31,6 +31,7 @@ ALTER TABLE "scan_tasks" ADD CONSTRAINT "scan_tasks_scan_id_scans_id_fk" FOREIGN
 ALTER TABLE "scan_tasks" ADD CONSTRAINT "scan_tasks_group_id_groups_id_fk" FOREIGN KEY ("group_id") REFERENCES "public"."groups"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 CREATE UNIQUE INDEX "scan_tasks_scan_id_point_index_chunk_index" ON "scan_tasks" USING btree ("scan_id","point_index","chunk");--> statement-breakpoint
 CREATE INDEX "scan_tasks_open_idx" ON "scan_tasks" USING btree ("group_id","state") WHERE "scan_tasks"."state" in ('queued', 'running');--> statement-breakpoint
+CREATE INDEX "scan_tasks_group_id_claimed_at_index" ON "scan_tasks" USING btree ("group_id","claimed_at");--> statement-breakpoint
 -- Unfinished scans started before this migration had their tasks in the former queue: queue
 -- their remaining points here (pseudo-experiment points in chunks of 250 per hypothesis, as
 -- shared/stats/toy-chunks.ts splits them).

@@ -19,12 +19,15 @@ export async function insertTasks(db: Executor, tasks: NewTask[]) {
 /**
  * Claims the next task in one statement. Claimable: queued and due (`run_after` passed), or
  * running with an expired lease (its worker died). Among them the task of the group with the
- * fewest tasks running now wins, then the group whose last claim is the oldest (or that was never
- * served), then the oldest task: a group that queued a thousand tasks gets one worker while
- * another group's task waits, not all of them. Rows are locked with SKIP LOCKED, so concurrent
- * workers never take the same task. The claim counts an attempt and records the group's turn.
+ * fewest tasks running now wins; then the group that used the workers least in the last
+ * `windowSeconds` (whole seconds of its tasks' run time, so that groups of short tasks are not
+ * told apart by milliseconds); then the group whose last claim is the oldest (or that was never
+ * served); then the oldest task. So a group that queued a thousand long tasks gets one worker at
+ * a time while another group's few short tasks go ahead of them, and groups with similar work
+ * take turns. Rows are locked with SKIP LOCKED, so concurrent workers never take the same task.
+ * The claim counts an attempt and records the group's turn.
  */
-export async function claimNextTask(db: Executor, leaseSeconds: number): Promise<ClaimedTask | undefined> {
+export async function claimNextTask(db: Executor, leaseSeconds: number, windowSeconds = 600): Promise<ClaimedTask | undefined> {
   const r = await db.execute<{ id: string; scan_id: string; group_id: string; point_index: number; chunk: number; attempts: number; last_error: string | null }>(sql`
     with open as (
       select group_id, count(*) filter (where state = 'running' and lease_until > now()) as running
@@ -32,13 +35,24 @@ export async function claimNextTask(db: Executor, leaseSeconds: number): Promise
       where state in ('queued', 'running')
       group by group_id
     ),
+    used as (
+      select t.group_id,
+             floor(sum(case when t.state = 'running' then extract(epoch from now() - t.claimed_at)
+                            when t.finished_at is not null then extract(epoch from t.finished_at - t.claimed_at)
+                            else 0 end)) as seconds
+      from ${scanTasks} t
+      join open o on o.group_id = t.group_id
+      where t.claimed_at > now() - make_interval(secs => ${windowSeconds})
+      group by t.group_id
+    ),
     pick as (
       select t.id
       from ${scanTasks} t
       join open o on o.group_id = t.group_id
+      left join used u on u.group_id = t.group_id
       left join scan_group_turns g on g.group_id = t.group_id
       where (t.state = 'queued' and t.run_after <= now()) or (t.state = 'running' and t.lease_until <= now())
-      order by o.running, g.last_claimed_at asc nulls first, t.id
+      order by o.running, coalesce(u.seconds, 0), g.last_claimed_at asc nulls first, t.id
       limit 1
       for update of t skip locked
     ),
@@ -106,6 +120,16 @@ export async function retryTaskLater(db: Executor, id: number, attempt: number, 
   const rows = await db
     .update(scanTasks)
     .set({ state: 'queued', runAfter: sql`now() + make_interval(secs => ${delaySeconds})`, leaseUntil: null, lastError: error.slice(0, 2000) })
+    .where(and(eq(scanTasks.id, id), eq(scanTasks.state, 'running'), eq(scanTasks.attempts, attempt)))
+    .returning({ id: scanTasks.id });
+  return rows.length > 0;
+}
+
+/** Hands a running task back to the queue at once, its attempt not counted (its worker is stopping). */
+export async function releaseTask(db: Executor, id: number, attempt: number): Promise<boolean> {
+  const rows = await db
+    .update(scanTasks)
+    .set({ state: 'queued', runAfter: sql`now()`, leaseUntil: null, attempts: sql`${scanTasks.attempts} - 1`, steps: 0 })
     .where(and(eq(scanTasks.id, id), eq(scanTasks.state, 'running'), eq(scanTasks.attempts, attempt)))
     .returning({ id: scanTasks.id });
   return rows.length > 0;

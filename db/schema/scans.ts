@@ -112,6 +112,8 @@ export const scanTasks = pgTable(
   (t) => [
     uniqueIndex().on(t.scanId, t.pointIndex, t.chunk),
     index('scan_tasks_open_idx').on(t.groupId, t.state).where(sql`${t.state} in ('queued', 'running')`),
+    // The claim's fair share: each open group's run time over its recent claims.
+    index().on(t.groupId, t.claimedAt),
   ],
 );
 

@@ -7,11 +7,15 @@ export type { ClaimedTask } from '../../db/queries/scan-tasks';
 /** A task is tried at most this often (the first run and three retries); then its point fails. */
 export const MAX_ATTEMPTS = 4;
 
+/** How far back a group's use of the workers counts for the fair share of the next claim. */
+export const FAIR_SHARE_WINDOW_SECONDS = 600;
+
 /**
  * The scan job queue: the `scan_tasks` table on the application's own PostgreSQL (SQL in
  * db/queries/scan-tasks.ts). One task per asymptotic grid point, or per chunk of a point's
  * pseudo-experiments. Claims are fair between groups (the group with the fewest running tasks,
- * then the one served least recently); a claim is a lease of JOB_EXPIRE_SECONDS that the worker
+ * then the one that used the workers least in the last FAIR_SHARE_WINDOW_SECONDS, then the one
+ * served least recently); a claim is a lease of JOB_EXPIRE_SECONDS that the worker
  * renews between steps of its computation, so a task whose worker died is claimed again once its
  * lease has run out. A task that failed waits JOB_RETRY_SECONDS × 2^(attempt − 1) for its retry.
  */
@@ -28,7 +32,7 @@ export class ScanQueue {
 
   /** The next task for this worker, or undefined when nothing is due. */
   claim(): Promise<tq.ClaimedTask | undefined> {
-    return tq.claimNextTask(this.db, this.env.JOB_EXPIRE_SECONDS);
+    return tq.claimNextTask(this.db, this.env.JOB_EXPIRE_SECONDS, FAIR_SHARE_WINDOW_SECONDS);
   }
 
   /** Seconds a task waits before attempt `attempt + 1`. */

@@ -28,6 +28,8 @@ export type WorkerOptions = {
   heartbeatMs?: number;
   /** Wait when nothing is due. */
   idleMs?: number;
+  /** Asked between steps of a chunk: true hands the chunk back to the queue (the worker is stopping). */
+  stopping?: () => boolean;
 };
 
 const DEFAULT_HEARTBEAT_MS = 500;
@@ -137,6 +139,11 @@ async function runToyChunk(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, point:
   let beat = performance.now();
   while (!run.done) {
     run.step();
+    if (!run.done && opts.stopping?.()) {
+      // Shutting down: the chunk goes back to the queue for another worker, not counted as an attempt.
+      await tq.releaseTask(ctx.db, task.id, task.attempts);
+      return { outcome: 'stopped', steps: run.stepsDone, of: run.steps };
+    }
     if (!run.done && performance.now() - beat >= heartbeatMs) {
       await nextTurn();
       if (!(await tq.heartbeatTask(ctx.db, task.id, task.attempts, queue.leaseSeconds, run.stepsDone))) return { outcome: 'stopped', steps: run.stepsDone, of: run.steps };
@@ -215,31 +222,44 @@ export async function sweepUnsavedScans(ctx: Ctx): Promise<void> {
  * it, and claims the next at once (waiting `idleMs` only when nothing is due), so a worker is
  * never idle while tasks wait and several workers share a scan task by task — the chunks of one
  * point included. The computation is synchronous: more workers means more processes (npm run
- * worker), not more loops in one. Returns a function that stops the loops after their current task.
+ * worker), not more loops in one. Returns a function that stops the loops: an asymptotic point
+ * finishes, a running chunk is handed back to the queue at its next step; it resolves when every
+ * loop has stopped (so the caller may close the database then).
  */
-export async function startScanWorkers(ctx: Ctx, queue: ScanQueue, count: number, opts: WorkerOptions = {}): Promise<() => void> {
+export async function startScanWorkers(ctx: Ctx, queue: ScanQueue, count: number, opts: WorkerOptions = {}): Promise<() => Promise<void>> {
   let stopped = false;
-  const idle = () => new Promise((r) => setTimeout(r, opts.idleMs ?? 500));
+  let wake: (() => void) | undefined;
+  const idle = () =>
+    new Promise<void>((r) => {
+      const timer = setTimeout(r, opts.idleMs ?? 500);
+      wake = () => {
+        clearTimeout(timer);
+        r();
+      };
+    });
+  const runOpts: WorkerOptions = { ...opts, stopping: () => stopped || (opts.stopping?.() ?? false) };
   const loop = async () => {
     while (!stopped) {
       let ran = false;
       try {
-        ran = await runNextTask(ctx, queue, opts);
+        ran = await runNextTask(ctx, queue, runOpts);
       } catch (e) {
         if (stopped) return;
         console.error('[worker] cannot claim a task:', (e as Error).message);
       }
-      if (!ran) await idle();
+      if (!ran && !stopped) await idle();
     }
   };
-  for (let i = 0; i < count; i++) void loop();
+  const loops = Array.from({ length: count }, () => loop());
   await sweepUnsavedScans(ctx).catch((e) => console.error('[worker] sweep failed:', (e as Error).message));
   const timer = setInterval(() => {
     sweepUnsavedScans(ctx).catch((e) => console.error('[worker] sweep failed:', (e as Error).message));
   }, ctx.env.JOB_MAINTENANCE_SECONDS * 1000);
   timer.unref();
-  return () => {
+  return async () => {
     stopped = true;
     clearInterval(timer);
+    wake?.();
+    await Promise.all(loops);
   };
 }

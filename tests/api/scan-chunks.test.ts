@@ -8,7 +8,7 @@ import { and, eq } from 'drizzle-orm';
 import * as tq from '@/db/queries/scan-tasks';
 import { scanPoints, scanTasks } from '@/db/schema/scans';
 import { startQueue, type ScanQueue } from '@/server/jobs/queue';
-import { runNextTask, runScanTask, sweepUnsavedScans } from '@/server/jobs/scan-worker';
+import { runNextTask, runScanTask, startScanWorkers, sweepUnsavedScans } from '@/server/jobs/scan-worker';
 import { cancelScan } from '@/server/services/scans';
 import type { CountingModelInput } from '@/shared/schemas/counting-model';
 import { computeToyPoint, encodeToySamples, planToyPoint, TOY_CHUNK_SIZE, TOY_GRID_POINTS, ToyChunkRun, withSigmaB } from '@/shared/stats';
@@ -153,4 +153,50 @@ test('the sweep merges a point whose last chunk was stored by a worker that died
   expect(scan).toMatchObject({ state: 'done', donePoints: 2 });
   expect(scan.resultId).toBeTruthy();
   expect(scan.points[1].observed).toBe(computeToyPoint(points[1]!.model, options).observed);
+});
+
+test("with the only worker busy on another group's toy-heavy scan, a small scan is not held behind all of it", async () => {
+  const heavy = await start(grid(2, 3, 1), 8 * TOY_CHUNK_SIZE, 21); // 16 chunks
+  const other = await makeGroupWithRoles(t);
+  const stopWorkers = await startScanWorkers(t.ctx, queue, 1, { idleMs: 50 });
+  try {
+    // The worker is inside the heavy scan when the other group's small scan arrives.
+    for (let i = 0; ; i++) {
+      if ((await tasksOf(heavy)).some((x) => x.state === 'running')) break;
+      if (i > 2000) throw new Error('the heavy scan never started');
+      await new Promise((r) => setTimeout(r, 5));
+    }
+    const res = await other.crew.analyst.agent.post(`/api/groups/${other.groupId}/scans`).send({ points: grid(3, 2, 1), options: {}, meta: { ...META, method: 'asymptotic' } });
+    expect(res.status).toBe(201);
+    for (let i = 0; ; i++) {
+      const s = (await other.crew.viewer.agent.get(`/api/groups/${other.groupId}/scans/${res.body.id}`)).body;
+      if (s.state === 'done') break;
+      if (i > 2400) throw new Error('the small scan did not finish');
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    // Its three points went in between the heavy scan's chunks: most of those are still to come.
+    const open = (await tasksOf(heavy)).filter((x) => x.state === 'queued' || x.state === 'running').length;
+    expect(open).toBeGreaterThanOrEqual(8);
+  } finally {
+    await cancelScan(t.ctx, groupId, heavy).catch(() => undefined);
+    await stopWorkers();
+  }
+});
+
+test('a stopping worker hands its running chunk back to the queue, without counting an attempt', async () => {
+  const scanId = await start(grid(2, 4, 3), 2 * TOY_CHUNK_SIZE, 8);
+  const stopWorkers = await startScanWorkers(t.ctx, queue, 1, { heartbeatMs: 0, idleMs: 50 });
+  let running: (typeof scanTasks.$inferSelect) | undefined;
+  for (let i = 0; !running; i++) {
+    running = (await tasksOf(scanId)).find((x) => x.state === 'running' && x.steps >= 1);
+    if (i > 2000) throw new Error('no chunk started');
+    if (!running) await new Promise((r) => setTimeout(r, 5));
+  }
+  await stopWorkers();
+  const back = (await tasksOf(scanId)).find((x) => x.id === running!.id)!;
+  expect(back).toMatchObject({ state: 'queued', attempts: 0, steps: 0, samples: null });
+  // Another worker takes it up as a first attempt.
+  const again = (await queue.claim())!;
+  expect(again).toMatchObject({ id: running.id, attempts: 1 });
+  await cancelScan(t.ctx, groupId, scanId);
 });

@@ -8,7 +8,7 @@ import { eq, sql } from 'drizzle-orm';
 import * as tq from '@/db/queries/scan-tasks';
 import { ensureBillingAccount } from '@/db/queries/billing';
 import { billingAccounts } from '@/db/schema/billing';
-import { scanTasks } from '@/db/schema/scans';
+import { scanGroupTurns, scanTasks } from '@/db/schema/scans';
 import { ScanQueue, startQueue } from '@/server/jobs/queue';
 import { recordTaskFailure, runNextTask } from '@/server/jobs/scan-worker';
 import { retryNotice } from '@/shared/scans/progress';
@@ -102,6 +102,29 @@ test('one worker alternates between groups with queued work (round robin by last
   while (await runOne());
   // B arrives after A0, C after B0; each claim serves the group served least recently.
   expect(order).toEqual(['A0', 'B0', 'C0', 'A1', 'B1', 'C1', 'A2', 'B2', 'A3', 'A4']);
+});
+
+test('a group that kept the workers busy longer waits behind one that used them less, even if served more recently', async () => {
+  await emptyQueue();
+  const names = { [a.groupId]: 'A', [b.groupId]: 'B' };
+  const scanA = await startScan(a, 3);
+  await startScan(b, 3);
+  // One task each (fewest running first); A's ran for 40 s (a long chunk of pseudo-experiments), B's took no time.
+  const first = [(await claimGroup(names))!, (await claimGroup(names))!];
+  expect(first.map((r) => r.group).sort()).toEqual(['A', 'B']);
+  for (const r of first) await tq.finishTask(t.ctx.db, r.task.id, { state: 'done' });
+  const a0 = first.find((r) => r.group === 'A')!;
+  await t.ctx.db.update(scanTasks).set({ claimedAt: sql`${scanTasks.finishedAt} - interval '40 seconds'` }).where(eq(scanTasks.id, a0.task.id));
+  // A was served longer ago than B…
+  await t.ctx.db.update(scanGroupTurns).set({ lastClaimedAt: sql`now() - interval '1 minute'` }).where(eq(scanGroupTurns.groupId, a.groupId));
+  // …but B has used the workers less: B's remaining tasks go first.
+  const order: string[] = [];
+  for (let r = await claimGroup(names); r; r = await claimGroup(names)) {
+    order.push(`${r.group}${r.task.pointIndex}`);
+    await tq.finishTask(t.ctx.db, r.task.id, { state: 'done' });
+  }
+  expect(order).toEqual(['B1', 'B2', 'A1', 'A2']);
+  expect(scanA).toBeTruthy();
 });
 
 test('concurrent claims never hand out the same task', async () => {

@@ -44,15 +44,15 @@ describe('scans with an in-process worker', () => {
   let t: TestApp;
   let crew: Crew;
   let groupId: string;
-  let stopSweep: () => void;
+  let stopWorkers: () => Promise<void>;
   beforeAll(async () => {
     t = await startTestApp({ JOB_MAINTENANCE_SECONDS: '1', JOB_EXPIRE_SECONDS: '30' });
     t.ctx.jobs = await startQueue(t.ctx.env);
-    stopSweep = await startScanWorkers(t.ctx, t.ctx.jobs, 1);
+    stopWorkers = await startScanWorkers(t.ctx, t.ctx.jobs, 1);
     ({ groupId, crew } = await makeGroupWithRoles(t));
   });
   afterAll(async () => {
-    stopSweep?.();
+    await stopWorkers?.();
     await t?.close();
   });
 
