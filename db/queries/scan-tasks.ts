@@ -30,7 +30,9 @@ export async function insertTasks(db: Executor, tasks: NewTask[]) {
 export async function claimNextTask(db: Executor, leaseSeconds: number, windowSeconds = 600): Promise<ClaimedTask | undefined> {
   const r = await db.execute<{ id: string; scan_id: string; group_id: string; point_index: number; chunk: number; attempts: number; last_error: string | null }>(sql`
     with open as (
-      select group_id, count(*) filter (where state = 'running' and lease_until > now()) as running
+      select group_id,
+             count(*) filter (where state = 'running' and lease_until > now()) as running,
+             min(id) filter (where (state = 'queued' and run_after <= now()) or (state = 'running' and lease_until <= now())) as first_due
       from ${scanTasks}
       where state in ('queued', 'running')
       group by group_id
@@ -45,14 +47,23 @@ export async function claimNextTask(db: Executor, leaseSeconds: number, windowSe
       where t.claimed_at > now() - make_interval(secs => ${windowSeconds})
       group by t.group_id
     ),
+    -- One row per group with a due task, in the order it should be served (a few rows, so the
+    -- per-task pick below joins a small table).
+    ranked as (
+      select o.group_id,
+             row_number() over (order by o.running, coalesce(u.seconds, 0), g.last_claimed_at asc nulls first, o.first_due) as rank
+      from open o
+      left join used u on u.group_id = o.group_id
+      left join scan_group_turns g on g.group_id = o.group_id
+      where o.first_due is not null
+    ),
     pick as (
       select t.id
       from ${scanTasks} t
-      join open o on o.group_id = t.group_id
-      left join used u on u.group_id = t.group_id
-      left join scan_group_turns g on g.group_id = t.group_id
-      where (t.state = 'queued' and t.run_after <= now()) or (t.state = 'running' and t.lease_until <= now())
-      order by o.running, coalesce(u.seconds, 0), g.last_claimed_at asc nulls first, t.id
+      join ranked r on r.group_id = t.group_id
+      where t.state in ('queued', 'running')
+        and ((t.state = 'queued' and t.run_after <= now()) or (t.state = 'running' and t.lease_until <= now()))
+      order by r.rank, t.id
       limit 1
       for update of t skip locked
     ),
@@ -205,6 +216,19 @@ export async function taskProgress(db: Executor, scanId: string) {
     attempts: row.attempts,
     now: new Date(row.now),
   }));
+}
+
+/**
+ * Deletes the tasks of scans that ended more than `olderThanSeconds` ago (their points keep the
+ * attempts; the claim's fair share only looks back that far).
+ */
+export async function deleteOldTasks(db: Executor, olderThanSeconds: number): Promise<number> {
+  const r = await db.execute(sql`
+    delete from ${scanTasks} t
+    using scans s
+    where s.id = t.scan_id and s.state in ('done', 'failed', 'cancelled')
+      and s.finished_at < now() - make_interval(secs => ${olderThanSeconds})`);
+  return r.rowCount ?? 0;
 }
 
 /** Points whose chunks are all done but that were never merged (their last worker died). */

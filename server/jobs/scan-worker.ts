@@ -18,7 +18,7 @@ import * as q from '../../db/queries/scans';
 import * as tq from '../../db/queries/scan-tasks';
 import type { Ctx } from '../context';
 import { saveDraft } from '../services/scans';
-import { MAX_ATTEMPTS, type ClaimedTask, type ScanQueue } from './queue';
+import { FAIR_SHARE_WINDOW_SECONDS, MAX_ATTEMPTS, type ClaimedTask, type ScanQueue } from './queue';
 
 export type WorkerOptions = {
   /**
@@ -209,12 +209,16 @@ export async function runNextTask(ctx: Ctx, queue: ScanQueue, opts: WorkerOption
   return true;
 }
 
-/** Saves drafts and merges points that a worker died before finishing (all their work done). */
+/**
+ * Saves drafts and merges points that a worker died before finishing (all their work done), and
+ * deletes the tasks of scans that ended longer ago than the fair share looks back.
+ */
 export async function sweepUnsavedScans(ctx: Ctx): Promise<void> {
   for (const p of await tq.listUnmergedPoints(ctx.db)) await mergePointIfComplete(ctx, p.scanId, p.pointIndex);
   for (const s of await q.listUnsavedFinishedScans(ctx.db)) {
     await saveDraft(ctx, s.id, s.state === 'cancelled' ? 'cancelled' : 'done');
   }
+  await tq.deleteOldTasks(ctx.db, FAIR_SHARE_WINDOW_SECONDS);
 }
 
 /**

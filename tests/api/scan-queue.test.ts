@@ -10,7 +10,7 @@ import { ensureBillingAccount } from '@/db/queries/billing';
 import { billingAccounts } from '@/db/schema/billing';
 import { scanGroupTurns, scanTasks } from '@/db/schema/scans';
 import { ScanQueue, startQueue } from '@/server/jobs/queue';
-import { recordTaskFailure, runNextTask } from '@/server/jobs/scan-worker';
+import { recordTaskFailure, runNextTask, sweepUnsavedScans } from '@/server/jobs/scan-worker';
 import { retryNotice } from '@/shared/scans/progress';
 import type { ScanDetail } from '@/shared/schemas/scan-views';
 import { FREE_PLAN, INSTITUTIONAL_PLAN } from '@/shared/plans';
@@ -248,4 +248,18 @@ test('a point waiting for its retry: the status says when it is due, and the tim
   while (await runNextTask(t.ctx, queue));
   const done = await status();
   expect(done).toMatchObject({ state: 'done', donePoints: 3, retryAt: null, etaSeconds: null });
+});
+
+test('the sweep deletes the tasks of scans that ended longer ago than the fair share looks back, and only those', async () => {
+  await emptyQueue();
+  const h = await makeGroupWithRoles(t);
+  const old = await startScan(h, 2);
+  while (await runNextTask(t.ctx, queue));
+  const active = await startScan(h, 2);
+  await t.ctx.db.execute(sql`update scans set finished_at = now() - interval '11 minutes' where id = ${old}`);
+  await sweepUnsavedScans(t.ctx);
+  const left = await t.ctx.db.select({ scanId: scanTasks.scanId }).from(scanTasks).where(eq(scanTasks.groupId, h.groupId));
+  expect(left.map((r) => r.scanId)).toEqual([active, active]);
+  // The finished scan still reads whole, from its points.
+  expect((await h.crew.viewer.agent.get(`/api/groups/${h.groupId}/scans/${old}`)).body).toMatchObject({ state: 'done', donePoints: 2 });
 });
