@@ -1,6 +1,6 @@
-import type PgBoss from 'pg-boss';
 import type Stripe from 'stripe';
 import { createAuth, type Auth } from './auth';
+import type { ScanQueue } from './jobs/queue';
 import { createDb, type Db } from '../db/client';
 import type { Env } from './env';
 import { createStripeClient } from './clients/stripe';
@@ -15,7 +15,7 @@ import { createSessionCache, type SessionCache } from './session-cache';
  * `sessions` answers "who is this session cookie" from memory for a few seconds (server/session-cache.ts);
  * `reads` remembers registry reads until the registry changes (server/read-cache.ts).
  */
-export type Ctx = { env: Env; db: Db; auth: Auth; sessions: SessionCache; reads: ReadCache; mail: Mailer; jobs?: PgBoss; stripe: Stripe | null };
+export type Ctx = { env: Env; db: Db; auth: Auth; sessions: SessionCache; reads: ReadCache; mail: Mailer; jobs?: ScanQueue; stripe: Stripe | null };
 
 export function createContext(env: Env): Ctx {
   const db = createDb(env.DATABASE_URL);
@@ -25,7 +25,7 @@ export function createContext(env: Env): Ctx {
 }
 
 export async function closeContext(ctx: Ctx): Promise<void> {
-  if (ctx.jobs) await ctx.jobs.stop({ graceful: true, wait: true, timeout: 10_000 });
+  if (ctx.jobs) await ctx.jobs.stop();
   await ctx.reads.close();
   await ctx.db.$client.end();
 }

@@ -39,10 +39,12 @@ const schema = z
     WEB_DIST: z.string().optional(),
     /** Job workers started inside the server process (npm run worker starts more elsewhere). */
     WORKERS: z.coerce.number().int().min(0).max(16).default(1),
-    /** A task running longer than this is taken for dead (its worker crashed) and retried. */
+    /** A running task whose worker has not renewed its lease for this long is taken for dead (crashed) and retried. */
     JOB_EXPIRE_SECONDS: z.coerce.number().int().min(1).default(900),
-    /** How often the queue looks for expired tasks. */
+    /** How often workers look for scans and points that a dead worker left unsaved or unmerged. */
     JOB_MAINTENANCE_SECONDS: z.coerce.number().int().min(1).default(30),
+    /** A task that failed is retried after this many seconds, doubled at every further attempt. */
+    JOB_RETRY_SECONDS: z.coerce.number().positive().default(5),
     /** Largest scan accepted, in points × bins × pseudo-experiments (1 per point when asymptotic). */
     SCAN_COST_LIMIT: z.coerce.number().positive().default(200_000_000),
     /** Largest result upload accepted (file or JSON body), in bytes; larger ones get 413. */

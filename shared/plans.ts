@@ -27,6 +27,13 @@ export type Plan = {
   quotaBytes: number;
   /** Cached figure renders: how many the group keeps and how long an unused one stays. */
   renderCache: { maxRenders: number; maxAgeDays: number };
+  /**
+   * Scan work the group may have queued or running at once, in pseudo-experiments per hypothesis
+   * summed over the grid points of its unfinished scans (points × toys; an asymptotic point
+   * counts 1). Keeps one group from filling the shared workers for hours; the queue is also fair
+   * between groups whatever this limit.
+   */
+  scanQueueLimit: number;
   /** Prices in cents per billing interval; null for the free plan. */
   prices: Record<BillingInterval, number> | null;
   currency: 'eur';
@@ -40,6 +47,7 @@ export const PLANS: Record<PlanId, Plan> = {
     summary: 'For trying Bandwright out and for small groups.',
     quotaBytes: 50 * MB,
     renderCache: { maxRenders: 100, maxAgeDays: 7 },
+    scanQueueLimit: 200_000,
     prices: null,
     currency: 'eur',
   },
@@ -49,6 +57,7 @@ export const PLANS: Record<PlanId, Plan> = {
     summary: 'For analysis teams and combination boards, paid by the institute.',
     quotaBytes: 20 * GB,
     renderCache: { maxRenders: 20_000, maxAgeDays: 180 },
+    scanQueueLimit: 20_000_000,
     prices: { month: 4_900, year: 49_000 },
     currency: 'eur',
   },
@@ -90,6 +99,7 @@ export const planSchema = z.object({
   summary: z.string(),
   quotaBytes: z.number(),
   renderCache: z.object({ maxRenders: z.number(), maxAgeDays: z.number() }),
+  scanQueueLimit: z.number(),
   prices: z.object({ month: z.number(), year: z.number() }).nullable(),
   currency: z.literal('eur'),
 });

@@ -32,6 +32,7 @@ export function PlanOptions({ plans, currentId, onUpgrade, pending }: Props) {
             <Text>
               Figure renders kept: {p.renderCache.maxRenders.toLocaleString('en')}, each for {p.renderCache.maxAgeDays} days after last use
             </Text>
+            <Text>Scans queued at once: up to {p.scanQueueLimit.toLocaleString('en')} pseudo-experiments (grid points × pseudo-experiments; an asymptotic point counts one)</Text>
             <Text variant="label">{p.prices ? BILLING_INTERVALS.map((i) => formatPrice(p, i)).join(' or ') : 'No charge'}</Text>
             {onUpgrade && p.prices && !current ? (
               <View style={styles.buttons}>

@@ -2,6 +2,7 @@ import { Link, useLocalSearchParams } from 'expo-router';
 import { useState } from 'react';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { EXPECTED_KEYS } from '@/shared/schemas/counting-model';
+import { clockTime, duration, retryNotice } from '@/shared/scans/progress';
 import type { ScanDetail, ScanPointSummary } from '@/shared/schemas/scan-views';
 import { api } from '@/hooks/api';
 import { useCurrentGroup } from '@/hooks/use-current-group';
@@ -21,11 +22,14 @@ import { Loading } from '../ui/loading';
 import { Screen } from '../ui/screen';
 import { Text } from '../ui/text';
 
-const seconds = (s: number | null) => (s === null ? '—' : s < 90 ? `${Math.round(s)} s` : `${Math.floor(s / 60)} min ${Math.round(s % 60)} s`);
+const seconds = (s: number | null) => (s === null ? '—' : duration(s));
 
 function Progress({ scan }: { scan: ScanDetail }) {
   const finished = scan.donePoints + scan.failedPoints;
   const pct = scan.totalPoints ? Math.round((100 * finished) / scan.totalPoints) : 0;
+  const active = scan.state === 'queued' || scan.state === 'running';
+  // Retry times are on the server's clock: measure the wait from the answer's own time.
+  const retry = active ? retryNotice(scan.points, new Date(scan.now)) : null;
   return (
     <View style={styles.progressBox}>
       <View role="progressbar" aria-label="Points computed" aria-valuemin={0} aria-valuemax={scan.totalPoints} aria-valuenow={finished} aria-valuetext={`${finished} of ${scan.totalPoints} points, ${pct}%`} style={styles.track}>
@@ -33,10 +37,19 @@ function Progress({ scan }: { scan: ScanDetail }) {
       </View>
       <Text>
         {finished} of {scan.totalPoints} points ({pct}%){scan.failedPoints ? ` · ${scan.failedPoints} failed` : ''} · elapsed {seconds(scan.elapsedSeconds)}
-        {scan.state === 'running' ? ` · about ${seconds(scan.etaSeconds)} left` : ''}
+        {active ? ` · about ${seconds(scan.etaSeconds)} left` : ''}
       </Text>
+      {retry ? <Banner tone="warning" message={retry} /> : null}
     </View>
   );
+}
+
+/** A point's state as the table shows it: chunks of pseudo-experiments done, running, or waiting for a retry. */
+function pointState(p: ScanPointSummary): string {
+  if (p.state !== 'queued') return p.state;
+  if (p.retryAt) return `retry ${clockTime(new Date(p.retryAt))}`;
+  const chunks = p.tasks.total > 1 ? ` ${p.tasks.done}/${p.tasks.total}` : '';
+  return p.tasks.running > 0 ? `running${chunks}` : `queued${chunks}`;
 }
 
 function Diagnostics({ groupId, scanId, index, unit }: { groupId: string; scanId: string; index: number; unit: string }) {
@@ -82,7 +95,7 @@ function PointsTable({ points, onPick, picked, xsec }: { points: ScanPointSummar
       <View role="table" aria-label="Grid points">
         <View role="row" style={[styles.tr, styles.th]}>
           {cols.map((c) => (
-            <Text key={c} variant="label" style={styles.td}>
+            <Text key={c} variant="label" style={[styles.td, c === 'state' && styles.stateTd]}>
               {c}
             </Text>
           ))}
@@ -92,7 +105,7 @@ function PointsTable({ points, onPick, picked, xsec }: { points: ScanPointSummar
           return (
             <Pressable key={p.index} role="row" aria-label={`Show diagnostics of x = ${p.x}`} onPress={() => onPick(p.index)} style={[styles.tr, picked === p.index && styles.picked]}>
               <Text style={styles.td}>{fmt(p.x, 6)}</Text>
-              <Text style={[styles.td, p.state === 'failed' && styles.failed]}>{p.state}</Text>
+              <Text style={[styles.td, styles.stateTd, p.state === 'failed' && styles.failed]}>{pointState(p)}</Text>
               <Text style={styles.td}>{fmt(v?.observed)}</Text>
               {EXPECTED_KEYS.map((k) => (
                 <Text key={k} style={styles.td}>
@@ -185,6 +198,7 @@ const styles = StyleSheet.create({
   tr: { flexDirection: 'row', borderBottomWidth: 1, borderBottomColor: colors.border, minHeight: 36, alignItems: 'center' },
   th: { borderBottomColor: colors.borderStrong },
   td: { width: 86, paddingHorizontal: space.xs, fontSize: 13 },
+  stateTd: { width: 116 },
   picked: { backgroundColor: colors.primarySoft },
   failed: { color: colors.danger },
 });

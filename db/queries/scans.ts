@@ -94,26 +94,27 @@ export async function listPointInputs(db: Executor, scanId: string) {
 }
 
 /**
- * Starts work on one point in a single statement: the scan turns running (first point only), the
- * attempt is counted, and the point's input comes back with the scan's options. Nothing comes back
- * (and nothing changes) when the point already finished or the scan is over.
+ * Starts work on one of a point's tasks in a single statement: the scan turns running (first task
+ * only), the point's attempts become the task's if higher, and the point's input comes back with
+ * the scan's options. Nothing comes back (and nothing changes) when the point already finished or
+ * the scan is over.
  */
-export async function claimPoint(db: Executor, scanId: string, index: number) {
-  const r = await db.execute<{ x: number; sigma_nominal: number | null; model: Record<string, unknown>; options: ScanOptions }>(sql`
+export async function claimPoint(db: Executor, scanId: string, index: number, attempt = 1) {
+  const r = await db.execute<{ x: number; sigma_nominal: number | null; model: Record<string, unknown>; chunks: number; options: ScanOptions }>(sql`
     with s as (select state, options from ${scans} where id = ${scanId}),
     started as (
       update ${scans} set state = 'running', started_at = coalesce(started_at, now())
       where id = ${scanId} and state = 'queued'
     ),
     p as (
-      update ${scanPoints} set attempts = attempts + 1
+      update ${scanPoints} set attempts = greatest(attempts, ${attempt})
       where scan_id = ${scanId} and index = ${index} and state = 'queued'
         and (select state from s) in ('queued', 'running')
-      returning x, sigma_nominal, model
+      returning x, sigma_nominal, model, chunks
     )
-    select p.x, p.sigma_nominal, p.model, s.options from p cross join s`);
+    select p.x, p.sigma_nominal, p.model, p.chunks, s.options from p cross join s`);
   const row = r.rows[0];
-  return row ? { x: row.x, sigmaNominal: row.sigma_nominal, model: row.model, options: row.options } : undefined;
+  return row ? { x: row.x, sigmaNominal: row.sigma_nominal, model: row.model, chunks: row.chunks, options: row.options } : undefined;
 }
 
 /**

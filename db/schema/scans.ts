@@ -1,4 +1,5 @@
-import { bigint, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { sql } from 'drizzle-orm';
+import { bigint, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import type { ScanOptions } from '../../shared/schemas/scans';
 import type { VersionMeta } from '../../shared/schemas/results';
 import { user } from './auth';
@@ -7,6 +8,9 @@ import { results } from './results';
 
 export const scanState = pgEnum('scan_state', ['queued', 'running', 'done', 'failed', 'cancelled']);
 export const scanPointState = pgEnum('scan_point_state', ['queued', 'done', 'failed', 'cancelled']);
+export const scanTaskState = pgEnum('scan_task_state', ['queued', 'running', 'done', 'failed', 'cancelled']);
+
+const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' });
 
 /**
  * A scan job: a grid of counting models computed point by point in the job queue. When every
@@ -60,8 +64,63 @@ export const scanPoints = pgTable(
     result: jsonb().$type<Record<string, unknown>>(),
     error: jsonb().$type<{ field: string; reason: string }>(),
     attempts: integer().notNull().default(0),
+    /** Tasks the point is computed in: 1, or its chunks of pseudo-experiments. */
+    chunks: integer().notNull().default(1),
     computeMs: doublePrecision(),
     finishedAt: timestamp({ withTimezone: true }),
   },
   (t) => [primaryKey({ columns: [t.scanId, t.index] })],
 );
+
+/**
+ * The job queue: one task per asymptotic grid point, or per chunk of a point's pseudo-experiments.
+ * Workers claim tasks fairly between groups (db/queries/scan-tasks.ts); a task whose worker stops
+ * renewing its lease is claimed again. A chunk keeps its test-statistic samples here until the
+ * point's chunks are merged.
+ */
+export const scanTasks = pgTable(
+  'scan_tasks',
+  {
+    id: bigint({ mode: 'number' }).primaryKey().generatedAlwaysAsIdentity(),
+    scanId: uuid()
+      .notNull()
+      .references(() => scans.id, { onDelete: 'cascade' }),
+    groupId: uuid()
+      .notNull()
+      .references(() => groups.id, { onDelete: 'cascade' }),
+    pointIndex: integer().notNull(),
+    chunk: integer().notNull().default(0),
+    /** Pseudo-experiments per hypothesis in this task (1 for an asymptotic point): the plan's queue limit counts these. */
+    cost: integer().notNull(),
+    state: scanTaskState().notNull().default('queued'),
+    attempts: integer().notNull().default(0),
+    /** Not claimed before this time (a retry after a failure waits here). */
+    runAfter: timestamp({ withTimezone: true }).notNull().defaultNow(),
+    /** While running: claimable again after this time (its worker is taken for dead). */
+    leaseUntil: timestamp({ withTimezone: true }),
+    claimedAt: timestamp({ withTimezone: true }),
+    heartbeatAt: timestamp({ withTimezone: true }),
+    /** Values of μ sampled so far by the running chunk (progress). */
+    steps: integer().notNull().default(0),
+    samples: bytea(),
+    /** Fits and pseudo-experiments of a finished chunk. */
+    stats: jsonb().$type<{ fits: number; failed: number; generated: number; ms: number }>(),
+    lastError: text(),
+    finishedAt: timestamp({ withTimezone: true }),
+    createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    uniqueIndex().on(t.scanId, t.pointIndex, t.chunk),
+    index('scan_tasks_open_idx').on(t.groupId, t.state).where(sql`${t.state} in ('queued', 'running')`),
+    // The claim's fair share: each open group's run time over its recent claims.
+    index().on(t.groupId, t.claimedAt),
+  ],
+);
+
+/** When each group last had a task claimed: the claim serves the group served least recently. */
+export const scanGroupTurns = pgTable('scan_group_turns', {
+  groupId: uuid()
+    .primaryKey()
+    .references(() => groups.id, { onDelete: 'cascade' }),
+  lastClaimedAt: timestamp({ withTimezone: true }).notNull(),
+});

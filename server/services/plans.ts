@@ -1,6 +1,7 @@
 import { FREE_PLAN, INSTITUTIONAL_PLAN, type Plan } from '../../shared/plans';
 import { formatBytes } from '../../shared/bytes';
 import * as q from '../../db/queries/billing';
+import { queuedCost } from '../../db/queries/scan-tasks';
 import type { Executor } from '../../db/client';
 import { AppError, notFound } from '../lib/errors';
 
@@ -110,4 +111,43 @@ export async function renderCacheLimits(db: Executor, groupId: string): Promise<
  */
 export function scanDraftAllowance(points: number): number {
   return 8 * 1024 + 192 * points;
+}
+
+/**
+ * Checks that the group may queue a scan of `points` grid points with `perPoint` pseudo-experiments
+ * per hypothesis each (1 for an asymptotic point) under the plan in force: what it has queued or
+ * running now plus this scan must stay within `scanQueueLimit`. Call it in the transaction that
+ * inserts the scan's tasks, after `assertStorageAvailable` (whose lock on the group row makes two
+ * starts of the same group queue, so they cannot both squeeze in). Throws 413 `scan_over_plan`
+ * when the scan alone is too large for the plan, 429 `scan_queue_full` when it would fit once the
+ * group's queued work has finished; both name the field (options.toys, or points for an
+ * asymptotic scan) and the limit.
+ */
+export async function assertScanQueueRoom(tx: Executor, groupId: string, scan: { points: number; perPoint: number; toys: boolean }): Promise<void> {
+  const { plan } = await planOfGroup(tx, groupId);
+  const limit = plan.scanQueueLimit;
+  const cost = scan.points * scan.perPoint;
+  const n = (v: number) => v.toLocaleString('en');
+  const field = scan.toys ? 'options.toys' : 'points';
+  const what = scan.toys ? `${n(scan.points)} points × ${n(scan.perPoint)} pseudo-experiments = ${n(cost)}` : `${n(scan.points)} asymptotic points`;
+  const upgrade = plan.id === 'free' ? ' An owner can upgrade to the Institutional plan (Plan screen) for more.' : '';
+  if (cost > limit) {
+    const most = scan.toys ? `at most ${n(Math.floor(limit / scan.points))} with ${n(scan.points)} points` : `at most ${n(limit)} points`;
+    throw new AppError(
+      413,
+      'scan_over_plan',
+      `This scan queues ${what}, more than the ${plan.name} plan lets a group have queued at once (${n(limit)} pseudo-experiments, scanQueueLimit). Use fewer ${scan.toys ? 'pseudo-experiments or points' : 'points'}, or split the scan.${upgrade}`,
+      [{ field, message: `${most}: the ${plan.name} plan's limit is ${n(limit)} queued pseudo-experiments` }],
+    );
+  }
+  const queued = await queuedCost(tx, groupId);
+  if (queued + cost > limit) {
+    const room = Math.max(0, limit - queued);
+    throw new AppError(
+      429,
+      'scan_queue_full',
+      `This group's scans already have ${n(queued)} pseudo-experiments queued or running; this scan adds ${what}, beyond the ${plan.name} plan's limit of ${n(limit)} at once. Start it when those scans have finished, or cancel one.${upgrade}`,
+      [{ field, message: `room for ${n(room)} more pseudo-experiments now (limit ${n(limit)} on the ${plan.name} plan, ${n(queued)} queued)` }],
+    );
+  }
 }

@@ -1,4 +1,3 @@
-import type PgBoss from 'pg-boss';
 import { z } from 'zod';
 import { CsvFileError, decodeText } from '../../shared/curves/csv';
 import { parseScanCsv } from '../../shared/scans/csv';
@@ -9,12 +8,13 @@ import type { ScanDetail, ScanPointDetail, ScanSummary } from '../../shared/sche
 import * as q from '../../db/queries/scans';
 import { getRole } from '../../db/queries/groups';
 import type { Ctx } from '../context';
-import { dbOnClient } from '../../db/client';
 import { AppError, notFound, validationError, type ErrorDetail } from '../lib/errors';
-import { SCAN_POINT_QUEUE, type ScanPointTask } from '../jobs/queue';
+import * as tq from '../../db/queries/scan-tasks';
+import { toyChunkSizes } from '../../shared/stats/toy-chunks';
+import { estimateSecondsLeft } from '../../shared/scans/progress';
 import { addVersion, createResult, getDetail } from './results';
 import { addStorage } from '../../db/queries/results';
-import { assertStorageAvailable, scanDraftAllowance } from './plans';
+import { assertScanQueueRoom, assertStorageAvailable, scanDraftAllowance } from './plans';
 
 /**
  * Scans: a grid of counting models queued as one task per point, computed by workers, and turned
@@ -109,29 +109,33 @@ function checkScan(ctx: Ctx, req: ScanRequest) {
   }
 }
 
-function requireQueue(ctx: Ctx): PgBoss {
+function requireQueue(ctx: Ctx): NonNullable<Ctx['jobs']> {
   if (!ctx.jobs) throw new AppError(503, 'no_queue', 'The job queue is not running on this server');
   return ctx.jobs;
 }
 
+/** The tasks of a point: one for an asymptotic point, one per chunk of pseudo-experiments. */
+function pointTasks(options: ScanOptions): number[] {
+  return options.method === 'toys' ? toyChunkSizes(options.toys) : [1];
+}
+
 /**
- * Stores the scan and its points and queues one task per point, in one transaction (pg-boss
- * inserts its tasks through the same connection), so a scan is either fully queued or absent.
+ * Stores the scan, its points and their tasks in one transaction, so a scan is either fully
+ * queued or absent.
  */
 export async function startScan(ctx: Ctx, groupId: string, userId: string, req: ScanRequest): Promise<ScanDetail> {
   checkScan(ctx, req);
-  const boss = requireQueue(ctx);
+  requireQueue(ctx);
   if (req.resultId) {
     await getDetail(ctx, groupId, req.resultId); // 404 unless the result is this group's
   }
-  const client = await ctx.db.$client.connect();
-  let scanId: string;
-  try {
-    await client.query('begin');
-    const tx = dbOnClient(client);
+  const costs = pointTasks(req.options);
+  const scanId = await ctx.db.transaction(async (tx) => {
     const storedBytes = req.sourceBytes + Buffer.byteLength(JSON.stringify(req.points));
     // Room for the inputs and for the draft the scan will save (that save is not refused later).
     await assertStorageAvailable(tx, groupId, storedBytes + scanDraftAllowance(req.points.length), 'this scan');
+    // The group's queued scan work within its plan (the group row is locked by the check above).
+    await assertScanQueueRoom(tx, groupId, { points: req.points.length, perPoint: costs.reduce((a, b) => a + b, 0), toys: req.options.method === 'toys' });
     const scan = await q.insertScan(tx, {
       groupId,
       options: req.options,
@@ -142,21 +146,17 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
       storedBytes,
       createdBy: userId,
     });
-    scanId = scan.id;
     await q.insertScanPoints(
       tx,
-      req.points.map((p, index) => ({ scanId: scan.id, index, x: p.x, sigmaNominal: p.sigmaNominal ?? null, model: p.model as Record<string, unknown> })),
+      req.points.map((p, index) => ({ scanId: scan.id, index, x: p.x, sigmaNominal: p.sigmaNominal ?? null, model: p.model as Record<string, unknown>, chunks: costs.length })),
     );
     await addStorage(tx, groupId, storedBytes);
-    const tasks = req.points.map((_, index) => ({ name: SCAN_POINT_QUEUE, data: { scanId: scan.id, index } satisfies ScanPointTask }));
-    await boss.insert(tasks, { db: { executeSql: (text: string, values: unknown[]) => client.query(text, values) } });
-    await client.query('commit');
-  } catch (e) {
-    await client.query('rollback').catch(() => undefined);
-    throw e;
-  } finally {
-    client.release();
-  }
+    await tq.insertTasks(
+      tx,
+      req.points.flatMap((_, pointIndex) => costs.map((cost, chunk) => ({ scanId: scan.id, groupId, pointIndex, chunk, cost }))),
+    );
+    return scan.id;
+  });
   return getScan(ctx, groupId, scanId);
 }
 
@@ -173,11 +173,23 @@ export async function listScans(ctx: Ctx, groupId: string): Promise<ScanSummary[
 export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promise<ScanDetail> {
   const s = await q.getScan(ctx.db, groupId, scanId);
   if (!s) throw notFound('Scan');
-  const points = await q.listPointSummaries(ctx.db, scanId);
-  const finished = s.donePoints + s.failedPoints;
-  const end = s.finishedAt ?? new Date();
-  const elapsed = s.startedAt ? (end.getTime() - s.startedAt.getTime()) / 1000 : 0;
-  const eta = s.state === 'running' && finished > 0 ? (elapsed / finished) * (s.totalPoints - finished) : null;
+  const [points, tasks] = await Promise.all([q.listPointSummaries(ctx.db, scanId), tq.taskProgress(ctx.db, scanId)]);
+  const byPoint = new Map(tasks.map((x) => [x.pointIndex, x]));
+  const now = tasks[0]?.now ?? new Date();
+  const active = s.state === 'queued' || s.state === 'running';
+  const end = s.finishedAt ?? now;
+  const elapsed = s.startedAt ? Math.max(0, (end.getTime() - s.startedAt.getTime()) / 1000) : 0;
+  // Retries count only for points still to compute (a finished point's stray tasks do not).
+  const retries = active ? points.flatMap((p) => (p.state === 'queued' && byPoint.get(p.index)?.retryAt ? [byPoint.get(p.index)!.retryAt!] : [])) : [];
+  const eta = active
+    ? estimateSecondsLeft({
+        elapsedSeconds: elapsed,
+        tasks: tasks.reduce((n, x) => n + x.tasks, 0),
+        openTasks: tasks.reduce((n, x) => n + x.open, 0),
+        retryDueInSeconds: retries.map((d) => (d.getTime() - now.getTime()) / 1000),
+      })
+    : null;
+  const lastRetry = retries.length ? new Date(Math.max(...retries.map((d) => d.getTime()))) : null;
   return {
     id: s.id,
     groupId: s.groupId,
@@ -190,6 +202,8 @@ export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promis
     failedPoints: s.failedPoints,
     elapsedSeconds: elapsed,
     etaSeconds: eta,
+    retryAt: lastRetry?.toISOString() ?? null,
+    now: now.toISOString(),
     resultId: s.resultId,
     resultVersion: s.resultVersion,
     error: s.error,
@@ -197,7 +211,11 @@ export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promis
     createdAt: s.createdAt.toISOString(),
     startedAt: s.startedAt?.toISOString() ?? null,
     finishedAt: s.finishedAt?.toISOString() ?? null,
-    points: points.map((p) => ({ ...p, sigmaNominal: p.sigmaNominal ?? null })),
+    points: points.map((p) => {
+      const t = byPoint.get(p.index);
+      const retryAt = active && p.state === 'queued' && t?.retryAt ? t.retryAt.toISOString() : null;
+      return { ...p, sigmaNominal: p.sigmaNominal ?? null, tasks: { done: t?.done ?? 0, total: t?.tasks ?? 0, running: t?.running ?? 0 }, retryAt };
+    }),
   };
 }
 
@@ -223,6 +241,8 @@ export async function cancelScan(ctx: Ctx, groupId: string, scanId: string): Pro
     if (!s) throw notFound('Scan');
     if (s.state !== 'queued' && s.state !== 'running') throw new AppError(409, 'finished', `This scan is already ${s.state}`);
     await q.cancelQueuedPoints(tx, scanId);
+    // A running chunk sees its task cancelled at its next heartbeat and stops there.
+    await tq.cancelOpenTasks(tx, scanId);
     await q.setScanOutcome(tx, scanId, { state: 'cancelled' });
     return s;
   });

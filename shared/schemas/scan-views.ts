@@ -31,6 +31,10 @@ export type ScanPointSummary = {
   warnings: string[] | null;
   error: { field: string; reason: string } | null;
   computeMs: number | null;
+  /** Tasks of the point (1, or its chunks of pseudo-experiments) done and in all; how many run now. */
+  tasks: { done: number; total: number; running: number };
+  /** When the point's retry is due (ISO time; already past when it waits for a free worker), or null. */
+  retryAt: string | null;
 };
 
 export type ScanDetail = Omit<ScanSummary, 'title'> & {
@@ -39,8 +43,15 @@ export type ScanDetail = Omit<ScanSummary, 'title'> & {
   meta: VersionMeta;
   options: ScanOptions;
   elapsedSeconds: number;
-  /** Estimated seconds left while running (null before the first point finishes). */
+  /**
+   * Estimated seconds left while queued or running (null before anything finished): the pace so
+   * far, but at least until the last retry that a point waits for is due (shared/scans/progress.ts).
+   */
   etaSeconds: number | null;
+  /** When the last retry that a point waits for is due (ISO time), or null when none waits. */
+  retryAt: string | null;
+  /** The server's clock when this answer was made (retry times are on it). */
+  now: string;
   error: string | null;
   sourceName: string | null;
   points: ScanPointSummary[];

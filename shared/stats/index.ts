@@ -50,3 +50,20 @@ export {
   type SigmaBLimits,
 } from '../schemas/counting-model';
 export { fitNuisanceParameters, type NuisanceFit, type NuisancePull } from './pulls';
+export { withSigmaB } from './scan';
+export {
+  computeToyPoint,
+  decodeToySamples,
+  encodeToySamples,
+  mergeToyChunks,
+  planToyPoint,
+  toyChunks,
+  toyChunkSizes,
+  ToyChunkRun,
+  ToyRunStopped,
+  TOY_CHUNK_SIZE,
+  TOY_GRID_POINTS,
+  type ToyChunkResult,
+  type ToyPlan,
+  type ToyPointOptions,
+} from './toy-chunks';

@@ -160,7 +160,7 @@ function addCounts(a: { fits: number; failed: number }, b: { fits: number; faile
   return { fits: a.fits + b.fits, failed: a.failed + b.failed };
 }
 
-function edgeWarning(): string {
+export function edgeWarning(): string {
   return 'A limit sits at the edge of the range of μ searched: the data barely constrain μ; treat that limit as a bound of the search, not a result.';
 }
 

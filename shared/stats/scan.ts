@@ -3,13 +3,24 @@
  * σ×B units (μ_up × σ_nominal) where the nominal cross-section is given. A bad point reports its
  * own input problem and does not stop the scan.
  */
-import type { LimitOptions, ScanPoint, ScanPointResult } from '../schemas/counting-model';
+import type { LimitOptions, LimitResult, ScanPoint, ScanPointResult, SigmaBLimits } from '../schemas/counting-model';
 import { formatPath, StatsInputError } from './errors';
 import { limitForPrepared, resolveOptions } from './limit';
 import { prepareModel } from './model';
 
 function finite(value: unknown): value is number {
   return typeof value === 'number' && Number.isFinite(value);
+}
+
+/** A limit on μ with its σ×B limits (μ_up × σ_nominal) when the nominal cross-section is known. */
+export function withSigmaB(result: LimitResult, sigmaNominal: number | undefined): LimitResult & { sigmaB?: SigmaBLimits } {
+  if (sigmaNominal === undefined) return result;
+  const e = result.expected;
+  const s = sigmaNominal;
+  return {
+    ...result,
+    sigmaB: { observed: result.observed * s, expected: { '-2': e['-2'] * s, '-1': e['-1'] * s, '0': e['0'] * s, '1': e['1'] * s, '2': e['2'] * s } },
+  };
 }
 
 /**
@@ -34,17 +45,7 @@ export function computeScan(points: ReadonlyArray<ScanPoint>, options: LimitOpti
         throw new StatsInputError('sigmaNominal', `must be a positive finite number (got ${String(sigma)})`);
       }
       const prepared = prepareModel(point.model, 'model');
-      const result = limitForPrepared(prepared, resolved);
-      if (sigma === undefined) return { ...where, ...result };
-      const e = result.expected;
-      return {
-        ...where,
-        ...result,
-        sigmaB: {
-          observed: result.observed * sigma,
-          expected: { '-2': e['-2'] * sigma, '-1': e['-1'] * sigma, '0': e['0'] * sigma, '1': e['1'] * sigma, '2': e['2'] * sigma },
-        },
-      };
+      return { ...where, ...withSigmaB(limitForPrepared(prepared, resolved), sigma) };
     } catch (err) {
       if (err instanceof StatsInputError) return { ...where, error: { field: err.field, reason: err.reason } };
       // An unexpected failure is still this point's alone; say so rather than lose the scan.

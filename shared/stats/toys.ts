@@ -98,35 +98,33 @@ export class ToyCalculator {
     const hit = this.cache.get(mu);
     if (hit) return hit;
     const qObs = this.source.qObserved(mu);
+    this.samplesAt(mu);
+    const n = this.toys;
+    const point: ToyPoint = { mu, cls: new Float64Array(6), clsb: new Float64Array(6), clb: new Float64Array(6), q: new Float64Array(6) };
+    const fill = (slot: number, q: number) => {
+      const v = clsFromSorted(this.qsb, this.qb, q);
+      point.q[slot] = q;
+      point.clsb[slot] = v.clsb;
+      point.clb[slot] = v.clb;
+      point.cls[slot] = v.cls;
+    };
+    fill(0, qObs);
+    EXPECTED_KEYS.forEach((key, j) => fill(j + 1, this.qb[expectedQuantileIndex(key, n)] as number));
+    this.cache.set(mu, point);
+    return point;
+  }
+
+  /**
+   * q̃_μ of this calculator's pseudo-experiments drawn under μ and under μ = 0, each ascending
+   * (views on buffers that the next call overwrites). The sampling behind `evaluate`, for callers
+   * that merge pseudo-experiments from several calculators (chunks, shared/stats/toy-chunks.ts).
+   */
+  samplesAt(mu: number): { qsb: Float64Array; qb: Float64Array } {
     this.sample(mu, true, this.qsb);
     this.sample(mu, false, this.qb);
     this.qsb.sort();
     this.qb.sort();
-    const n = this.toys;
-    const point: ToyPoint = { mu, cls: new Float64Array(6), clsb: new Float64Array(6), clb: new Float64Array(6), q: new Float64Array(6) };
-    const fill = (slot: number, q: number) => {
-      // Pseudo-experiments tie with the observed value when their data are the same: compare with
-      // a tolerance above the fits' precision so that ties count as "at least as extreme".
-      const threshold = q - 1e-7 * max(1, q);
-      const clsb = countAtLeast(this.qsb, threshold) / n;
-      const kb = countAtLeast(this.qb, threshold);
-      // No background-only pseudo-experiment as extreme: CLb is below 1/n; take half a count.
-      const clb = (kb > 0 ? kb : 0.5) / n;
-      point.q[slot] = q;
-      point.clsb[slot] = clsb;
-      point.clb[slot] = clb;
-      point.cls[slot] = min(1, clsb / clb);
-    };
-    fill(0, qObs);
-    EXPECTED_KEYS.forEach((key, j) => {
-      // Band N: the background-only q̃_μ exceeded with probability Φ(N) (a deficit, N < 0, gives a
-      // large q̃_μ and the stronger limit).
-      const p = 1 - normalCdf(BAND_SIGMAS[key]);
-      const index = min(n - 1, max(0, ceil(p * n) - 1));
-      fill(j + 1, this.qb[index] as number);
-    });
-    this.cache.set(mu, point);
-    return point;
+    return { qsb: this.qsb, qb: this.qb };
   }
 
   /** Fills `out` with q̃_μ of pseudo-experiments drawn under μ (signal) or under μ = 0. */
@@ -164,6 +162,44 @@ export class ToyCalculator {
       out[t] = q > 0 ? q : 0;
     }
   }
+}
+
+/**
+ * CLs+b, CLb and CLs of the test-statistic value `q` from ascending samples of q̃_μ under the
+ * signal-plus-background (`qsb`) and background-only (`qb`) hypotheses (equal sizes).
+ */
+export function clsFromSorted(qsb: Float64Array, qb: Float64Array, q: number): ClsValues {
+  const n = qb.length;
+  // Pseudo-experiments tie with the observed value when their data are the same: compare with
+  // a tolerance above the fits' precision so that ties count as "at least as extreme".
+  const threshold = q - 1e-7 * max(1, q);
+  const clsb = countAtLeast(qsb, threshold) / n;
+  const kb = countAtLeast(qb, threshold);
+  // No background-only pseudo-experiment as extreme: CLb is below 1/n; take half a count.
+  const clb = (kb > 0 ? kb : 0.5) / n;
+  return { clsb, clb, cls: min(1, clsb / clb) };
+}
+
+/**
+ * Index, in `n` ascending background-only samples, of the q̃_μ that stands for the expected
+ * band N: the value exceeded with probability Φ(N) (a deficit, N < 0, gives a large q̃_μ and the
+ * stronger limit).
+ */
+export function expectedQuantileIndex(key: ExpectedKey, n: number): number {
+  const p = 1 - normalCdf(BAND_SIGMAS[key]);
+  return min(n - 1, max(0, ceil(p * n) - 1));
+}
+
+/**
+ * Monte-Carlo uncertainty of a limit μ from `n` pseudo-experiments per hypothesis: the binomial
+ * errors of CLs+b and CLb propagated to CLs, then to μ through the slope −dCLs/dμ measured around
+ * the limit (common practice). A flat CLs means the limit is not resolved better than 10 %.
+ */
+export function toyLimitError(at: ClsValues, n: number, slope: number, mu: number): number {
+  const { cls, clsb, clb } = at;
+  const relVar = (clsb > 0 ? (1 - clsb) / (n * clsb) : 1) + (clb > 0 ? (1 - clb) / (n * clb) : 1);
+  const sigmaCls = cls * sqrt(relVar);
+  return slope > 0 ? min(sigmaCls / slope, mu) : 0.1 * mu;
 }
 
 /** Number of entries ≥ threshold in an ascending array. */
@@ -231,12 +267,8 @@ export function toyLimits(calc: ToyCalculator, alpha: number, guesses: { observe
     // A tail that is empty here still holds fewer than one pseudo-experiment in n.
     smallestTail = min(smallestTail, max(clsb, 0.5 / n), max(clb, 0.5 / n));
     const cls = at.cls[slot] as number;
-    const relVar = (clsb > 0 ? (1 - clsb) / (n * clsb) : 1) + (clb > 0 ? (1 - clb) / (n * clb) : 1);
-    const sigmaCls = cls * sqrt(relVar);
     const slope = ((calc.evaluate(0.9 * mu).cls[slot] as number) - (calc.evaluate(1.1 * mu).cls[slot] as number)) / (0.2 * mu);
-    // A flat CLs over ±10% means the limit is not resolved better than that.
-    const error = slope > 0 ? min(sigmaCls / slope, mu) : 0.1 * mu;
-    return { value: mu, error };
+    return { value: mu, error: toyLimitError({ cls, clsb, clb }, n, slope, mu) };
   };
   const solve = (slot: number, guess: number, low: number, high: number, tie?: number): { value: number; error: number } => {
     const f = (mu: number) => log(max(calc.evaluate(mu).cls[slot] as number, 1e-300)) - lnAlpha;

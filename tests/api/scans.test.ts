@@ -3,7 +3,7 @@ import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import { scanPoints } from '@/db/schema/scans';
 import { startQueue } from '@/server/jobs/queue';
-import { runScanPoint, startScanWorkers } from '@/server/jobs/scan-worker';
+import { runNextTask, startScanWorkers } from '@/server/jobs/scan-worker';
 import { startWorkerProcesses, type WorkerProcesses } from '@/server/jobs/worker-processes';
 import type { CountingModelInput } from '@/shared/schemas/counting-model';
 import type { ScanDetail } from '@/shared/schemas/scan-views';
@@ -44,15 +44,15 @@ describe('scans with an in-process worker', () => {
   let t: TestApp;
   let crew: Crew;
   let groupId: string;
-  let stopSweep: () => void;
+  let stopWorkers: () => Promise<void>;
   beforeAll(async () => {
     t = await startTestApp({ JOB_MAINTENANCE_SECONDS: '1', JOB_EXPIRE_SECONDS: '30' });
     t.ctx.jobs = await startQueue(t.ctx.env);
-    stopSweep = await startScanWorkers(t.ctx, t.ctx.jobs, 1);
+    stopWorkers = await startScanWorkers(t.ctx, t.ctx.jobs, 1);
     ({ groupId, crew } = await makeGroupWithRoles(t));
   });
   afterAll(async () => {
-    stopSweep?.();
+    await stopWorkers?.();
     await t?.close();
   });
 
@@ -169,9 +169,9 @@ describe('cancel, and workers that crash', () => {
 
   test('cancelling keeps the finished points and makes them the draft', async () => {
     const res = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(6), options: {}, meta: META });
-    // Compute two points by hand (as a worker would), then cancel.
-    await runScanPoint(t.ctx, { scanId: res.body.id, index: 0 });
-    await runScanPoint(t.ctx, { scanId: res.body.id, index: 1 });
+    // Compute two points by hand (as a worker would: the queue gives them in order), then cancel.
+    expect(await runNextTask(t.ctx, t.ctx.jobs!)).toBe(true);
+    expect(await runNextTask(t.ctx, t.ctx.jobs!)).toBe(true);
     const cancelled = await crew.analyst.agent.post(`/api/groups/${groupId}/scans/${res.body.id}/cancel`);
     expect(cancelled.status).toBe(200);
     expect(cancelled.body.state).toBe('cancelled');
@@ -180,8 +180,8 @@ describe('cancel, and workers that crash', () => {
     const v = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${cancelled.body.resultId}/versions/${cancelled.body.resultVersion}`);
     expect(v.body.curve.x).toEqual([1000, 1100]);
     expect(v.body.meta.notes).toContain('cancelled after 2 of 6 points');
-    // A task that runs after the cancel changes nothing.
-    await runScanPoint(t.ctx, { scanId: res.body.id, index: 3 });
+    // The other tasks were cancelled with the scan: nothing is left to run, and nothing changed.
+    expect(await runNextTask(t.ctx, t.ctx.jobs!)).toBe(false);
     expect((await crew.analyst.agent.get(`/api/groups/${groupId}/scans/${res.body.id}`)).body.donePoints).toBe(2);
     expect((await crew.analyst.agent.post(`/api/groups/${groupId}/scans/${res.body.id}/cancel`)).status).toBe(409);
   });

@@ -41,7 +41,7 @@ export async function startE2E(opts: { jobs?: boolean; stripe?: boolean } = {}):
     loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'development', PUBLIC_URL: base, PORT: String(port), AUTH_RATE_LIMIT: '1000', ...(stripeFake ? fakeStripeEnv(stripeFake.port) : {}) }),
   );
   // Scans need the job queue and a worker, as `npm start` runs them.
-  let stopWorkers = () => {};
+  let stopWorkers = async () => {};
   if (opts.jobs) {
     ctx.jobs = await startQueue(ctx.env);
     stopWorkers = await startScanWorkers(ctx, ctx.jobs, 1);
@@ -50,7 +50,7 @@ export async function startE2E(opts: { jobs?: boolean; stripe?: boolean } = {}):
     const s = createApp(ctx).listen(port, '127.0.0.1', () => resolve(s));
   });
   const stopServer = async () => {
-    stopWorkers();
+    await stopWorkers();
     await new Promise((r) => server.close(r));
     await stripeFake?.close();
     await closeContext(ctx);

@@ -45,6 +45,7 @@ describe('the plans', () => {
     expect(INSTITUTIONAL_PLAN.quotaBytes).toBeGreaterThan(FREE_PLAN.quotaBytes);
     expect(INSTITUTIONAL_PLAN.renderCache.maxRenders).toBeGreaterThan(FREE_PLAN.renderCache.maxRenders);
     expect(INSTITUTIONAL_PLAN.renderCache.maxAgeDays).toBeGreaterThan(FREE_PLAN.renderCache.maxAgeDays);
+    expect(INSTITUTIONAL_PLAN.scanQueueLimit).toBeGreaterThan(FREE_PLAN.scanQueueLimit);
     expect(INSTITUTIONAL_PLAN.prices!.year).toBeLessThan(12 * INSTITUTIONAL_PLAN.prices!.month);
     expect(Object.keys(PLANS)).toEqual(['free', 'institutional']);
   });
