@@ -11,7 +11,7 @@ import { cornerBox, densify, layoutLegend, n, overlaps, placeBoxes, rectPath, ty
 import { bandColors, noteHalves, planFigure, planLabels, type DrawnLayer, type FigurePlan } from './plan';
 import type { ResolvedTheme } from './theme';
 import { thinLabels, type AxisPlan } from './ticks';
-import type { FigureLayerData, LabelRequest, Measure, Primitive, Rect, Scene, TextMetrics } from './types';
+import type { FigureLayerData, LabelRequest, Measure, OversizeLabel, Primitive, Rect, Scene, TextMetrics } from './types';
 import { labelKey } from './types';
 
 /**
@@ -79,7 +79,7 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   const s = theme.spacing;
   const font = theme.font;
   const cache = new Map<string, TextMetrics>();
-  const m = (label: string, size: number): TextMetrics => {
+  const raw = (label: string, size: number): TextMetrics => {
     const key = labelKey({ label, size, font });
     let r = cache.get(key);
     if (!r) {
@@ -88,7 +88,15 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     }
     return r;
   };
+  // The layout sees every label's box bounded by the page: TeX can typeset a box of any size
+  // (\rule{1em}{100em}, \hspace{1000000em}), and an unbounded one would push the plot off the page.
+  const side = Math.max(W, H);
+  const m = (label: string, size: number): TextMetrics => {
+    const r = raw(label, size);
+    return { width: Math.min(r.width, side), ascent: Math.min(r.ascent, side), descent: Math.min(r.descent, side) };
+  };
   const height = (x: TextMetrics) => x.ascent + x.descent;
+  const oversize = oversizeCheck(W, H, raw);
 
   // Margins from the measured labels.
   const tickOut = theme.ticks.direction === 'out' ? theme.ticks.major : 0;
@@ -114,10 +122,12 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   // Only labels at the far ends of an axis stick out past the plot.
   const overhang = (ap: AxisPlan, ms: TextMetrics[], along: (x: TextMetrics) => number) => Math.max(0, ...ap.major.map((tk, i) => (frac(ap, tk.value) > 0.95 ? along(ms[i]!) / 2 : 0)));
 
-  const left = s.edge + (yTitle ? height(yTitle) + s.title : 0) + Math.max(0, ...yLabels.map((x) => x.width)) + s.tickLabel + tickOut;
-  const bottom = s.edge + (xTitle ? height(xTitle) + s.title : 0) + xLabelH + s.tickLabel + tickOut;
-  const top = s.edge + notesH + overhang(plan.y, yLabels, height);
-  const right = s.edge + Math.max(theme.lines.frame, overhang(plan.x, xLabels, (x) => x.width));
+  const [left, right] = fitMargins(
+    s.edge + (yTitle ? height(yTitle) + s.title : 0) + Math.max(0, ...yLabels.map((x) => x.width)) + s.tickLabel + tickOut,
+    s.edge + Math.max(theme.lines.frame, overhang(plan.x, xLabels, (x) => x.width)),
+    W,
+  );
+  const [top, bottom] = fitMargins(s.edge + notesH + overhang(plan.y, yLabels, height), s.edge + (xTitle ? height(xTitle) + s.title : 0) + xLabelH + s.tickLabel + tickOut, H);
   const plot: Rect = { x: left, y: top, width: Math.max(1, W - left - right), height: Math.max(1, H - top - bottom) };
   const plotRight = plot.x + plot.width;
   const plotBottom = plot.y + plot.height;
@@ -278,7 +288,69 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     items.push(...legend.draw(clamp(box.x, legend.width, W), clamp(box.y, legend.height, H)));
   }
 
-  return { widthPt: W, heightPt: H, background: theme.colors.background, plot, items, legendCorner: legend && placed.legend ? placed.legend : 'none', notes: [...plan.notes] };
+  // Labels whose text the figure decides (its own words, or its results' words it chose to show):
+  // one whose box no text could have (see `oversizeCheck`) is refused by the server on saving and
+  // rendering.
+  // Tick labels and notes are the builder's own short words; their boxes are only bounded.
+  if (plan.xTitle) oversize.check(plan.xTitle, t.axisTitle, false, 'spec.x.label', spec.x.label.trim() ? 'The x-axis title' : "The automatic x-axis title (from the first layer's result)", 'write a shorter one or choose a larger size');
+  if (plan.yTitle) oversize.check(plan.yTitle, t.axisTitle, true, 'spec.y.label', spec.y.label.trim() ? 'The y-axis title' : "The automatic y-axis title (from the first layer's result)", 'write a shorter one or choose a larger size');
+  spec.annotations.forEach((a, i) => oversize.check(a.text, t.annotation, false, `spec.annotations.${i}.text`, `Annotation ${i + 1}`, 'shorten it or choose a larger size'));
+  plan.info.forEach((line) => oversize.check(line.label, t.annotation, false, line.role === 'energy' ? 'spec.energyLabel' : 'spec.clLabel', line.role === 'energy' ? 'The energy label' : 'The confidence-level label', 'turn it off or choose a larger size'));
+  plan.legend.forEach((e) => {
+    const fix = e.field.endsWith('.show.theory') ? "hide this layer's theory curve or choose a larger size" : e.field.endsWith('.label') ? 'give the layer a shorter label or choose a larger size' : 'turn it off or choose a larger size';
+    oversize.check(e.label, t.legend, false, e.field, 'The legend entry', fix);
+  });
+
+  return {
+    widthPt: W,
+    heightPt: H,
+    background: theme.colors.background,
+    plot,
+    items,
+    legendCorner: legend && placed.legend ? placed.legend : 'none',
+    notes: [...plan.notes],
+    oversizeLabels: oversize.found,
+  };
+}
+
+/**
+ * Left/right (or top/bottom) margins that leave the plot at least a quarter of the page, however
+ * large the labels are: beyond three quarters of the page the two shrink in proportion.
+ */
+function fitMargins(a: number, b: number, page: number): [number, number] {
+  const room = 0.75 * page;
+  return a + b <= room ? [a, b] : [(a * room) / (a + b), (b * room) / (a + b)];
+}
+
+const pt = (v: number) => (v >= 100 ? String(Math.round(v)) : v.toFixed(1));
+const quote = (label: string) => `“${label.length > 40 ? `${label.slice(0, 39)}…` : label}”`;
+
+/**
+ * Finds labels whose typeset box is larger than any text could make it: thicker than the page
+ * (taller than it, or for the upright y-axis title wider than it), or longer than the page and
+ * longer than one em per character of its source. Words never come near either bound (a glyph is
+ * at most about an em wide); TeX boxes can (\rule, \hspace, \kern, tall arrays). Labels that are
+ * merely too long for the page are only bounded in the layout (the composer warns that they stick
+ * out, see `labelsOffPage`). Each field is reported once.
+ */
+function oversizeCheck(W: number, H: number, measure: (label: string, size: number) => TextMetrics) {
+  const found: OversizeLabel[] = [];
+  return {
+    found,
+    check(label: string, size: number, upright: boolean, field: string, what: string, fix: string) {
+      if (!label || found.some((o) => o.field === field)) return;
+      const r = measure(label, size);
+      const thick = r.ascent + r.descent;
+      const along = upright ? H : W;
+      const across = upright ? W : H;
+      const longest = Math.max(along, size * [...label].length);
+      const page = `the ${pt(W)} × ${pt(H)} pt page`;
+      let why: string | null = null;
+      if (thick > across + 0.5) why = upright ? `${pt(thick)} pt wide when typeset (drawn upright), wider than ${page}` : `${pt(thick)} pt tall when typeset, taller than ${page}`;
+      else if (r.width > longest + 0.5) why = `${pt(r.width)} pt long when typeset, longer than ${page} and than one em for each of its ${[...label].length} characters`;
+      if (why) found.push({ field, label, message: `${what} ${quote(label)} is ${why}: ${fix}` });
+    },
+  };
 }
 
 /** Markers where a layer's observed (filled) and expected (open) limits cross its theory curve. */

@@ -22,6 +22,7 @@ const scene: Scene = {
   background: '#ffffff',
   plot: { x: 40, y: 10, width: 190, height: 140 },
   legendCorner: 'none',
+  oversizeLabels: [],
   notes: [],
   items: [
     { kind: 'path', d: 'M40 150L230 10', fill: null, stroke: '#15357f', strokeWidth: 1, dash: [3, 2], clip: true, role: 'expected' },

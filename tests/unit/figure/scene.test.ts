@@ -340,3 +340,57 @@ describe('labels off the page', () => {
     expect(off.some((l) => l.startsWith(long))).toBe(true);
   });
 });
+
+describe('labels larger than the page', () => {
+  // What TeX can typeset: a box of any size (\rule{1em}{100em} is 100 em tall, \hspace{1000000em} a million wide).
+  const TALL = '$\\rule{1em}{100em}$';
+  const WIDE = '$\\hspace{1000000em}x$';
+  const hostile: Measure = (label, size, font) =>
+    label.includes(TALL) ? { width: size, ascent: 100 * size, descent: 0.2 * size } : label.includes(WIDE) ? { width: 1e6 * size, ascent: 0.7 * size, descent: 0.2 * size } : stubMeasure(label, size, font);
+  const buildHostile = (s: FigureSpec, layers: FigureLayerData[] = [dijet, dilepton]) => buildScene(s, layers, resolveFigureTheme(s.theme), hostile);
+  const onPage = (scene: Scene) => {
+    const { plot, widthPt: W, heightPt: H } = scene;
+    expect(plot.width).toBeGreaterThanOrEqual(0.25 * W - 1e-9);
+    expect(plot.height).toBeGreaterThanOrEqual(0.25 * H - 1e-9);
+    expect(plot.x).toBeGreaterThanOrEqual(0);
+    expect(plot.y).toBeGreaterThanOrEqual(0);
+    expect(plot.x + plot.width).toBeLessThanOrEqual(W);
+    expect(plot.y + plot.height).toBeLessThanOrEqual(H);
+  };
+  const cases: [string, Partial<FigureSpec>, string][] = [
+    ['a 100 em tall y-axis title', { y: { scale: 'log', min: null, max: null, label: TALL } }, 'spec.y.label'],
+    ['a million em wide y-axis title', { y: { scale: 'log', min: null, max: null, label: WIDE } }, 'spec.y.label'],
+    ['a 100 em tall x-axis title', { x: { scale: 'linear', min: null, max: null, label: TALL } }, 'spec.x.label'],
+    ['a million em wide x-axis title', { x: { scale: 'linear', min: null, max: null, label: WIDE } }, 'spec.x.label'],
+    ['a tall annotation', { annotations: [{ text: 'fine', x: 0.1, y: 0.9 }, { text: TALL, x: 0.5, y: 0.5 }] }, 'spec.annotations.1.text'],
+    ['a wide layer label in the legend', { layers: [{ resultId: ID[0], version: 3, label: WIDE, show: { observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false }, hue: null }] }, 'spec.layers.0.label'],
+  ];
+  test.each(cases)('%s: the plot stays on the page and the label is named by its field', (_name, over, field) => {
+    for (const theme of FIGURE_THEMES) {
+      const scene = buildHostile(spec({ ...over, theme }));
+      onPage(scene);
+      expect(scene.oversizeLabels.map((o) => o.field)).toEqual([field]);
+      expect(scene.oversizeLabels[0]!.message).toMatch(/ pt (tall|long|wide) when typeset.*(taller|longer|wider) than the [\d.]+ × [\d.]+ pt page/);
+    }
+  });
+  test('ordinary figures have none, not even slide type squeezed onto a journal column (it only sticks out)', () => {
+    for (const theme of FIGURE_THEMES) expect(buildHostile(spec({ theme }), [dijet, dilepton]).oversizeLabels).toEqual([]);
+    const long = 'A very long legend entry for a channel with many words in it, longer than the page';
+    const cramped = buildHostile(spec({ theme: 'slides', size: { preset: 'one-column' }, layers: [{ resultId: ID[0], version: 3, label: long, show: { observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false }, hue: null }] }), [dijet]);
+    expect(cramped.oversizeLabels).toEqual([]);
+    expect(labelsOffPage(cramped, hostile).some((l) => l.startsWith(long))).toBe(true);
+  });
+  test('thickness is checked across the reading direction: the upright y-axis title may be as thick as the page is wide', () => {
+    const { heightPt, widthPt } = sizePt(spec());
+    expect(widthPt).toBeGreaterThan(heightPt);
+    // Thicker than the page is tall, thinner than it is wide.
+    const THICK = 'thick';
+    const thick = (h: number): Measure => (label, size, font) => (label === THICK ? { width: 20, ascent: h, descent: 0 } : stubMeasure(label, size, font));
+    const between = (heightPt + widthPt) / 2;
+    const s = (axis: 'x' | 'y') => spec({ [axis]: { scale: axis === 'x' ? 'linear' : 'log', min: null, max: null, label: THICK } });
+    const fields = (axis: 'x' | 'y', h: number) => buildScene(s(axis), [dijet], resolveFigureTheme('publication'), thick(h)).oversizeLabels.map((o) => o.field);
+    expect(fields('x', between)).toEqual(['spec.x.label']);
+    expect(fields('y', between)).toEqual([]);
+    expect(fields('y', widthPt + 10)).toEqual(['spec.y.label']);
+  });
+});
