@@ -67,8 +67,9 @@ async function main() {
       TEST_TEMPLATE_DB: TEMPLATE_DB,
       ...(chromiumProblem ? { CHROMIUM_PROBLEM: chromiumProblem } : {}),
     };
-    const a = runJest(['--selectProjects', 'unit', 'components', 'api', ...jestArgs], path.join(ROOT, 'tmp/jest-main.json'), env);
-    const b = runJest(['--selectProjects', 'e2e', '--runInBand', ...jestArgs], path.join(ROOT, 'tmp/jest-e2e.json'), env);
+    // Path filters first: after --selectProjects they would be read as project names.
+    const a = runJest([...jestArgs, '--passWithNoTests', '--selectProjects', 'unit', 'components', 'api'], path.join(ROOT, 'tmp/jest-main.json'), env);
+    const b = runJest([...jestArgs, '--passWithNoTests', '--runInBand', '--selectProjects', 'e2e'], path.join(ROOT, 'tmp/jest-e2e.json'), env);
     total.passed = a.passed + b.passed;
     total.failed = a.failed + b.failed;
   } catch (err) {

@@ -17,8 +17,8 @@ import { lockGroupStorage } from '../../db/queries/billing';
 import { addStorage, getResultInGroup } from '../../db/queries/results';
 import type { Ctx } from '../context';
 import type { Executor } from '../db';
-import { svgToPdfOffThread } from '../figures/pdf-pool';
-import { pngProblem, reuseGlyphs, svgToPngAsync } from '../figures/render';
+import { RenderFailed } from '../figures/render-pool';
+import { pngProblem, reuseGlyphs } from '../figures/render';
 import { buildFigure, captionOf, csvOf, oversizeLabelsOf } from '../figures/scene';
 import { labelPlainText } from '../figures/typeset';
 import { AppError, notFound, type ErrorDetail } from '../lib/errors';
@@ -561,8 +561,16 @@ async function renderPrepared(ctx: Ctx, p: Prepared, format: RenderFormat, dpi: 
   if (scene.oversizeLabels.length) throw oversizeError(422, scene.oversizeLabels);
   const svg = reuseGlyphs(built.svg);
   if (format === 'svg') return { body: Buffer.from(svg, 'utf8'), notes: scene.notes };
-  if (format === 'png') return { body: await svgToPngAsync(svg, scene.widthPt, dpi), notes: scene.notes };
-  return { body: await svgToPdfOffThread(svg, scene, glyphs, { title: p.spec.title, subject: scene.notes.join(' '), created: p.createdAt }), notes: scene.notes };
+  // PNG and PDF are drawn in a renderer process: a native crash there ends that process, not the
+  // server, and this request gets a 500 naming the render (nothing is stored for it).
+  try {
+    const body = format === 'png' ? await ctx.renderer.png(svg, scene.widthPt, dpi) : await ctx.renderer.pdf(svg, scene, glyphs, { title: p.spec.title, subject: scene.notes.join(' '), created: p.createdAt });
+    return { body, notes: scene.notes };
+  } catch (e) {
+    if (!(e instanceof RenderFailed)) throw e;
+    const what = `The ${format.toUpperCase()} render of figure “${clip(p.spec.title, 80)}” (version ${p.version}${format === 'png' ? `, ${dpi} dpi` : ''})`;
+    throw new AppError(500, 'render_failed', `${what} failed: ${e.message}. The figure itself is unchanged; other formats and sizes may still work.`);
+  }
 }
 
 /**

@@ -75,3 +75,32 @@ describe('labels larger than the page', () => {
     expect((await request(t.app).get(`/api/public/figures/${ok.id}/render.png?dpi=72`)).status).toBe(200);
   });
 });
+
+describe('a renderer that dies mid-render', () => {
+  test('the request gets a 500 naming the render; the figure is intact and the next render works', async () => {
+    const fig = await makeFigure(crew.editor, groupId, figureSpec(layers(), { title: 'Slide for the crash test' }), true);
+    const before = (await crew.viewer.agent.get(`/api/groups/${groupId}/figures/${fig.id}`)).body as FigureDetail;
+    // A large PNG keeps its renderer busy long enough to be caught at it.
+    const url = `/api/figures/${fig.id}/render.png?size=slide&dpi=600`;
+    const answer = crew.viewer.agent.get(url).then((r) => r);
+    let busy: number[] = [];
+    for (let i = 0; i < 2000 && busy.length === 0; i++) {
+      await new Promise((r) => setTimeout(r, 10));
+      busy = t.ctx.renderer.busyPids();
+    }
+    expect(busy).toHaveLength(1);
+    // What a native abort in resvg does to the process it runs in.
+    process.kill(busy[0]!, 'SIGABRT');
+    const res = await answer;
+    expect(res.status).toBe(500);
+    expect(res.body.error.code).toBe('render_failed');
+    expect(res.body.error.message).toMatch(/^The PNG render of figure “Slide for the crash test” \(version 1, 600 dpi\) failed: the renderer process stopped \(signal SIGABRT\)\. The figure itself is unchanged/);
+    // Nothing was stored for it, the figure reads as before, the server answers, and a retry draws it.
+    expect((await request(t.app).get('/api/health')).status).toBe(200);
+    expect((await crew.viewer.agent.get(`/api/groups/${groupId}/figures/${fig.id}`)).body).toEqual(before);
+    const retry = await crew.viewer.agent.get(url).buffer(true);
+    expect(retry.status).toBe(200);
+    expect(retry.headers['content-type']).toBe('image/png');
+    expect(t.ctx.renderer.pids()).not.toContain(busy[0]);
+  });
+});
