@@ -143,8 +143,21 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   // Every drawn curve's points in plot coordinates, for the legend's corner search.
   const samples: Pt[] = [];
   const sampleStep = Math.max(1, Math.min(plot.width, plot.height) / 60);
+  // Only points that a legend or info box could cover count: boxes sit in the plot's corners,
+  // and with every label capped to the page side even a two-column legend stays within three
+  // page sides of the plot, so points beyond that are skipped (with a fixed axis range far from
+  // the data they would be millions of useless points: seconds of work).
+  const reach = { x0: plot.x - 3 * side, x1: plotRight + 3 * side, y0: plot.y - 3 * side, y1: plotBottom + 3 * side };
+  const within = (p: Pt) => p[0] >= reach.x0 && p[0] <= reach.x1 && p[1] >= reach.y0 && p[1] <= reach.y1;
   const sample = (pts: Pt[]) => {
-    for (const p of densify(pts, sampleStep)) if (Number.isFinite(p[0]) && Number.isFinite(p[1])) samples.push(p);
+    for (let i = 0; i < pts.length; i++) {
+      const p = pts[i]!;
+      const q = pts[i - 1];
+      // A segment wholly beyond one side of the reach cannot pass through it.
+      const beyond = q && ((p[0] < reach.x0 && q[0] < reach.x0) || (p[0] > reach.x1 && q[0] > reach.x1) || (p[1] < reach.y0 && q[1] < reach.y0) || (p[1] > reach.y1 && q[1] > reach.y1));
+      const run = q && !beyond ? densify([q, p], sampleStep).slice(1) : [p];
+      for (const d of run) if (Number.isFinite(d[0]) && Number.isFinite(d[1]) && within(d)) samples.push(d);
+    }
   };
 
   const linePath = (xs: readonly number[], ys: readonly number[] | undefined): string | null => {
@@ -168,8 +181,14 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     // A band is data too: sample across it, not only along its edges.
     for (let i = 1; i < good.length; i++) {
       const [a, b] = [good[i - 1]!, good[i]!];
-      const steps = Math.max(1, Math.ceil(Math.abs(X(b[0]) - X(a[0])) / sampleStep));
-      for (let k = 0; k < steps; k++) {
+      const [xa, xb] = [X(a[0]), X(b[0])];
+      const steps = Math.max(1, Math.ceil(Math.abs(xb - xa) / sampleStep));
+      // Only the steps whose x lies within the reach (see `sample`).
+      const fa = xb === xa ? 0 : (reach.x0 - xa) / (xb - xa);
+      const fb = xb === xa ? 1 : (reach.x1 - xa) / (xb - xa);
+      const kFrom = Math.max(0, Math.floor(Math.min(fa, fb) * steps));
+      const kTo = Math.min(steps, Math.ceil(Math.max(fa, fb) * steps));
+      for (let k = kFrom; k < kTo; k++) {
         const f = k / steps;
         const x = X(a[0]) + f * (X(b[0]) - X(a[0]));
         sample([[x, Y(a[1]) + f * (Y(b[1]) - Y(a[1]))], [x, Y(a[2]) + f * (Y(b[2]) - Y(a[2]))]]);
@@ -306,11 +325,75 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     heightPt: H,
     background: theme.colors.background,
     plot,
-    items,
+    // A clipped shape that lies wholly outside the plot draws nothing, and some renderers fail on
+    // it (resvg 2.6 aborts on a clipped element entirely off its canvas: crossing markers or curve
+    // pieces far outside a fixed axis range were such shapes). They are left out.
+    items: items.filter((p) => p.kind !== 'path' || !p.clip || touches(pathBounds(p.d), plot, p.strokeWidth + theme.markerRadius)),
     legendCorner: legend && placed.legend ? placed.legend : 'none',
     notes: [...plan.notes],
     oversizeLabels: oversize.found,
   };
+}
+
+/**
+ * The bounding box of path data as the builder writes it (absolute M, L, H, V, A and Z, from
+ * d3-shape or our own helpers; an arc's box is widened by its radii), or null when it has no
+ * finite point (nothing would be drawn).
+ */
+export function pathBounds(d: string): Rect | null {
+  // NaN and Infinity (a number that overflowed on its way to a coordinate) count as no point.
+  const tokens = d.match(/[-+]?(?:NaN|Infinity)|[A-Za-z]|[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?/g) ?? [];
+  let x0 = Infinity;
+  let y0 = Infinity;
+  let x1 = -Infinity;
+  let y1 = -Infinity;
+  let cmd = 'M';
+  let x = 0;
+  let y = 0;
+  const add = (px: number, py: number, pad = 0) => {
+    if (!Number.isFinite(px) || !Number.isFinite(py)) return;
+    x0 = Math.min(x0, px - pad);
+    y0 = Math.min(y0, py - pad);
+    x1 = Math.max(x1, px + pad);
+    y1 = Math.max(y1, py + pad);
+  };
+  for (let i = 0; i < tokens.length; ) {
+    const t = tokens[i]!;
+    if (/[A-Za-z]/.test(t)) {
+      cmd = t === 'z' ? 'Z' : t;
+      i++;
+      if (cmd === 'Z') continue;
+    }
+    const num = (k: number) => Number(tokens[i + k]);
+    if (cmd === 'M' || cmd === 'L') {
+      [x, y] = [num(0), num(1)];
+      add(x, y);
+      i += 2;
+    } else if (cmd === 'H') {
+      x = num(0);
+      add(x, y);
+      i += 1;
+    } else if (cmd === 'V') {
+      y = num(0);
+      add(x, y);
+      i += 1;
+    } else if (cmd === 'A') {
+      const r = Math.max(Math.abs(num(0)), Math.abs(num(1)));
+      add(x, y, r);
+      [x, y] = [num(5), num(6)];
+      add(x, y, r);
+      i += 7;
+    } else {
+      // Anything else (relative commands, curves) is not written by the builder: keep the shape,
+      // never drop what may show.
+      return { x: -Number.MAX_VALUE, y: -Number.MAX_VALUE, width: Infinity, height: Infinity };
+    }
+  }
+  return x0 <= x1 ? { x: x0, y: y0, width: x1 - x0, height: y1 - y0 } : null;
+}
+
+function touches(b: Rect | null, r: Rect, pad: number): boolean {
+  return b !== null && b.x <= r.x + r.width + pad && b.x + b.width >= r.x - pad && b.y <= r.y + r.height + pad && b.y + b.height >= r.y - pad;
 }
 
 /**

@@ -40,6 +40,14 @@ test('the input really aborts a process that draws it in-process (why the render
   expect(r.stderr).toMatch(/panicked/);
 });
 
+test('a figure whose curves and markers lie far outside a fixed axis range no longer aborts resvg (found by the fuzz test)', () => {
+  const far = buildFigure(spec({ theme: 'outreach', size: { preset: 'slide' }, x: { scale: 'linear', min: 1e300, max: null, label: 'x' } }), [dijet, dilepton], null);
+  const root = path.resolve(__dirname, '../..');
+  const draw = `let s='';process.stdin.on('data',d=>s+=d).on('end',()=>{new (require('@resvg/resvg-js').Resvg)(s).render();console.log('drawn')})`;
+  const r = spawnSync(process.execPath, ['-e', draw], { cwd: root, input: reuseGlyphs(far.svg), encoding: 'utf8' });
+  expect({ signal: r.signal, status: r.status, out: r.stdout.trim() }).toEqual({ signal: null, status: 0, out: 'drawn' });
+});
+
 test('PNG and PDF from the pool are the very bytes drawn in-process', async () => {
   const [png, pdf] = await Promise.all([pool.png(svg, built.scene.widthPt, 150), pool.pdf(svg, built.scene, built.glyphs, meta)]);
   expect(png.equals(svgToPng(svg, built.scene.widthPt, 150))).toBe(true);

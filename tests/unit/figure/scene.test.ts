@@ -2,6 +2,7 @@ import { buildScene, collectLabels, labelKey, labelsOffPage, resolveFigureTheme,
 import { FIGURE_THEMES, type FigureSpec } from '@/shared/schemas/figures';
 import { exclusionRanges } from '@/shared/stats/exclusion';
 import { placeBoxes } from '@/shared/figure/legend';
+import { pathBounds } from '@/shared/figure/scene';
 import { rangeForCorner, roughWidth } from '@/shared/figure/room';
 import { dijet, dilepton, hiddenLayer, ID, meta, spec, stubMeasure, theory } from './fixtures';
 import { allNumbers, inside, legendBox, pathPoints, paths, texts } from './helpers';
@@ -392,5 +393,45 @@ describe('labels larger than the page', () => {
     expect(fields('x', between)).toEqual(['spec.x.label']);
     expect(fields('y', between)).toEqual([]);
     expect(fields('y', widthPt + 10)).toEqual(['spec.y.label']);
+  });
+});
+
+describe('clipped shapes wholly outside the plot are left out', () => {
+  test('crossing markers and curves far outside a fixed x range are not drawn; those inside are', () => {
+    // x from 1e300: every data point lies far to the left of the plot.
+    const far = build(spec({ x: { scale: 'linear', min: 1e300, max: null, label: '' }, layers: [{ resultId: ID[0], version: 3, show: { observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: true }, hue: null }] }), [dijet]);
+    expect(paths(far).filter((p) => p.clip && ['crossing', 'observed', 'expected', 'band1', 'band2', 'theory', 'theory-band', 'excluded'].includes(p.role))).toEqual([]);
+    const near = build(spec(), [dijet, dilepton]);
+    for (const role of ['crossing', 'observed', 'expected', 'band1', 'band2', 'theory']) expect(paths(near, role).length).toBeGreaterThan(0);
+    // Every clipped shape left touches the plot.
+    for (const p of paths(near).filter((q) => q.clip)) {
+      const b = pathBounds(p.d)!;
+      expect(b.x <= near.plot.x + near.plot.width + 10 && b.x + b.width >= near.plot.x - 10).toBe(true);
+    }
+  });
+  test('path bounds: lines, arcs, rectangles; nothing finite gives null; unknown commands keep the shape', () => {
+    expect(pathBounds('M1,2L3,-4H10V7Z')).toEqual({ x: 1, y: -4, width: 9, height: 11 });
+    expect(pathBounds('M10,5A2,2 0 1,0 14,5A2,2 0 1,0 10,5Z')).toEqual({ x: 8, y: 3, width: 8, height: 4 });
+    expect(pathBounds('M1e+300,2L-1e+300,3')).toEqual({ x: -1e300, y: 2, width: 2e300, height: 1 });
+    expect(pathBounds('MNaN,NaNLNaN,NaN')).toBeNull();
+    expect(pathBounds('M0,0c1,1 2,2 3,3')!.width).toBe(Infinity);
+  });
+});
+
+describe('work is bounded by the page, not by the axis range', () => {
+  test('a fixed x range far narrower than the data samples only what a legend could cover', () => {
+    const legendModule = jest.requireActual<typeof import('@/shared/figure/legend')>('@/shared/figure/legend');
+    const spy = jest.spyOn(legendModule, 'densify');
+    try {
+      // The data run from 1 to 5; the axis shows −0.001 … 0.001: the bands span millions of points' widths.
+      const narrow = spec({ x: { scale: 'linear', min: -0.001, max: 0.001, label: '' } });
+      build(narrow, [dijet, dilepton]);
+      const produced = spy.mock.results.reduce((n, r) => n + (r.value as unknown[]).length, 0);
+      // (4.8 million before the bound, and two minutes of work on a busy machine.) Ordinary
+      // figures are sampled as before: the golden figures would show any change.
+      expect(produced).toBeLessThan(100_000);
+    } finally {
+      spy.mockRestore();
+    }
   });
 });
