@@ -47,6 +47,10 @@ const schema = z
     JOB_RETRY_SECONDS: z.coerce.number().positive().default(5),
     /** Largest scan accepted, in points × bins × pseudo-experiments (1 per point when asymptotic). */
     SCAN_COST_LIMIT: z.coerce.number().positive().default(200_000_000),
+    /** Renderer processes (PNG and PDF are drawn outside the server process, see server/figures/render-pool.ts). */
+    RENDER_PROCESSES: z.coerce.number().int().min(1).max(16).default(2),
+    /** A PNG or PDF render taking longer (waiting included) is given up with 500 and its renderer process killed. */
+    RENDER_TIMEOUT_SECONDS: z.coerce.number().positive().default(60),
     /** Largest result upload accepted (file or JSON body), in bytes; larger ones get 413. */
     UPLOAD_LIMIT_BYTES: z.coerce.number().int().positive().default(DEFAULT_UPLOAD_LIMIT_BYTES),
     /** The payment provider's secret key; outside production a fixed test key for the local fake. */

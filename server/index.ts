@@ -32,6 +32,8 @@ async function main() {
     });
     console.log(`[server] local payment fake at ${stripeFake.url} (test cards: see README)`);
   }
+  // The PNG/PDF renderer processes load their libraries while the server starts listening.
+  ctx.renderer.warm();
   const app = createApp(ctx);
   const server = app.listen(env.PORT, env.HOST, () => {
     console.log(`[server] listening on http://${env.HOST}:${env.PORT} (${env.NODE_ENV})`);

@@ -51,6 +51,9 @@ export function FigurePreview({ spec, style, data }: { spec: FigureSpec; style: 
       {scene?.notes.map((n) => (
         <Banner key={n} tone="warning" message={n} />
       ))}
+      {scene?.oversizeLabels.map((o) => (
+        <Banner key={o.field} tone="error" message={`${o.message} This figure cannot be saved or drawn until then.`} />
+      ))}
       {offPage.length > 0 ? (
         <Banner
           tone="warning"

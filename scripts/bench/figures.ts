@@ -19,8 +19,8 @@ import { createApp } from '../../server/app';
 import { closeContext, createContext } from '../../server/context';
 import { runMigrations } from '../../db/client';
 import { loadEnv } from '../../server/env';
-import { stopPdfThread, svgToPdfOffThread } from '../../server/figures/pdf-pool';
-import { reuseGlyphs, svgToPdf, svgToPngAsync } from '../../server/figures/render';
+import { createRenderPool } from '../../server/figures/render-pool';
+import { reuseGlyphs, svgToPdf } from '../../server/figures/render';
 import { buildFigure } from '../../server/figures/scene';
 import { buildScene, resolveFigureTheme, sceneToSvg } from '../../shared/figure';
 import type { FigureLayerData, Glyphs } from '../../shared/figure/types';
@@ -197,9 +197,12 @@ async function main() {
   ]);
   const finalSvg = svg();
   rows.push(['PDF (svg2pdf + jsPDF, fonts embedded)', await timeMs(() => svgToPdf(finalSvg, built.scene, built.glyphs, { title: spec.title, created: new Date(0) }), 15), 300]);
-  rows.push(['  the same on the server\'s PDF thread (as the routes make it)', await timeMs(() => svgToPdfOffThread(finalSvg, built.scene, built.glyphs, { title: spec.title, created: new Date(0) }), 15), 300]);
-  await stopPdfThread();
-  rows.push(['PNG at 300 dpi (resvg, on the thread pool as the server draws it)', await timeMs(() => svgToPngAsync(finalSvg, built.scene.widthPt, 300), 15), 500]);
+  // As the routes make them: in a renderer process (the first call starts it, outside the timing).
+  const pool = createRenderPool({ size: 1, timeoutMs: 120_000 });
+  await pool.png(finalSvg, built.scene.widthPt, 72);
+  rows.push(['  the same in a renderer process (as the routes make it)', await timeMs(() => pool.pdf(finalSvg, built.scene, built.glyphs, { title: spec.title, created: new Date(0) }), 15), 300]);
+  rows.push(['PNG at 300 dpi (resvg, in a renderer process as the routes make it)', await timeMs(() => pool.png(finalSvg, built.scene.widthPt, 300), 15), 500]);
+  await pool.stop();
   if (!process.argv.includes('--no-http')) {
     const cached = await httpCached();
     rows.push([`cached render served, public route: in the server (PNG 300 dpi, ${Math.round(cached.bytes / 1024)} KB)`, cached.publicRoute.server, 5]);

@@ -1,4 +1,4 @@
-import { renderAsync, Resvg } from '@resvg/resvg-js';
+import { Resvg } from '@resvg/resvg-js';
 import { createHash } from 'node:crypto';
 import { deflateSync } from 'node:zlib';
 import { JSDOM } from 'jsdom';
@@ -86,16 +86,12 @@ const pngOptions = (widthPt: number, dpi: number) => ({
   font: { loadSystemFonts: false },
 });
 
+/**
+ * resvg is native code, and some inputs make it panic, which aborts the whole process: the server
+ * calls this only in a renderer process (server/figures/render-pool.ts), never in its own.
+ */
 export function svgToPng(svg: string, widthPt: number, dpi: number): Buffer {
   return Buffer.from(new Resvg(svg, pngOptions(widthPt, dpi)).render().asPng());
-}
-
-/**
- * The same PNG drawn on libuv's thread pool (resvg's `renderAsync`), so the server keeps answering
- * other requests meanwhile (a 600 dpi slide takes over a second).
- */
-export async function svgToPngAsync(svg: string, widthPt: number, dpi: number): Promise<Buffer> {
-  return Buffer.from((await renderAsync(svg, pngOptions(widthPt, dpi))).asPng());
 }
 
 // ---------------------------------------------------------------------------------------------

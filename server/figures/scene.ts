@@ -1,4 +1,4 @@
-import { buildScene, captionDraft, figureCsv, labelKey, resolveFigureTheme, sceneToSvg, type FigureLayerData, type Glyphs, type LabelRequest, type Scene } from '../../shared/figure';
+import { buildScene, captionDraft, figureCsv, labelKey, resolveFigureTheme, sceneToSvg, type FigureLayerData, type Glyphs, type LabelRequest, type OversizeLabel, type Scene } from '../../shared/figure';
 import type { FigureSpec, HouseStyle } from '../../shared/schemas/figures';
 import { measureFromGlyphs, typesetLabels } from './typeset';
 
@@ -16,6 +16,11 @@ export function buildFigure(spec: FigureSpec, data: FigureLayerData[], style: Ho
   const unmeasured: LabelRequest[] = scene.items.flatMap((i) => (i.kind === 'text' && !glyphs.has(labelKey(i)) ? [{ label: i.label, size: i.size, font: i.font }] : []));
   for (const [k, g] of typesetLabels(unmeasured)) glyphs.set(k, g);
   return { scene, glyphs, svg: sceneToSvg(scene, glyphs, { title: spec.title }) };
+}
+
+/** The labels of a figure whose typeset box no text could have (`Scene.oversizeLabels`), without writing the SVG. */
+export function oversizeLabelsOf(spec: FigureSpec, data: FigureLayerData[], style: HouseStyle | null): OversizeLabel[] {
+  return buildScene(spec, data, resolveFigureTheme(spec.theme, style), measureFromGlyphs(new Map())).oversizeLabels;
 }
 
 export const csvOf = (spec: FigureSpec, data: FigureLayerData[]) => figureCsv(spec, data);

@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import type { FigureLayerData } from '../../shared/figure/types';
+import type { FigureLayerData, OversizeLabel } from '../../shared/figure/types';
 import type {
   FigureDetail,
   FigureLayerInfo,
@@ -17,9 +17,9 @@ import { lockGroupStorage } from '../../db/queries/billing';
 import { addStorage, getResultInGroup } from '../../db/queries/results';
 import type { Ctx } from '../context';
 import type { Executor } from '../../db/client';
-import { svgToPdfOffThread } from '../figures/pdf-pool';
-import { pngProblem, reuseGlyphs, svgToPngAsync } from '../figures/render';
-import { buildFigure, captionOf, csvOf } from '../figures/scene';
+import { RenderFailed } from '../figures/render-pool';
+import { pngProblem, reuseGlyphs } from '../figures/render';
+import { buildFigure, captionOf, csvOf, oversizeLabelsOf } from '../figures/scene';
 import { labelPlainText } from '../figures/typeset';
 import { AppError, notFound, type ErrorDetail } from '../lib/errors';
 import { assertStorageAvailable, renderCacheLimits } from './plans';
@@ -225,21 +225,46 @@ export async function listPublic(ctx: Ctx, query: Required<Pick<PublicFigureList
  * hue it would get when saved.
  */
 export async function layerData(ctx: Ctx, groupId: string, layers: { resultId: string; version: number; hue: number | null }[]): Promise<{ layers: FigureLayerData[] }> {
-  const [rows, hues] = await Promise.all([q.getLayerVersions(ctx.db, layers), q.listHues(ctx.db, groupId)]);
+  return { layers: await groupLayerData(ctx.db, groupId, layers) };
+}
+
+async function groupLayerData(db: Executor, groupId: string, layers: { resultId: string; version: number; hue: number | null }[]): Promise<FigureLayerData[]> {
+  // One after the other: `db` may be a transaction's single connection.
+  const rows = await q.getLayerVersions(db, layers);
+  const hues = await q.listHues(db, groupId);
   const byPin = new Map(rows.map((r) => [pinKey(r.resultId, r.version), r]));
   const visible = layers.map((l) => {
     const row = byPin.get(pinKey(l.resultId, l.version));
     return layerVisible(row, groupId, 'group') ? row : null;
   });
   const allHues = withPreviewHues(hues, visible.flatMap((r) => (r ? [r.resultId] : [])));
-  return {
-    layers: layers.map((l, i): FigureLayerData => {
-      const row = visible[i];
-      if (!row) return { available: false, resultId: l.resultId, version: l.version };
-      const hue = l.hue ?? allHues.get(l.resultId) ?? i % HUE_COUNT;
-      return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue };
-    }),
-  };
+  return layers.map((l, i): FigureLayerData => {
+    const row = visible[i];
+    if (!row) return { available: false, resultId: l.resultId, version: l.version };
+    const hue = l.hue ?? allHues.get(l.resultId) ?? i % HUE_COUNT;
+    return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue };
+  });
+}
+
+/** The error for labels whose typeset box no text could have (a saved figure's field, or a stored one's at render time). */
+function oversizeError(status: 400 | 422, found: OversizeLabel[]): AppError {
+  const details = found.map((o) => ({ field: o.field, message: o.message }));
+  const first = found[0]!;
+  return status === 400
+    ? new AppError(400, 'validation_failed', `${first.field}: ${first.message}`, details)
+    : new AppError(422, 'label_too_large', `This figure cannot be drawn: ${first.message} (${first.field}). Edit the figure and save it again.`, details);
+}
+
+/**
+ * 400 naming every label of the spec (as the group will draw it: its data, house style and page)
+ * whose typeset box is larger than any text could make it; see `oversizeCheck` in the shared
+ * scene builder. Such a label would push the plot off the page, so it is refused on saving.
+ */
+async function assertLabelsFit(db: Executor, groupId: string, spec: FigureSpec) {
+  const data = await groupLayerData(db, groupId, spec.layers);
+  const style = await q.getGroupStyle(db, groupId);
+  const found = oversizeLabelsOf(spec, data, style?.style ?? null);
+  if (found.length) throw oversizeError(400, found);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -248,6 +273,7 @@ export async function layerData(ctx: Ctx, groupId: string, layers: { resultId: s
 /** A new figure with `spec` as version 1 (in the caller's transaction). */
 async function insertNewFigure(tx: Executor, groupId: string, actor: Actor, spec: FigureSpec, opts: { isPublic: boolean; derivedFrom: string | null; note: string }) {
   await assertLayersUsable(tx, groupId, spec);
+  await assertLabelsFit(tx, groupId, spec);
   const f = await q.insertFigure(tx, { groupId, title: spec.title, isPublic: opts.isPublic, derivedFrom: opts.derivedFrom, createdBy: actor.id });
   const version = await q.takeNextFigureVersion(tx, f.id, spec.title);
   await q.insertFigureVersion(tx, { figureId: f.id, version, spec, note: opts.note, createdBy: actor.id });
@@ -270,6 +296,7 @@ export async function saveFigure(ctx: Ctx, groupId: string, actor: Actor, figure
   await ctx.db.transaction(async (tx) => {
     if (!(await q.lockFigure(tx, groupId, figureId))) throw notFound('Figure');
     await assertLayersUsable(tx, groupId, input.spec);
+    await assertLabelsFit(tx, groupId, input.spec);
     const version = await q.takeNextFigureVersion(tx, figureId, input.spec.title);
     await q.insertFigureVersion(tx, { figureId, version, spec: input.spec, note: input.note, createdBy: actor.id });
     await assignHues(tx, groupId, input.spec);
@@ -529,10 +556,21 @@ function safeFileName(title: string, version: number, ext: string): string {
 async function renderPrepared(ctx: Ctx, p: Prepared, format: RenderFormat, dpi: number): Promise<{ body: Buffer; notes: string[] }> {
   const built = buildFigure(p.spec, await loadData(ctx, p), p.style);
   const { scene, glyphs } = built;
+  // Saving refuses such labels; a figure stored before that check, or drawn at another size or
+  // in a changed house style, is refused here, before any renderer sees it.
+  if (scene.oversizeLabels.length) throw oversizeError(422, scene.oversizeLabels);
   const svg = reuseGlyphs(built.svg);
   if (format === 'svg') return { body: Buffer.from(svg, 'utf8'), notes: scene.notes };
-  if (format === 'png') return { body: await svgToPngAsync(svg, scene.widthPt, dpi), notes: scene.notes };
-  return { body: await svgToPdfOffThread(svg, scene, glyphs, { title: p.spec.title, subject: scene.notes.join(' '), created: p.createdAt }), notes: scene.notes };
+  // PNG and PDF are drawn in a renderer process: a native crash there ends that process, not the
+  // server, and this request gets a 500 naming the render (nothing is stored for it).
+  try {
+    const body = format === 'png' ? await ctx.renderer.png(svg, scene.widthPt, dpi) : await ctx.renderer.pdf(svg, scene, glyphs, { title: p.spec.title, subject: scene.notes.join(' '), created: p.createdAt });
+    return { body, notes: scene.notes };
+  } catch (e) {
+    if (!(e instanceof RenderFailed)) throw e;
+    const what = `The ${format.toUpperCase()} render of figure “${clip(p.spec.title, 80)}” (version ${p.version}${format === 'png' ? `, ${dpi} dpi` : ''})`;
+    throw new AppError(500, 'render_failed', `${what} failed: ${e.message}. The figure itself is unchanged; other formats and sizes may still work.`);
+  }
 }
 
 /**

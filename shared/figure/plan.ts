@@ -36,8 +36,11 @@ export type TheoryLine = { theory: Theory; layer: number; label: string; dash: n
 export type LegendKey =
   | { kind: 'line'; color: string; width: number; dash: number[] | null }
   | { kind: 'fill'; color: string; line?: { color: string; width: number; dash: number[] | null } };
-/** One legend row. */
-export type LegendEntry = { label: string; key: LegendKey; layer?: number };
+/**
+ * One legend row. `field` names the part of the spec that decides its text (a layer's label, or
+ * what turns the row on), for the error when a label is larger than the page.
+ */
+export type LegendEntry = { label: string; key: LegendKey; layer?: number; field: string };
 
 /** A figure before layout: layers, axes and every label's text (see `planFigure`). */
 export type FigurePlan = {
@@ -217,17 +220,19 @@ function legendEntries(spec: FigureSpec, plan: Pick<FigurePlan, 'theme' | 'layer
   const out: LegendEntry[] = [];
   for (const l of plan.layers) {
     const c = l.data.curve;
-    if (l.spec.show.observed && c.observed) out.push({ label: word(w.observed, w.observedOf, l), key: { kind: 'line', color: l.color, width: theme.lines.observed, dash: null }, layer: l.index });
-    if (l.spec.show.expected && c.expected?.['0']) out.push({ label: word(w.expected, w.expectedOf, l), key: { kind: 'line', color: l.color, width: theme.lines.expected, dash: theme.dash.expected }, layer: l.index });
+    const field = `spec.layers.${l.index}.label`;
+    if (l.spec.show.observed && c.observed) out.push({ label: word(w.observed, w.observedOf, l), key: { kind: 'line', color: l.color, width: theme.lines.observed, dash: null }, layer: l.index, field });
+    if (l.spec.show.expected && c.expected?.['0']) out.push({ label: word(w.expected, w.expectedOf, l), key: { kind: 'line', color: l.color, width: theme.lines.expected, dash: theme.dash.expected }, layer: l.index, field });
     const bands = bandColors(l, theme);
-    if (l.band1 && c.expected?.['-1'] && c.expected['1']) out.push({ label: word(w.band1, w.band1Of, l), key: { kind: 'fill', color: bands.band1 }, layer: l.index });
-    if (l.band2 && c.expected?.['-2'] && c.expected['2']) out.push({ label: word(w.band2, w.band2Of, l), key: { kind: 'fill', color: bands.band2 }, layer: l.index });
+    if (l.band1 && c.expected?.['-1'] && c.expected['1']) out.push({ label: word(w.band1, w.band1Of, l), key: { kind: 'fill', color: bands.band1 }, layer: l.index, field });
+    if (l.band2 && c.expected?.['-2'] && c.expected['2']) out.push({ label: word(w.band2, w.band2Of, l), key: { kind: 'fill', color: bands.band2 }, layer: l.index, field });
   }
   for (const t of plan.theories) {
     const line = { color: theme.colors.theory, width: theme.lines.theory, dash: t.dash.length ? t.dash : null };
-    out.push({ label: t.label, key: t.band ? { kind: 'fill', color: theme.colors.theoryBand, line } : { kind: 'line', ...line }, layer: t.layer });
+    // The name comes from the result (or the theme); the figure can only leave the curve out.
+    out.push({ label: t.label, key: t.band ? { kind: 'fill', color: theme.colors.theoryBand, line } : { kind: 'line', ...line }, layer: t.layer, field: `spec.layers.${t.layer}.show.theory` });
   }
-  if (plan.shadingLayer) out.push({ label: w.excluded, key: { kind: 'fill', color: theme.colors.excluded } });
+  if (plan.shadingLayer) out.push({ label: w.excluded, key: { kind: 'fill', color: theme.colors.excluded }, field: 'spec.excludedShading' });
   return out;
 }
 

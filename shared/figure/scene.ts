@@ -11,7 +11,7 @@ import { cornerBox, densify, layoutLegend, n, overlaps, placeBoxes, rectPath, ty
 import { bandColors, noteHalves, planFigure, planLabels, type DrawnLayer, type FigurePlan } from './plan';
 import type { ResolvedTheme } from './theme';
 import { thinLabels, type AxisPlan } from './ticks';
-import type { FigureLayerData, LabelRequest, Measure, Primitive, Rect, Scene, TextMetrics } from './types';
+import type { FigureLayerData, LabelRequest, Measure, OversizeLabel, Primitive, Rect, Scene, TextMetrics } from './types';
 import { labelKey } from './types';
 
 /**
@@ -79,7 +79,7 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   const s = theme.spacing;
   const font = theme.font;
   const cache = new Map<string, TextMetrics>();
-  const m = (label: string, size: number): TextMetrics => {
+  const raw = (label: string, size: number): TextMetrics => {
     const key = labelKey({ label, size, font });
     let r = cache.get(key);
     if (!r) {
@@ -88,7 +88,15 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     }
     return r;
   };
+  // The layout sees every label's box bounded by the page: TeX can typeset a box of any size
+  // (\rule{1em}{100em}, \hspace{1000000em}), and an unbounded one would push the plot off the page.
+  const side = Math.max(W, H);
+  const m = (label: string, size: number): TextMetrics => {
+    const r = raw(label, size);
+    return { width: Math.min(r.width, side), ascent: Math.min(r.ascent, side), descent: Math.min(r.descent, side) };
+  };
   const height = (x: TextMetrics) => x.ascent + x.descent;
+  const oversize = oversizeCheck(W, H, raw);
 
   // Margins from the measured labels.
   const tickOut = theme.ticks.direction === 'out' ? theme.ticks.major : 0;
@@ -114,10 +122,12 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   // Only labels at the far ends of an axis stick out past the plot.
   const overhang = (ap: AxisPlan, ms: TextMetrics[], along: (x: TextMetrics) => number) => Math.max(0, ...ap.major.map((tk, i) => (frac(ap, tk.value) > 0.95 ? along(ms[i]!) / 2 : 0)));
 
-  const left = s.edge + (yTitle ? height(yTitle) + s.title : 0) + Math.max(0, ...yLabels.map((x) => x.width)) + s.tickLabel + tickOut;
-  const bottom = s.edge + (xTitle ? height(xTitle) + s.title : 0) + xLabelH + s.tickLabel + tickOut;
-  const top = s.edge + notesH + overhang(plan.y, yLabels, height);
-  const right = s.edge + Math.max(theme.lines.frame, overhang(plan.x, xLabels, (x) => x.width));
+  const [left, right] = fitMargins(
+    s.edge + (yTitle ? height(yTitle) + s.title : 0) + Math.max(0, ...yLabels.map((x) => x.width)) + s.tickLabel + tickOut,
+    s.edge + Math.max(theme.lines.frame, overhang(plan.x, xLabels, (x) => x.width)),
+    W,
+  );
+  const [top, bottom] = fitMargins(s.edge + notesH + overhang(plan.y, yLabels, height), s.edge + (xTitle ? height(xTitle) + s.title : 0) + xLabelH + s.tickLabel + tickOut, H);
   const plot: Rect = { x: left, y: top, width: Math.max(1, W - left - right), height: Math.max(1, H - top - bottom) };
   const plotRight = plot.x + plot.width;
   const plotBottom = plot.y + plot.height;
@@ -133,8 +143,21 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   // Every drawn curve's points in plot coordinates, for the legend's corner search.
   const samples: Pt[] = [];
   const sampleStep = Math.max(1, Math.min(plot.width, plot.height) / 60);
+  // Only points that a legend or info box could cover count: boxes sit in the plot's corners,
+  // and with every label capped to the page side even a two-column legend stays within three
+  // page sides of the plot, so points beyond that are skipped (with a fixed axis range far from
+  // the data they would be millions of useless points: seconds of work).
+  const reach = { x0: plot.x - 3 * side, x1: plotRight + 3 * side, y0: plot.y - 3 * side, y1: plotBottom + 3 * side };
+  const within = (p: Pt) => p[0] >= reach.x0 && p[0] <= reach.x1 && p[1] >= reach.y0 && p[1] <= reach.y1;
   const sample = (pts: Pt[]) => {
-    for (const p of densify(pts, sampleStep)) if (Number.isFinite(p[0]) && Number.isFinite(p[1])) samples.push(p);
+    for (let i = 0; i < pts.length; i++) {
+      const p = pts[i]!;
+      const q = pts[i - 1];
+      // A segment wholly beyond one side of the reach cannot pass through it.
+      const beyond = q && ((p[0] < reach.x0 && q[0] < reach.x0) || (p[0] > reach.x1 && q[0] > reach.x1) || (p[1] < reach.y0 && q[1] < reach.y0) || (p[1] > reach.y1 && q[1] > reach.y1));
+      const run = q && !beyond ? densify([q, p], sampleStep).slice(1) : [p];
+      for (const d of run) if (Number.isFinite(d[0]) && Number.isFinite(d[1]) && within(d)) samples.push(d);
+    }
   };
 
   const linePath = (xs: readonly number[], ys: readonly number[] | undefined): string | null => {
@@ -158,8 +181,14 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     // A band is data too: sample across it, not only along its edges.
     for (let i = 1; i < good.length; i++) {
       const [a, b] = [good[i - 1]!, good[i]!];
-      const steps = Math.max(1, Math.ceil(Math.abs(X(b[0]) - X(a[0])) / sampleStep));
-      for (let k = 0; k < steps; k++) {
+      const [xa, xb] = [X(a[0]), X(b[0])];
+      const steps = Math.max(1, Math.ceil(Math.abs(xb - xa) / sampleStep));
+      // Only the steps whose x lies within the reach (see `sample`).
+      const fa = xb === xa ? 0 : (reach.x0 - xa) / (xb - xa);
+      const fb = xb === xa ? 1 : (reach.x1 - xa) / (xb - xa);
+      const kFrom = Math.max(0, Math.floor(Math.min(fa, fb) * steps));
+      const kTo = Math.min(steps, Math.ceil(Math.max(fa, fb) * steps));
+      for (let k = kFrom; k < kTo; k++) {
         const f = k / steps;
         const x = X(a[0]) + f * (X(b[0]) - X(a[0]));
         sample([[x, Y(a[1]) + f * (Y(b[1]) - Y(a[1]))], [x, Y(a[2]) + f * (Y(b[2]) - Y(a[2]))]]);
@@ -278,7 +307,133 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     items.push(...legend.draw(clamp(box.x, legend.width, W), clamp(box.y, legend.height, H)));
   }
 
-  return { widthPt: W, heightPt: H, background: theme.colors.background, plot, items, legendCorner: legend && placed.legend ? placed.legend : 'none', notes: [...plan.notes] };
+  // Labels whose text the figure decides (its own words, or its results' words it chose to show):
+  // one whose box no text could have (see `oversizeCheck`) is refused by the server on saving and
+  // rendering.
+  // Tick labels and notes are the builder's own short words; their boxes are only bounded.
+  if (plan.xTitle) oversize.check(plan.xTitle, t.axisTitle, false, 'spec.x.label', spec.x.label.trim() ? 'The x-axis title' : "The automatic x-axis title (from the first layer's result)", 'write a shorter one or choose a larger size');
+  if (plan.yTitle) oversize.check(plan.yTitle, t.axisTitle, true, 'spec.y.label', spec.y.label.trim() ? 'The y-axis title' : "The automatic y-axis title (from the first layer's result)", 'write a shorter one or choose a larger size');
+  spec.annotations.forEach((a, i) => oversize.check(a.text, t.annotation, false, `spec.annotations.${i}.text`, `Annotation ${i + 1}`, 'shorten it or choose a larger size'));
+  plan.info.forEach((line) => oversize.check(line.label, t.annotation, false, line.role === 'energy' ? 'spec.energyLabel' : 'spec.clLabel', line.role === 'energy' ? 'The energy label' : 'The confidence-level label', 'turn it off or choose a larger size'));
+  plan.legend.forEach((e) => {
+    const fix = e.field.endsWith('.show.theory') ? "hide this layer's theory curve or choose a larger size" : e.field.endsWith('.label') ? 'give the layer a shorter label or choose a larger size' : 'turn it off or choose a larger size';
+    oversize.check(e.label, t.legend, false, e.field, 'The legend entry', fix);
+  });
+
+  return {
+    widthPt: W,
+    heightPt: H,
+    background: theme.colors.background,
+    plot,
+    // A clipped shape that lies wholly outside the plot draws nothing, and some renderers fail on
+    // it (resvg 2.6 aborts on a clipped element entirely off its canvas: crossing markers or curve
+    // pieces far outside a fixed axis range were such shapes). They are left out.
+    items: items.filter((p) => p.kind !== 'path' || !p.clip || touches(pathBounds(p.d), plot, p.strokeWidth + theme.markerRadius)),
+    legendCorner: legend && placed.legend ? placed.legend : 'none',
+    notes: [...plan.notes],
+    oversizeLabels: oversize.found,
+  };
+}
+
+/**
+ * The bounding box of path data as the builder writes it (absolute M, L, H, V, A and Z, from
+ * d3-shape or our own helpers; an arc's box is widened by its radii), or null when it has no
+ * finite point (nothing would be drawn).
+ */
+export function pathBounds(d: string): Rect | null {
+  // NaN and Infinity (a number that overflowed on its way to a coordinate) count as no point.
+  const tokens = d.match(/[-+]?(?:NaN|Infinity)|[A-Za-z]|[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?/g) ?? [];
+  let x0 = Infinity;
+  let y0 = Infinity;
+  let x1 = -Infinity;
+  let y1 = -Infinity;
+  let cmd = 'M';
+  let x = 0;
+  let y = 0;
+  const add = (px: number, py: number, pad = 0) => {
+    if (!Number.isFinite(px) || !Number.isFinite(py)) return;
+    x0 = Math.min(x0, px - pad);
+    y0 = Math.min(y0, py - pad);
+    x1 = Math.max(x1, px + pad);
+    y1 = Math.max(y1, py + pad);
+  };
+  for (let i = 0; i < tokens.length; ) {
+    const t = tokens[i]!;
+    if (/[A-Za-z]/.test(t)) {
+      cmd = t === 'z' ? 'Z' : t;
+      i++;
+      if (cmd === 'Z') continue;
+    }
+    const num = (k: number) => Number(tokens[i + k]);
+    if (cmd === 'M' || cmd === 'L') {
+      [x, y] = [num(0), num(1)];
+      add(x, y);
+      i += 2;
+    } else if (cmd === 'H') {
+      x = num(0);
+      add(x, y);
+      i += 1;
+    } else if (cmd === 'V') {
+      y = num(0);
+      add(x, y);
+      i += 1;
+    } else if (cmd === 'A') {
+      const r = Math.max(Math.abs(num(0)), Math.abs(num(1)));
+      add(x, y, r);
+      [x, y] = [num(5), num(6)];
+      add(x, y, r);
+      i += 7;
+    } else {
+      // Anything else (relative commands, curves) is not written by the builder: keep the shape,
+      // never drop what may show.
+      return { x: -Number.MAX_VALUE, y: -Number.MAX_VALUE, width: Infinity, height: Infinity };
+    }
+  }
+  return x0 <= x1 ? { x: x0, y: y0, width: x1 - x0, height: y1 - y0 } : null;
+}
+
+function touches(b: Rect | null, r: Rect, pad: number): boolean {
+  return b !== null && b.x <= r.x + r.width + pad && b.x + b.width >= r.x - pad && b.y <= r.y + r.height + pad && b.y + b.height >= r.y - pad;
+}
+
+/**
+ * Left/right (or top/bottom) margins that leave the plot at least a quarter of the page, however
+ * large the labels are: beyond three quarters of the page the two shrink in proportion.
+ */
+function fitMargins(a: number, b: number, page: number): [number, number] {
+  const room = 0.75 * page;
+  return a + b <= room ? [a, b] : [(a * room) / (a + b), (b * room) / (a + b)];
+}
+
+const pt = (v: number) => (v >= 100 ? String(Math.round(v)) : v.toFixed(1));
+const quote = (label: string) => `“${label.length > 40 ? `${label.slice(0, 39)}…` : label}”`;
+
+/**
+ * Finds labels whose typeset box is larger than any text could make it: thicker than the page
+ * (taller than it, or for the upright y-axis title wider than it), or longer than the page and
+ * longer than one em per character of its source. Words never come near either bound (a glyph is
+ * at most about an em wide); TeX boxes can (\rule, \hspace, \kern, tall arrays). Labels that are
+ * merely too long for the page are only bounded in the layout (the composer warns that they stick
+ * out, see `labelsOffPage`). Each field is reported once.
+ */
+function oversizeCheck(W: number, H: number, measure: (label: string, size: number) => TextMetrics) {
+  const found: OversizeLabel[] = [];
+  return {
+    found,
+    check(label: string, size: number, upright: boolean, field: string, what: string, fix: string) {
+      if (!label || found.some((o) => o.field === field)) return;
+      const r = measure(label, size);
+      const thick = r.ascent + r.descent;
+      const along = upright ? H : W;
+      const across = upright ? W : H;
+      const longest = Math.max(along, size * [...label].length);
+      const page = `the ${pt(W)} × ${pt(H)} pt page`;
+      let why: string | null = null;
+      if (thick > across + 0.5) why = upright ? `${pt(thick)} pt wide when typeset (drawn upright), wider than ${page}` : `${pt(thick)} pt tall when typeset, taller than ${page}`;
+      else if (r.width > longest + 0.5) why = `${pt(r.width)} pt long when typeset, longer than ${page} and than one em for each of its ${[...label].length} characters`;
+      if (why) found.push({ field, label, message: `${what} ${quote(label)} is ${why}: ${fix}` });
+    },
+  };
 }
 
 /** Markers where a layer's observed (filled) and expected (open) limits cross its theory curve. */

@@ -116,8 +116,10 @@ export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { pa
     let l1 = Math.log10(fixed.max ?? hi);
     if (!(l1 > l0)) [l0, l1] = [l0 - 0.5, l0 + 0.5];
     const span = Math.max(l1 - l0, 1);
-    const a = fixed.min ?? niceLogEnd(10 ** reachLow(l0 - opts.pad * span), false);
-    const b = fixed.max ?? niceLogEnd(10 ** reachHigh(l1 + opts.pad * span), true);
+    // Padding and the legend's room may reach beyond what a double holds (10^-400 is 0, whose
+    // log is −∞): automatic ends stay within 10^±300.
+    const a = fixed.min ?? niceLogEnd(10 ** clampExponent(reachLow(l0 - opts.pad * span)), false);
+    const b = fixed.max ?? niceLogEnd(10 ** clampExponent(reachHigh(l1 + opts.pad * span)), true);
     return b > a ? [a, b] : [a, a * 10];
   }
   if (!Number.isFinite(lo)) [lo, hi] = [0, 1];
@@ -133,8 +135,21 @@ export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { pa
   if (fixed.min === null && !(opts.fromZero && a === 0)) a = reachLow(a - opts.pad * span);
   if (fixed.max === null) b = reachHigh(b + opts.pad * span);
   const niced = scaleLinear().domain([a, b]).nice().domain() as [number, number];
-  return [fixed.min ?? niced[0], fixed.max ?? niced[1]];
+  const out: [number, number] = [fixed.min ?? niced[0], fixed.max ?? niced[1]];
+  // Data near the largest doubles overflow when padded (±∞, then NaN): such a range is drawn as
+  // the largest finite one around it.
+  if (!(Number.isFinite(out[0]) && Number.isFinite(out[1]) && out[1] > out[0])) {
+    const lo2 = Number.isFinite(out[0]) ? out[0] : -Number.MAX_VALUE / 2;
+    const hi2 = Number.isFinite(out[1]) && out[1] > lo2 ? out[1] : Number.MAX_VALUE / 2;
+    return hi2 > lo2 ? [lo2, hi2] : [0, 1];
+  }
+  return out;
 }
+
+const clampExponent = (k: number) => Math.max(-300, Math.min(300, k));
+
+/** At most this many decades carry a tick: beyond it every n-th decade does (n as small as fits). */
+export const MAX_DECADE_TICKS = 60;
 
 /** Ticks of a linear axis: d3's round steps, minor ticks subdividing each step in 4 or 5. */
 export function linearTicks(domain: [number, number], count: number): Omit<AxisPlan, 'scale' | 'domain'> {
@@ -149,7 +164,8 @@ export function linearTicks(domain: [number, number], count: number): Omit<AxisP
   const minor: number[] = [];
   const first = Math.ceil(domain[0] / minorStep - EPS);
   const last = Math.floor(domain[1] / minorStep + EPS);
-  for (let i = first; i <= last && minor.length < 500; i++) {
+  // Bounded by steps too: past 2^53 `i++` no longer changes i.
+  for (let i = first, n = 0; i <= last && minor.length < 500 && n < 1000; i++, n++) {
     if (i % sub === 0) continue;
     minor.push(clean(i * minorStep));
   }
@@ -165,6 +181,8 @@ export function linearTicks(domain: [number, number], count: number): Omit<AxisP
  */
 export function logTicks(domain: [number, number], lengthPt: number, minDecadePt = 12, plainSpan = 3): Omit<AxisPlan, 'scale' | 'domain'> {
   const [lo, hi] = domain;
+  // Nothing to tick on a range that is not a positive finite one (the loops below would not end).
+  if (!(lo > 0 && Number.isFinite(hi) && hi > lo)) return { major: [], minor: [], plainDecades: false };
   const k0 = Math.ceil(Math.log10(lo) - EPS);
   const k1 = Math.floor(Math.log10(hi) + EPS);
   const spanDecades = Math.log10(hi / lo);
@@ -187,7 +205,9 @@ export function logTicks(domain: [number, number], lengthPt: number, minDecadePt
   }
   const plain = spanDecades <= plainSpan + EPS && k0 >= -3 && k1 <= 4;
   const major: MajorTick[] = [];
-  for (let k = k0; k <= k1; k++) major.push({ value: decade(k), label: formatDecade(k, plain), ordinal: k });
+  // Hundreds of decades (an enormous range) would be hundreds of labels to typeset for nothing.
+  const every = Math.ceil((k1 - k0 + 1) / MAX_DECADE_TICKS);
+  for (let k = k0; k <= k1; k++) if (k % every === 0) major.push({ value: decade(k), label: formatDecade(k, plain), ordinal: k });
   if (decadeLength >= minDecadePt) {
     for (let k = kLo; k <= k1 && minor.length < 500; k++) {
       for (let m = 2; m <= 9; m++) {

@@ -76,7 +76,18 @@ export type Scene = {
   legendCorner: 'top-left' | 'top-right' | 'bottom-left' | 'bottom-right' | 'none';
   /** Plain-language notes for whoever renders or views it (e.g. a layer that could not be shown). */
   notes: string[];
+  /**
+   * Labels whose typeset box is larger than the page (see `buildScene`): the layout was kept on
+   * the page regardless, but the server refuses to save or render such a figure.
+   */
+  oversizeLabels: OversizeLabel[];
 };
+
+/**
+ * A label larger than the page: `field` is the part of the spec that decides its text (e.g.
+ * `spec.y.label`, `spec.layers.0.label`), `message` says how large it is and what to do.
+ */
+export type OversizeLabel = { field: string; label: string; message: string };
 
 /**
  * One layer's data as loaded for a viewer. `available: false` means the viewer may not see that

@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import type { FigureLayerData, TypesetLabel } from '../figure/types';
-import { FIGURE_LIMITS, FIGURE_THEMES, figureParams, houseStyleSchema, layerSchema, type FigureSpec, type FigureTheme, type HouseStyle } from './figures';
+import { FIGURE_LIMITS, FIGURE_THEMES, figureParams, houseStyleSchema, layerSchema, storableText, type FigureSpec, type FigureTheme, type HouseStyle } from './figures';
 import type { ResultState } from './results';
 import { pageParams, uuidParam, versionParam } from './common';
 
@@ -47,7 +47,7 @@ export const figureVisibilitySchema = z.object({ public: z.boolean({ error: 'mus
 
 export const duplicateFigureSchema = z.object({
   /** Title of the copy; left out: "Copy of …". */
-  title: z.string().trim().min(1, 'must not be empty').max(200, 'must be at most 200 characters').optional(),
+  title: storableText(z.string().trim().min(1, 'must not be empty').max(200, 'must be at most 200 characters')).optional(),
 });
 
 /** The plain-language version of a figure for the public: its size (a slide or a web page). */
@@ -64,7 +64,7 @@ export const hueSchema = z.object({ hue: z.number({ error: 'must be a number' })
 export const houseStyleBodySchema = z.object({ style: houseStyleSchema });
 
 export const publicFigureListQuery = z.object({
-  q: z.string().trim().max(200).optional(),
+  q: storableText(z.string().trim().max(200)).optional(),
   theme: z.enum(FIGURE_THEMES).optional(),
   ...pageParams,
 });

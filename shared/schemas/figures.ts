@@ -28,7 +28,14 @@ export const SIZE_PRESET_IDS = [...(Object.keys(SIZE_PRESETS) as (keyof typeof S
 /** Limits that keep renders sane (absurd sizes and DPIs are refused). */
 export const FIGURE_LIMITS = { minCm: 3, maxCm: 60, maxLayers: 12, maxAnnotations: 10, maxLabel: 200, minDpi: 36, maxDpi: 1200 } as const;
 
-const label = z.string().max(FIGURE_LIMITS.maxLabel, `must be at most ${FIGURE_LIMITS.maxLabel} characters`);
+/**
+ * Text that can be stored and drawn: no control characters but tab and line breaks (PostgreSQL
+ * cannot store NUL in text or JSON at all), no unpaired UTF-16 surrogates (not Unicode text).
+ */
+const UNSTORABLE = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]|[\ud800-\udbff](?![\udc00-\udfff])|(?<![\ud800-\udbff])[\udc00-\udfff]/;
+export const storableText = <T extends z.ZodString>(s: T) => s.refine((v) => !UNSTORABLE.test(v), 'must not contain control characters (such as NUL) or broken Unicode');
+
+const label = storableText(z.string().max(FIGURE_LIMITS.maxLabel, `must be at most ${FIGURE_LIMITS.maxLabel} characters`));
 const finite = z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number');
 
 export const axisSchema = z.object({
@@ -88,7 +95,7 @@ export type HouseStyle = z.output<typeof houseStyleSchema>;
 
 export const figureSpecSchema = z
   .object({
-    title: z.string().trim().min(1, 'must not be empty').max(200, 'must be at most 200 characters'),
+    title: storableText(z.string().trim().min(1, 'must not be empty').max(200, 'must be at most 200 characters')),
     theme: z.enum(FIGURE_THEMES, { error: `must be one of ${FIGURE_THEMES.join(', ')}` }),
     size: z.object({
       preset: z.enum(SIZE_PRESET_IDS, { error: `must be one of ${SIZE_PRESET_IDS.join(', ')}` }),
@@ -135,7 +142,7 @@ export function figureSizeCm(spec: Pick<FigureSpec, 'size'>): { widthCm: number;
 }
 
 export const createFigureSchema = z.object({ spec: figureSpecSchema, public: z.boolean().default(false) });
-export const saveFigureSchema = z.object({ spec: figureSpecSchema, note: z.string().trim().max(300).default('') });
+export const saveFigureSchema = z.object({ spec: figureSpecSchema, note: storableText(z.string().trim().max(300)).default('') });
 export const figureParams = z.object({ groupId: uuidParam, figureId: uuidParam });
 
 export const RENDER_FORMATS = ['svg', 'pdf', 'png'] as const;

@@ -119,7 +119,8 @@ describe('PDF', () => {
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toBe('application/pdf');
     pdf = binary(res);
-  });
+    // The first PDF of the file starts a renderer process (it loads jsdom and jsPDF: seconds on a busy machine).
+  }, 60_000);
 
   test('one page whose size equals the figure size', async () => {
     const doc = await PDFDocument.load(pdf);

@@ -4,8 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { PDFDocument, PDFDict, PDFName } from 'pdf-lib';
 import { labelKey, type Scene } from '@/shared/figure/types';
-import { stopPdfThread, svgToPdfOffThread } from '@/server/figures/pdf-pool';
-import { pngProblem, pngSize, svgToPdf, svgToPng, svgToPngAsync } from '@/server/figures/render';
+import { pngProblem, pngSize, svgToPdf, svgToPng } from '@/server/figures/render';
 import { typesetLabels } from '@/server/figures/typeset';
 
 /**
@@ -22,6 +21,7 @@ const scene: Scene = {
   background: '#ffffff',
   plot: { x: 40, y: 10, width: 190, height: 140 },
   legendCorner: 'none',
+  oversizeLabels: [],
   notes: [],
   items: [
     { kind: 'path', d: 'M40 150L230 10', fill: null, stroke: '#15357f', strokeWidth: 1, dash: [3, 2], clip: true, role: 'expected' },
@@ -98,25 +98,6 @@ describe('PDF', () => {
     const again = await svgToPdf(svg, scene, glyphs, { title: 'Test figure', created });
     expect(again.equals(pdf)).toBe(true);
   });
-
-  test('the server writes it on its PDF thread: the very same bytes; a thread that is stopped is started again', async () => {
-    try {
-      const [a, b] = await Promise.all([svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created }), svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created })]);
-      expect(a.equals(pdf)).toBe(true);
-      expect(b.equals(pdf)).toBe(true);
-      await stopPdfThread();
-      expect((await svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created })).equals(pdf)).toBe(true);
-      // A request the stopped thread held fails with the reason; one made meanwhile goes to a new thread.
-      const held = svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created });
-      const stopping = stopPdfThread();
-      const meanwhile = svgToPdfOffThread(svg, scene, glyphs, { title: 'Test figure', created });
-      await stopping;
-      await expect(held).rejects.toThrow('the PDF writer stopped');
-      expect((await meanwhile).equals(pdf)).toBe(true);
-    } finally {
-      await stopPdfThread();
-    }
-  }, 30_000);
 });
 
 describe('PNG', () => {
@@ -131,9 +112,6 @@ describe('PNG', () => {
     expect(pngSize(W, H, dpi)).toEqual({ width, height });
   });
 
-  test('the server draws off the main thread (resvg renderAsync) the very same bytes', async () => {
-    expect((await svgToPngAsync(svg, W, 150)).equals(svgToPng(svg, W, 150))).toBe(true);
-  });
 
   test('absurd resolutions are refused before rendering', () => {
     expect(pngProblem(W, H, 300)).toBeNull();

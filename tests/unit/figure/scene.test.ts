@@ -2,6 +2,7 @@ import { buildScene, collectLabels, labelKey, labelsOffPage, resolveFigureTheme,
 import { FIGURE_THEMES, type FigureSpec } from '@/shared/schemas/figures';
 import { exclusionRanges } from '@/shared/stats/exclusion';
 import { placeBoxes } from '@/shared/figure/legend';
+import { pathBounds } from '@/shared/figure/scene';
 import { rangeForCorner, roughWidth } from '@/shared/figure/room';
 import { dijet, dilepton, hiddenLayer, ID, meta, spec, stubMeasure, theory } from './fixtures';
 import { allNumbers, inside, legendBox, pathPoints, paths, texts } from './helpers';
@@ -338,5 +339,99 @@ describe('labels off the page', () => {
     const cramped = spec({ theme: 'slides', size: { preset: 'one-column' }, layers: [{ resultId: ID[0], version: 3, label: long }] });
     const off = labelsOffPage(build(cramped, [dijet]), stubMeasure);
     expect(off.some((l) => l.startsWith(long))).toBe(true);
+  });
+});
+
+describe('labels larger than the page', () => {
+  // What TeX can typeset: a box of any size (\rule{1em}{100em} is 100 em tall, \hspace{1000000em} a million wide).
+  const TALL = '$\\rule{1em}{100em}$';
+  const WIDE = '$\\hspace{1000000em}x$';
+  const hostile: Measure = (label, size, font) =>
+    label.includes(TALL) ? { width: size, ascent: 100 * size, descent: 0.2 * size } : label.includes(WIDE) ? { width: 1e6 * size, ascent: 0.7 * size, descent: 0.2 * size } : stubMeasure(label, size, font);
+  const buildHostile = (s: FigureSpec, layers: FigureLayerData[] = [dijet, dilepton]) => buildScene(s, layers, resolveFigureTheme(s.theme), hostile);
+  const onPage = (scene: Scene) => {
+    const { plot, widthPt: W, heightPt: H } = scene;
+    expect(plot.width).toBeGreaterThanOrEqual(0.25 * W - 1e-9);
+    expect(plot.height).toBeGreaterThanOrEqual(0.25 * H - 1e-9);
+    expect(plot.x).toBeGreaterThanOrEqual(0);
+    expect(plot.y).toBeGreaterThanOrEqual(0);
+    expect(plot.x + plot.width).toBeLessThanOrEqual(W);
+    expect(plot.y + plot.height).toBeLessThanOrEqual(H);
+  };
+  const cases: [string, Partial<FigureSpec>, string][] = [
+    ['a 100 em tall y-axis title', { y: { scale: 'log', min: null, max: null, label: TALL } }, 'spec.y.label'],
+    ['a million em wide y-axis title', { y: { scale: 'log', min: null, max: null, label: WIDE } }, 'spec.y.label'],
+    ['a 100 em tall x-axis title', { x: { scale: 'linear', min: null, max: null, label: TALL } }, 'spec.x.label'],
+    ['a million em wide x-axis title', { x: { scale: 'linear', min: null, max: null, label: WIDE } }, 'spec.x.label'],
+    ['a tall annotation', { annotations: [{ text: 'fine', x: 0.1, y: 0.9 }, { text: TALL, x: 0.5, y: 0.5 }] }, 'spec.annotations.1.text'],
+    ['a wide layer label in the legend', { layers: [{ resultId: ID[0], version: 3, label: WIDE, show: { observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false }, hue: null }] }, 'spec.layers.0.label'],
+  ];
+  test.each(cases)('%s: the plot stays on the page and the label is named by its field', (_name, over, field) => {
+    for (const theme of FIGURE_THEMES) {
+      const scene = buildHostile(spec({ ...over, theme }));
+      onPage(scene);
+      expect(scene.oversizeLabels.map((o) => o.field)).toEqual([field]);
+      expect(scene.oversizeLabels[0]!.message).toMatch(/ pt (tall|long|wide) when typeset.*(taller|longer|wider) than the [\d.]+ × [\d.]+ pt page/);
+    }
+  });
+  test('ordinary figures have none, not even slide type squeezed onto a journal column (it only sticks out)', () => {
+    for (const theme of FIGURE_THEMES) expect(buildHostile(spec({ theme }), [dijet, dilepton]).oversizeLabels).toEqual([]);
+    const long = 'A very long legend entry for a channel with many words in it, longer than the page';
+    const cramped = buildHostile(spec({ theme: 'slides', size: { preset: 'one-column' }, layers: [{ resultId: ID[0], version: 3, label: long, show: { observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false }, hue: null }] }), [dijet]);
+    expect(cramped.oversizeLabels).toEqual([]);
+    expect(labelsOffPage(cramped, hostile).some((l) => l.startsWith(long))).toBe(true);
+  });
+  test('thickness is checked across the reading direction: the upright y-axis title may be as thick as the page is wide', () => {
+    const { heightPt, widthPt } = sizePt(spec());
+    expect(widthPt).toBeGreaterThan(heightPt);
+    // Thicker than the page is tall, thinner than it is wide.
+    const THICK = 'thick';
+    const thick = (h: number): Measure => (label, size, font) => (label === THICK ? { width: 20, ascent: h, descent: 0 } : stubMeasure(label, size, font));
+    const between = (heightPt + widthPt) / 2;
+    const s = (axis: 'x' | 'y') => spec({ [axis]: { scale: axis === 'x' ? 'linear' : 'log', min: null, max: null, label: THICK } });
+    const fields = (axis: 'x' | 'y', h: number) => buildScene(s(axis), [dijet], resolveFigureTheme('publication'), thick(h)).oversizeLabels.map((o) => o.field);
+    expect(fields('x', between)).toEqual(['spec.x.label']);
+    expect(fields('y', between)).toEqual([]);
+    expect(fields('y', widthPt + 10)).toEqual(['spec.y.label']);
+  });
+});
+
+describe('clipped shapes wholly outside the plot are left out', () => {
+  test('crossing markers and curves far outside a fixed x range are not drawn; those inside are', () => {
+    // x from 1e300: every data point lies far to the left of the plot.
+    const far = build(spec({ x: { scale: 'linear', min: 1e300, max: null, label: '' }, layers: [{ resultId: ID[0], version: 3, show: { observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: true }, hue: null }] }), [dijet]);
+    expect(paths(far).filter((p) => p.clip && ['crossing', 'observed', 'expected', 'band1', 'band2', 'theory', 'theory-band', 'excluded'].includes(p.role))).toEqual([]);
+    const near = build(spec(), [dijet, dilepton]);
+    for (const role of ['crossing', 'observed', 'expected', 'band1', 'band2', 'theory']) expect(paths(near, role).length).toBeGreaterThan(0);
+    // Every clipped shape left touches the plot.
+    for (const p of paths(near).filter((q) => q.clip)) {
+      const b = pathBounds(p.d)!;
+      expect(b.x <= near.plot.x + near.plot.width + 10 && b.x + b.width >= near.plot.x - 10).toBe(true);
+    }
+  });
+  test('path bounds: lines, arcs, rectangles; nothing finite gives null; unknown commands keep the shape', () => {
+    expect(pathBounds('M1,2L3,-4H10V7Z')).toEqual({ x: 1, y: -4, width: 9, height: 11 });
+    expect(pathBounds('M10,5A2,2 0 1,0 14,5A2,2 0 1,0 10,5Z')).toEqual({ x: 8, y: 3, width: 8, height: 4 });
+    expect(pathBounds('M1e+300,2L-1e+300,3')).toEqual({ x: -1e300, y: 2, width: 2e300, height: 1 });
+    expect(pathBounds('MNaN,NaNLNaN,NaN')).toBeNull();
+    expect(pathBounds('M0,0c1,1 2,2 3,3')!.width).toBe(Infinity);
+  });
+});
+
+describe('work is bounded by the page, not by the axis range', () => {
+  test('a fixed x range far narrower than the data samples only what a legend could cover', () => {
+    const legendModule = jest.requireActual<typeof import('@/shared/figure/legend')>('@/shared/figure/legend');
+    const spy = jest.spyOn(legendModule, 'densify');
+    try {
+      // The data run from 1 to 5; the axis shows −0.001 … 0.001: the bands span millions of points' widths.
+      const narrow = spec({ x: { scale: 'linear', min: -0.001, max: 0.001, label: '' } });
+      build(narrow, [dijet, dilepton]);
+      const produced = spy.mock.results.reduce((n, r) => n + (r.value as unknown[]).length, 0);
+      // (4.8 million before the bound, and two minutes of work on a busy machine.) Ordinary
+      // figures are sampled as before: the golden figures would show any change.
+      expect(produced).toBeLessThan(100_000);
+    } finally {
+      spy.mockRestore();
+    }
   });
 });

@@ -1,4 +1,4 @@
-import { axisDomain, formatLinear, linearTicks, logTicks, thinLabels } from '@/shared/figure/ticks';
+import { axisDomain, formatLinear, linearTicks, logTicks, MAX_DECADE_TICKS, thinLabels } from '@/shared/figure/ticks';
 import { buildScene, collectLabels, resolveFigureTheme, type Measure } from '@/shared/figure';
 import { dijet, spec, stubMeasure } from './fixtures';
 import { texts } from './helpers';
@@ -104,5 +104,26 @@ describe('tick labels never overlap', () => {
     });
     expect(boxes.map((b) => b.label)).toContain('1');
     for (const a of boxes) for (const b of boxes) if (a !== b) expect({ a: a.label, b: b.label, clash: a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1 }).toEqual({ a: a.label, b: b.label, clash: false });
+  });
+});
+
+describe('enormous and degenerate ranges (found by the render fuzz test: the server ran out of memory)', () => {
+  test('a log range that is not positive and finite has no ticks instead of an endless loop', () => {
+    expect(logTicks([0, 10], 100)).toEqual({ major: [], minor: [], plainDecades: false });
+    expect(logTicks([1, Infinity], 100).major).toEqual([]);
+  });
+  test('six hundred decades carry at most MAX_DECADE_TICKS labels, on round decades', () => {
+    const t = logTicks([1e-300, 1e300], 300);
+    expect(t.major.length).toBeGreaterThan(10);
+    expect(t.major.length).toBeLessThanOrEqual(MAX_DECADE_TICKS);
+    const step = t.major[1]!.ordinal - t.major[0]!.ordinal;
+    expect(t.major.every((m) => m.ordinal % step === 0)).toBe(true);
+  });
+  test('automatic ends stay finite: log ends within 10^±300 whatever room is asked, linear data near the largest doubles', () => {
+    const log = axisDomain({ scale: 'log', min: null, max: null, label: '' }, [1e-200, 1e200], { pad: 0.05, fromZero: false, reach: { low: -500, high: 900 } });
+    expect(log).toEqual([1e-300, 1e300]);
+    const lin = axisDomain({ scale: 'linear', min: null, max: null, label: '' }, [-1.7e308, 1.7e308], { pad: 0.05, fromZero: false });
+    expect(lin.every(Number.isFinite)).toBe(true);
+    expect(lin[1]).toBeGreaterThan(lin[0]);
   });
 });
