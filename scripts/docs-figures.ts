@@ -16,8 +16,8 @@ import { renderPublic } from '../server/services/figures';
 import { ensureDatabase, startCluster, stopCluster, tmpRoot } from './lib/postgres';
 
 const OUT = path.resolve(__dirname, '../docs/figures');
-/** PNGs for a README: sharp on a high-density screen, small enough to commit. */
-const DPI = 200;
+/** PNGs for a README: sharp on a high-density screen, small enough to commit; one of the resolutions a public figure offers. */
+const DPI = 150;
 
 /** "publication-limits-on-the-v-benchmark-dijet-search": theme and title words, at most ~45 characters. */
 function fileName(theme: string, title: string): string {

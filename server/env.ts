@@ -47,6 +47,8 @@ const schema = z
     JOB_RETRY_SECONDS: z.coerce.number().positive().default(5),
     /** Largest scan accepted, in points × bins × pseudo-experiments (1 per point when asymptotic). */
     SCAN_COST_LIMIT: z.coerce.number().positive().default(200_000_000),
+    /** Figure renders per minute per IP for callers who are not signed in (public and by-id render routes). */
+    RENDER_RATE_LIMIT: z.coerce.number().int().positive().default(300),
     /** Renderer processes (PNG and PDF are drawn outside the server process, see server/figures/render-pool.ts). */
     RENDER_PROCESSES: z.coerce.number().int().min(1).max(16).default(2),
     /** A PNG or PDF render taking longer (waiting included) is given up with 500 and its renderer process killed. */

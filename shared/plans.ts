@@ -23,10 +23,15 @@ export type Plan = {
   name: string;
   /** One line for the plan screen. */
   summary: string;
-  /** Bytes of uploads, stored scan inputs and cached renders the group may keep. */
+  /** Bytes of uploads and stored scan inputs the group may keep (what the group stores for its results). */
   quotaBytes: number;
-  /** Cached figure renders: how many the group keeps and how long an unused one stays. */
-  renderCache: { maxRenders: number; maxAgeDays: number };
+  /**
+   * Cached figure renders: how many and how many bytes the group keeps, and how long an unused
+   * one stays. Renders never count toward the quota (anyone may ask for a public figure, so what
+   * they take must not decide what members can store); beyond these bounds the least recently
+   * used are dropped.
+   */
+  renderCache: { maxRenders: number; maxBytes: number; maxAgeDays: number };
   /**
    * Scan work the group may have queued or running at once, in pseudo-experiments per hypothesis
    * summed over the grid points of its unfinished scans (points × toys; an asymptotic point
@@ -46,7 +51,7 @@ export const PLANS: Record<PlanId, Plan> = {
     name: 'Free',
     summary: 'For trying Bandwright out and for small groups.',
     quotaBytes: 50 * MB,
-    renderCache: { maxRenders: 100, maxAgeDays: 7 },
+    renderCache: { maxRenders: 100, maxBytes: 20 * MB, maxAgeDays: 7 },
     scanQueueLimit: 200_000,
     prices: null,
     currency: 'eur',
@@ -56,7 +61,7 @@ export const PLANS: Record<PlanId, Plan> = {
     name: 'Institutional',
     summary: 'For analysis teams and combination boards, paid by the institute.',
     quotaBytes: 20 * GB,
-    renderCache: { maxRenders: 20_000, maxAgeDays: 180 },
+    renderCache: { maxRenders: 20_000, maxBytes: 2 * GB, maxAgeDays: 180 },
     scanQueueLimit: 20_000_000,
     prices: { month: 4_900, year: 49_000 },
     currency: 'eur',
@@ -98,17 +103,18 @@ export const planSchema = z.object({
   name: z.string(),
   summary: z.string(),
   quotaBytes: z.number(),
-  renderCache: z.object({ maxRenders: z.number(), maxAgeDays: z.number() }),
+  renderCache: z.object({ maxRenders: z.number(), maxBytes: z.number(), maxAgeDays: z.number() }),
   scanQueueLimit: z.number(),
   prices: z.object({ month: z.number(), year: z.number() }).nullable(),
   currency: z.literal('eur'),
 });
 
 export const usageSchema = z.object({
-  /** The counter that quotas are checked against (always the sum of the kinds below). */
+  /** The counter that quotas are checked against (always uploads plus scan inputs). */
   totalBytes: z.number(),
   uploadsBytes: z.number(),
   scanInputsBytes: z.number(),
+  /** The render cache: not part of `totalBytes`, bounded by the plan's `renderCache` instead. */
   rendersBytes: z.number(),
   renderCount: z.number(),
 });

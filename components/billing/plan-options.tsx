@@ -30,7 +30,7 @@ export function PlanOptions({ plans, currentId, onUpgrade, pending }: Props) {
             <Text variant="muted">{p.summary}</Text>
             <Text>Storage: {formatBytes(p.quotaBytes)}</Text>
             <Text>
-              Figure renders kept: {p.renderCache.maxRenders.toLocaleString('en')}, each for {p.renderCache.maxAgeDays} days after last use
+              Figure renders kept: up to {p.renderCache.maxRenders.toLocaleString('en')} ({formatBytes(p.renderCache.maxBytes)}), each for {p.renderCache.maxAgeDays} days after last use; not counted toward storage
             </Text>
             <Text>Scans queued at once: up to {p.scanQueueLimit.toLocaleString('en')} pseudo-experiments (grid points × pseudo-experiments; an asymptotic point counts one)</Text>
             <Text variant="label">{p.prices ? BILLING_INTERVALS.map((i) => formatPrice(p, i)).join(' or ') : 'No charge'}</Text>

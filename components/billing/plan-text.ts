@@ -8,22 +8,28 @@ import { formatDate } from '../results/format';
  * without rendering.
  */
 
-export type UsageKind = { key: 'uploads' | 'scanInputs' | 'renders' | 'other'; label: string; bytes: number; detail?: string; color: string };
+export type UsageKind = { key: 'uploads' | 'scanInputs' | 'other'; label: string; bytes: number; detail?: string; color: string };
 
 /**
  * The kinds of stored bytes, in the order the bar stacks them. The quota counts the group's
  * counter; should it hold more than the kinds add up to, the rest is shown as such, not hidden.
+ * Cached figure renders are not among them: they never count toward the quota (`renderCacheLine`).
  */
 export function usageKinds(view: Pick<PlanView, 'usage'>): UsageKind[] {
   const u = view.usage;
   const kinds: UsageKind[] = [
     { key: 'uploads', label: 'Result uploads', bytes: u.uploadsBytes, color: colors.primary },
     { key: 'scanInputs', label: 'Stored scan inputs', bytes: u.scanInputsBytes, color: chartPalette[1] },
-    { key: 'renders', label: 'Cached figure renders', bytes: u.rendersBytes, detail: `${u.renderCount} ${u.renderCount === 1 ? 'render' : 'renders'}`, color: chartPalette[2] },
   ];
-  const rest = u.totalBytes - u.uploadsBytes - u.scanInputsBytes - u.rendersBytes;
+  const rest = u.totalBytes - u.uploadsBytes - u.scanInputsBytes;
   if (rest > 0) kinds.push({ key: 'other', label: 'Other stored data', bytes: rest, color: colors.borderStrong });
   return kinds;
+}
+
+/** "Cached figure renders: 3.1 MB in 12 renders, not counted toward the quota (at most 20 MB are kept)." */
+export function renderCacheLine(view: Pick<PlanView, 'usage' | 'plan'>): string {
+  const u = view.usage;
+  return `Cached figure renders: ${formatBytes(u.rendersBytes)} in ${u.renderCount} ${u.renderCount === 1 ? 'render' : 'renders'}, not counted toward the quota (at most ${formatBytes(view.plan.renderCache.maxBytes)} are kept; the least recently used go first).`;
 }
 
 /** "1.2 MB of 50 MB used (2%)". */

@@ -3,13 +3,14 @@ import { colors, radii, space } from '@/themes/tokens';
 import { type PlanView } from '@/shared/plans';
 import { formatBytes } from '@/shared/bytes';
 import { Text } from '../ui/text';
-import { usageKinds, usageSummary } from './plan-text';
+import { renderCacheLine, usageKinds, usageSummary } from './plan-text';
 
 /**
- * Storage used against the quota: one bar stacked by kind (uploads, scan inputs, renders), the
- * numbers beside it. Over the quota the bar is full and outlined in the danger colour.
+ * Storage used against the quota: one bar stacked by kind (uploads, scan inputs), the numbers
+ * beside it, and the render cache on a line of its own (it does not count). Over the quota the
+ * bar is full and outlined in the danger colour.
  */
-export function UsageBar({ view }: { view: Pick<PlanView, 'usage' | 'quotaBytes'> }) {
+export function UsageBar({ view }: { view: Pick<PlanView, 'usage' | 'quotaBytes' | 'plan'> }) {
   const kinds = usageKinds(view);
   const total = view.usage.totalBytes;
   const over = total > view.quotaBytes;
@@ -43,6 +44,7 @@ export function UsageBar({ view }: { view: Pick<PlanView, 'usage' | 'quotaBytes'
           </View>
         ))}
       </View>
+      <Text variant="muted">{renderCacheLine(view)}</Text>
       {over ? <Text style={styles.overText}>Over the quota by {formatBytes(total - view.quotaBytes)}.</Text> : null}
     </View>
   );

@@ -21,7 +21,10 @@ export async function lockGroupStorage(db: Executor, groupId: string): Promise<{
   return rows[0];
 }
 
-/** Bytes per kind, summed from the stored rows themselves (the counter must equal their total). */
+/**
+ * Bytes per kind, summed from the stored rows themselves: the counter must equal uploads plus
+ * scan inputs; the render cache is reported beside them and is not part of it.
+ */
 export async function usageByKind(db: Executor, groupId: string) {
   // Plain SQL: the correlated sums need table aliases that the query builder does not render.
   const r = await db.execute<{ total: string; uploads: string; scan_inputs: string; renders: string; render_count: string }>(sql`

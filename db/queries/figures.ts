@@ -368,31 +368,37 @@ export async function deleteStaleRenders(db: Executor, figureId: string, opts: {
   return rows.reduce((s, r) => s + r.bytes, 0);
 }
 
-/** Bytes of the figure's cached renders. */
-export async function renderBytes(db: Executor, figureId: string): Promise<number> {
-  const [row] = await db
-    .select({ n: sql<number>`coalesce(sum(${figureRenders.byteLength}), 0)`.mapWith(Number) })
-    .from(figureRenders)
-    .where(eq(figureRenders.figureId, figureId));
-  return row?.n ?? 0;
+/**
+ * Serialises the group's render-cache writes for the rest of the transaction (a transaction-scoped
+ * advisory lock, so that concurrent renders evict in turn instead of deadlocking on each other's
+ * rows; it takes no row lock, so renders never queue behind uploads on the group row).
+ */
+export async function lockRenderCache(db: Executor, groupId: string) {
+  await db.execute(sql`select pg_advisory_xact_lock(hashtextextended(${`bw-render-cache:${groupId}`}, 0))`);
 }
 
 /**
- * Drops the group's cached renders beyond its plan's limits: those unused for `maxAgeDays`, and
- * all but the `maxRenders` most recently used. Returns the bytes freed.
+ * Drops the group's cached renders beyond its plan's limits: those unused for `maxAgeDays`, and,
+ * most recently used first, all after the `maxRenders`-th or once `maxBytes` are reached.
+ * Returns the bytes freed.
  */
-export async function evictRenders(db: Executor, groupId: string, limits: { maxRenders: number; maxAgeDays: number }): Promise<number> {
-  const ofGroup = sql`${figureRenders.figureId} in (select ${figures.id} from ${figures} where ${figures.groupId} = ${groupId})`;
-  const keep = db
-    .select({ id: figureRenders.id })
-    .from(figureRenders)
-    .innerJoin(figures, eq(figures.id, figureRenders.figureId))
-    .where(eq(figures.groupId, groupId))
-    .orderBy(desc(figureRenders.lastUsedAt), desc(figureRenders.createdAt))
-    .limit(limits.maxRenders);
-  const rows = await db
-    .delete(figureRenders)
-    .where(and(ofGroup, or(lt(figureRenders.lastUsedAt, sql`now() - make_interval(days => ${limits.maxAgeDays})`), sql`${figureRenders.id} not in ${keep}`)))
-    .returning({ bytes: figureRenders.byteLength });
-  return rows.reduce((s, r) => s + r.bytes, 0);
+export async function evictRenders(db: Executor, groupId: string, limits: { maxRenders: number; maxBytes: number; maxAgeDays: number }): Promise<number> {
+  const r = await db.execute<{ bytes: string }>(sql`
+    with ranked as (
+      select fr.id, fr.last_used_at,
+        row_number() over w as n,
+        sum(fr.byte_length) over w as running
+      from ${figureRenders} fr join ${figures} f on f.id = fr.figure_id
+      where f.group_id = ${groupId}
+      window w as (order by fr.last_used_at desc, fr.created_at desc, fr.id)
+    ),
+    gone as (
+      delete from ${figureRenders} where id in (
+        select id from ranked
+        where n > ${limits.maxRenders} or running > ${limits.maxBytes}
+          or last_used_at < now() - make_interval(days => ${limits.maxAgeDays}))
+      returning byte_length
+    )
+    select coalesce(sum(byte_length), 0) as bytes from gone`);
+  return Number(r.rows[0]?.bytes ?? 0);
 }

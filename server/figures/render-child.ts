@@ -9,7 +9,10 @@ import type { RenderAnswer, RenderRequest } from './render-pool';
  * the whole process) ends only this process; the pool answers the job with an error and starts
  * another. It exits when the server goes away (the IPC channel closes).
  */
-const send = (a: RenderAnswer) => process.send!(a);
+// The server may be gone by the time an answer is ready: then there is nobody to answer.
+const send = (a: RenderAnswer) => {
+  if (process.connected) process.send!(a, (e: Error | null) => e && process.exit(0));
+};
 
 process.on('message', async (req: RenderRequest) => {
   try {

@@ -150,7 +150,8 @@ export function createRenderPool(opts: RenderPoolOptions) {
         // Running: its process is killed, and `gone` fails the job.
         for (const s of slots) if (s.job === p) s.child.kill('SIGKILL');
       }, timeoutMs);
-      p.timer.unref();
+      // The clock stays ref'd: a job waiting for a process that is still starting (not ref'd
+      // while idle) keeps the caller alive until it is answered.
       queue.push(p);
       dispatch();
     });
@@ -182,6 +183,8 @@ export function createRenderPool(opts: RenderPoolOptions) {
             new Promise<void>((resolve) => {
               if (s.child.exitCode !== null || s.child.signalCode !== null) return resolve();
               s.child.once('exit', () => resolve());
+              // Ref'd again, so the caller stays alive to see it go (an idle child is unref'd).
+              s.child.ref();
               s.child.kill('SIGKILL');
             }),
         ),

@@ -1,4 +1,5 @@
 import { Router, type Request, type Response } from 'express';
+import { rateLimit } from 'express-rate-limit';
 import {
   duplicateFigureSchema,
   figureIdParams,
@@ -58,6 +59,18 @@ function sendExport(res: Response, file: figures.ExportFile) {
 export function figuresRouter(ctx: Ctx) {
   const r = Router();
   const actor = (req: Request): figures.Actor => ({ id: req.user!.id });
+  // Renders for callers who are not signed in, per IP: each miss costs the server a render (and a
+  // cache row), and nobody is accountable for them. Members are not limited.
+  const anonymousRenders = rateLimit({
+    windowMs: 60_000,
+    limit: ctx.env.RENDER_RATE_LIMIT,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    skip: (req) => !!req.user,
+    handler: (_req, res) => {
+      res.status(429).json({ error: { code: 'rate_limited', message: 'Too many figure renders from this address; wait a minute and try again, or sign in' } });
+    },
+  });
 
   // --- Group routes -------------------------------------------------------------------------
 
@@ -117,7 +130,7 @@ export function figuresRouter(ctx: Ctx) {
   // --- By figure id: members of its group, or anyone when it is public ------------------------
 
   for (const format of RENDER_FORMATS) {
-    r.get(`/figures/:figureId/render.${format}`, optionalUser(ctx), handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, req, res) => {
+    r.get(`/figures/:figureId/render.${format}`, optionalUser(ctx), anonymousRenders, handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, req, res) => {
       const out = await figures.renderForCaller(ctx, params.figureId, req.user?.id ?? null, { format, ...query });
       // What is drawn depends on who asks: no shared cache may keep it.
       sendRender(res, out, 'private, no-cache');
@@ -139,7 +152,7 @@ export function figuresRouter(ctx: Ctx) {
   }));
 
   for (const format of RENDER_FORMATS) {
-    r.get(`/public/figures/:figureId/render.${format}`, handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, _req, res) => {
+    r.get(`/public/figures/:figureId/render.${format}`, anonymousRenders, handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, _req, res) => {
       sendRender(res, await figures.renderPublic(ctx, params.figureId, { format, ...query }), 'public, max-age=60');
     }));
   }

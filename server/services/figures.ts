@@ -10,11 +10,10 @@ import type {
   PublicFigurePage,
   ResultHueView,
 } from '../../shared/schemas/figure-views';
-import { figureSizeCm, type FigureSpec, type FigureTheme, type HouseStyle, type RenderFormat, type SIZE_PRESETS } from '../../shared/schemas/figures';
+import { figureSizeCm, OFFERED_DPIS, type FigureSpec, type FigureTheme, type HouseStyle, type RenderFormat, type SIZE_PRESETS } from '../../shared/schemas/figures';
 import type { VersionMeta } from '../../shared/schemas/results';
 import * as q from '../../db/queries/figures';
-import { lockGroupStorage } from '../../db/queries/billing';
-import { addStorage, getResultInGroup } from '../../db/queries/results';
+import { getResultInGroup } from '../../db/queries/results';
 import type { Ctx } from '../context';
 import type { Executor } from '../../db/client';
 import { RenderFailed } from '../figures/render-pool';
@@ -22,12 +21,12 @@ import { pngProblem, reuseGlyphs } from '../figures/render';
 import { buildFigure, captionOf, csvOf, oversizeLabelsOf } from '../figures/scene';
 import { labelPlainText } from '../figures/typeset';
 import { AppError, notFound, type ErrorDetail } from '../lib/errors';
-import { assertStorageAvailable, renderCacheLimits } from './plans';
+import { renderCacheLimits } from './plans';
 
 /**
  * Figures: versioned specs owned by a group, whose layers pin result versions; the data a viewer
- * may draw; renders (SVG, PDF, PNG) cached by everything that decides their bytes and counted
- * toward the group's storage.
+ * may draw; renders (SVG, PDF, PNG) cached by everything that decides their bytes, in a cache
+ * bounded by the group's plan and never counted toward its storage.
  */
 
 export type Actor = { id: string };
@@ -292,7 +291,7 @@ export async function createFigure(ctx: Ctx, groupId: string, actor: Actor, inpu
  */
 export async function saveFigure(ctx: Ctx, groupId: string, actor: Actor, figureId: string, input: { spec: FigureSpec; note: string }): Promise<FigureDetail> {
   // Lock order: the figure (no key update), the pinned results (key share, by the layer rows),
-  // the group row, the figure's cached renders — results before the group, as the registry does.
+  // the figure's cached renders.
   await ctx.db.transaction(async (tx) => {
     if (!(await q.lockFigure(tx, groupId, figureId))) throw notFound('Figure');
     await assertLayersUsable(tx, groupId, input.spec);
@@ -300,10 +299,9 @@ export async function saveFigure(ctx: Ctx, groupId: string, actor: Actor, figure
     const version = await q.takeNextFigureVersion(tx, figureId, input.spec.title);
     await q.insertFigureVersion(tx, { figureId, version, spec: input.spec, note: input.note, createdBy: actor.id });
     await assignHues(tx, groupId, input.spec);
-    // The group row before the render rows, as a render storing its bytes takes them.
-    await lockGroupStorage(tx, groupId);
-    const freed = await q.deleteStaleRenders(tx, figureId, { keepVersion: version });
-    await addStorage(tx, groupId, -freed);
+    // Older versions' renders go (they are re-made if asked for); renders are not stored bytes of
+    // the group, so its storage does not change.
+    await q.deleteStaleRenders(tx, figureId, { keepVersion: version });
   });
   return getDetail(ctx, groupId, figureId);
 }
@@ -314,16 +312,15 @@ export async function setVisibility(ctx: Ctx, groupId: string, figureId: string,
   return getDetail(ctx, groupId, figureId);
 }
 
-/** Deletes a figure with its versions and cached renders, giving their bytes back to the group. */
+/**
+ * Deletes a figure with its versions and cached renders (renders are not the group's stored
+ * bytes, so its storage does not change). A render being cached meanwhile either committed first
+ * (its row goes with the figure) or finds the figure gone and is served uncached.
+ */
 export async function deleteFigure(ctx: Ctx, groupId: string, figureId: string): Promise<void> {
   await ctx.db.transaction(async (tx) => {
-    // Group row first, as a render that stores its bytes does (then the figure): the two queue
-    // instead of deadlocking, and the render's bytes are counted here if it committed first.
-    await lockGroupStorage(tx, groupId);
     if (!(await q.lockFigure(tx, groupId, figureId, 'update'))) throw notFound('Figure');
-    const bytes = await q.renderBytes(tx, figureId);
     await q.deleteFigure(tx, groupId, figureId);
-    await addStorage(tx, groupId, -bytes);
   });
 }
 
@@ -414,9 +411,9 @@ export async function setResultHue(ctx: Ctx, groupId: string, resultId: string, 
 // Rendering
 
 /** Bumped when the renderers change what they draw, so cached renders of the old look are not served. */
-const RENDER_REVISION = 'r2';
-/** PNG resolutions whose renders are kept; others are made on request and not stored. */
-const CACHED_DPIS = new Set([72, 96, 150, 300, 600]);
+const RENDER_REVISION = 'r3';
+/** PNG resolutions whose renders are kept (the ones offered to the public); others are made on request and not stored. */
+const CACHED_DPIS = new Set<number>(OFFERED_DPIS);
 
 export type RenderRequest = { format: RenderFormat; version?: number; size?: keyof typeof SIZE_PRESETS; dpi: number };
 export type RenderOutput = {
@@ -439,6 +436,8 @@ type Prepared = {
   version: number;
   createdAt: Date;
   spec: FigureSpec;
+  /** The stored spec's own size preset (before a `?size=` override). */
+  ownPreset: FigureSpec['size']['preset'];
   /** Per layer: its hue when this audience may draw it, else null. */
   layers: ({ hue: number } | null)[];
   style: HouseStyle | null;
@@ -487,6 +486,7 @@ async function prepare(ctx: Ctx, figureId: string, userId: string | null, public
     version: v.version,
     createdAt: v.createdAt,
     spec,
+    ownPreset: v.spec.size.preset,
     layers,
     style: inputs.style,
     dataKey: `${RENDER_REVISION}|${keyParts.join(',')}|style:${styleHash}`,
@@ -574,34 +574,53 @@ async function renderPrepared(ctx: Ctx, p: Prepared, format: RenderFormat, dpi: 
 }
 
 /**
- * Stores a fresh render in the cache and adds its bytes to the figure group's storage, in one
- * transaction with the quota check. A render of the same version, format, size and audience
- * drawn from older data is dropped (it can no longer be asked for), and so are renders beyond the
- * plan's render-cache limits (least recently used first). When the quota refuses, the
- * render is not kept (the caller still serves it): a render never fails because the cache is full.
+ * Stores a fresh render in the group's render cache. Renders are not the group's stored bytes:
+ * they never count toward its quota (anonymous visitors may ask for public figures, and what
+ * they cause must not decide what members can upload), and the cache is bounded by the plan's
+ * `renderCache` instead: beyond its count, bytes or age the least recently used renders are
+ * dropped, in the same transaction (one group's cache writes at a time, `lockRenderCache`). A
+ * render of the same version, format, size and audience drawn from older data is dropped too (it
+ * can no longer be asked for). A render larger than the whole cache is served and not kept.
  */
 async function cacheRender(ctx: Ctx, key: q.RenderKey, groupId: string, out: { body: Buffer; contentType: string; notes: string[] }): Promise<'miss' | 'uncached'> {
   try {
-    await ctx.db.transaction(async (tx) => {
-      await assertStorageAvailable(tx, groupId, out.body.length, 'this render');
-      let freed = await q.deleteStaleRenders(tx, key.figureId, { staleFor: key });
+    return await ctx.db.transaction(async (tx) => {
+      const limits = await renderCacheLimits(tx, groupId);
+      if (out.body.length > limits.maxBytes) return 'uncached';
+      await q.lockRenderCache(tx, groupId);
+      await q.deleteStaleRenders(tx, key.figureId, { staleFor: key });
       const inserted = await q.insertRender(tx, { ...key, ...out });
-      // The plan bounds how many renders a group keeps and for how long an unused one stays.
-      freed += await q.evictRenders(tx, groupId, await renderCacheLimits(tx, groupId));
-      await addStorage(tx, groupId, (inserted ? out.body.length : 0) - freed);
+      await q.evictRenders(tx, groupId, limits);
       if (inserted) remember(inserted, out.body);
+      return 'miss';
     });
-    return 'miss';
   } catch (e) {
-    if (e instanceof AppError && (e.status === 402 || e.status === 413)) return 'uncached';
     // The figure was deleted while this render was being made: serve it, keep nothing.
     if (pgCode(e) === '23503') return 'uncached';
     throw e;
   }
 }
 
+/**
+ * What a figure offers to the public (anyone not in its group): its own page size, and PNGs at the
+ * offered resolutions. Members may ask for any preset and resolution; the public may not make the
+ * server draw (and keep) arbitrary variants. 400 naming the field otherwise.
+ */
+function assertOffered(p: Prepared, req: RenderRequest, ownPreset: FigureSpec['size']['preset']) {
+  if (p.audience !== 'public') return;
+  if (req.size !== undefined && req.size !== ownPreset) {
+    const message = `this figure is offered at its own size only (${ownPreset === 'custom' ? 'a custom size' : ownPreset}); leave size out`;
+    throw new AppError(400, 'validation_failed', `Invalid query: size ${message}`, [{ field: 'query.size', message }]);
+  }
+  if (req.format === 'png' && !CACHED_DPIS.has(req.dpi)) {
+    const message = `must be one of ${OFFERED_DPIS.join(', ')} for a public figure`;
+    throw new AppError(400, 'validation_failed', `Invalid query: dpi ${message}`, [{ field: 'query.dpi', message }]);
+  }
+}
+
 async function renderWithCache(ctx: Ctx, figureId: string, userId: string | null, publicOnly: boolean, req: RenderRequest): Promise<RenderOutput> {
   const p = await prepare(ctx, figureId, userId, publicOnly, req);
+  assertOffered(p, req, p.ownPreset);
   if (req.format === 'png') {
     const problem = pngProblem(p.widthPt, p.heightPt, req.dpi);
     if (problem) throw new AppError(400, 'validation_failed', `Invalid query: dpi ${problem}`, [{ field: 'query.dpi', message: problem }]);

@@ -7,8 +7,10 @@ import { AppError, notFound } from '../lib/errors';
 
 /**
  * Plans in force and the storage quota. Every write that adds stored bytes (result uploads and
- * versions, draft edits that grow, scan inputs, cached renders) calls `assertStorageAvailable` in
- * the transaction that then adds the bytes; deletions are never checked.
+ * versions, draft edits that grow, scan inputs) calls `assertStorageAvailable` in the transaction
+ * that then adds the bytes; deletions are never checked. Cached figure renders are not stored
+ * bytes of the group: they never count toward the quota (anyone may ask for a public figure) and
+ * are bounded by the plan's `renderCache` instead (`renderCacheLimits`).
  */
 
 export type AccountState = Pick<q.BillingAccount, 'plan' | 'status' | 'currentPeriodEnd' | 'lastEventAt' | 'updatedAt'> | undefined;
@@ -98,7 +100,8 @@ export async function assertStorageAvailable(tx: Executor, groupId: string, addB
 
 /**
  * The render cache allowed by the plan in force (for the figure service's cache: how many renders
- * a group keeps and how long an unused one stays).
+ * and bytes a group keeps, and how long an unused one stays). This bound, not the quota, is what
+ * holds renders in check.
  */
 export async function renderCacheLimits(db: Executor, groupId: string): Promise<Plan['renderCache']> {
   return (await planOfGroup(db, groupId)).plan.renderCache;

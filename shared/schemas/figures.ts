@@ -145,6 +145,12 @@ export const createFigureSchema = z.object({ spec: figureSpecSchema, public: z.b
 export const saveFigureSchema = z.object({ spec: figureSpecSchema, note: storableText(z.string().trim().max(300)).default('') });
 export const figureParams = z.object({ groupId: uuidParam, figureId: uuidParam });
 
+/**
+ * PNG resolutions a figure offers to the public (and whose renders are cached); members may ask
+ * for any resolution within FIGURE_LIMITS.
+ */
+export const OFFERED_DPIS = [72, 96, 150, 300, 600] as const;
+
 export const RENDER_FORMATS = ['svg', 'pdf', 'png'] as const;
 export type RenderFormat = (typeof RENDER_FORMATS)[number];
 /** Query of the render routes: version (default: latest), size preset override, PNG resolution. */

@@ -89,7 +89,7 @@ describe('plan and usage', () => {
     expect(after.usage.uploadsBytes).toBe(Number(versionBytes));
     expect(after.usage.scanInputsBytes).toBe(scanBytes);
     expect(scanBytes).toBeGreaterThan(0);
-    expect(after.usage.totalBytes).toBe(after.usage.uploadsBytes + after.usage.scanInputsBytes + after.usage.rendersBytes);
+    expect(after.usage.totalBytes).toBe(after.usage.uploadsBytes + after.usage.scanInputsBytes);
     expect(after.usage.totalBytes).toBe(await registryProbe.storageBytes(t, groupId));
   });
 });

@@ -14,7 +14,7 @@ export type TestApp = { app: Express; ctx: Ctx; close: () => Promise<void> };
 export async function startTestApp(extraEnv: Record<string, string> = {}): Promise<TestApp> {
   const db = await createTestDatabase();
   const ctx = createContext(
-    loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'test', PUBLIC_URL: TEST_ORIGIN, AUTH_RATE_LIMIT: '1000', ...extraEnv }),
+    loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'test', PUBLIC_URL: TEST_ORIGIN, AUTH_RATE_LIMIT: '1000', RENDER_RATE_LIMIT: '100000', ...extraEnv }),
   );
   const app = createApp(ctx);
   return {

@@ -38,7 +38,7 @@ export async function startE2E(opts: { jobs?: boolean; stripe?: boolean } = {}):
     ? await startStripeFake({ secretKey: TEST_STRIPE_KEY, webhookSecret: TEST_WEBHOOK_SECRET, webhookUrl: `${base}/api/billing/webhook`, log: () => {} })
     : undefined;
   const ctx = createContext(
-    loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'development', PUBLIC_URL: base, PORT: String(port), AUTH_RATE_LIMIT: '1000', ...(stripeFake ? fakeStripeEnv(stripeFake.port) : {}) }),
+    loadEnv({ DATABASE_URL: db.url, NODE_ENV: 'development', PUBLIC_URL: base, PORT: String(port), AUTH_RATE_LIMIT: '1000', RENDER_RATE_LIMIT: '100000', ...(stripeFake ? fakeStripeEnv(stripeFake.port) : {}) }),
   );
   // Scans need the job queue and a worker, as `npm start` runs them.
   let stopWorkers = async () => {};

@@ -1,4 +1,4 @@
-import { statusLine, usageKinds, usageSummary } from '@/components/billing/plan-text';
+import { renderCacheLine, statusLine, usageKinds, usageSummary } from '@/components/billing/plan-text';
 import { effectivePlan, isReadOnly, lapseNotice, scanDraftAllowance, type AccountState } from '@/server/services/plans';
 import { checkoutSchema, formatMoney, formatPrice, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, usageFraction } from '@/shared/plans';
 import { formatBytes, GB, KB, MB } from '@/shared/bytes';
@@ -46,6 +46,9 @@ describe('the plans', () => {
     expect(INSTITUTIONAL_PLAN.renderCache.maxRenders).toBeGreaterThan(FREE_PLAN.renderCache.maxRenders);
     expect(INSTITUTIONAL_PLAN.renderCache.maxAgeDays).toBeGreaterThan(FREE_PLAN.renderCache.maxAgeDays);
     expect(INSTITUTIONAL_PLAN.scanQueueLimit).toBeGreaterThan(FREE_PLAN.scanQueueLimit);
+    expect(INSTITUTIONAL_PLAN.renderCache.maxBytes).toBeGreaterThan(FREE_PLAN.renderCache.maxBytes);
+    // The render cache is bounded apart from the quota, and well below it.
+    expect(FREE_PLAN.renderCache.maxBytes).toBeLessThan(FREE_PLAN.quotaBytes);
     expect(INSTITUTIONAL_PLAN.prices!.year).toBeLessThan(12 * INSTITUTIONAL_PLAN.prices!.month);
     expect(Object.keys(PLANS)).toEqual(['free', 'institutional']);
   });
@@ -106,18 +109,18 @@ describe('the plan in force', () => {
 });
 
 describe('plan screen wording', () => {
-  const usage = { totalBytes: 1.5 * MB, uploadsBytes: MB, scanInputsBytes: 0.25 * MB, rendersBytes: 0.25 * MB, renderCount: 1 };
+  const usage = { totalBytes: 1.25 * MB, uploadsBytes: MB, scanInputsBytes: 0.25 * MB, rendersBytes: 3 * MB, renderCount: 1 };
 
-  test('the usage line and the kinds add up to the counter', () => {
-    expect(usageSummary({ usage, quotaBytes: 50 * MB })).toBe('1.5 MB of 50 MB used (3%)');
+  test('the usage line and the kinds add up to the counter; the render cache is apart and not counted', () => {
+    expect(usageSummary({ usage, quotaBytes: 50 * MB })).toBe('1.25 MB of 50 MB used (2%)');
     expect(usageSummary({ usage: { ...usage, totalBytes: 100 }, quotaBytes: 50 * MB })).toBe('100 bytes of 50 MB used (<1%)');
     expect(usageKinds({ usage }).map((k) => [k.key, k.bytes, k.detail])).toEqual([
       ['uploads', MB, undefined],
       ['scanInputs', 0.25 * MB, undefined],
-      ['renders', 0.25 * MB, '1 render'],
     ]);
     // Bytes the kinds do not explain are shown, not hidden.
-    expect(usageKinds({ usage: { ...usage, totalBytes: 2 * MB } }).at(-1)).toMatchObject({ key: 'other', bytes: 0.5 * MB });
+    expect(usageKinds({ usage: { ...usage, totalBytes: 2 * MB } }).at(-1)).toMatchObject({ key: 'other', bytes: 0.75 * MB });
+    expect(renderCacheLine({ usage, plan: FREE_PLAN })).toBe('Cached figure renders: 3 MB in 1 render, not counted toward the quota (at most 20 MB are kept; the least recently used go first).');
   });
 
   test('the status line', () => {

@@ -101,3 +101,17 @@ test('a stopped pool fails what it held and refuses new jobs', async () => {
   await expect(own.png(svg, built.scene.widthPt, 72)).rejects.toThrow('shut down');
   expect(own.pids()).toEqual([]);
 });
+
+test('a script that only waits for the pool is kept alive until its jobs are answered and the pool has stopped', () => {
+  // Idle renderer processes are unref'd (they must not keep a server alive); a caller waiting on
+  // a job, or on stop(), must still see it through.
+  const root = path.resolve(__dirname, '../..');
+  const script = `
+    const { createRenderPool } = require('./server/figures/render-pool');
+    const pool = createRenderPool({ size: 1, timeoutMs: 60000, log: () => {} });
+    pool.png('<svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"/>', 10, 72)
+      .then((b) => { console.log('drawn ' + b.length); return pool.stop(); })
+      .then(() => console.log('stopped'));`;
+  const r = spawnSync(process.execPath, ['--import', 'tsx', '-e', script], { cwd: root, encoding: 'utf8', timeout: 90_000 });
+  expect(r.stdout.trim().split('\n')).toEqual([expect.stringMatching(/^drawn \d+$/), 'stopped']);
+});
