@@ -93,7 +93,7 @@ async function main() {
     const dbUrl = cluster.url('bench');
     const port = await freePort();
     const base = `http://127.0.0.1:${port}`;
-    const vars: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: 'development', DATABASE_URL: dbUrl, PORT: String(port), PUBLIC_URL: base, WORKERS: '0', STRIPE_FAKE_PORT: String(await freePort()), AUTH_RATE_LIMIT: '100000' };
+    const vars: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: 'development', DATABASE_URL: dbUrl, PORT: String(port), PUBLIC_URL: base, WORKERS: '0', STRIPE_FAKE_PORT: String(await freePort()), AUTH_RATE_LIMIT: '100000', RENDER_RATE_LIMIT: '100000000' };
     const ctx = createContext(loadEnv(vars));
     await runMigrations(ctx.db);
     await seedDemo(ctx);
