@@ -10,7 +10,7 @@ import { ensureDatabase, startCluster, stopCluster, tmpRoot, type Cluster } from
 /**
  * `npm test`: a throwaway PostgreSQL cluster on a free loopback port, Debian's Chromium when
  * missing, the web build when stale; then jest (unit, components, api; then e2e one file at a
- * time) and a closing line `N passed, N failed`. Extra arguments go to jest (e.g. a path filter).
+ * time) and a closing line `N passed, N failed`; without a path filter it first runs ESLint (one check). Extra arguments go to jest (e.g. a path filter).
  */
 const ROOT = path.resolve(__dirname, '..');
 const CHROMIUM = '/usr/bin/chromium';
@@ -67,11 +67,18 @@ async function main() {
       TEST_TEMPLATE_DB: TEMPLATE_DB,
       ...(chromiumProblem ? { CHROMIUM_PROBLEM: chromiumProblem } : {}),
     };
+    // The layering and lint rules (eslint.config.mjs) count as one check of the whole tree.
+    if (jestArgs.length === 0) {
+      console.log('[test] npm run lint (ESLint: typescript-eslint and the layering rules)…');
+      const lint = spawnSync(path.join(ROOT, 'node_modules/.bin/eslint'), ['.'], { cwd: ROOT, stdio: 'inherit' });
+      if (lint.status === 0) total.passed += 1;
+      else total.failed += 1;
+    }
     // Path filters first: after --selectProjects they would be read as project names.
     const a = runJest([...jestArgs, '--passWithNoTests', '--selectProjects', 'unit', 'components', 'api'], path.join(ROOT, 'tmp/jest-main.json'), env);
     const b = runJest([...jestArgs, '--passWithNoTests', '--runInBand', '--selectProjects', 'e2e'], path.join(ROOT, 'tmp/jest-e2e.json'), env);
-    total.passed = a.passed + b.passed;
-    total.failed = a.failed + b.failed;
+    total.passed += a.passed + b.passed;
+    total.failed += a.failed + b.failed;
   } catch (err) {
     console.error(`[test] ${(err as Error).stack ?? err}`);
     total.failed += 1;

@@ -312,16 +312,6 @@ export async function putGroupStyle(db: Executor, groupId: string, style: HouseS
 
 export type RenderKey = { figureId: string; figureVersion: number; format: string; sizeKey: string; dataKey: string; variant: string };
 
-const keyMatch = (k: RenderKey) =>
-  and(
-    eq(figureRenders.figureId, k.figureId),
-    eq(figureRenders.figureVersion, k.figureVersion),
-    eq(figureRenders.format, k.format),
-    eq(figureRenders.sizeKey, k.sizeKey),
-    eq(figureRenders.dataKey, k.dataKey),
-    eq(figureRenders.variant, k.variant),
-  );
-
 /** A cached render's bytes (the service keeps hot bodies in memory by id). */
 export async function getRenderBody(db: Executor, id: string): Promise<Buffer | undefined> {
   const rows = await db.select({ body: figureRenders.body }).from(figureRenders).where(eq(figureRenders.id, id));

@@ -145,6 +145,7 @@ function plainRun(text: string, size: number, role: FontRole, x0 = 0, m: Matrix 
   let bottom = 0;
   for (const raw of text.normalize('NFC')) {
     const ch = /\s/.test(raw) ? ' ' : raw;
+    // eslint-disable-next-line no-control-regex -- control characters are skipped on purpose
     if (/[\u0000-\u001f\u007f-\u009f]/.test(ch)) continue;
     let hit: [FontRole, LoadedFont, number] | undefined;
     for (const [r, f] of fonts) {

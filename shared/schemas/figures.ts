@@ -32,6 +32,7 @@ export const FIGURE_LIMITS = { minCm: 3, maxCm: 60, maxLayers: 12, maxAnnotation
  * Text that can be stored and drawn: no control characters but tab and line breaks (PostgreSQL
  * cannot store NUL in text or JSON at all), no unpaired UTF-16 surrogates (not Unicode text).
  */
+// eslint-disable-next-line no-control-regex -- the control characters PostgreSQL or a page cannot take
 const UNSTORABLE = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f]|[\ud800-\udbff](?![\udc00-\udfff])|(?<![\ud800-\udbff])[\udc00-\udfff]/;
 export const storableText = <T extends z.ZodString>(s: T) => s.refine((v) => !UNSTORABLE.test(v), 'must not contain control characters (such as NUL) or broken Unicode');
 

@@ -54,7 +54,7 @@ afterAll(async () => {
  * A same-origin API call from the app's page (the browser adds the cookie and its Origin). Sent as
  * source text: the test's own code is transpiled, and its helpers do not exist in the page.
  */
-async function api(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: any }> {
+async function api(page: Page, method: string, path: string, body?: unknown): Promise<{ status: number; body: Record<string, unknown> }> {
   const init = { method, credentials: 'include', headers: body === undefined ? {} : { 'Content-Type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) };
   return page.evaluate(`fetch(${JSON.stringify(path)}, ${JSON.stringify(init)}).then(async (res) => ({ status: res.status, body: await res.json().catch(() => null) }))`);
 }

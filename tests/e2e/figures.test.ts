@@ -71,7 +71,9 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.getByLabel('Figure name').fill(`Vector overlay ${vp}`);
     const preview = page.getByRole('img', { name: /^Preview of the figure “Vector overlay .*” with 3 layer\(s\)$/ });
     await preview.waitFor();
-    // The preview draws labels as paths (typeset by the server), never as text elements.
+    // The preview draws labels as paths (typeset by the server), never as text elements; the
+    // glyphs arrive after the frame, so wait until they are drawn.
+    await preview.locator('svg path').nth(50).waitFor({ state: 'attached' });
     expect(await preview.locator('svg path').count()).toBeGreaterThan(50);
     expect(await preview.locator('svg text').count()).toBe(0);
     await fullShot(page, vp, 'composer-publication');
