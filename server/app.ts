@@ -1,6 +1,5 @@
 import compression from 'compression';
 import express, { type Express } from 'express';
-import { rateLimit } from 'express-rate-limit';
 import fs from 'node:fs';
 import path from 'node:path';
 import { requestPasswordResetSchema, resendVerificationSchema, resetPasswordSchema, signInSchema, signUpSchema } from '../shared/schemas/auth';
@@ -10,6 +9,7 @@ import { AppError, errorHandler } from './lib/errors';
 import { resultJson } from './lib/upload';
 import { cookieWriteGuard } from './lib/origins';
 import { securityHeaders } from './lib/security-headers';
+import { perMinuteLimit } from './lib/rate-limit';
 import { validate } from './lib/validate';
 import { billingRouter, billingWebhook } from './routes/billing';
 import { devRouter } from './routes/dev';
@@ -59,15 +59,7 @@ export function createApp(ctx: Ctx): Express {
 
   // Sign-in and sign-up: rate-limited per IP and validated with the shared schemas before
   // better-auth sees them, so bad input gets the same error shape as the rest of the API.
-  const authLimiter = rateLimit({
-    windowMs: 60_000,
-    limit: ctx.env.AUTH_RATE_LIMIT,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    handler: (_req, res) => {
-      res.status(429).json({ error: { code: 'rate_limited', message: 'Too many attempts; wait a minute and try again' } });
-    },
-  });
+  const authLimiter = perMinuteLimit({ limit: ctx.env.AUTH_RATE_LIMIT, message: 'Too many attempts; wait a minute and try again' });
   const authJson = express.json({ limit: '16kb' });
   app.post('/api/auth/sign-up/email', authLimiter, authJson, validate({ body: signUpSchema }));
   app.post('/api/auth/sign-in/email', authLimiter, authJson, validate({ body: signInSchema }));

@@ -1,5 +1,5 @@
 import { Router, type Request, type Response } from 'express';
-import { rateLimit } from 'express-rate-limit';
+import { perMinuteLimit } from '../lib/rate-limit';
 import {
   duplicateFigureSchema,
   figureIdParams,
@@ -61,15 +61,10 @@ export function figuresRouter(ctx: Ctx) {
   const actor = (req: Request): figures.Actor => ({ id: req.user!.id });
   // Renders for callers who are not signed in, per IP: each miss costs the server a render (and a
   // cache row), and nobody is accountable for them. Members are not limited.
-  const anonymousRenders = rateLimit({
-    windowMs: 60_000,
+  const anonymousRenders = perMinuteLimit({
     limit: ctx.env.RENDER_RATE_LIMIT,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
+    message: 'Too many figure renders from this address; wait a minute and try again, or sign in',
     skip: (req) => !!req.user,
-    handler: (_req, res) => {
-      res.status(429).json({ error: { code: 'rate_limited', message: 'Too many figure renders from this address; wait a minute and try again, or sign in' } });
-    },
   });
 
   // --- Group routes -------------------------------------------------------------------------
