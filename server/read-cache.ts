@@ -64,11 +64,18 @@ export function createReadCache(databaseUrl: string, opts: { max?: number; ttlMs
       lost();
     }
   }
-  if (opts.listen !== false) ready = listen();
+  // The listening connection opens with the first read (scan workers and scripts never read).
+  let started = opts.listen === false;
+  const start = () => {
+    if (started) return;
+    started = true;
+    ready = listen();
+  };
 
   return {
     /** `load()`'s answer for `key`, from memory when nothing has changed since it was read. */
     async get<T>(key: string, load: () => Promise<T>): Promise<T> {
+      start();
       if (!listening) return load();
       const hit = cache.get(key);
       if (hit && hit.generation === generation) return hit.value as T;
@@ -87,8 +94,11 @@ export function createReadCache(databaseUrl: string, opts: { max?: number; ttlMs
     },
     /** Forget everything (a write may be under way or has just finished). */
     invalidate: bump,
-    /** Resolves once the first attempt to listen has ended (tests, benchmarks). */
-    ready: () => ready,
+    /** Starts listening if not yet; resolves once that first attempt has ended (tests, benchmarks). */
+    ready: () => {
+      start();
+      return ready;
+    },
     get listening() {
       return listening;
     },
