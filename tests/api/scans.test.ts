@@ -1,7 +1,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import path from 'node:path';
-import { eq } from 'drizzle-orm';
-import { scanPoints } from '@/db/schema/scans';
+import { and, eq, inArray } from 'drizzle-orm';
+import { scanPoints, scanTasks } from '@/db/schema/scans';
 import { startQueue } from '@/server/jobs/queue';
 import { runNextTask, startScanWorkers } from '@/server/jobs/scan-worker';
 import { startWorkerProcesses, type WorkerProcesses } from '@/server/jobs/worker-processes';
@@ -193,16 +193,22 @@ describe('cancel, and workers that crash', () => {
       .post(`/api/groups/${groupId}/scans`)
       .send({ points, options: { method: 'toys', toys: 400, seed: 7 }, meta: { ...META, method: 'toys' } });
     expect(res.status).toBe(201);
-    const first = startWorker();
-    await waitFor(t, crew.analyst.agent, groupId, res.body.id, (s) => s.donePoints >= 1);
-    // Kill it while it is inside a point: one has been started (attempt counted) but not finished.
-    for (let i = 0; ; i++) {
-      const rows = await t.ctx.db.select().from(scanPoints).where(eq(scanPoints.scanId, res.body.id));
-      if (rows.some((r) => r.state === 'queued' && r.attempts === 1)) break;
-      if (i > 600) throw new Error('the worker never started a second point');
-      await new Promise((r) => setTimeout(r, 20));
+    // Kill a worker while it holds a task (a chunk of a point's pseudo-experiments). A task still
+    // marked running after the kill was in the dead worker's hands: the kill came mid-chunk. If the
+    // chunk happened to finish between the look and the kill, start another worker and try again.
+    const inFlight = () => t.ctx.db.select().from(scanTasks).where(and(eq(scanTasks.scanId, res.body.id), eq(scanTasks.state, 'running')));
+    let interrupted: number[] = [];
+    for (let round = 0; interrupted.length === 0; round++) {
+      if (round >= 5) throw new Error('could not kill a worker in the middle of a chunk');
+      const worker = startWorker();
+      for (let i = 0; (await inFlight()).length === 0; i++) {
+        if (i > 1500) throw new Error('the worker never started a chunk');
+        await new Promise((r) => setTimeout(r, 20));
+      }
+      worker.kill('SIGKILL');
+      await new Promise<void>((r) => (worker.exitCode !== null || worker.signalCode !== null ? r() : worker.once('exit', () => r())));
+      interrupted = (await inFlight()).map((task) => task.id);
     }
-    first.kill('SIGKILL');
     const afterKill = (await crew.analyst.agent.get(`/api/groups/${groupId}/scans/${res.body.id}`)).body as ScanDetail;
     expect(afterKill.state).toBe('running');
     startWorker();
@@ -211,8 +217,16 @@ describe('cancel, and workers that crash', () => {
     expect(done.failedPoints).toBe(0);
     const rows = await t.ctx.db.select().from(scanPoints).where(eq(scanPoints.scanId, res.body.id));
     expect(rows.every((r) => r.state === 'done')).toBe(true);
-    // The point that was running when the worker died was tried again.
-    expect(rows.some((r) => r.attempts >= 2)).toBe(true);
+    // The chunk that was running when its worker died was claimed again once its lease ran out,
+    // and finished by the new worker.
+    const tasks = await t.ctx.db.select().from(scanTasks).where(inArray(scanTasks.id, interrupted));
+    expect(tasks.length).toBe(interrupted.length);
+    for (const task of tasks) {
+      expect(task.state).toBe('done');
+      expect(task.attempts).toBeGreaterThanOrEqual(2);
+    }
+    const retriedPoints = new Set(tasks.map((task) => task.pointIndex));
+    expect(rows.filter((r) => retriedPoints.has(r.index)).every((r) => r.attempts >= 2)).toBe(true);
     const v = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${done.resultId}/versions/${done.resultVersion}`);
     expect(v.body.curve.x).toEqual(points.map((p) => p.x));
     expect(v.body.meta.method).toBe('toys');
