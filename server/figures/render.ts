@@ -17,48 +17,6 @@ import { labelPlainText } from './typeset';
  */
 
 // ---------------------------------------------------------------------------------------------
-// Glyph reuse
-
-const LABEL_GROUP = /<g transform="([^"]*)" fill="([^"]*)">((?:<path d="[^"]*"\/>)+)<\/g>/g;
-const GLYPH_PATH = /<path d="M(-?[\d.]+) (-?[\d.]+)([a-z][^"]*)"\/>/g;
-
-/**
- * Draws every glyph outline that occurs more than once a single time: the typesetter gives each
- * glyph one path whose first point is absolute and the rest relative, so equal glyphs have equal
- * path bodies. Such paths move into <defs> and the label groups `<use>` them at their first
- * point. The picture is unchanged; the SVG gets smaller, and the PDF draws each glyph as one
- * form object (several times faster to write and to read). Only the label groups of sceneToSvg
- * (`<g transform fill>` with bare `<path d>` children) are touched.
- */
-export function reuseGlyphs(svg: string): string {
-  const counts = new Map<string, number>();
-  for (const g of svg.matchAll(LABEL_GROUP)) {
-    for (const p of g[3]!.matchAll(GLYPH_PATH)) counts.set(p[3]!, (counts.get(p[3]!) ?? 0) + 1);
-  }
-  const prefix = `gl${createHash('sha1').update(svg).digest('hex').slice(0, 6)}-`;
-  const ids = new Map<string, string>();
-  const defs: string[] = [];
-  const idOf = (body: string) => {
-    let id = ids.get(body);
-    if (!id) {
-      id = `${prefix}${ids.size}`;
-      ids.set(body, id);
-      defs.push(`<path id="${id}" d="M0 0${body}" fill="currentColor"/>`);
-    }
-    return id;
-  };
-  const out = svg.replace(LABEL_GROUP, (_m, transform: string, fill: string, paths: string) => {
-    const inner = paths.replace(GLYPH_PATH, (p, x: string, y: string, body: string) =>
-      (counts.get(body) ?? 0) > 1 ? `<use href="#${idOf(body)}" x="${x}" y="${y}"/>` : p,
-    );
-    // `color` feeds the shared outlines' currentColor (svg2pdf does not pass fill into <use>).
-    return `<g transform="${transform}" fill="${fill}" color="${fill}">${inner}</g>`;
-  });
-  if (!defs.length) return svg;
-  return out.replace(/<svg\b[^>]*>/, (open) => `${open}<defs>${defs.join('')}</defs>`);
-}
-
-// ---------------------------------------------------------------------------------------------
 // PNG
 
 /** Largest PNG side and area: beyond these a render would take seconds and hundreds of MB. */

@@ -1,6 +1,6 @@
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
-import { reuseGlyphs, svgToPdf, svgToPng } from '@/server/figures/render';
+import { svgToPdf, svgToPng } from '@/server/figures/render';
 import { createRenderPool, RenderFailed, type RenderPool } from '@/server/figures/render-pool';
 import { buildFigure } from '@/server/figures/scene';
 import { dijet, dilepton, spec } from './figure/fixtures';
@@ -23,7 +23,7 @@ const ABORTS_RESVG =
   '<svg xmlns="http://www.w3.org/2000/svg" width="100" height="100" viewBox="0 0 100 100"><clipPath id="c"><rect x="500" y="10" width="1" height="50"/></clipPath><path d="M499,40A2,2 0 1,0 503,40A2,2 0 1,0 499,40Z" fill="#fff" clip-path="url(#c)"/></svg>';
 
 const built = buildFigure(spec(), [dijet, dilepton], null);
-const svg = reuseGlyphs(built.svg);
+const svg = built.svg;
 const meta = { title: 'Pool test figure', created: new Date('2026-01-02T03:04:05Z') };
 
 let pool: RenderPool;
@@ -44,7 +44,7 @@ test('a figure whose curves and markers lie far outside a fixed axis range no lo
   const far = buildFigure(spec({ theme: 'outreach', size: { preset: 'slide' }, x: { scale: 'linear', min: 1e300, max: null, label: 'x' } }), [dijet, dilepton], null);
   const root = path.resolve(__dirname, '../..');
   const draw = `let s='';process.stdin.on('data',d=>s+=d).on('end',()=>{new (require('@resvg/resvg-js').Resvg)(s).render();console.log('drawn')})`;
-  const r = spawnSync(process.execPath, ['-e', draw], { cwd: root, input: reuseGlyphs(far.svg), encoding: 'utf8' });
+  const r = spawnSync(process.execPath, ['-e', draw], { cwd: root, input: far.svg, encoding: 'utf8' });
   expect({ signal: r.signal, status: r.status, out: r.stdout.trim() }).toEqual({ signal: null, status: 0, out: 'drawn' });
 });
 

@@ -4,7 +4,7 @@ import { dijet, dilepton, ID, spec, stubGlyphs, stubMeasure } from './fixtures';
 
 const HOSTILE = ['<script>alert(1)</script>', '"><svg onload=alert(1)>', ']]>', "' onmouseover='x", '&amp; &#60;'];
 
-function render(labels: string[], title: string, glyphsFor?: (g: Glyphs, requests: LabelRequest[]) => Glyphs) {
+function render(labels: string[], title: string, glyphsFor?: (g: Glyphs, requests: LabelRequest[]) => Glyphs, reuseGlyphs = false) {
   const s = spec({
     title: 'Hostile',
     x: { scale: 'linear', min: null, max: null, label: labels[0]! },
@@ -16,7 +16,7 @@ function render(labels: string[], title: string, glyphsFor?: (g: Glyphs, request
   const theme = resolveFigureTheme('publication');
   const requests = collectLabels(s, layers, theme);
   const glyphs = stubGlyphs(requests);
-  return { svg: sceneToSvg(buildScene(s, layers, theme, stubMeasure), glyphsFor ? glyphsFor(glyphs, requests) : glyphs, { title }), requests };
+  return { svg: sceneToSvg(buildScene(s, layers, theme, stubMeasure), glyphsFor ? glyphsFor(glyphs, requests) : glyphs, { title, reuseGlyphs }), requests };
 }
 
 /** Element names of a well-formed SVG document (JSDOM throws on malformed XML). */
@@ -67,5 +67,37 @@ describe('SVG output', () => {
   });
   test('deterministic', () => {
     expect(render(['a', 'b', 'c'], 't').svg).toBe(render(['a', 'b', 'c'], 't').svg);
+  });
+  test('glyph reuse: each repeated outline drawn once in <defs> and used where it was; the same glyphs end up on the page', () => {
+    // Glyphs as the typesetter writes them: an absolute first point, then a relative body; one per character.
+    const perCharacter = (g: Glyphs, requests: LabelRequest[]) => {
+      for (const r of requests) {
+        const paths = [...r.label].map((c, i) => `M${i * 5} ${i % 2}h4v${(c.charCodeAt(0) % 7) + 1}c0.5 1.25 1.5 2.75 3.25 4.5c-0.5 1.25-1.5 2.75-3.25 4.5h-4z`);
+        g.set(labelKey(r), { width: paths.length * 5, ascent: 7, descent: 1, paths });
+      }
+      return g;
+    };
+    const labels = ['mass mass', 'limit limit', 'Dijet'];
+    const plain = render(labels, 'x', perCharacter).svg;
+    const reused = render(labels, 'x', perCharacter, true).svg;
+    const doc = (svg: string) => new JSDOM(svg, { contentType: 'image/svg+xml' }).window.document;
+    /** Every glyph drawn inside a label group, written back as one absolute path. */
+    const drawnGlyphs = (svg: string) => {
+      const d = doc(svg);
+      const defs = new Map([...d.querySelectorAll('defs > path[id]')].map((p) => [p.getAttribute('id')!, p.getAttribute('d')!.replace(/^M0 0/, '')]));
+      return [...d.querySelectorAll('g[transform] > *')].map((e) => (e.localName === 'use' ? `M${e.getAttribute('x')} ${e.getAttribute('y')}${defs.get(e.getAttribute('href')!.slice(1))}` : e.getAttribute('d'))).sort();
+    };
+    expect(drawnGlyphs(reused)).toEqual(drawnGlyphs(plain));
+    const r = doc(reused);
+    expect(r.querySelectorAll('use').length).toBeGreaterThan(10);
+    // Only outlines that occur more than once are shared, and each only once.
+    const defs = [...r.querySelectorAll('defs > path[id]')].map((p) => p.getAttribute('d'));
+    expect(new Set(defs).size).toBe(defs.length);
+    for (const u of r.querySelectorAll('use')) expect(r.getElementById(u.getAttribute('href')!.slice(1))).not.toBeNull();
+    // The label groups pass their colour to the shared outlines (currentColor).
+    for (const g of r.querySelectorAll('g[transform]')) expect(g.getAttribute('color')).toBe(g.getAttribute('fill'));
+    expect(reused.length).toBeLessThan(plain.length);
+    // Without repeats nothing changes.
+    expect(render(['a', 'b', 'c'], 't', undefined, true).svg).toBe(render(['a', 'b', 'c'], 't').svg);
   });
 });
