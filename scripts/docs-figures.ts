@@ -12,7 +12,7 @@ import { DEMO_FIGURES } from '../server/seed/seed-figures';
 import { closeContext, createContext } from '../server/context';
 import { runMigrations } from '../db/client';
 import { loadEnv } from '../server/env';
-import { renderPublic } from '../server/services/figures';
+import { renderPublic } from '../server/services/figure-renders';
 import { ensureDatabase, startCluster, stopCluster, tmpRoot } from './lib/postgres';
 
 const OUT = path.resolve(__dirname, '../docs/figures');

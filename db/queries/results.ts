@@ -1,44 +1,16 @@
-import { and, asc, count, desc, eq, exists, getTableColumns, ilike, max, ne, or, sql, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, getTableColumns, ilike, inArray, max, or, sql, type SQL } from 'drizzle-orm';
 import type { ResultListQuery } from '../../shared/schemas/results';
 import type { Executor } from '../client';
-import { figureLayers, figures, groups, memberships, results, resultVersions, user } from '../schema';
+import { versionVisibleSql, type Viewer } from './visibility';
+import { figureLayers, figures, groups, results, resultVersions, user } from '../schema';
 
 /**
  * Data access of the results registry. Every function is scoped: by the group (routes that have
- * checked membership), or by a `Viewer` whose visibility rule is applied here in SQL, so no caller
- * can forget it.
+ * checked membership), or by a `Viewer` whose visibility rule (db/queries/visibility.ts) is
+ * applied here in SQL, so no caller can forget it.
  */
 
-/**
- * Whose eyes a read is for:
- * - `group`: a member of that group (the route checked it): every result of the group, any state;
- * - `user`: a signed-in user (or nobody, `userId: null`): their groups' results in any state, and
- *   other groups' public results without drafts;
- * - `public`: public results without drafts, whoever asks.
- */
-export type Viewer = { kind: 'group'; groupId: string } | { kind: 'user'; userId: string | null } | { kind: 'public' };
-
-const notDraft = ne(resultVersions.state, 'draft');
-
-function isMember(userId: string): SQL {
-  return exists(
-    sql`(select 1 from ${memberships} where ${memberships.groupId} = ${results.groupId} and ${memberships.userId} = ${userId})`,
-  );
-}
-
-/** The versions `viewer` may see (used with `results` and `resultVersions` in scope). */
-function versionVisible(viewer: Viewer): SQL {
-  switch (viewer.kind) {
-    case 'group':
-      return eq(results.groupId, viewer.groupId);
-    case 'public':
-      return and(eq(results.isPublic, true), notDraft)!;
-    case 'user': {
-      const open = and(eq(results.isPublic, true), notDraft)!;
-      return viewer.userId ? or(isMember(viewer.userId), open)! : open;
-    }
-  }
-}
+export type { Viewer } from './visibility';
 
 /** `%text%` for ILIKE with the pattern characters of the text escaped. */
 export function containsPattern(text: string): string {
@@ -76,19 +48,23 @@ export async function lockResult(db: Executor, groupId: string, resultId: string
   return rows[0];
 }
 
+/** The result `resultId` if it belongs to `groupId`: the scope of every write to its versions. */
+const resultOfGroup = (db: Executor, groupId: string, resultId: string) =>
+  db.select({ id: results.id }).from(results).where(and(eq(results.id, resultId), eq(results.groupId, groupId)));
+
 /** Gives out the next version number of a locked result. */
-export async function takeNextVersion(db: Executor, resultId: string): Promise<number> {
+export async function takeNextVersion(db: Executor, groupId: string, resultId: string): Promise<number> {
   const [row] = await db
     .update(results)
     .set({ lastVersion: sql`${results.lastVersion} + 1`, updatedAt: sql`now()` })
-    .where(eq(results.id, resultId))
+    .where(and(eq(results.id, resultId), eq(results.groupId, groupId)))
     .returning({ n: results.lastVersion });
   if (!row) throw new Error(`result ${resultId} vanished while locked`);
   return row.n;
 }
 
-export async function touchResult(db: Executor, resultId: string) {
-  await db.update(results).set({ updatedAt: sql`now()` }).where(eq(results.id, resultId));
+export async function touchResult(db: Executor, groupId: string, resultId: string) {
+  await db.update(results).set({ updatedAt: sql`now()` }).where(and(eq(results.id, resultId), eq(results.groupId, groupId)));
 }
 
 export async function setResultPublic(db: Executor, groupId: string, resultId: string, isPublic: boolean) {
@@ -181,12 +157,13 @@ export async function getVersion(db: Executor, groupId: string, resultId: string
 
 /** A version by its permanent link (`slug`, `version`), if `viewer` may see it. */
 export async function getVersionByLink(db: Executor, viewer: Viewer, slug: string, version: number) {
-  const rows = await selectFullVersion(db).where(and(eq(results.slug, slug), eq(resultVersions.version, version), versionVisible(viewer)));
+  const rows = await selectFullVersion(db).where(and(eq(results.slug, slug), eq(resultVersions.version, version), versionVisibleSql(viewer)));
   return rows[0];
 }
 
 export async function updateVersion(
   db: Executor,
+  groupId: string,
   resultId: string,
   version: number,
   patch: Partial<Pick<typeof resultVersions.$inferInsert, 'state' | 'publishedAt' | 'retractedAt' | 'retractionReason' | 'storedBytes' | 'curve' | 'theory' | 'changeNote' | 'title' | 'model' | 'parameterName' | 'parameterUnit' | 'quantity' | 'quantityUnit' | 'sqrtS' | 'luminosity' | 'cl' | 'method' | 'reference' | 'notes'>>,
@@ -194,19 +171,19 @@ export async function updateVersion(
   await db
     .update(resultVersions)
     .set({ ...patch, updatedAt: sql`now()` })
-    .where(and(eq(resultVersions.resultId, resultId), eq(resultVersions.version, version)));
+    .where(and(inArray(resultVersions.resultId, resultOfGroup(db, groupId, resultId)), eq(resultVersions.version, version)));
 }
 
 /** Marks the result's published version(s) superseded (before another is published). */
-export async function supersedePublished(db: Executor, resultId: string) {
+export async function supersedePublished(db: Executor, groupId: string, resultId: string) {
   await db
     .update(resultVersions)
     .set({ state: 'superseded', updatedAt: sql`now()` })
-    .where(and(eq(resultVersions.resultId, resultId), eq(resultVersions.state, 'published')));
+    .where(and(inArray(resultVersions.resultId, resultOfGroup(db, groupId, resultId)), eq(resultVersions.state, 'published')));
 }
 
-export async function deleteVersion(db: Executor, resultId: string, version: number) {
-  await db.delete(resultVersions).where(and(eq(resultVersions.resultId, resultId), eq(resultVersions.version, version)));
+export async function deleteVersion(db: Executor, groupId: string, resultId: string, version: number) {
+  await db.delete(resultVersions).where(and(inArray(resultVersions.resultId, resultOfGroup(db, groupId, resultId)), eq(resultVersions.version, version)));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -224,7 +201,7 @@ export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) 
     .select({ resultId: resultVersions.resultId, version: max(resultVersions.version).as('latest_version') })
     .from(resultVersions)
     .innerJoin(results, eq(results.id, resultVersions.resultId))
-    .where(versionVisible(viewer))
+    .where(versionVisibleSql(viewer))
     .groupBy(resultVersions.resultId)
     .as('latest');
 

@@ -8,7 +8,7 @@ import { svg2pdf } from 'svg2pdf.js/dist/svg2pdf.es.min.js';
 import { labelKey, type FontRole, type Glyphs, type Scene } from '../../shared/figure/types';
 import { FIGURE_LIMITS } from '../../shared/schemas/figures';
 import { fontBytes, fontFile } from './fonts';
-import { labelPlainText } from './typeset';
+import { labelPlainText } from '../../shared/figure/labels';
 
 /**
  * The renderers: the scene's SVG (every label already a path) becomes a PDF page of the figure's

@@ -21,6 +21,7 @@ import type { Ctx } from '../context';
 import { typesetLabels } from '../figures/typeset';
 import { handle } from '../lib/validate';
 import * as figures from '../services/figures';
+import * as renders from '../services/figure-renders';
 
 const exportQuery = renderQuery.pick({ version: true });
 
@@ -29,7 +30,7 @@ function asciiJson(v: unknown): string {
   return JSON.stringify(v).replace(/[\u007f-\uffff]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 }
 
-function sendRender(res: Response, out: figures.RenderOutput, cacheControl: string) {
+function sendRender(res: Response, out: renders.RenderOutput, cacheControl: string) {
   res.setHeader('Content-Type', out.contentType);
   res.setHeader('Content-Disposition', `inline; filename="${out.fileName}"`);
   res.setHeader('X-Render-Cache', out.cache);
@@ -43,7 +44,7 @@ function sendRender(res: Response, out: figures.RenderOutput, cacheControl: stri
   res.send(out.body);
 }
 
-function sendExport(res: Response, file: figures.ExportFile) {
+function sendExport(res: Response, file: renders.ExportFile) {
   res.setHeader('Content-Type', file.contentType);
   res.attachment(file.fileName);
   res.setHeader('Cache-Control', 'private, no-cache');
@@ -126,18 +127,18 @@ export function figuresRouter(ctx: Ctx) {
 
   for (const format of RENDER_FORMATS) {
     r.get(`/figures/:figureId/render.${format}`, optionalUser(ctx), anonymousRenders, handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, req, res) => {
-      const out = await figures.renderForCaller(ctx, params.figureId, req.user?.id ?? null, { format, ...query });
+      const out = await renders.renderForCaller(ctx, params.figureId, req.user?.id ?? null, { format, ...query });
       // What is drawn depends on who asks: no shared cache may keep it.
       sendRender(res, out, 'private, no-cache');
     }));
   }
 
   r.get('/figures/:figureId/export.csv', optionalUser(ctx), handle({ params: figureIdParams, query: exportQuery }, async ({ params, query }, req, res) => {
-    sendExport(res, await figures.exportFigure(ctx, params.figureId, req.user?.id ?? null, 'csv', query.version));
+    sendExport(res, await renders.exportFigure(ctx, params.figureId, req.user?.id ?? null, 'csv', query.version));
   }));
 
   r.get('/figures/:figureId/caption.txt', optionalUser(ctx), handle({ params: figureIdParams, query: exportQuery }, async ({ params, query }, req, res) => {
-    sendExport(res, await figures.exportFigure(ctx, params.figureId, req.user?.id ?? null, 'caption', query.version));
+    sendExport(res, await renders.exportFigure(ctx, params.figureId, req.user?.id ?? null, 'caption', query.version));
   }));
 
   // --- Public figures, whoever asks ----------------------------------------------------------
@@ -148,7 +149,7 @@ export function figuresRouter(ctx: Ctx) {
 
   for (const format of RENDER_FORMATS) {
     r.get(`/public/figures/:figureId/render.${format}`, anonymousRenders, handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, _req, res) => {
-      sendRender(res, await figures.renderPublic(ctx, params.figureId, { format, ...query }), 'public, max-age=60');
+      sendRender(res, await renders.renderPublic(ctx, params.figureId, { format, ...query }), 'public, max-age=60');
     }));
   }
 

@@ -242,7 +242,7 @@ export async function addVersion(
     if (!(await q.lockResult(tx, groupId, resultId))) throw notFound('Result');
     const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
     if (!opts.admitted) await assertStorageAvailable(tx, groupId, storedBytes);
-    const n = await q.takeNextVersion(tx, resultId);
+    const n = await q.takeNextVersion(tx, groupId, resultId);
     await q.insertVersion(tx, {
       resultId,
       version: n,
@@ -279,13 +279,13 @@ export async function updateDraft(ctx: Ctx, groupId: string, resultId: string, v
     if (patch.curve !== undefined || patch.theory !== undefined) assertCurveValid(curve, theory);
     const storedBytes = storedBytesOf({ meta, curve, theory, sourceBytes: row.sourceBytes ?? 0 });
     await assertStorageAvailable(tx, groupId, storedBytes - row.storedBytes, 'this change');
-    await q.updateVersion(tx, resultId, version, {
+    await q.updateVersion(tx, groupId, resultId, version, {
       ...versionColumns({ meta, curve, theory }),
       ...(patch.changeNote !== undefined ? { changeNote: patch.changeNote } : {}),
       storedBytes,
     });
     await q.addStorage(tx, groupId, storedBytes - row.storedBytes);
-    await q.touchResult(tx, resultId);
+    await q.touchResult(tx, groupId, resultId);
   });
   return getVersion(ctx, groupId, resultId, version);
 }
@@ -304,10 +304,10 @@ export async function deleteDraft(ctx: Ctx, groupId: string, resultId: string, v
     const row = await lockedVersion(tx, groupId, resultId, version);
     if (row.state !== 'draft') throw immutable(version, row.state);
     await refuseIfUsedByFigures(tx, { groupId, resultId, version });
-    await q.deleteVersion(tx, resultId, version);
+    await q.deleteVersion(tx, groupId, resultId, version);
     await q.addStorage(tx, groupId, -row.storedBytes);
     if ((await q.versionStates(tx, groupId, resultId)).length === 0) await q.deleteResult(tx, groupId, resultId);
-    else await q.touchResult(tx, resultId);
+    else await q.touchResult(tx, groupId, resultId);
   });
 }
 
@@ -341,10 +341,10 @@ export async function publish(ctx: Ctx, groupId: string, resultId: string, versi
     if (newer.length) {
       throw conflict(`Version ${newer[0]!.version} is newer and already ${newer[0]!.state}; create a new version from this draft's data instead`);
     }
-    await q.supersedePublished(tx, resultId);
-    await q.updateVersion(tx, resultId, version, { state: 'published', publishedAt: new Date() });
+    await q.supersedePublished(tx, groupId, resultId);
+    await q.updateVersion(tx, groupId, resultId, version, { state: 'published', publishedAt: new Date() });
     if (opts.public !== undefined) await q.setResultPublic(tx, groupId, resultId, opts.public);
-    else await q.touchResult(tx, resultId);
+    else await q.touchResult(tx, groupId, resultId);
   });
   return getVersion(ctx, groupId, resultId, version);
 }
@@ -355,8 +355,8 @@ export async function retract(ctx: Ctx, groupId: string, resultId: string, versi
     const row = await lockedVersion(tx, groupId, resultId, version);
     if (row.state === 'draft') throw conflict(`Version ${version} is a draft and was never published; delete it instead`);
     if (row.state === 'retracted') throw conflict(`Version ${version} is already retracted`);
-    await q.updateVersion(tx, resultId, version, { state: 'retracted', retractedAt: new Date(), retractionReason: reason });
-    await q.touchResult(tx, resultId);
+    await q.updateVersion(tx, groupId, resultId, version, { state: 'retracted', retractedAt: new Date(), retractionReason: reason });
+    await q.touchResult(tx, groupId, resultId);
   });
   return getVersion(ctx, groupId, resultId, version);
 }

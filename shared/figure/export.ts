@@ -3,6 +3,7 @@
  * what the figure draws, and nothing of layers the viewer may not see.
  */
 import type { FigureSpec } from '../schemas/figures';
+import { labelPlainText } from './labels';
 import { canCompare, drawnLayers, shortNumber, type DrawnLayer } from './plan';
 import { resolveFigureTheme } from './theme';
 import type { FigureLayerData } from './types';
@@ -49,25 +50,11 @@ export function figureCsv(spec: FigureSpec, layers: FigureLayerData[]): string {
     for (const [quantity, xs, ys] of plottedColumns(l)) {
       if (!ys) continue;
       for (let i = 0; i < Math.min(xs.length, ys.length); i++) {
-        rows.push([cell(l.name), quantity, cell(xs[i]!), cell(ys[i]!), cell(meta.parameterUnit), cell(valueUnit)].join(','));
+        rows.push([cell(labelPlainText(l.name)), quantity, cell(xs[i]!), cell(ys[i]!), cell(meta.parameterUnit), cell(valueUnit)].join(','));
       }
     }
   }
   return `${rows.join('\r\n')}\r\n`;
-}
-
-/** A label's text without TeX markup, for plain-text captions. */
-function plain(label: string): string {
-  return label
-    .replace(/\\sigma/g, 'σ')
-    .replace(/\\mu/g, 'μ')
-    .replace(/\\times/g, '×')
-    .replace(/\\pm/g, '±')
-    .replace(/\\sqrt\{([^}]*)\}/g, '√$1')
-    .replace(/\^\{?-1\}?/g, '⁻¹')
-    .replace(/[$\\{}]/g, '')
-    .replace(/\s+/g, ' ')
-    .trim();
 }
 
 function listing(items: string[]): string {
@@ -94,26 +81,26 @@ export function captionDraft(spec: FigureSpec, layers: FigureLayerData[]): strin
     const param = `${first.parameterName}${first.parameterUnit ? ` (${first.parameterUnit})` : ''}`;
     const results = drawn.map((l) => {
       const ref = l.data.meta.reference.trim();
-      return `${plain(l.name)} (${ref ? `${ref}, ` : ''}version ${l.data.version})`;
+      return `${labelPlainText(l.name)} (${ref ? `${ref}, ` : ''}version ${l.data.version})`;
     });
     if (outreach) {
-      parts.push(`How large a signal of new particles could still hide in the data, as a function of ${plain(param)}, from ${listing(results)}.`);
+      parts.push(`How large a signal of new particles could still hide in the data, as a function of ${labelPlainText(param)}, from ${listing(results)}.`);
       parts.push('Solid lines: what the data allow; dashed lines: what was expected if there is no new particle.');
     } else {
-      parts.push(`Observed (solid) and expected (dashed) ${cls}% CL upper limits on ${quantity} as a function of ${plain(param)}, from ${listing(results)}.`);
+      parts.push(`Observed (solid) and expected (dashed) ${cls}% CL upper limits on ${quantity} as a function of ${labelPlainText(param)}, from ${listing(results)}.`);
     }
     const bands = drawn.find((l) => l.band1 || l.band2);
     if (bands) {
       const which = [bands.band1 ? '±1σ' : null, bands.band2 ? '±2σ' : null].filter(Boolean).join(' and ');
-      parts.push(outreach ? `The shaded band shows the range expected for ${plain(bands.name)}.` : `The ${which} bands around the expected limit of ${plain(bands.name)} are shown.`);
+      parts.push(outreach ? `The shaded band shows the range expected for ${labelPlainText(bands.name)}.` : `The ${which} bands around the expected limit of ${labelPlainText(bands.name)} are shown.`);
     }
     const theories = drawn.filter((l) => l.theory);
     if (theories.length) {
-      const names = [...new Set(theories.map((l) => plain(l.theory!.label?.trim() || 'the theory prediction')))];
+      const names = [...new Set(theories.map((l) => labelPlainText(l.theory!.label?.trim() || 'the theory prediction')))];
       parts.push(outreach ? `The dotted line is ${listing(names)}.` : `Dotted: ${listing(names)}${theories.some((l) => l.spec.show.theoryBand && l.theory!.lower) ? ', with its uncertainty band' : ''}.`);
     }
     const shading = spec.excludedShading ? drawn.find(canCompare) : undefined;
-    if (shading) parts.push(outreach ? `The shaded area is ruled out by ${plain(shading.name)}.` : `The shaded region is excluded by the observed limit of ${plain(shading.name)}.`);
+    if (shading) parts.push(outreach ? `The shaded area is ruled out by ${labelPlainText(shading.name)}.` : `The shaded region is excluded by the observed limit of ${labelPlainText(shading.name)}.`);
     const energies = [...new Set(drawn.map((l) => `√s = ${shortNumber(l.data.meta.sqrtS)} TeV, ${shortNumber(l.data.meta.luminosity)} fb⁻¹`))];
     parts.push(outreach ? `Collision energy: ${[...new Set(drawn.map((l) => `${shortNumber(l.data.meta.sqrtS)} TeV`))].join(', ')}.` : `${listing(energies)}.`);
   }

@@ -10,6 +10,8 @@ export { resolveFigureTheme, layerColor, type ResolvedTheme } from './theme';
 export { collectLabels, buildScene, labelsOffPage } from './scene';
 export { sceneToSvg, escapeXml } from './svg';
 export { figureCsv, captionDraft } from './export';
+export { splitLabel, labelPlainText, type LabelSegment } from './labels';
+export { outreachSpec } from './outreach';
 export { sizePt } from './plan';
 export { paletteProblems, PALETTE_THRESHOLDS } from './color';
 export * from './types';

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { eq, sql } from 'drizzle-orm';
 import request from 'supertest';
-import * as q from '@/db/queries/figures';
+import * as q from '@/db/queries/figure-renders';
 import { figureRenders, groups } from '@/db/schema';
 import { FREE_PLAN } from '@/shared/plans';
 import { OFFERED_DPIS } from '@/shared/schemas/figures';

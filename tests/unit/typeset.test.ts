@@ -1,6 +1,7 @@
 import { labelKey, type LabelRequest } from '@/shared/figure/types';
 import { multiply, parsePath, pathBox, scale, transformPath, translate } from '@/server/figures/svg-path';
-import { labelPlainText, measureFromGlyphs, splitLabel, typesetLabel, typesetLabels } from '@/server/figures/typeset';
+import { labelPlainText, splitLabel } from '@/shared/figure/labels';
+import { measureFromGlyphs, typesetLabel, typesetLabels } from '@/server/figures/typeset';
 
 const sans = (label: string, size = 10): LabelRequest => ({ label, size, font: 'sans' });
 const one = (label: string, size = 10, font: 'sans' | 'serif' = 'sans') => typesetLabels([{ label, size, font }]).get(labelKey({ label, size, font }))!;
