@@ -147,12 +147,12 @@ export async function releaseTask(db: Executor, id: number, attempt: number): Pr
 }
 
 /** Cancels a scan's open tasks (a running one stops at its next heartbeat). */
-export async function cancelOpenTasks(db: Executor, scanId: string, pointIndex?: number) {
+export async function cancelOpenTasks(db: Executor, groupId: string, scanId: string, pointIndex?: number) {
   await db
     .update(scanTasks)
     .set({ state: 'cancelled', leaseUntil: null, finishedAt: sql`now()` })
     .where(
-      and(eq(scanTasks.scanId, scanId), inArray(scanTasks.state, ['queued', 'running']), pointIndex === undefined ? undefined : eq(scanTasks.pointIndex, pointIndex)),
+      and(eq(scanTasks.scanId, scanId), eq(scanTasks.groupId, groupId), inArray(scanTasks.state, ['queued', 'running']), pointIndex === undefined ? undefined : eq(scanTasks.pointIndex, pointIndex)),
     );
 }
 
@@ -191,7 +191,7 @@ export async function queuedCost(db: Executor, groupId: string): Promise<number>
  * task's back-off (`run_after`), or the lease of a task whose worker went silent (then already
  * past: due, waiting for a free worker). `now` is the database's clock, which these times are on.
  */
-export async function taskProgress(db: Executor, scanId: string) {
+export async function taskProgress(db: Executor, groupId: string, scanId: string) {
   const r = await db.execute<{ point_index: number; tasks: number; open: number; done: number; running: number; retry_at: Date | string | null; attempts: number; now: Date | string }>(sql`
     select point_index,
            count(*)::int as tasks,
@@ -203,7 +203,7 @@ export async function taskProgress(db: Executor, scanId: string) {
            max(attempts)::int as attempts,
            now() as now
     from ${scanTasks}
-    where scan_id = ${scanId}
+    where scan_id = ${scanId} and group_id = ${groupId}
     group by point_index
     order by point_index`);
   return r.rows.map((row) => ({

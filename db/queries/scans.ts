@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { ExpectedLimits } from '../../shared/schemas/counting-model';
 import type { ScanOptions } from '../../shared/schemas/scans';
 import type { Executor } from '../client';
@@ -52,8 +52,12 @@ export async function getScanById(db: Executor, scanId: string, lock = false) {
   return rows[0];
 }
 
+/** The scan `scanId` if it belongs to `groupId`: the scope of the request path's point reads and writes. */
+const scanOfGroup = (db: Executor, groupId: string, scanId: string) =>
+  db.select({ id: scans.id }).from(scans).where(and(eq(scans.id, scanId), eq(scans.groupId, groupId)));
+
 /** Points of a scan without their models and diagnostics (for progress views). */
-export async function listPointSummaries(db: Executor, scanId: string) {
+export async function listPointSummaries(db: Executor, groupId: string, scanId: string) {
   return db
     .select({
       index: scanPoints.index,
@@ -68,12 +72,12 @@ export async function listPointSummaries(db: Executor, scanId: string) {
       computeMs: scanPoints.computeMs,
     })
     .from(scanPoints)
-    .where(eq(scanPoints.scanId, scanId))
+    .where(inArray(scanPoints.scanId, scanOfGroup(db, groupId, scanId)))
     .orderBy(asc(scanPoints.index));
 }
 
-export async function getPoint(db: Executor, scanId: string, index: number) {
-  const rows = await db.select().from(scanPoints).where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.index, index)));
+export async function getPoint(db: Executor, groupId: string, scanId: string, index: number) {
+  const rows = await db.select().from(scanPoints).where(and(inArray(scanPoints.scanId, scanOfGroup(db, groupId, scanId)), eq(scanPoints.index, index)));
   return rows[0];
 }
 
@@ -85,11 +89,11 @@ export async function listFinishedPoints(db: Executor, scanId: string) {
     .orderBy(asc(scanPoints.x));
 }
 
-export async function listPointInputs(db: Executor, scanId: string) {
+export async function listPointInputs(db: Executor, groupId: string, scanId: string) {
   return db
     .select({ x: scanPoints.x, sigmaNominal: scanPoints.sigmaNominal, model: scanPoints.model })
     .from(scanPoints)
-    .where(eq(scanPoints.scanId, scanId))
+    .where(inArray(scanPoints.scanId, scanOfGroup(db, groupId, scanId)))
     .orderBy(asc(scanPoints.index));
 }
 
@@ -178,17 +182,18 @@ export async function listUnsavedFinishedScans(db: Executor, staleSeconds = 300)
     );
 }
 
-export async function cancelQueuedPoints(db: Executor, scanId: string) {
-  await db.update(scanPoints).set({ state: 'cancelled' }).where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.state, 'queued')));
+export async function cancelQueuedPoints(db: Executor, groupId: string, scanId: string) {
+  await db.update(scanPoints).set({ state: 'cancelled' }).where(and(inArray(scanPoints.scanId, scanOfGroup(db, groupId, scanId)), eq(scanPoints.state, 'queued')));
 }
 
 export async function setScanOutcome(
   db: Executor,
+  groupId: string,
   scanId: string,
   outcome: { state: 'done' | 'failed' | 'cancelled'; resultId?: string | null; resultVersion?: number | null; error?: string | null },
 ) {
   await db
     .update(scans)
     .set({ state: outcome.state, resultId: outcome.resultId ?? null, resultVersion: outcome.resultVersion ?? null, error: outcome.error ?? null, finishedAt: new Date() })
-    .where(eq(scans.id, scanId));
+    .where(and(eq(scans.id, scanId), eq(scans.groupId, groupId)));
 }

@@ -65,9 +65,9 @@ async function afterPoint(ctx: Ctx, scanId: string, after: Awaited<ReturnType<ty
 }
 
 /** Fails a point for good: its other tasks are cancelled, and the scan may be finished by it. */
-async function failPoint(ctx: Ctx, task: Pick<ClaimedTask, 'scanId' | 'pointIndex'>, error: PointFailure, computeMs = 0) {
+async function failPoint(ctx: Ctx, task: Pick<ClaimedTask, 'groupId' | 'scanId' | 'pointIndex'>, error: PointFailure, computeMs = 0) {
   const after = await q.finishPoint(ctx.db, { scanId: task.scanId, index: task.pointIndex, state: 'failed', error, computeMs });
-  await tq.cancelOpenTasks(ctx.db, task.scanId, task.pointIndex);
+  await tq.cancelOpenTasks(ctx.db, task.groupId, task.scanId, task.pointIndex);
   await afterPoint(ctx, task.scanId, after);
 }
 
@@ -77,9 +77,10 @@ async function failPoint(ctx: Ctx, task: Pick<ClaimedTask, 'scanId' | 'pointInde
  * result.
  */
 export async function mergePointIfComplete(ctx: Ctx, scanId: string, index: number): Promise<void> {
-  const point = await q.getPoint(ctx.db, scanId, index);
-  const scan = point && point.state === 'queued' ? await q.getScanById(ctx.db, scanId) : undefined;
-  if (!point || !scan || scan.options.method !== 'toys') return;
+  const scan = await q.getScanById(ctx.db, scanId);
+  if (!scan || scan.options.method !== 'toys') return;
+  const point = await q.getPoint(ctx.db, scan.groupId, scanId, index);
+  if (!point || point.state !== 'queued') return;
   const done = await tq.listDoneChunks(ctx.db, scanId, index);
   if (done.length < point.chunks || done.some((c) => !c.samples || !c.stats)) return;
   const started = performance.now();

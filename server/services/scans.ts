@@ -173,7 +173,7 @@ export async function listScans(ctx: Ctx, groupId: string): Promise<ScanSummary[
 export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promise<ScanDetail> {
   const s = await q.getScan(ctx.db, groupId, scanId);
   if (!s) throw notFound('Scan');
-  const [points, tasks] = await Promise.all([q.listPointSummaries(ctx.db, scanId), tq.taskProgress(ctx.db, scanId)]);
+  const [points, tasks] = await Promise.all([q.listPointSummaries(ctx.db, groupId, scanId), tq.taskProgress(ctx.db, groupId, scanId)]);
   const byPoint = new Map(tasks.map((x) => [x.pointIndex, x]));
   const now = tasks[0]?.now ?? new Date();
   const active = s.state === 'queued' || s.state === 'running';
@@ -222,7 +222,7 @@ export async function getScan(ctx: Ctx, groupId: string, scanId: string): Promis
 export async function getPointDetail(ctx: Ctx, groupId: string, scanId: string, index: number): Promise<ScanPointDetail> {
   const s = await q.getScan(ctx.db, groupId, scanId);
   if (!s) throw notFound('Scan');
-  const p = await q.getPoint(ctx.db, scanId, index);
+  const p = await q.getPoint(ctx.db, groupId, scanId, index);
   if (!p) throw notFound('Grid point');
   return { index: p.index, x: p.x, sigmaNominal: p.sigmaNominal, state: p.state, model: p.model, result: p.result as ScanPointDetail['result'], error: p.error, attempts: p.attempts, computeMs: p.computeMs };
 }
@@ -230,7 +230,7 @@ export async function getPointDetail(ctx: Ctx, groupId: string, scanId: string, 
 export async function scanInputs(ctx: Ctx, groupId: string, scanId: string) {
   const s = await q.getScan(ctx.db, groupId, scanId);
   if (!s) throw notFound('Scan');
-  const points = await q.listPointInputs(ctx.db, scanId);
+  const points = await q.listPointInputs(ctx.db, groupId, scanId);
   return { format: 'bandwright-scan/1', options: s.options, meta: s.meta, points: points.map((p) => ({ x: p.x, ...(p.sigmaNominal !== null ? { sigmaNominal: p.sigmaNominal } : {}), model: p.model })) };
 }
 
@@ -240,10 +240,10 @@ export async function cancelScan(ctx: Ctx, groupId: string, scanId: string): Pro
     const s = await q.getScan(tx, groupId, scanId, true);
     if (!s) throw notFound('Scan');
     if (s.state !== 'queued' && s.state !== 'running') throw new AppError(409, 'finished', `This scan is already ${s.state}`);
-    await q.cancelQueuedPoints(tx, scanId);
+    await q.cancelQueuedPoints(tx, groupId, scanId);
     // A running chunk sees its task cancelled at its next heartbeat and stops there.
-    await tq.cancelOpenTasks(tx, scanId);
-    await q.setScanOutcome(tx, scanId, { state: 'cancelled' });
+    await tq.cancelOpenTasks(tx, groupId, scanId);
+    await q.setScanOutcome(tx, groupId, scanId, { state: 'cancelled' });
     return s;
   });
   await saveDraft(ctx, outcome.id, 'cancelled');
@@ -278,7 +278,7 @@ export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancell
   const points = await q.listFinishedPoints(ctx.db, scanId);
   const failed = scan.failedPoints;
   if (points.length < 2) {
-    if (why === 'done') await q.setScanOutcome(ctx.db, scanId, { state: 'failed', error: `Only ${points.length} of ${scan.totalPoints} points could be computed; no draft was made` });
+    if (why === 'done') await q.setScanOutcome(ctx.db, scan.groupId, scanId, { state: 'failed', error: `Only ${points.length} of ${scan.totalPoints} points could be computed; no draft was made` });
     return;
   }
   const role = scan.createdBy ? await getRole(ctx.db, scan.groupId, scan.createdBy) : undefined;
@@ -294,5 +294,5 @@ export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancell
   const version = scan.targetResultId
     ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: `Recomputed by scan ${scan.id.slice(0, 8)}` }, { admitted: true })
     : await createResult(ctx, scan.groupId, actor, input, { admitted: true });
-  await q.setScanOutcome(ctx.db, scanId, { state: why, resultId: version.resultId, resultVersion: version.version });
+  await q.setScanOutcome(ctx.db, scan.groupId, scanId, { state: why, resultId: version.resultId, resultVersion: version.version });
 }

@@ -1,5 +1,5 @@
 import { and, eq, inArray } from 'drizzle-orm';
-import { setResultPublic, updateVersion } from '@/db/queries/results';
+import { deleteVersion, getVersion, setResultPublic, supersedePublished, takeNextVersion, touchResult, updateVersion } from '@/db/queries/results';
 import { results, resultVersions } from '@/db/schema';
 import { versionVisibleSql, versionVisibleTo, type Viewer } from '@/db/queries/visibility';
 import { startTestApp, type TestApp } from '../helpers/app';
@@ -93,4 +93,17 @@ test('the TypeScript rule refuses a missing version or result for every reader',
     expect(versionVisibleTo(r.viewer(), undefined)).toBe(false);
     expect(versionVisibleTo(r.viewer(), { groupId: null, isPublic: null, state: null })).toBe(false);
   }
+});
+
+test("the data layer's version writes are scoped by the group: another group's id changes nothing", async () => {
+  const c = cases.find((x) => x.owner === 'A' && x.state === 'published')!;
+  const before = await getVersion(t.ctx.db, groupA, c.resultId, c.version);
+  await updateVersion(t.ctx.db, groupB, c.resultId, c.version, { state: 'retracted', title: 'Taken over' });
+  await supersedePublished(t.ctx.db, groupB, c.resultId);
+  await deleteVersion(t.ctx.db, groupB, c.resultId, c.version);
+  await touchResult(t.ctx.db, groupB, c.resultId);
+  await expect(takeNextVersion(t.ctx.db, groupB, c.resultId)).rejects.toThrow('vanished');
+  const after = await getVersion(t.ctx.db, groupA, c.resultId, c.version);
+  expect(after).toEqual(before);
+  expect(await getVersion(t.ctx.db, groupB, c.resultId, c.version)).toBeUndefined();
 });
