@@ -4,6 +4,7 @@ import type { VersionMeta } from '../../shared/schemas/results';
 import * as q from '../../db/queries/figures';
 import { audienceViewer, versionVisibleTo, type Audience, type VersionFacts } from '../../db/queries/visibility';
 import type { Executor } from '../../db/client';
+import { conversionTo, type LimitUnits } from '../../shared/units';
 import { AppError, type ErrorDetail } from '../lib/errors';
 
 /**
@@ -35,17 +36,31 @@ export async function layerRows(db: Executor, groupId: string, spec: FigureSpec)
   return new Map(rows.map((r) => [pinKey(r.resultId, r.version), r]));
 }
 
-/** 400 naming every layer that pins a result version the group may not use. */
+/**
+ * 400 naming every layer that pins a result version the group may not use, or whose units
+ * cannot go on the axes the first layer sets (μ with σ×B, parameters in unrelated units; energy
+ * and cross-section units convert, see shared/units.ts).
+ */
 export async function assertLayersUsable(db: Executor, groupId: string, spec: FigureSpec) {
   const rows = await layerRows(db, groupId, spec);
   const details: ErrorDetail[] = [];
+  let axis: LimitUnits | null = null;
   spec.layers.forEach((l, i) => {
-    if (!layerVisible(rows.get(pinKey(l.resultId, l.version)), groupId, 'group')) {
+    const row = rows.get(pinKey(l.resultId, l.version));
+    if (!layerVisible(row, groupId, 'group')) {
       details.push({
         field: `spec.layers.${i}`,
         message: `version ${l.version} of result ${l.resultId} cannot be used by this group: a layer must pin one of the group's own results or a published version of a public result`,
       });
+      return;
     }
+    const units: LimitUnits = { parameterUnit: row.parameterUnit, quantity: row.quantity as LimitUnits['quantity'], quantityUnit: row.quantityUnit };
+    if (!axis) {
+      axis = units;
+      return;
+    }
+    const c = conversionTo(units, axis);
+    if (!c.ok) details.push({ field: `spec.layers.${i}`, message: `“${row.title}” (version ${l.version}) cannot share this figure's axes: ${c.reason}` });
   });
   if (details.length) throw new AppError(400, 'validation_failed', `Layer ${details[0]!.field.split('.')[2]}: ${details[0]!.message}`, details);
 }

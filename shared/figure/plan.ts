@@ -10,6 +10,7 @@ import { layerColor, type ResolvedTheme } from './theme';
 import { LEGEND_CORNERS, type Corner } from './legend';
 import { roomForBoxes, roughInfoSize, roughLegendSize, roughWidth } from './room';
 import { axisDomain, axisUnit, planAxisTicks, type AxisPlan } from './ticks';
+import { conversionTo, convertCurve, convertTheory, describeConversion, isIdentity, type LimitUnits } from '../units';
 import type { FigureLayerData, LabelRequest } from './types';
 
 /** Layer data the viewer may see. */
@@ -90,30 +91,64 @@ export function shortNumber(v: number): string {
   return String(Number(v.toPrecision(4)));
 }
 
-/** The drawn layers of a spec: available ones only, with their colours and band choices. */
-export function drawnLayers(spec: FigureSpec, layers: readonly FigureLayerData[], theme: ResolvedTheme): { drawn: DrawnLayer[]; hidden: number } {
+/** A layer left out because its units cannot go on the figure's axes, or drawn after converting them. */
+export type UnitNote = { index: number; name: string; text: string };
+
+/**
+ * The drawn layers of a spec: available ones only, with their colours and band choices. The first
+ * available layer sets the axes' units; every other layer is converted to them (GeV/TeV/MeV,
+ * ab/fb/pb: `conversionTo` in shared/units.ts) or, when its units do not convert (μ against σ×B,
+ * unrelated parameter units), left out with a note naming it.
+ */
+export function drawnLayers(
+  spec: FigureSpec,
+  layers: readonly FigureLayerData[],
+  theme: ResolvedTheme,
+): { drawn: DrawnLayer[]; hidden: number; unitNotes: UnitNote[]; refused: UnitNote[] } {
   const drawn: DrawnLayer[] = [];
+  const unitNotes: UnitNote[] = [];
+  const refused: UnitNote[] = [];
   let hidden = 0;
+  let axisUnits: LimitUnits | null = null;
   spec.layers.forEach((ls, i) => {
     const d = layers[i];
-    const data = d && d.available === true ? d : null;
+    let data = d && d.available === true ? d : null;
     if (!data) {
       hidden++;
       return;
+    }
+    const name = ls.label.trim() || data.title;
+    const units: LimitUnits = { parameterUnit: data.meta.parameterUnit, quantity: data.meta.quantity, quantityUnit: data.meta.quantityUnit };
+    if (!axisUnits) axisUnits = units;
+    else {
+      const c = conversionTo(units, axisUnits);
+      if (!c.ok) {
+        refused.push({ index: i, name, text: fill(theme.words.unitsRefused, { layer: name, reason: c.reason }) });
+        return;
+      }
+      if (!isIdentity(c)) {
+        unitNotes.push({ index: i, name, text: fill(theme.words.unitsConverted, { layer: name, change: describeConversion(units, axisUnits) }) });
+        data = {
+          ...data,
+          curve: convertCurve(data.curve, c),
+          theory: data.theory ? convertTheory(data.theory, c) : data.theory,
+          meta: { ...data.meta, parameterUnit: axisUnits.parameterUnit, quantityUnit: axisUnits.quantityUnit as typeof data.meta.quantityUnit },
+        };
+      }
     }
     const isBands = spec.bandsLayer === i;
     drawn.push({
       index: i,
       spec: ls,
       data,
-      name: ls.label.trim() || data.title,
+      name,
       color: layerColor(theme, ls.hue ?? data.hue),
       band1: isBands && ls.show.band1,
       band2: isBands && ls.show.band2 && theme.maxBands >= 2,
       theory: ls.show.theory && data.theory ? data.theory : null,
     });
   });
-  return { drawn, hidden };
+  return { drawn, hidden, unitNotes, refused };
 }
 
 /**
@@ -257,7 +292,7 @@ function estimatedPlotSize(theme: ResolvedTheme, w: number, h: number): { width:
 /** Everything about a figure that does not need measured text. */
 export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[], theme: ResolvedTheme): FigurePlan {
   const { widthPt, heightPt } = sizePt(spec);
-  const { drawn, hidden } = drawnLayers(spec, layers, theme);
+  const { drawn, hidden, unitNotes, refused } = drawnLayers(spec, layers, theme);
   const xScale = spec.x.scale === 'log' ? 'log' : 'linear';
   const yScale = spec.y.scale === 'log' ? 'log' : 'linear';
 
@@ -303,6 +338,7 @@ export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[],
   const x = planAxisTicks(xScale, xDomain, est.width, theme.type.tick, true, theme.ticks.plainDecades);
   const y = planAxisTicks(yScale, yDomain, est.height, theme.type.tick, false, theme.ticks.plainDecades);
   const notes = hidden === 0 ? [] : [hidden === 1 ? theme.words.hiddenOne : fill(theme.words.hiddenMany, { n: hidden })];
+  for (const n of [...refused, ...unitNotes]) notes.push(n.text);
   return { theme, widthPt, heightPt, layers: drawn, hidden, theories, x, y, xTitle: xTitle(spec, drawn, theme), yTitle: yTitle(spec, drawn, theme), info, legend, notes, shadingLayer };
 }
 

@@ -133,6 +133,21 @@ describe('layers pin result versions the group may use', () => {
     expect((await crew.editor.agent.get(`/api/groups/${groupId}/figures/${fig.id}`)).body.version).toBe(1);
   });
 
+  test('units: a TeV/pb result joins a GeV/fb figure converted (the render says so); a limit on μ is refused naming the layer', async () => {
+    const inTeV = (await makeResult(crew.analyst, groupId, { meta: { title: 'Own search in TeV', parameterUnit: 'TeV', quantityUnit: 'pb' } })).resultId;
+    const onMu = (await makeResult(crew.analyst, groupId, { meta: { title: 'Own search on mu', quantity: 'mu', quantityUnit: '' }, theory: false })).resultId;
+    const refused = await crew.editor.agent.post(`/api/groups/${groupId}/figures`).send({ spec: spec([{ resultId: ids.own, version: 1 }, { resultId: onMu, version: 1 }]) });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.details).toEqual([{ field: 'spec.layers.1', message: '“Own search on mu” (version 1) cannot share this figure\'s axes: it limits the signal strength μ, the axis shows σ×B' }]);
+    const fig = await create(crew.editor, { spec: spec([{ resultId: ids.own, version: 1 }, { resultId: inTeV, version: 1 }]) });
+    const svg = await crew.viewer.agent.get(`/api/figures/${fig.id}/render.svg`);
+    expect(svg.status).toBe(200);
+    expect(JSON.parse(svg.headers['x-figure-notes'] as string)).toEqual(['Own search in TeV: converted to the axis units (TeV → GeV, pb → fb)']);
+    const csv = await crew.viewer.agent.get(`/api/figures/${fig.id}/export.csv`);
+    const row = csv.text.split('\r\n').find((l) => l.startsWith('Own search in TeV,observed,'))!;
+    expect(row.split(',').slice(4)).toEqual(['GeV', 'fb']);
+  });
+
   test('a layer says when a newer published version is available', async () => {
     const r = await makeResult(crew.analyst, groupId, { meta: { title: 'Result that moves on' } });
     await publishVersion(crew.curator, groupId, r.resultId, 1);

@@ -40,5 +40,7 @@ export const outreachTheme: FigureThemeTokens = {
     yMu: 'Signal size compared with the prediction',
     hiddenOne: '1 result is not shown: you may not see it',
     hiddenMany: '{n} results are not shown: you may not see them',
+    unitsConverted: '{layer}: converted to the same units ({change})',
+    unitsRefused: '{layer} is not shown: it is measured in other units',
   },
 };

@@ -22,6 +22,8 @@ export const TECHNICAL_WORDS: FigureWords = {
   yMu: 'Signal strength $\\mu$',
   hiddenOne: '1 layer is not shown: you may not see its result',
   hiddenMany: '{n} layers are not shown: you may not see their results',
+  unitsConverted: '{layer}: converted to the axis units ({change})',
+  unitsRefused: '{layer} is not shown: {reason}',
 };
 
 /**

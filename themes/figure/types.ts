@@ -42,6 +42,10 @@ export type FigureWords = {
   /** Notes about layers the viewer may not see (`{n}` = how many). */
   hiddenOne: string;
   hiddenMany: string;
+  /** A layer drawn in the axis's units (`{layer}`, `{change}` such as "GeV → TeV"). */
+  unitsConverted: string;
+  /** A layer whose units cannot be put on the axis (`{layer}`, `{reason}`). */
+  unitsRefused: string;
 };
 
 /** One figure theme's tokens. */
