@@ -4,6 +4,7 @@ import type { FigureLayerData } from '../../shared/figure/types';
 import { clipText } from '../../shared/figure/outreach';
 import { figureSizeCm, OFFERED_DPIS, type FigureSpec, type HouseStyle, type RenderFormat, type SIZE_PRESETS } from '../../shared/schemas/figures';
 import { safeFileName } from '../../shared/slug';
+import { MB } from '../../shared/bytes';
 import * as q from '../../db/queries/figures';
 import * as rq from '../../db/queries/figure-renders';
 import { audienceViewer, figureAudience } from '../../db/queries/visibility';
@@ -134,7 +135,7 @@ async function loadData(ctx: Ctx, p: Prepared): Promise<FigureLayerData[]> {
  * PostgreSQL each time. A row's body never changes, and the row is looked up (and so known to
  * exist and to match the key) before its body is taken from here. Bounded by bytes.
  */
-const HOT_BYTES = 64 * 1024 * 1024;
+const HOT_BYTES = 64 * MB;
 const hot = new LRUCache<string, Buffer>({ maxSize: HOT_BYTES, maxEntrySize: HOT_BYTES / 8, sizeCalculation: (b) => b.length });
 const remember = (id: string, body: Buffer) => {
   if (!hot.has(id)) hot.set(id, body);
