@@ -14,25 +14,16 @@ import { runMigrations } from '../db/client';
 import { loadEnv } from '../server/env';
 import { renderPublic } from '../server/services/figure-renders';
 import { ensureDatabase, startCluster, stopCluster, tmpRoot } from './lib/postgres';
+import { formatBytes } from '../shared/bytes';
+import { slugify } from '../shared/slug';
 
 const OUT = path.resolve(__dirname, '../docs/figures');
 /** PNGs for a README: sharp on a high-density screen, small enough to commit; one of the resolutions a public figure offers. */
 const DPI = 150;
 
-/** "publication-limits-on-the-v-benchmark-dijet-search": theme and title words, at most ~45 characters. */
+/** "publication-limits-on-the-v-benchmark-dijet": theme and title words, whole words up to 45 characters. */
 function fileName(theme: string, title: string): string {
-  const words = title
-    .normalize('NFKD')
-    .replace(/[^\w\s-]/g, '')
-    .toLowerCase()
-    .split(/[\s-]+/)
-    .filter(Boolean);
-  let name = theme;
-  for (const w of words) {
-    if (name.length + w.length + 1 > 45) break;
-    name += `-${w}`;
-  }
-  return name;
+  return slugify(`${theme} ${title}`, { max: 45, wholeWords: true });
 }
 
 async function main() {
@@ -52,7 +43,7 @@ async function main() {
         const out = await renderPublic(ctx, fig.id, { format, dpi: DPI });
         if (out.notes.length) console.warn(`  ${base}: ${out.notes.join('; ')}`);
         fs.writeFileSync(path.join(OUT, `${base}.${format}`), out.body);
-        console.log(`docs/figures/${base}.${format}  ${Math.round(out.body.length / 1024)} KB`);
+        console.log(`docs/figures/${base}.${format}  ${formatBytes(out.body.length)}`);
       }
     }
     await closeContext(ctx);

@@ -170,6 +170,15 @@ export function loadEnv(vars: Record<string, string | undefined> = process.env):
 }
 
 /**
+ * The environment the server's child processes start with (the scan workers, which read it with
+ * their own `loadEnv()`): the server's own, handed on from here so that no other module reads
+ * process.env.
+ */
+export function childProcessEnv(): NodeJS.ProcessEnv {
+  return { ...process.env };
+}
+
+/**
  * Outside production, with no provider host and no key configured, the server talks to the local
  * fake that it starts itself on STRIPE_FAKE_PORT (fixed development key and signing secret).
  * Otherwise the configured host (or the provider's default) and keys are used as given.

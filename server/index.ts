@@ -1,7 +1,7 @@
 import { closeContext, createContext } from './context';
 import { createApp } from './app';
 import { runMigrations } from '../db/client';
-import { loadEnv } from './env';
+import { childProcessEnv, loadEnv } from './env';
 import { startQueue } from './jobs/queue';
 import { startWorkerProcesses, type WorkerProcesses } from './jobs/worker-processes';
 import { startStripeFake, type StripeFake } from './fakes/stripe';
@@ -14,7 +14,7 @@ async function main() {
   ctx.jobs = await startQueue(env);
   let workers: WorkerProcesses | undefined;
   if (env.WORKERS > 0) {
-    workers = startWorkerProcesses(env.WORKERS, process.env);
+    workers = startWorkerProcesses(env.WORKERS, childProcessEnv());
     console.log(`[server] ${env.WORKERS} scan worker process(es) started beside the server`);
   }
   // Development without a configured payment provider: the local fake, on loopback, sending its

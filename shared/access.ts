@@ -5,7 +5,7 @@
 export const GROUP_ROLES = ['owner', 'curator', 'analyst', 'editor', 'viewer'] as const;
 export type GroupRole = (typeof GROUP_ROLES)[number];
 
-/** Higher rank includes everything a lower rank can do (see the role table in DESIGN.md). */
+/** Higher rank includes everything a lower rank can do: owner > curator > analyst > editor > viewer. */
 export const ROLE_RANK: Record<GroupRole, number> = { viewer: 0, editor: 1, analyst: 2, curator: 3, owner: 4 };
 
 export const ROLE_LABELS: Record<GroupRole, string> = {

@@ -4,7 +4,7 @@ import { useMemo, useState } from 'react';
 import { StyleSheet, View, type LayoutChangeEvent } from 'react-native';
 import Svg, { G, Line, Path, Text as SvgText } from 'react-native-svg';
 import type { ClsSample } from '@/shared/schemas/counting-model';
-import { powerOfTen } from '@/components/plot/quick-plot-geometry';
+import { powerOfTen } from '@/shared/figure/ticks';
 import { Text } from '@/components/ui/text';
 import { fonts, plotColors, space } from '@/themes/tokens';
 

@@ -1,9 +1,12 @@
 /**
  * The pure part of the quick plot: domains, scales, ticks and SVG path strings for a limit curve
- * with its expected bands and a theory curve. No React here, so it is tested on numbers.
+ * with its expected bands and a theory curve. No React here, so it is tested on numbers. Decades
+ * are found and written with the figure scene's helpers (shared/figure/ticks.ts), so the quick
+ * plot and the figures agree on which decades are written out.
  */
 import { scaleLinear, scaleLog } from 'd3-scale';
 import { area, line } from 'd3-shape';
+import { decade, decadeRange, formatDecade, isPlainDecade, MINUS, roundMultiples } from '@/shared/figure/ticks';
 import type { ExpectedKey } from '@/shared/schemas/counting-model';
 
 export type PlotCurve = {
@@ -86,48 +89,26 @@ export function logDomain(min: number, max: number): [number, number] {
   return [10 ** lo, 10 ** hi];
 }
 
-/** Rounds away floating noise of powers of ten (10 ** -3 = 0.0010000000000000002). */
-function decade(k: number): number {
-  return Number((10 ** k).toPrecision(12));
-}
-
 /**
  * Ticks of a log axis: the decades inside [lo, hi]; when fewer than three of them are inside, the
- * 2× and 5× multiples are added so the axis still reads.
+ * 2× and 5× multiples are added so the axis still reads. (Denser than a figure's `logTicks`, which
+ * adds them below two decades: the quick plot is small and has no minor ticks.)
  */
 export function logTicks(lo: number, hi: number): number[] {
-  const k0 = Math.ceil(Math.log10(lo) - 1e-9);
-  const k1 = Math.floor(Math.log10(hi) + 1e-9);
+  const [k0, k1] = decadeRange(lo, hi);
   const decades: number[] = [];
   for (let k = k0; k <= k1; k++) decades.push(decade(k));
   if (decades.length >= 3) return decades;
-  const out: number[] = [];
-  for (let k = k0 - 1; k <= k1; k++) {
-    for (const m of [1, 2, 5]) {
-      const v = Number((m * 10 ** k).toPrecision(12));
-      if (v >= lo * (1 - 1e-9) && v <= hi * (1 + 1e-9)) out.push(v);
-    }
-  }
-  return out;
+  return roundMultiples([lo, hi], k0 - 1, k1, [1, 2, 5]);
 }
 
-const SUPERSCRIPT: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' };
-
-/** "10⁻⁴" for powers of ten too long to write out. */
-export function powerOfTen(k: number): string {
-  return `10${String(k)
-    .split('')
-    .map((c) => SUPERSCRIPT[c] ?? c)
-    .join('')}`;
-}
-
-/** A tick label: decades from 0.001 to 10000 written out, beyond that as powers of ten. */
+/** A tick label: decades from 0.001 to 10000 written out (`isPlainDecade`), beyond that as powers of ten ("10⁻⁴"). */
 export function formatTick(v: number): string {
   if (v === 0) return '0';
   const k = Math.log10(Math.abs(v));
-  if (Math.abs(k - Math.round(k)) < 1e-9 && (k > 4 || k < -3)) return `${v < 0 ? '−' : ''}${powerOfTen(Math.round(k))}`;
+  if (Math.abs(k - Math.round(k)) < 1e-9 && !isPlainDecade(k)) return `${v < 0 ? MINUS : ''}${formatDecade(Math.round(k), false, 'unicode')}`;
   const s = Math.abs(v) >= 1e5 || Math.abs(v) < 1e-3 ? v.toExponential(1) : String(Number(v.toPrecision(6)));
-  return s.replace('-', '−');
+  return s.replace('-', MINUS);
 }
 
 function xTickCount(width: number): number {

@@ -28,6 +28,7 @@ import { measureFromGlyphs } from '../../server/figures/typeset';
 import { figureSpecSchema, type FigureSpec } from '../../shared/schemas/figures';
 import type { Curve, Theory, VersionMeta } from '../../shared/schemas/results';
 import { ensureDatabase, startCluster, stopCluster, tmpRoot } from '../lib/postgres';
+import { formatBytes } from '../../shared/bytes';
 
 const ORIGIN = 'http://127.0.0.1:8080';
 const LAYERS = 6;
@@ -205,7 +206,7 @@ async function main() {
   await pool.stop();
   if (!process.argv.includes('--no-http')) {
     const cached = await httpCached();
-    rows.push([`cached render served, public route: in the server (PNG 300 dpi, ${Math.round(cached.bytes / 1024)} KB)`, cached.publicRoute.server, 5]);
+    rows.push([`cached render served, public route: in the server (PNG 300 dpi, ${formatBytes(cached.bytes)})`, cached.publicRoute.server, 5]);
     rows.push(['  the same, HTTP round trip seen by the client', cached.publicRoute.roundTrip, Number.NaN]);
     rows.push(['cached render served, signed-in member: in the server (session cookie)', cached.member.server, 5]);
     rows.push(['  the same, HTTP round trip seen by the client', cached.member.roundTrip, Number.NaN]);
@@ -218,7 +219,7 @@ async function main() {
     const verdict = Number.isNaN(target) ? '' : `target ≤ ${target} ms  ${ms <= target ? 'ok' : 'MISSED'}`;
     console.log(`${what.padEnd(78)} ${ms.toFixed(1).padStart(7)} ms   ${verdict}`);
   }
-  console.log(`\nSVG ${Math.round(finalSvg.length / 1024)} KB (labels as paths, repeated glyphs drawn once)`);
+  console.log(`\nSVG ${formatBytes(finalSvg.length)} (labels as paths, repeated glyphs drawn once)`);
 }
 
 if (process.env.BENCH_PARTS) {

@@ -3,7 +3,7 @@ import { createHash } from 'node:crypto';
 import { deflateSync } from 'node:zlib';
 import { JSDOM } from 'jsdom';
 import { jsPDF } from 'jspdf';
-// The package's main entry is a UMD build that fails in Node; the ES build works (STACK.md).
+// The package's main entry is a UMD build that fails in Node; the ES build works.
 import { svg2pdf } from 'svg2pdf.js/dist/svg2pdf.es.min.js';
 import { labelKey, type FontRole, type Glyphs, type Scene } from '../../shared/figure/types';
 import { FIGURE_LIMITS } from '../../shared/schemas/figures';

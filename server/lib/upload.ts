@@ -1,6 +1,6 @@
 import express, { type Request, type RequestHandler } from 'express';
 import multer from 'multer';
-import { formatBytes } from '../../shared/bytes';
+import { formatBytes, KB } from '../../shared/bytes';
 import { AppError } from './errors';
 
 
@@ -34,7 +34,7 @@ export function multipartUpload(limitBytes: number): RequestHandler {
     storage: multer.memoryStorage(),
     // Browsers and curl send file names as UTF-8 without saying so.
     defParamCharset: 'utf8',
-    limits: { fileSize: limitBytes, files: 1, fields: 20, fieldSize: 256 * 1024 },
+    limits: { fileSize: limitBytes, files: 1, fields: 20, fieldSize: 256 * KB },
   }).single('file');
   return (req, res, next) => {
     if (!req.is('multipart/form-data')) return next();

@@ -1,6 +1,7 @@
 import { Router } from 'express';
 import { groupParams } from '../../shared/schemas/groups';
 import { scanParams, scanPointParams } from '../../shared/schemas/scans';
+import { safeFileName } from '../../shared/slug';
 import { requireGroup } from '../access';
 import type { Ctx } from '../context';
 import { multipartUpload } from '../lib/upload';
@@ -39,7 +40,7 @@ export function scansRouter(ctx: Ctx) {
 
   r.get('/groups/:groupId/scans/:scanId/inputs.json', requireGroup(ctx, 'group.read'), handle({ params: scanParams }, async ({ params }, _req, res) => {
     const body = await scans.scanInputs(ctx, params.groupId, params.scanId);
-    res.setHeader('Content-Disposition', `attachment; filename="scan-${params.scanId.slice(0, 8)}-inputs.json"`);
+    res.setHeader('Content-Disposition', `attachment; filename="${safeFileName(`scan-${params.scanId.slice(0, 8)}-inputs`, 'json')}"`);
     res.json(body);
   }));
 

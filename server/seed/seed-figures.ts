@@ -2,6 +2,7 @@ import { and, eq } from 'drizzle-orm';
 import { figureSpecSchema, type FigureSpecInput } from '../../shared/schemas/figures';
 import type { Ctx } from '../context';
 import * as figuresService from '../services/figures';
+import { groupSlug } from '../services/groups';
 import { getRole } from '../../db/queries/groups';
 import { figures, groups, results, user } from '../../db/schema';
 
@@ -99,8 +100,6 @@ export const DEMO_FIGURES: DemoFigure[] = [
     },
   },
 ];
-
-const groupSlug = (name: string) => name.toLowerCase().replace(/[^a-z0-9]+/g, '-');
 
 /** Adds the demo figures that are missing; skips any whose group, author or results are missing. Returns how many were added. */
 export async function seedDemoFigures(ctx: Ctx): Promise<number> {

@@ -2,6 +2,7 @@ import { eq } from 'drizzle-orm';
 import type { GroupRole } from '../../shared/access';
 import { curveToCsv } from '../../shared/curves/csv';
 import type { Ctx } from '../context';
+import { groupSlug } from '../services/groups';
 import * as resultsService from '../services/results';
 import { DEMO_RESULTS } from './demo-results';
 import { seedDemoFigures } from './seed-figures';
@@ -51,8 +52,6 @@ export async function seedDemo(ctx: Ctx): Promise<{ created: boolean }> {
   const figures = await seedDemoFigures(ctx);
   return { created: people || results > 0 || figures > 0 };
 }
-
-const groupSlug = (name: string) => name.toLowerCase().replace(/[^a-z0-9]+/g, '-');
 
 async function seedDemoPeople(ctx: Ctx): Promise<boolean> {
   const first = DEMO_USERS[0];

@@ -1,6 +1,7 @@
 import type { FigureLayerData, OversizeLabel } from '../../shared/figure/types';
 import type { FigureSpec } from '../../shared/schemas/figures';
 import type { VersionMeta } from '../../shared/schemas/results';
+import { HUE_COUNT } from '../../themes/figure/palette';
 import * as q from '../../db/queries/figures';
 import { audienceViewer, versionVisibleTo, type Audience, type VersionFacts } from '../../db/queries/visibility';
 import type { Executor } from '../../db/client';
@@ -86,7 +87,7 @@ export function metaOf(r: q.LayerVersionRow): VersionMeta {
 // ---------------------------------------------------------------------------------------------
 // Hues
 
-export const HUE_COUNT = 12;
+export { HUE_COUNT };
 
 /** Gives every result of the spec that has no hue in the group the next free one (in the caller's transaction). */
 export async function assignHues(tx: Executor, groupId: string, spec: FigureSpec) {

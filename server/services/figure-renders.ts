@@ -3,6 +3,8 @@ import { LRUCache } from 'lru-cache';
 import type { FigureLayerData } from '../../shared/figure/types';
 import { clipText } from '../../shared/figure/outreach';
 import { figureSizeCm, OFFERED_DPIS, type FigureSpec, type HouseStyle, type RenderFormat, type SIZE_PRESETS } from '../../shared/schemas/figures';
+import { safeFileName } from '../../shared/slug';
+import { MB } from '../../shared/bytes';
 import * as q from '../../db/queries/figures';
 import * as rq from '../../db/queries/figure-renders';
 import { audienceViewer, figureAudience } from '../../db/queries/visibility';
@@ -133,23 +135,12 @@ async function loadData(ctx: Ctx, p: Prepared): Promise<FigureLayerData[]> {
  * PostgreSQL each time. A row's body never changes, and the row is looked up (and so known to
  * exist and to match the key) before its body is taken from here. Bounded by bytes.
  */
-const HOT_BYTES = 64 * 1024 * 1024;
+const HOT_BYTES = 64 * MB;
 const hot = new LRUCache<string, Buffer>({ maxSize: HOT_BYTES, maxEntrySize: HOT_BYTES / 8, sizeCalculation: (b) => b.length });
 const remember = (id: string, body: Buffer) => {
   if (!hot.has(id)) hot.set(id, body);
 };
 const recall = (id: string) => hot.get(id);
-
-function safeFileName(title: string, version: number, ext: string): string {
-  const base = title
-    .normalize('NFKD')
-    .replace(/[^\w\s-]/g, '')
-    .trim()
-    .replace(/\s+/g, '-')
-    .toLowerCase()
-    .slice(0, 80);
-  return `${base || 'figure'}-v${version}.${ext}`;
-}
 
 /**
  * Drops the cached renders of every version of the group's figure but `keepVersion` (in the
@@ -233,7 +224,7 @@ async function renderWithCache(ctx: Ctx, figureId: string, userId: string | null
     if (problem) throw new AppError(400, 'validation_failed', `Invalid query: dpi ${problem}`, [{ field: 'query.dpi', message: problem }]);
   }
   const contentType = CONTENT_TYPES[req.format];
-  const fileName = safeFileName(p.spec.title, p.version, req.format);
+  const fileName = safeFileName(p.spec.title, req.format, { version: p.version, fallback: 'figure' });
   const cacheable = req.format !== 'png' || CACHED_DPIS.has(req.dpi);
   const key: rq.RenderKey = {
     figureId: p.figure.id,
@@ -294,8 +285,8 @@ export async function exportFigure(ctx: Ctx, figureId: string, userId: string | 
   const p = await prepare(ctx, figureId, userId, false, { version, format: 'csv' });
   const data = await loadData(ctx, p);
   const notes = data.some((d) => !d.available) ? hiddenNote(data) : [];
-  if (kind === 'csv') return { fileName: safeFileName(p.spec.title, p.version, 'csv'), contentType: 'text/csv; charset=utf-8', body: csvOf(p.spec, data), notes };
-  return { fileName: safeFileName(p.spec.title, p.version, 'txt'), contentType: 'text/plain; charset=utf-8', body: captionOf(p.spec, data), notes };
+  if (kind === 'csv') return { fileName: safeFileName(p.spec.title, 'csv', { version: p.version, fallback: 'figure' }), contentType: 'text/csv; charset=utf-8', body: csvOf(p.spec, data), notes };
+  return { fileName: safeFileName(p.spec.title, 'txt', { version: p.version, fallback: 'figure' }), contentType: 'text/plain; charset=utf-8', body: captionOf(p.spec, data), notes };
 }
 
 function hiddenNote(data: FigureLayerData[]): string[] {

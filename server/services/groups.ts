@@ -1,5 +1,6 @@
 import { assignableRoles, type GroupRole } from '../../shared/access';
 import type { CreateGroupInput, Group, Member, UpdateGroupInput } from '../../shared/schemas/groups';
+import { slugify } from '../../shared/slug';
 import * as q from '../../db/queries/groups';
 import type { Ctx } from '../context';
 import { conflict, forbidden, notFound } from '../lib/errors';
@@ -7,17 +8,8 @@ import { conflict, forbidden, notFound } from '../lib/errors';
 type GroupRow = Awaited<ReturnType<typeof q.listGroupsOfUser>>[number];
 const toGroup = (g: GroupRow): Group => ({ ...g, createdAt: g.createdAt.toISOString() });
 
-/** Lowercase a-z0-9 words joined by hyphens (accents dropped), at most `max` characters. */
-export function slugify(name: string, fallback = 'group', max = 48): string {
-  const base = name
-    .normalize('NFKD')
-    .replace(/[\u0300-\u036f]/g, '')
-    .toLowerCase()
-    .replace(/[^a-z0-9]+/g, '-')
-    .slice(0, max)
-    .replace(/^-+|-+$/g, '');
-  return base || fallback;
-}
+/** A group's slug before any number that makes it unique: its name's words, at most 48 characters. */
+export const groupSlug = (name: string) => slugify(name, { fallback: 'group', max: 48 });
 
 export async function listMyGroups(ctx: Ctx, userId: string): Promise<Group[]> {
   return (await q.listGroupsOfUser(ctx.db, userId)).map(toGroup);
@@ -25,7 +17,7 @@ export async function listMyGroups(ctx: Ctx, userId: string): Promise<Group[]> {
 
 export async function createGroup(ctx: Ctx, userId: string, input: Required<CreateGroupInput>): Promise<Group> {
   return ctx.db.transaction(async (tx) => {
-    const base = slugify(input.name);
+    const base = groupSlug(input.name);
     // A slug can be taken between the check and the insert (two groups of one name created at
     // once): the insert then returns nothing and the next number is tried.
     let g: Awaited<ReturnType<typeof q.insertGroup>>;

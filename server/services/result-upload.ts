@@ -1,5 +1,6 @@
 import path from 'node:path';
 import { z } from 'zod';
+import { KB } from '../../shared/bytes';
 import { checkCurve, formatCount, MAX_PROBLEMS, ProblemCollector } from '../../shared/curves/check';
 import { COLUMN_ROLES, type ColumnMapping } from '../../shared/curves/csv';
 import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
@@ -196,7 +197,7 @@ export function fromJsonBody(body: { meta: VersionMeta; curve: Curve; theory?: T
  * and takes seconds to parse, which on the event loop would stall every other request. Smaller
  * files (almost every real limit table) are read in place, sparing the round trip.
  */
-export const INLINE_READ_BYTES = 64 * 1024;
+export const INLINE_READ_BYTES = 64 * KB;
 const READ_TIMEOUT_MS = 30_000;
 
 const readers = new ThreadPool<FileJob, FileReading>({

@@ -17,7 +17,7 @@ import * as q from '../../db/queries/results';
 import type { Ctx } from '../context';
 import type { Executor } from '../../db/client';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
-import { slugify } from './groups';
+import { safeFileName, slugify } from '../../shared/slug';
 import { assertStorageAvailable } from './plans';
 import { assertCurveValid, canonicalCurve, canonicalMeta, canonicalTheory, limitFileOf, storedBytesOf, type NormalizedVersion } from './result-upload';
 
@@ -34,7 +34,7 @@ const SLUG_SUFFIX_LENGTH = 5;
 
 function newSlug(title: string): string {
   const suffix = Array.from(randomBytes(SLUG_SUFFIX_LENGTH), (b) => 'abcdefghijklmnopqrstuvwxyz0123456789'[b % 36]).join('');
-  return `${slugify(title, 'result', 80 - SLUG_SUFFIX_LENGTH - 1)}-${suffix}`;
+  return `${slugify(title, { fallback: 'result', max: 80 - SLUG_SUFFIX_LENGTH - 1 })}-${suffix}`;
 }
 
 const immutable = (version: number, state: ResultState) =>
@@ -157,7 +157,7 @@ export type ExportFile = { fileName: string; contentType: string; body: string }
 
 function exportOf(row: q.VersionRow, format: 'csv' | 'json'): ExportFile {
   const meta = metaOf(row);
-  const fileName = `${row.slug}-v${row.version}.${format}`;
+  const fileName = safeFileName(row.slug, format, { version: row.version, fallback: 'result' });
   if (format === 'json') {
     return { fileName, contentType: 'application/json; charset=utf-8', body: JSON.stringify(limitFileOf(meta, row.curve, row.theory ?? null)) };
   }

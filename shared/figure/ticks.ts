@@ -3,6 +3,10 @@
  * say depends only on the data, the axis spec and the axis length estimated from the figure size,
  * never on measured text, so the labels can be typeset before the layout (`collectLabels`).
  * Measured widths only decide which of these labels are left out to avoid overlaps (`thinLabels`).
+ *
+ * The decade helpers (`decade`, `decadeRange`, `roundMultiples`, `isPlainDecade`, `formatDecade`,
+ * `powerOfTen`) are also the app's: its quick plot (components/plot) ticks and writes decades with
+ * them, so both write 0.001…10000 out and powers of ten beyond.
  */
 import { scaleLinear } from 'd3-scale';
 import type { AxisSpec } from '../schemas/figures';
@@ -39,7 +43,46 @@ const clean = (v: number) => Number(v.toPrecision(12));
 /** 10^k without the noise of powers of ten (10 ** -3 = 0.0010000000000000002). */
 export const decade = (k: number) => clean(10 ** k);
 
-const MINUS = '\u2212';
+/** The minus sign of labels (U+2212), never the hyphen. */
+export const MINUS = '\u2212';
+
+/**
+ * Decades written out as plain numbers at most: 10^-3 = 0.001 to 10^4 = 10000. Beyond them a
+ * decade is written as a power of ten (a figure's log axis switches as a whole, see `logTicks`).
+ */
+export const PLAIN_DECADES = { lowest: -3, highest: 4 } as const;
+
+/** Whether decade 10^k is short enough to be written out ("0.001", "10000"). */
+export const isPlainDecade = (k: number) => k >= PLAIN_DECADES.lowest && k <= PLAIN_DECADES.highest;
+
+/** Exponents of the first and last decade inside [lo, hi] (lo > 0); the first is above the last when none is. */
+export function decadeRange(lo: number, hi: number): [number, number] {
+  return [Math.ceil(Math.log10(lo) - EPS), Math.floor(Math.log10(hi) + EPS)];
+}
+
+/**
+ * The values m × 10^k inside `domain` (with rounding slack) for k from `kFrom` to `kTo` and each
+ * mantissa m, in increasing order when the mantissas are; stops before a decade once `limit`
+ * values were found.
+ */
+export function roundMultiples(domain: [number, number], kFrom: number, kTo: number, mantissas: readonly number[], limit = Infinity): number[] {
+  const [lo, hi] = domain;
+  const out: number[] = [];
+  for (let k = kFrom; k <= kTo && out.length < limit; k++) {
+    for (const m of mantissas) {
+      const v = clean(m * 10 ** k);
+      if (v >= lo * (1 - EPS) && v <= hi * (1 + EPS)) out.push(v);
+    }
+  }
+  return out;
+}
+
+const SUPERSCRIPT: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' };
+
+/** "10⁻⁴": 10^k in Unicode superscripts, for text that cannot set TeX (the app's plots). */
+export function powerOfTen(k: number): string {
+  return `10${[...String(k)].map((c) => SUPERSCRIPT[c] ?? c).join('')}`;
+}
 
 /** A plain number for a label: the minus sign as U+2212, never "-0". */
 function plainNumber(v: number, decimals: number): string {
@@ -60,9 +103,13 @@ export function formatLinear(v: number, step: number): string {
   return plainNumber(v, Math.max(decimals, Math.min(decimalsOf(clean(step)), 12)));
 }
 
-/** Label of a decade 10^k: "0.01"…"1000" when `plain`, else `$10^{k}$`. */
-export function formatDecade(k: number, plain: boolean): string {
-  return plain ? plainNumber(decade(k), Math.max(0, -k)) : `$10^{${k}}$`;
+/**
+ * Label of a decade 10^k: "0.01"…"1000" when `plain`, else a power of ten: `$10^{k}$` (TeX, for
+ * the figure's typesetter) or "10ᵏ" in Unicode superscripts (`notation: 'unicode'`).
+ */
+export function formatDecade(k: number, plain: boolean, notation: 'tex' | 'unicode' = 'tex'): string {
+  if (plain) return plainNumber(decade(k), Math.max(0, -k));
+  return notation === 'tex' ? `$10^{${k}}$` : powerOfTen(k);
 }
 
 /** The finite values an axis must show (positive ones only on a log axis). */
@@ -183,39 +230,20 @@ export function logTicks(domain: [number, number], lengthPt: number, minDecadePt
   const [lo, hi] = domain;
   // Nothing to tick on a range that is not a positive finite one (the loops below would not end).
   if (!(lo > 0 && Number.isFinite(hi) && hi > lo)) return { major: [], minor: [], plainDecades: false };
-  const k0 = Math.ceil(Math.log10(lo) - EPS);
-  const k1 = Math.floor(Math.log10(hi) + EPS);
+  const [k0, k1] = decadeRange(lo, hi);
   const spanDecades = Math.log10(hi / lo);
-  const inside = (v: number) => v >= lo * (1 - EPS) && v <= hi * (1 + EPS);
-  const minor: number[] = [];
   const decadeLength = lengthPt / Math.max(spanDecades, EPS);
   const kLo = Math.floor(Math.log10(lo) + EPS);
   if (k1 - k0 + 1 < 2) {
-    const major: MajorTick[] = [];
-    let ordinal = 0;
-    for (let k = kLo; k <= k1; k++) {
-      for (let m = 1; m <= 9; m++) {
-        const v = clean(m * 10 ** k);
-        if (!inside(v)) continue;
-        if (m === 1 || m === 2 || m === 5) major.push({ value: v, label: plainNumber(v, decimalsOf(v)), ordinal: ordinal++ });
-        else minor.push(v);
-      }
-    }
-    return { major, minor, plainDecades: true };
+    const major = roundMultiples(domain, kLo, k1, [1, 2, 5]).map((v, ordinal) => ({ value: v, label: plainNumber(v, decimalsOf(v)), ordinal }));
+    return { major, minor: roundMultiples(domain, kLo, k1, [3, 4, 6, 7, 8, 9]), plainDecades: true };
   }
-  const plain = spanDecades <= plainSpan + EPS && k0 >= -3 && k1 <= 4;
+  const plain = spanDecades <= plainSpan + EPS && isPlainDecade(k0) && isPlainDecade(k1);
   const major: MajorTick[] = [];
   // Hundreds of decades (an enormous range) would be hundreds of labels to typeset for nothing.
   const every = Math.ceil((k1 - k0 + 1) / MAX_DECADE_TICKS);
   for (let k = k0; k <= k1; k++) if (k % every === 0) major.push({ value: decade(k), label: formatDecade(k, plain), ordinal: k });
-  if (decadeLength >= minDecadePt) {
-    for (let k = kLo; k <= k1 && minor.length < 500; k++) {
-      for (let m = 2; m <= 9; m++) {
-        const v = clean(m * 10 ** k);
-        if (inside(v)) minor.push(v);
-      }
-    }
-  }
+  const minor = decadeLength >= minDecadePt ? roundMultiples(domain, kLo, k1, [2, 3, 4, 5, 6, 7, 8, 9], 500) : [];
   return { major, minor, plainDecades: plain };
 }
 

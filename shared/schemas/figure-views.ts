@@ -3,6 +3,7 @@
  * the server answers with, shared by the server (validation) and the app (types).
  */
 import { z } from 'zod';
+import { HUE_COUNT } from '../../themes/figure/palette';
 import type { FigureLayerData, TypesetLabel } from '../figure/types';
 import { FIGURE_LIMITS, FIGURE_THEMES, figureParams, houseStyleSchema, layerSchema, storableText, type FigureSpec, type FigureTheme, type HouseStyle } from './figures';
 import type { ResultState } from './results';
@@ -59,7 +60,7 @@ export const figureVersionParams = figureParams.extend({ version: versionParam }
 export const figureIdParams = z.object({ figureId: uuidParam });
 
 export const hueParams = z.object({ groupId: uuidParam, resultId: uuidParam });
-export const hueSchema = z.object({ hue: z.number({ error: 'must be a number' }).int('must be a whole number').min(0, 'must be 0 to 11').max(11, 'must be 0 to 11') });
+export const hueSchema = z.object({ hue: z.number({ error: 'must be a number' }).int('must be a whole number').min(0, `must be 0 to ${HUE_COUNT - 1}`).max(HUE_COUNT - 1, `must be 0 to ${HUE_COUNT - 1}`) });
 
 export const houseStyleBodySchema = z.object({ style: houseStyleSchema });
 

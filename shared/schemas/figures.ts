@@ -7,6 +7,7 @@
 import { z } from 'zod';
 import { intField, intParam, uuidParam } from './common';
 
+import { HUE_COUNT } from '../../themes/figure/palette';
 import { FIGURE_THEMES, type FigureTheme } from '../../themes/figure/types';
 
 // The theme names are the themes' own (themes/ is the layer below shared/).
@@ -69,7 +70,7 @@ export const layerSchema = z.object({
   label: label.default(''),
   show: layerPartsSchema.default({ observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false }),
   /** Palette index override; null = the hue the group gave this result. */
-  hue: z.number().int().min(0).max(11).nullable().default(null),
+  hue: z.number().int().min(0).max(HUE_COUNT - 1).nullable().default(null),
 });
 export type LayerSpec = z.output<typeof layerSchema>;
 
@@ -85,8 +86,8 @@ export const annotationSchema = z.object({
 /** A group's house style, applied on top of the theme. */
 export const houseStyleSchema = z.object({
   font: z.enum(['sans', 'serif']).optional(),
-  /** Up to 12 colours (#rrggbb) replacing the theme's layer palette, in order. */
-  palette: z.array(z.string().regex(/^#[0-9a-fA-F]{6}$/, 'must be a colour like #1b3f8b')).min(2).max(12).optional(),
+  /** Up to HUE_COUNT (12) colours (#rrggbb) replacing the theme's layer palette, in order. */
+  palette: z.array(z.string().regex(/^#[0-9a-fA-F]{6}$/, 'must be a colour like #1b3f8b')).min(2).max(HUE_COUNT).optional(),
   /** Multiplies every line width of the theme. */
   lineScale: z.number().min(0.5).max(3).optional(),
   /** Multiplies every type size of the theme. */

@@ -3,6 +3,7 @@ import request from 'supertest';
 import { createApp } from '@/server/app';
 import { closeContext, createContext } from '@/server/context';
 import { loadEnv } from '@/server/env';
+import { HEALTH_TIMEOUT_MS } from '@/server/services/health';
 import { startTestApp, signUp, TEST_ORIGIN, type TestApp } from '../helpers/app';
 
 let t: TestApp;
@@ -67,6 +68,33 @@ test('GET /api/health answers 503 when the database does not answer', async () =
     expect(res.status).toBe(503);
     expect(res.body).toEqual({ ok: false, db: 'down' });
   } finally {
+    await closeContext(ctx);
+  }
+});
+
+test('GET /api/health answers 503 within its timeout when the database accepts connections but never answers', async () => {
+  // A listener on loopback that takes the connection and says nothing, like a stopped PostgreSQL
+  // process: without a bound the request would wait as long as the operating system does.
+  const sockets = new Set<net.Socket>();
+  const silent = net.createServer((socket) => {
+    sockets.add(socket);
+    socket.on('error', () => {});
+  });
+  await new Promise<void>((r) => silent.listen(0, '127.0.0.1', r));
+  const port = (silent.address() as AddressInfo).port;
+  const ctx = createContext(loadEnv({ DATABASE_URL: `postgres://postgres@127.0.0.1:${port}/none`, NODE_ENV: 'test', PUBLIC_URL: TEST_ORIGIN }));
+  try {
+    const started = Date.now();
+    const res = await request(createApp(ctx)).get('/api/health');
+    const took = Date.now() - started;
+    expect(res.status).toBe(503);
+    expect(res.body).toEqual({ ok: false, db: 'down' });
+    expect(sockets.size).toBeGreaterThan(0); // the connection was made and then left unanswered
+    expect(took).toBeGreaterThanOrEqual(HEALTH_TIMEOUT_MS - 50);
+    expect(took).toBeLessThan(HEALTH_TIMEOUT_MS + 1500);
+  } finally {
+    for (const s of sockets) s.destroy();
+    await new Promise((r) => silent.close(r));
     await closeContext(ctx);
   }
 });

@@ -1,7 +1,8 @@
 import { ACTION_MIN_ROLE, assignableRoles, can, GROUP_ROLES, type GroupRole } from '@/shared/access';
 
-// The role table of the product design (DESIGN.md, "Who uses it"), written out by hand so a
-// change to shared/access.ts that contradicts it fails here.
+// The product's role table (who may do what: owners everything, curators all but managing the group
+// and its billing, analysts results and figures, editors figures, viewers reading), written out by
+// hand so a change to shared/access.ts that contradicts it fails here.
 const EXPECTED: Record<GroupRole, string[]> = {
   owner: ['group.read', 'figure.write', 'result.write', 'result.publish', 'member.manage', 'group.manage', 'billing.manage'],
   curator: ['group.read', 'figure.write', 'result.write', 'result.publish', 'member.manage'],

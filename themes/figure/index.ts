@@ -5,7 +5,7 @@ import { slidesTheme } from './slides';
 import type { FigureTheme, FigureThemeTokens } from './types';
 
 export { FIGURE_THEMES, type FigureTheme, type FigureThemeTokens, type FigureWords, type FontRole } from './types';
-export { LAYER_PALETTE } from './palette';
+export { HUE_COUNT, LAYER_PALETTE } from './palette';
 
 export const FIGURE_THEME_TOKENS: Record<FigureTheme, FigureThemeTokens> = {
   publication: publicationTheme,

@@ -1,4 +1,11 @@
 /**
+ * How many hues a result can have (0 to HUE_COUNT − 1): a group's results take the lowest free one,
+ * a layer may override it, and a house style may list up to this many layer colours. A palette
+ * shorter than this (LAYER_PALETTE has 8) wraps around.
+ */
+export const HUE_COUNT = 12;
+
+/**
  * Layer colours shared by the three figure themes, so a result keeps its colour in the paper,
  * the talk and the public page. Our own hues, tuned so that the first six stay apart with normal
  * colour vision (CIEDE2000 ≥ 20), under simulated protanopia and deuteranopia (≥ 10) and in

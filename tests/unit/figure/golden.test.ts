@@ -1,8 +1,10 @@
 /**
  * Golden SVGs: one invented three-layer figure (two visible layers, one the viewer may not see)
  * per theme, rendered with the stub typesetter and compared with the committed file.
- * Regenerate after an intended change with `UPDATE_GOLDEN=1 npx jest --selectProjects unit --testPathPattern figure/golden`
- * and look at the files before committing them.
+ * A missing golden file is a failure, never written silently (a test that writes what it then
+ * compares with proves nothing). Write them after an intended change with
+ * `UPDATE_GOLDEN=1 npm test -- tests/unit/figure/golden.test.ts` and look at the files before
+ * committing them.
  */
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -32,7 +34,8 @@ describe('golden SVGs', () => {
   test.each(FIGURE_THEMES)('%s matches its committed golden file', (theme) => {
     const file = join(__dirname, 'golden', `${theme}.svg`);
     const svg = goldenSvg(theme);
-    if (process.env.UPDATE_GOLDEN === '1' || !existsSync(file)) writeFileSync(file, svg);
+    if (process.env.UPDATE_GOLDEN === '1') writeFileSync(file, svg);
+    if (!existsSync(file)) throw new Error(`The golden file ${theme}.svg is missing: write it with UPDATE_GOLDEN=1 (see the top of this file) and look at it before committing it.`);
     expect(svg).toBe(readFileSync(file, 'utf8'));
   });
 });
