@@ -128,6 +128,33 @@ export function ResultActions({ detail, version, role }: { detail: ResultDetail;
 }
 
 /** A result of one of the caller's groups, at `/groups/<group>/results/<result>?v=<version>`. */
+/** Where a computed version came from: a link to its scan's diagnostics and the points that warned or failed. */
+export function ScanOrigin({ groupId, origin, unit }: { groupId: string; origin: NonNullable<ResultVersion['fromScan']>; unit: string }) {
+  const problems = origin.points;
+  return (
+    <Card>
+      <Text variant="title">Computed by a scan</Text>
+      <Link href={`/groups/${groupId}/scans/${origin.scanId}` as Href} style={styles.link} accessibilityHint="Opens the scan's progress and per-point diagnostics">
+        Open the scan's diagnostics →
+      </Link>
+      {problems.length === 0 ? (
+        <Text variant="muted">No grid point warned.</Text>
+      ) : (
+        <View style={styles.block} accessibilityLabel={`${problems.length} grid points with warnings`}>
+          <Text>
+            {problems.length === 1 ? '1 grid point' : `${problems.length} grid points`} need a look before publishing:
+          </Text>
+          {problems.map((p) => (
+            <Text key={p.index} style={p.error ? styles.failed : undefined}>
+              {`x = ${p.x}${unit ? ` ${unit}` : ''}: ${[...(p.error ? [`failed (${p.error})`] : []), ...p.warnings].join('; ')}`}
+            </Text>
+          ))}
+        </View>
+      )}
+    </Card>
+  );
+}
+
 export function ResultScreen() {
   const params = useLocalSearchParams<{ groupId: string; resultId: string; v?: string }>();
   const groupId = String(params.groupId ?? '');
@@ -169,6 +196,7 @@ export function ResultScreen() {
           side={
             <>
               <ResultActions detail={detail.data} version={v} role={role} />
+              {v.fromScan ? <ScanOrigin groupId={groupId} origin={v.fromScan} unit={v.meta.parameterUnit} /> : null}
               <Card>
                 <Text variant="title">Versions</Text>
                 <VersionHistory versions={versions} selected={v.version} onSelect={(n) => router.setParams({ v: String(n) })} />
@@ -184,5 +212,7 @@ export function ResultScreen() {
 const styles = StyleSheet.create({
   block: { gap: space.sm },
   row: { flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' },
+  failed: { color: colors.danger },
+  link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22 },
   back: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22, alignSelf: 'flex-start' },
 });

@@ -91,7 +91,7 @@ export async function listFinishedPoints(db: Executor, scanId: string) {
 
 export async function listPointInputs(db: Executor, groupId: string, scanId: string) {
   return db
-    .select({ x: scanPoints.x, sigmaNominal: scanPoints.sigmaNominal, model: scanPoints.model })
+    .select({ x: scanPoints.x, sigmaNominal: scanPoints.sigmaNominal, sigmaNominalLow: scanPoints.sigmaNominalLow, sigmaNominalHigh: scanPoints.sigmaNominalHigh, model: scanPoints.model })
     .from(scanPoints)
     .where(inArray(scanPoints.scanId, scanOfGroup(db, groupId, scanId)))
     .orderBy(asc(scanPoints.index));
@@ -196,4 +196,29 @@ export async function setScanOutcome(
     .update(scans)
     .set({ state: outcome.state, resultId: outcome.resultId ?? null, resultVersion: outcome.resultVersion ?? null, error: outcome.error ?? null, finishedAt: new Date() })
     .where(and(eq(scans.id, scanId), eq(scans.groupId, groupId)));
+}
+
+/**
+ * The scan that made a result version (its draft), if any, with the points whose computation
+ * warned or failed: for the version's page, which links back to the scan's diagnostics.
+ */
+export async function scanOfVersion(db: Executor, groupId: string, resultId: string, version: number) {
+  const [scan] = await db
+    .select({ id: scans.id })
+    .from(scans)
+    .where(and(eq(scans.groupId, groupId), eq(scans.resultId, resultId), eq(scans.resultVersion, version)))
+    .limit(1);
+  if (!scan) return undefined;
+  const points = await db
+    .select({
+      index: scanPoints.index,
+      x: scanPoints.x,
+      warnings: sql<string[] | null>`${scanPoints.result}->'warnings'`,
+      error: scanPoints.error,
+    })
+    .from(scanPoints)
+    .where(and(eq(scanPoints.scanId, scan.id), sql`(jsonb_array_length(coalesce(${scanPoints.result}->'warnings', '[]'::jsonb)) > 0 or ${scanPoints.state} = 'failed')`))
+    .orderBy(asc(scanPoints.index))
+    .limit(500);
+  return { id: scan.id, points };
 }

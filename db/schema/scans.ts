@@ -33,6 +33,8 @@ export const scans = pgTable(
     donePoints: integer().notNull().default(0),
     failedPoints: integer().notNull().default(0),
     sourceName: text(),
+    /** The name of the theory curve the draft gets from the points' nominal σ×B (null: the default name). */
+    theoryLabel: text(),
     /** Bytes of stored inputs, counted toward the group's storage use. */
     storedBytes: bigint({ mode: 'number' }).notNull(),
     resultId: uuid().references(() => results.id, { onDelete: 'set null' }),
@@ -58,6 +60,9 @@ export const scanPoints = pgTable(
     index: integer().notNull(),
     x: doublePrecision().notNull(),
     sigmaNominal: doublePrecision(),
+    /** The band of the nominal σ×B, when the inputs give one (both or neither). */
+    sigmaNominalLow: doublePrecision(),
+    sigmaNominalHigh: doublePrecision(),
     model: jsonb().$type<Record<string, unknown>>().notNull(),
     state: scanPointState().notNull().default('queued'),
     /** LimitResult (with the CLs curve) plus the fitted nuisance parameters. */

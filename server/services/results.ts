@@ -14,6 +14,7 @@ import type {
 import { exclusionRanges } from '../../shared/stats/exclusion';
 import { StatsInputError } from '../../shared/stats/errors';
 import * as q from '../../db/queries/results';
+import { scanOfVersion } from '../../db/queries/scans';
 import type { Ctx } from '../context';
 import type { Executor } from '../../db/client';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
@@ -89,6 +90,7 @@ function toVersion(ctx: Ctx, row: q.VersionRow): ResultVersion {
     exclusion: exclusionOf(curve, theory),
     permalink: row.state === 'draft' ? null : `${ctx.env.PUBLIC_URL}/r/${row.slug}/v${row.version}`,
     sourceFile: row.sourceName !== null && row.sourceBytes !== null ? { name: row.sourceName, bytes: row.sourceBytes } : null,
+    fromScan: null,
   };
 }
 
@@ -140,8 +142,17 @@ async function versionRow(ctx: Ctx, groupId: string, resultId: string, version: 
   return row;
 }
 
+/** A version as the group's members see it: with the scan that computed it and its points' warnings. */
 export async function getVersion(ctx: Ctx, groupId: string, resultId: string, version: number): Promise<ResultVersion> {
-  return toVersion(ctx, await versionRow(ctx, groupId, resultId, version));
+  const [row, scan] = await Promise.all([versionRow(ctx, groupId, resultId, version), scanOfVersion(ctx.db, groupId, resultId, version)]);
+  const v = toVersion(ctx, row);
+  if (scan) {
+    v.fromScan = {
+      scanId: scan.id,
+      points: scan.points.map((p) => ({ index: p.index, x: p.x, warnings: p.warnings ?? [], error: p.error ? `${p.error.field}: ${p.error.reason}` : null })),
+    };
+  }
+  return v;
 }
 
 /** A version by its permanent link; 404 (revealing nothing) when the caller may not see it. */

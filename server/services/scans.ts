@@ -2,8 +2,8 @@ import { z } from 'zod';
 import { CsvFileError, decodeText } from '../../shared/curves/csv';
 import { parseScanCsv } from '../../shared/scans/csv';
 import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
-import { createScanSchema, scanFileSchema, scanOptionsSchema, type ScanInputPoint, type ScanOptions } from '../../shared/schemas/scans';
-import { versionMetaSchema, type Curve, type VersionMeta } from '../../shared/schemas/results';
+import { createScanSchema, DEFAULT_SCAN_THEORY_LABEL, scanFileSchema, scanOptionsSchema, theoryLabelSchema, type ScanInputPoint, type ScanOptions } from '../../shared/schemas/scans';
+import { versionMetaSchema, type Curve, type Theory, type VersionMeta } from '../../shared/schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from '../../shared/schemas/scan-views';
 import * as q from '../../db/queries/scans';
 import { getRole } from '../../db/queries/groups';
@@ -21,7 +21,7 @@ import { assertScanQueueRoom, assertStorageAvailable, scanDraftAllowance } from 
  * into a draft result version when the last point finishes (or the scan is cancelled).
  */
 
-export type ScanRequest = { points: ScanInputPoint[]; options: ScanOptions; meta: VersionMeta; resultId?: string; sourceName: string | null; sourceBytes: number };
+export type ScanRequest = { points: ScanInputPoint[]; options: ScanOptions; meta: VersionMeta; resultId?: string; theoryLabel: string | null; sourceName: string | null; sourceBytes: number };
 
 function invalid(details: ErrorDetail[]): never {
   const first = details[0]!;
@@ -32,8 +32,8 @@ function invalid(details: ErrorDetail[]): never {
 export function scanFromJson(body: unknown): ScanRequest {
   const parsed = createScanSchema.safeParse(body);
   if (!parsed.success) throw validationError(parsed.error, 'body');
-  const { points, options, meta, resultId } = parsed.data;
-  return { points: points as ScanInputPoint[], options, meta, resultId, sourceName: null, sourceBytes: Buffer.byteLength(JSON.stringify(body)) };
+  const { points, options, meta, resultId, theoryLabel } = parsed.data;
+  return { points: points as ScanInputPoint[], options, meta, resultId, theoryLabel: theoryLabel || null, sourceName: null, sourceBytes: Buffer.byteLength(JSON.stringify(body)) };
 }
 
 /** A multipart upload: `file` (scan CSV or the project's scan JSON), `meta` and `options` as JSON text, optional `resultId`. */
@@ -56,6 +56,8 @@ export function scanFromUpload(file: { name: string; data: Buffer } | undefined,
   if (!options.success) details.push(...options.error.issues.map((i) => ({ field: ['options', ...i.path].join('.'), message: i.message })));
   const resultId = z.uuid().optional().safeParse(fields.resultId || undefined);
   if (!resultId.success) details.push({ field: 'resultId', message: 'must be a valid id' });
+  const theoryLabel = theoryLabelSchema.safeParse(fields.theoryLabel || undefined);
+  if (!theoryLabel.success) details.push(...theoryLabel.error.issues.map((i) => ({ field: 'theoryLabel', message: i.message })));
 
   let points: ScanInputPoint[] = [];
   try {
@@ -71,14 +73,17 @@ export function scanFromUpload(file: { name: string; data: Buffer } | undefined,
       if (!r.success) details.push(...r.error.issues.map((i) => ({ field: ['file', ...i.path].join('.'), message: i.message })));
       else points = r.data.points as ScanInputPoint[];
     } else {
+      // The same per-point rules as a JSON file (the σ×B band holds the nominal value).
       points = parseScanCsv(text);
+      const r = scanFileSchema.safeParse({ points });
+      if (!r.success) details.push(...r.error.issues.map((i) => ({ field: ['file', ...i.path].join('.'), message: i.message })));
     }
   } catch (e) {
     if (!(e instanceof CsvFileError)) throw e;
     details.push(...e.problems.map((p) => ({ field: p.row !== undefined ? `line ${p.row}, ${p.column}` : p.column, message: p.reason })));
   }
   if (details.length) invalid(details);
-  return { points, options: options.data!, meta: meta.data!, resultId: resultId.data, sourceName: file.name, sourceBytes: file.data.length };
+  return { points, options: options.data!, meta: meta.data!, resultId: resultId.data, theoryLabel: theoryLabel.data || null, sourceName: file.name, sourceBytes: file.data.length };
 }
 
 function bins(model: Record<string, unknown>): number {
@@ -143,12 +148,22 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
       targetResultId: req.resultId ?? null,
       totalPoints: req.points.length,
       sourceName: req.sourceName,
+      theoryLabel: req.theoryLabel,
       storedBytes,
       createdBy: userId,
     });
     await q.insertScanPoints(
       tx,
-      req.points.map((p, index) => ({ scanId: scan.id, index, x: p.x, sigmaNominal: p.sigmaNominal ?? null, model: p.model as Record<string, unknown>, chunks: costs.length })),
+      req.points.map((p, index) => ({
+        scanId: scan.id,
+        index,
+        x: p.x,
+        sigmaNominal: p.sigmaNominal ?? null,
+        sigmaNominalLow: p.sigmaNominalLow ?? null,
+        sigmaNominalHigh: p.sigmaNominalHigh ?? null,
+        model: p.model as Record<string, unknown>,
+        chunks: costs.length,
+      })),
     );
     await addStorage(tx, groupId, storedBytes);
     await tq.insertTasks(
@@ -231,7 +246,14 @@ export async function scanInputs(ctx: Ctx, groupId: string, scanId: string) {
   const s = await q.getScan(ctx.db, groupId, scanId);
   if (!s) throw notFound('Scan');
   const points = await q.listPointInputs(ctx.db, groupId, scanId);
-  return { format: 'bandwright-scan/1', options: s.options, meta: s.meta, points: points.map((p) => ({ x: p.x, ...(p.sigmaNominal !== null ? { sigmaNominal: p.sigmaNominal } : {}), model: p.model })) };
+  const some = <K extends string>(k: K, v: number | null) => (v !== null ? { [k]: v } : {});
+  return {
+    format: 'bandwright-scan/1',
+    options: s.options,
+    meta: s.meta,
+    ...(s.theoryLabel ? { theoryLabel: s.theoryLabel } : {}),
+    points: points.map((p) => ({ x: p.x, ...some('sigmaNominal', p.sigmaNominal), ...some('sigmaNominalLow', p.sigmaNominalLow), ...some('sigmaNominalHigh', p.sigmaNominalHigh), model: p.model })),
+  };
 }
 
 /** Cancels a scan: queued points are dropped, finished ones are kept and become the draft. */
@@ -268,6 +290,24 @@ export function curveOfPoints(points: q.ScanPointRow[], quantity: VersionMeta['q
 }
 
 /**
+ * The draft's theory curve: the nominal σ×B the points give (σ×B scans only), at the finished
+ * points' x, with its band when every such point gives one; null when the scan limits μ or a point
+ * has no nominal σ×B.
+ */
+export function theoryOfPoints(points: q.ScanPointRow[], quantity: VersionMeta['quantity'], label: string | null): Theory | null {
+  if (quantity !== 'xsec') return null;
+  const done = points.filter((p) => p.state === 'done' && p.result).sort((a, b) => a.x - b.x);
+  if (done.length < 2 || done.some((p) => p.sigmaNominal === null)) return null;
+  const band = done.every((p) => p.sigmaNominalLow !== null && p.sigmaNominalHigh !== null);
+  return {
+    label: label ?? DEFAULT_SCAN_THEORY_LABEL,
+    x: done.map((p) => p.x),
+    central: done.map((p) => p.sigmaNominal!),
+    ...(band ? { lower: done.map((p) => p.sigmaNominalLow!), upper: done.map((p) => p.sigmaNominalHigh!) } : {}),
+  };
+}
+
+/**
  * Turns a finished or cancelled scan into a draft result version, at most once: the caller must
  * first win the claim on the scan (another finisher, or a canceller at the same moment, backs off).
  */
@@ -290,7 +330,7 @@ export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancell
     .filter(Boolean)
     .join('\n');
   const meta: VersionMeta = { ...scan.meta, method: opts.method, cl: opts.cl, notes: notes.slice(0, 5000) };
-  const input = { meta, curve, theory: null, source: null };
+  const input = { meta, curve, theory: theoryOfPoints(points, scan.meta.quantity, scan.theoryLabel), source: null };
   const version = scan.targetResultId
     ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: `Recomputed by scan ${scan.id.slice(0, 8)}` }, { admitted: true })
     : await createResult(ctx, scan.groupId, actor, input, { admitted: true });

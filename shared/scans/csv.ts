@@ -5,6 +5,8 @@
  *
  * - `x` is the parameter value of the grid point (rows with the same x form one point, in file order);
  * - `sigma_nominal` (optional) the nominal σ×B of the point (same on all its rows), for σ×B limits;
+ *   it becomes the draft's theory curve; `sigma_nominal_low` / `sigma_nominal_high` (optional,
+ *   both or neither) its band;
  * - `bin` a label of the bin (kept for reading; bins are taken in row order);
  * - `observed`, `signal` the observed count and the signal yield at μ = 1;
  * - `background:<name>` the yield of one background process (one column per process);
@@ -18,14 +20,20 @@ import { CsvFileError, parseCsv, parseNumber } from '../curves/csv';
 import type { CurveProblem } from '../curves/check';
 
 type Column =
-  | { kind: 'x' | 'sigma' | 'bin' | 'observed' | 'signal'; index: number }
+  | { kind: 'x' | SigmaKind | 'bin' | 'observed' | 'signal'; index: number }
   | { kind: 'background'; name: string; index: number }
   | { kind: 'systematic'; name: string; process: string; index: number };
+
+/** The per-point σ×B columns and the point field each fills. */
+type SigmaKind = 'sigmaNominal' | 'sigmaNominalLow' | 'sigmaNominalHigh';
+const SIGMA_KINDS: readonly SigmaKind[] = ['sigmaNominal', 'sigmaNominalLow', 'sigmaNominalHigh'];
 
 // A Map, not an object literal: a header such as "constructor" must not find Object.prototype's.
 const FIXED = new Map<string, Column['kind']>([
   ['x', 'x'],
-  ['sigma_nominal', 'sigma'],
+  ['sigma_nominal', 'sigmaNominal'],
+  ['sigma_nominal_low', 'sigmaNominalLow'],
+  ['sigma_nominal_high', 'sigmaNominalHigh'],
   ['bin', 'bin'],
   ['observed', 'observed'],
   ['signal', 'signal'],
@@ -56,7 +64,7 @@ function classify(headers: string[]): { columns: Column[]; problems: CurveProble
       if (process === RESERVED_PROCESS_NAME) return void problems.push(reservedProblem(h));
       return void columns.push({ kind: 'systematic', name: sy[1]!.trim(), process, index });
     }
-    problems.push({ column: h || `column ${index + 1}`, reason: 'is not a column of the scan layout (x, sigma_nominal, bin, observed, signal, background:<name>, systematic:<name>:<process>)' });
+    problems.push({ column: h || `column ${index + 1}`, reason: 'is not a column of the scan layout (x, sigma_nominal, sigma_nominal_low, sigma_nominal_high, bin, observed, signal, background:<name>, systematic:<name>:<process>)' });
   });
   for (const k of ['x', 'observed', 'signal'] as const) {
     if (!columns.some((c) => c.kind === k)) problems.push({ column: k, reason: 'is a required column and is missing' });
@@ -73,7 +81,7 @@ export function parseScanCsv(text: string): ScanInputPoint[] {
   const { columns, problems } = classify(table.headers);
   if (problems.length) throw new CsvFileError(problems);
 
-  type Acc = { x: number; sigma?: number; sigmaLine: number; rows: number[]; model: Required<Pick<CountingModelInput, 'observed' | 'signal'>> & { backgrounds: { name: string; yields: number[] }[]; systematics: Map<string, Map<string, number[]>> } };
+  type Acc = { x: number; sigma: Partial<Record<SigmaKind, { value: number; line: number }>>; rows: number[]; model: Required<Pick<CountingModelInput, 'observed' | 'signal'>> & { backgrounds: { name: string; yields: number[] }[]; systematics: Map<string, Map<string, number[]>> } };
   const points: Acc[] = [];
   const byX = new Map<number, Acc>();
   const bgNames = columns.filter((c): c is Extract<Column, { kind: 'background' }> => c.kind === 'background').map((c) => c.name);
@@ -99,7 +107,7 @@ export function parseScanCsv(text: string): ScanInputPoint[] {
     if (x === undefined) return;
     let p = byX.get(x);
     if (!p) {
-      p = { x, sigmaLine: line, rows: [], model: { observed: [], signal: [], backgrounds: bgNames.map((name) => ({ name, yields: [] })), systematics: new Map() } };
+      p = { x, sigma: {}, rows: [], model: { observed: [], signal: [], backgrounds: bgNames.map((name) => ({ name, yields: [] })), systematics: new Map() } };
       byX.set(x, p);
       points.push(p);
     } else if (points[points.length - 1] !== p) {
@@ -111,14 +119,12 @@ export function parseScanCsv(text: string): ScanInputPoint[] {
       if (c.kind === 'observed') p.model.observed.push(num(c, true) ?? NaN);
       else if (c.kind === 'signal') p.model.signal.push(num(c, true) ?? NaN);
       else if (c.kind === 'background') p.model.backgrounds.find((b) => b.name === c.name)!.yields.push(num(c, true) ?? NaN);
-      else if (c.kind === 'sigma') {
+      else if (c.kind === 'sigmaNominal' || c.kind === 'sigmaNominalLow' || c.kind === 'sigmaNominalHigh') {
         const s = num(c, false);
+        const seen = p.sigma[c.kind];
         if (s !== undefined) {
-          if (p.sigma !== undefined && p.sigma !== s) problems.push({ row: line, column: table.headers[c.index]!, reason: `differs from line ${p.sigmaLine} of the same grid point (${p.sigma})` });
-          else if (p.sigma === undefined) {
-            p.sigma = s;
-            p.sigmaLine = line;
-          }
+          if (seen && seen.value !== s) problems.push({ row: line, column: table.headers[c.index]!, reason: `differs from line ${seen.line} of the same grid point (${seen.value})` });
+          else if (!seen) p.sigma[c.kind] = { value: s, line };
         }
       } else if (c.kind === 'systematic') {
         // Empty cells mean "no effect in this bin"; a process with no effect at all in a
@@ -145,7 +151,9 @@ export function parseScanCsv(text: string): ScanInputPoint[] {
         effects: Object.fromEntries([...per.entries()].map(([proc, arr]) => [proc, Array.from({ length: bins }, (_, i) => arr[i] ?? 0)])),
       }));
     const model: CountingModelInput = { observed: p.model.observed, signal: p.model.signal, backgrounds: p.model.backgrounds, systematics };
-    return p.sigma !== undefined ? { x: p.x, sigmaNominal: p.sigma, model } : { x: p.x, model };
+    const point: ScanInputPoint = { x: p.x, model };
+    for (const k of SIGMA_KINDS) if (p.sigma[k]) point[k] = p.sigma[k]!.value;
+    return point;
   });
 
   return result;
@@ -155,11 +163,12 @@ export function parseScanCsv(text: string): ScanInputPoint[] {
 export function scanToCsv(points: ScanInputPoint[]): string {
   const bgNames = [...new Set(points.flatMap((p) => (p.model.backgrounds ?? []).map((b) => b.name)))];
   const systCols = [...new Set(points.flatMap((p) => (p.model.systematics ?? []).flatMap((s) => Object.keys(s.effects).map((proc) => `${s.name}:${proc}`))))];
-  const header = ['x', 'sigma_nominal', 'bin', 'observed', 'signal', ...bgNames.map((n) => `background:${n}`), ...systCols.map((c) => `systematic:${c}`)];
+  const band = points.some((p) => p.sigmaNominalLow !== undefined || p.sigmaNominalHigh !== undefined);
+  const header = ['x', 'sigma_nominal', ...(band ? ['sigma_nominal_low', 'sigma_nominal_high'] : []), 'bin', 'observed', 'signal', ...bgNames.map((n) => `background:${n}`), ...systCols.map((c) => `systematic:${c}`)];
   const lines = [header.join(',')];
   for (const p of points) {
     p.model.observed.forEach((obs, i) => {
-      const cells: (string | number)[] = [p.x, p.sigmaNominal ?? '', i + 1, obs, p.model.signal[i] ?? ''];
+      const cells: (string | number)[] = [p.x, p.sigmaNominal ?? '', ...(band ? [p.sigmaNominalLow ?? '', p.sigmaNominalHigh ?? ''] : []), i + 1, obs, p.model.signal[i] ?? ''];
       for (const n of bgNames) cells.push((p.model.backgrounds ?? []).find((b) => b.name === n)?.yields[i] ?? 0);
       for (const c of systCols) {
         const [name, proc] = [c.slice(0, c.indexOf(':')), c.slice(c.indexOf(':') + 1)];

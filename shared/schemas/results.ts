@@ -182,6 +182,11 @@ export type ResultVersion = VersionSummary & {
   exclusion: { ranges: import('../stats/exclusion').ExclusionRanges | null; problem: string | null };
   permalink: string | null;
   sourceFile: { name: string; bytes: number } | null;
+  /**
+   * For members: the scan that computed this version, with the grid points whose computation
+   * warned (too few pseudo-experiments, low counts…) or failed. Null for uploads and public reads.
+   */
+  fromScan: { scanId: string; points: { index: number; x: number; warnings: string[]; error: string | null }[] } | null;
 };
 
 /**

@@ -7,17 +7,35 @@ import { asimovChoiceSchema, type CountingModelInput } from './counting-model';
 import { versionMetaSchema } from './results';
 import { intParam, uuidParam } from './common';
 
+const sigmaValue = z.number({ error: 'must be a number' }).positive('must be positive').refine(Number.isFinite, 'must be finite').optional();
+
 /**
- * One grid point: the parameter value, an optional nominal σ×B, and its counting model. The model
- * is only required to be an object here: the statistics engine checks it when the point is
- * computed, so one bad point fails alone with its field-level error instead of the whole scan.
+ * One grid point: the parameter value, an optional nominal σ×B (the draft's theory curve) with an
+ * optional band (`sigmaNominalLow` ≤ `sigmaNominal` ≤ `sigmaNominalHigh`, both or neither), and its
+ * counting model. The model is only required to be an object here: the statistics engine checks it
+ * when the point is computed, so one bad point fails alone with its field-level error instead of
+ * the whole scan.
  */
-export const scanInputPointSchema = z.object({
-  x: z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number'),
-  sigmaNominal: z.number({ error: 'must be a number' }).positive('must be positive').refine(Number.isFinite, 'must be finite').optional(),
-  model: z.record(z.string(), z.unknown(), { error: 'must be a counting model (an object with observed, signal, backgrounds, systematics)' }),
-});
-export type ScanInputPoint = { x: number; sigmaNominal?: number; model: CountingModelInput };
+export const scanInputPointSchema = z
+  .object({
+    x: z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number'),
+    sigmaNominal: sigmaValue,
+    sigmaNominalLow: sigmaValue,
+    sigmaNominalHigh: sigmaValue,
+    model: z.record(z.string(), z.unknown(), { error: 'must be a counting model (an object with observed, signal, backgrounds, systematics)' }),
+  })
+  .superRefine((p, ctx) => {
+    const lo = p.sigmaNominalLow;
+    const hi = p.sigmaNominalHigh;
+    if ((lo === undefined) !== (hi === undefined)) {
+      ctx.addIssue({ code: 'custom', path: [lo === undefined ? 'sigmaNominalLow' : 'sigmaNominalHigh'], message: 'is required with the other edge of the σ×B band' });
+      return;
+    }
+    if (lo === undefined || hi === undefined) return;
+    if (p.sigmaNominal === undefined) ctx.addIssue({ code: 'custom', path: ['sigmaNominal'], message: 'is required when the point gives a σ×B band' });
+    else if (!(lo <= p.sigmaNominal && p.sigmaNominal <= hi)) ctx.addIssue({ code: 'custom', path: ['sigmaNominalLow'], message: `the band must hold sigmaNominal: ${lo} ≤ ${p.sigmaNominal} ≤ ${hi} does not hold` });
+  });
+export type ScanInputPoint = { x: number; sigmaNominal?: number; sigmaNominalLow?: number; sigmaNominalHigh?: number; model: CountingModelInput };
 
 export const SCAN_METHODS = ['asymptotic', 'toys'] as const;
 
@@ -32,6 +50,11 @@ export const scanOptionsSchema = z
   })
   .default({ cl: 0.95, method: 'asymptotic', asimov: 'profiled', toys: 5000, seed: 1 });
 export type ScanOptions = z.output<typeof scanOptionsSchema>;
+
+/** The name of the theory curve a scan's draft gets from the points' nominal σ×B. */
+export const theoryLabelSchema = z.string({ error: 'must be text' }).trim().max(120, 'must be at most 120 characters').optional();
+/** The name a scan's theory curve gets when none is given. */
+export const DEFAULT_SCAN_THEORY_LABEL = 'Nominal $\\sigma \\times B$ of the signal model';
 
 /** The project's JSON scan file, also the JSON body of "start a scan". */
 export const SCAN_FILE_FORMAT = 'bandwright-scan/1';
@@ -48,6 +71,8 @@ export const createScanSchema = z.object({
   meta: versionMetaSchema,
   /** Add the scan as a new draft version of this result instead of creating a result. */
   resultId: uuidParam.optional(),
+  /** The name of the draft's theory curve (the points' nominal σ×B); TeX allowed. */
+  theoryLabel: theoryLabelSchema,
 });
 export type CreateScanInput = z.input<typeof createScanSchema>;
 

@@ -7,6 +7,7 @@ import { runNextTask, startScanWorkers } from '@/server/jobs/scan-worker';
 import { startWorkerProcesses, type WorkerProcesses } from '@/server/jobs/worker-processes';
 import type { CountingModelInput } from '@/shared/schemas/counting-model';
 import type { ScanDetail } from '@/shared/schemas/scan-views';
+import { DEFAULT_SCAN_THEORY_LABEL } from '@/shared/schemas/scans';
 import { computeScan } from '@/shared/stats';
 import { startTestApp, type TestApp } from '../helpers/app';
 import { makeGroupWithRoles, type Crew } from '../helpers/factories';
@@ -85,6 +86,55 @@ describe('scans with an in-process worker', () => {
     expect(inputs.body.points[3].model).toEqual(points[3]!.model);
   });
 
+  test("the points' nominal σ×B becomes the draft's theory curve, with its band and name; the excluded range follows", async () => {
+    const points = grid(6).map((p) => ({ ...p, sigmaNominalLow: p.sigmaNominal * 0.8, sigmaNominalHigh: p.sigmaNominal * 1.25 }));
+    const res = await crew.analyst.agent
+      .post(`/api/groups/${groupId}/scans`)
+      .send({ points, options: {}, meta: META, theoryLabel: 'Heavy scalar, benchmark $g = 1$' });
+    expect(res.status).toBe(201);
+    const done = await waitFor(t, crew.analyst.agent, groupId, res.body.id, (s) => s.state === 'done');
+    const v = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${done.resultId}/versions/${done.resultVersion}`);
+    expect(v.body.theory).toEqual({
+      label: 'Heavy scalar, benchmark $g = 1$',
+      x: points.map((p) => p.x),
+      central: points.map((p) => p.sigmaNominal),
+      lower: points.map((p) => p.sigmaNominalLow),
+      upper: points.map((p) => p.sigmaNominalHigh),
+    });
+    // The stored inputs give the band and name back, to re-run the scan.
+    const inputs = await crew.viewer.agent.get(`/api/groups/${groupId}/scans/${done.id}/inputs.json`);
+    expect(inputs.body.theoryLabel).toBe('Heavy scalar, benchmark $g = 1$');
+    expect(inputs.body.points[2]).toMatchObject({ sigmaNominal: points[2]!.sigmaNominal, sigmaNominalLow: points[2]!.sigmaNominalLow, sigmaNominalHigh: points[2]!.sigmaNominalHigh });
+    // Without a name the curve gets the default one, and without band columns no band.
+    const plain = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(3), options: {}, meta: META });
+    const plainDone = await waitFor(t, crew.analyst.agent, groupId, plain.body.id, (s) => s.state === 'done');
+    const pv = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${plainDone.resultId}/versions/${plainDone.resultVersion}`);
+    expect(pv.body.theory.label).toBe(DEFAULT_SCAN_THEORY_LABEL);
+    expect(pv.body.theory.lower).toBeUndefined();
+    // A limit on μ has no theory curve.
+    const mu = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: grid(3), options: {}, meta: { ...META, quantity: 'mu', quantityUnit: '' } });
+    const muDone = await waitFor(t, crew.analyst.agent, groupId, mu.body.id, (s) => s.state === 'done');
+    expect((await crew.analyst.agent.get(`/api/groups/${groupId}/results/${muDone.resultId}/versions/${muDone.resultVersion}`)).body.theory).toBeNull();
+  });
+
+  test('a σ×B band that does not hold the nominal value, or has one edge, is refused naming the point', async () => {
+    const points = grid(3);
+    const bad = [
+      { ...points[0]!, sigmaNominalLow: points[0]!.sigmaNominal * 1.1, sigmaNominalHigh: points[0]!.sigmaNominal * 1.2 },
+      { ...points[1]!, sigmaNominalHigh: 3 },
+      points[2]!,
+    ];
+    const res = await crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ points: bad, options: {}, meta: META, theoryLabel: 'x'.repeat(121) });
+    expect(res.status).toBe(400);
+    expect(res.body.error.details).toEqual(
+      expect.arrayContaining([
+        expect.objectContaining({ field: 'points.0.sigmaNominalLow', message: expect.stringContaining('must hold sigmaNominal') }),
+        expect.objectContaining({ field: 'points.1.sigmaNominalLow', message: 'is required with the other edge of the σ×B band' }),
+        expect.objectContaining({ field: 'theoryLabel', message: 'must be at most 120 characters' }),
+      ]),
+    );
+  });
+
   test('a bad grid point fails alone with the engine error; the others make the draft', async () => {
     const points = grid(4);
     (points[2]!.model as { signal: number[] }).signal = [0, 0, 0];
@@ -98,6 +148,9 @@ describe('scans with an in-process worker', () => {
     const version = await crew.analyst.agent.get(`/api/groups/${groupId}/results/${done.resultId}/versions/${done.resultVersion}`);
     expect(version.body.curve.x).toEqual([1000, 1100, 1300]);
     expect(version.body.meta.notes).toContain('1 grid point(s) failed');
+    // The draft's page links back to the scan and names the point that failed.
+    expect(version.body.fromScan.scanId).toBe(done.id);
+    expect(version.body.fromScan.points).toEqual(expect.arrayContaining([expect.objectContaining({ index: 2, x: 1200, error: expect.stringContaining('signal') })]));
   });
 
   test('diagnostics of a point: CLs curve, μ̂ and pulls', async () => {
@@ -197,11 +250,16 @@ describe('cancel, and workers that crash', () => {
     // marked running after the kill was in the dead worker's hands: the kill came mid-chunk. If the
     // chunk happened to finish between the look and the kill, start another worker and try again.
     const inFlight = () => t.ctx.db.select().from(scanTasks).where(and(eq(scanTasks.scanId, res.body.id), eq(scanTasks.state, 'running')));
+    // Computing: the task is claimed and its point taken up (the point's attempts reached the task's).
+    const computing = async () => {
+      const [tasks, pts] = await Promise.all([inFlight(), t.ctx.db.select().from(scanPoints).where(eq(scanPoints.scanId, res.body.id))]);
+      return tasks.filter((task) => (pts.find((p) => p.index === task.pointIndex)?.attempts ?? 0) >= task.attempts);
+    };
     let interrupted: number[] = [];
     for (let round = 0; interrupted.length === 0; round++) {
       if (round >= 5) throw new Error('could not kill a worker in the middle of a chunk');
       const worker = startWorker();
-      for (let i = 0; (await inFlight()).length === 0; i++) {
+      for (let i = 0; (await computing()).length === 0; i++) {
         if (i > 1500) throw new Error('the worker never started a chunk');
         await new Promise((r) => setTimeout(r, 20));
       }

@@ -3,7 +3,7 @@ import { fireEvent, render, screen } from '@testing-library/react-native';
 import type { ReactNode } from 'react';
 import { QuickPlot } from '@/components/plot/quick-plot';
 import { ExclusionSummary } from '@/components/results/exclusion-summary';
-import { ResultActions } from '@/components/screens/result-screen';
+import { ResultActions, ScanOrigin } from '@/components/screens/result-screen';
 import { MappingEditor } from '@/components/upload/mapping-editor';
 import { parseCsv } from '@/shared/curves/csv';
 import type { ResultDetail, ResultVersion } from '@/shared/schemas/results';
@@ -34,6 +34,7 @@ const version: ResultVersion = {
   exclusion: { ranges: { observed: [{ from: 1, to: 2.6, fromOpen: true }], expected: { '0': [{ from: 1.2, to: 2.75 }] } }, problem: null },
   permalink: null,
   sourceFile: null,
+  fromScan: null,
 };
 const detail: ResultDetail = { id: 'r1', slug: 'dijet-z-prime', groupId: 'g1', groupName: 'Invented Dijet Team', isPublic: false, versions: [version] };
 
@@ -93,4 +94,19 @@ test('the quick plot draws once it knows its width and describes itself to scree
   expect(texts).toEqual(expect.arrayContaining(['m [TeV]', 'Upper limit on σ×B [fb]', '0.1', '1', '10']));
   // ±1σ band, theory, expected median and observed: four paths (no ±2σ band in this curve).
   expect(screen.UNSAFE_root.findAll((n) => (n.type as unknown) === 'RNSVGPath')).toHaveLength(4);
+});
+
+test("a computed draft links to its scan's diagnostics and lists the points that warned or failed", () => {
+  render(
+    <ScanOrigin
+      groupId="g1"
+      unit="GeV"
+      origin={{ scanId: 's1', points: [{ index: 0, x: 1000, warnings: ['only 800 pseudo-experiments: the ±2σ band needs about 18,000'], error: null }, { index: 3, x: 1300, warnings: [], error: 'model.signal: must not be all zero' }] }}
+    />,
+  );
+  expect(screen.getByText('2 grid points need a look before publishing:')).toBeTruthy();
+  expect(screen.getByText('x = 1000 GeV: only 800 pseudo-experiments: the ±2σ band needs about 18,000')).toBeTruthy();
+  expect(screen.getByText('x = 1300 GeV: failed (model.signal: must not be all zero)')).toBeTruthy();
+  render(<ScanOrigin groupId="g1" unit="" origin={{ scanId: 's1', points: [] }} />);
+  expect(screen.getByText('No grid point warned.')).toBeTruthy();
 });

@@ -101,3 +101,15 @@ describe('process and systematic names that are also properties of JavaScript ob
     }
   });
 });
+
+test('the σ×B band columns are read per grid point and written back', () => {
+  const text = 'x,sigma_nominal,sigma_nominal_low,sigma_nominal_high,bin,observed,signal\n1000,5,4,6,a,2,3\n1000,5,4,6,b,1,2\n1100,4,3.5,4.5,a,2,3\n1100,4,3.5,4.5,b,2,1\n';
+  const points = parseScanCsv(text);
+  expect(points.map((p) => [p.x, p.sigmaNominal, p.sigmaNominalLow, p.sigmaNominalHigh])).toEqual([
+    [1000, 5, 4, 6],
+    [1100, 4, 3.5, 4.5],
+  ]);
+  expect(parseScanCsv(scanToCsv(points))).toEqual(points);
+  // The band differs between the rows of one point: named by line and column.
+  expect(problemsOf('x,sigma_nominal,sigma_nominal_low,sigma_nominal_high,observed,signal\n1,5,4,6,2,3\n1,5,4.5,6,2,3\n')[0]).toEqual(expect.objectContaining({ row: 3, column: 'sigma_nominal_low' }));
+});
