@@ -157,6 +157,9 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       list: (query: ResultListQuery = {}) => call<ResultPage>('GET', `/api/results${qs(query)}`),
       listInGroup: (groupId: string, query: Omit<ResultListQuery, 'groupId'> = {}) =>
         call<ResultPage>('GET', `/api/groups/${enc(groupId)}/results${qs(query)}`),
+      /** What the group may pin in its figures: its own results (any state) and other groups' public ones (no drafts). */
+      listPinnable: (groupId: string, query: Omit<ResultListQuery, 'groupId'> = {}) =>
+        call<ResultPage>('GET', `/api/groups/${enc(groupId)}/pinnable-results${qs(query)}`),
       /** JSON body, or FormData with `file` (CSV or the project's JSON), `meta` (JSON text) and optional `mapping` (JSON text). */
       create: (groupId: string, input: CreateResultInput | FormData) => call<UploadedVersion>('POST', `/api/groups/${enc(groupId)}/results`, input),
       get: (groupId: string, resultId: string) => call<ResultDetail>('GET', `/api/groups/${enc(groupId)}/results/${enc(resultId)}`),

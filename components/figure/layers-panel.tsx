@@ -26,11 +26,14 @@ const PART_LABELS: [keyof LayerParts, string][] = [
   ['crossings', 'Crossing markers'],
 ];
 
-/** Search the registry and add a result (its newest version the group may draw) as a layer. */
-function ResultPicker({ onAdd }: { onAdd: (resultId: string, version: number) => void }) {
+/**
+ * Search what the figure's group may pin (its own results, other groups' public ones) and add a
+ * result (its newest version the group may draw) as a layer.
+ */
+function ResultPicker({ groupId, onAdd }: { groupId: string; onAdd: (resultId: string, version: number) => void }) {
   const [q, setQ] = useState('');
   const query = useDebounced(q, 300);
-  const found = useQuery({ queryKey: ['results', 'picker', query], queryFn: () => api.results.list({ q: query || undefined, pageSize: 8 }) });
+  const found = useQuery({ queryKey: ['results', 'picker', groupId, query], queryFn: () => api.results.listPinnable(groupId, { q: query || undefined, pageSize: 8 }) });
   return (
     <View style={styles.picker}>
       <TextField label="Find results to add" value={q} onChangeText={setQ} placeholder="Title, model or reference" />
@@ -60,7 +63,9 @@ export function LayersPanel({
   onChange,
   data,
   info,
+  groupId,
 }: {
+  groupId: string;
   spec: FigureSpec;
   onChange: (next: FigureSpec, mergeKey?: string) => void;
   data: FigureLayerData[] | undefined;
@@ -102,7 +107,7 @@ export function LayersPanel({
           </View>
         );
       })}
-      <ResultPicker onAdd={(id, v) => onChange(addLayer(spec, id, v))} />
+      <ResultPicker groupId={groupId} onAdd={(id, v) => onChange(addLayer(spec, id, v))} />
     </View>
   );
 }

@@ -75,7 +75,7 @@ export function FigureComposerScreen() {
   const controls = (
     <View style={styles.col}>
       <Section title="Layers">
-        <LayersPanel spec={spec} onChange={change} data={layerData.data} info={f.latest.layers} />
+        <LayersPanel groupId={groupId!} spec={spec} onChange={change} data={layerData.data} info={f.latest.layers} />
       </Section>
       <Section title="Look and labels" initiallyOpen={wide}>
         <StylePanel spec={spec} onChange={change} />

@@ -77,6 +77,11 @@ export function resultsRouter(ctx: Ctx) {
     res.json(await results.listInGroup(ctx, params.groupId, query));
   }));
 
+  // What the group may pin in its figures: its own results (any state), other groups' public ones.
+  r.get('/groups/:groupId/pinnable-results', requireGroup(ctx, 'group.read'), handle({ params: groupParams, query: groupListQuery }, async ({ params, query }, _req, res) => {
+    res.json(await results.listPinnable(ctx, params.groupId, query));
+  }));
+
   r.post('/groups/:groupId/results', requireGroup(ctx, 'result.write'), upload, handle({ params: groupParams }, async ({ params }, req, res) => {
     const file = fileUploadOf(req);
     const userId = req.user!.id;

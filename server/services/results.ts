@@ -112,6 +112,17 @@ export async function listInGroup(ctx: Ctx, groupId: string, query: ListQuery): 
   );
 }
 
+/**
+ * Results the group may build on (figure layers, derived results): its own in any state and other
+ * groups' public ones without drafts, each at its newest version the group may pin (the `pinning`
+ * reader of the visibility rule). The layer picker lists only these.
+ */
+export async function listPinnable(ctx: Ctx, groupId: string, query: ListQuery): Promise<ResultPage> {
+  return ctx.reads.get(`list:pinning:${groupId}:${JSON.stringify(query)}`, async () =>
+    toPage(await q.listResults(ctx.db, { kind: 'pinning', groupId }, { ...query, groupId: undefined }), query),
+  );
+}
+
 /** Results the caller may see: their groups' (any state) and public ones (no drafts). */
 export async function listVisible(ctx: Ctx, userId: string | null, query: ListQuery): Promise<ResultPage> {
   return ctx.reads.get(`list:user:${userId ?? '-'}:${JSON.stringify(query)}`, async () => toPage(await q.listResults(ctx.db, { kind: 'user', userId }, query), query));

@@ -4,7 +4,9 @@ import type { FigureSpecInput } from '@/shared/schemas/figures';
 import { labelKey, type FigureLayerData } from '@/shared/figure/types';
 import { startTestApp, type TestApp } from '../helpers/app';
 import { figureSpec, makeFigure } from '../helpers/figures';
-import { makeGroup, makeGroupWithRoles, makePerson, makeResult, makeVersion, publishVersion, type Crew, type Person } from '../helpers/factories';
+import { and, eq } from 'drizzle-orm';
+import { memberships } from '@/db/schema';
+import { addToGroup, makeGroup, makeGroupWithRoles, makePerson, makeResult, makeVersion, publishVersion, type Crew, type Person } from '../helpers/factories';
 
 /**
  * Figures through the API: versions, the layer rule (a group pins its own results or public
@@ -184,6 +186,38 @@ describe('layers pin result versions the group may use', () => {
 });
 
 describe("the composer's layer data", () => {
+  test('the layer picker lists what the group may pin: its own results in any state, other groups’ public ones at their newest non-draft version', async () => {
+    // The editor also belongs to the other group: its own list shows that group's drafts and
+    // private results, which this group may not pin.
+    await addToGroup(t, otherGroup, crew.editor, 'viewer');
+    try {
+      const mine = await crew.editor.agent.get('/api/results?pageSize=100');
+      const mineById = new Map((mine.body.items as { id: string; version: number }[]).map((r) => [r.id, r.version]));
+      expect(mineById.get(ids.otherPublic)).toBe(2);
+      expect(mineById.has(ids.otherPrivate)).toBe(true);
+      const res = await crew.editor.agent.get(`/api/groups/${groupId}/pinnable-results?pageSize=100`);
+      expect(res.status).toBe(200);
+      const byId = new Map((res.body.items as { id: string; version: number; state: string }[]).map((r) => [r.id, r]));
+      expect(byId.get(ids.own)).toMatchObject({ version: 1, state: 'published' });
+      expect(byId.get(ids.ownDraft)).toMatchObject({ version: 1, state: 'draft' });
+      expect(byId.get(ids.otherPublic)).toMatchObject({ version: 1, state: 'published' });
+      expect(byId.has(ids.otherPrivate)).toBe(false);
+      // Each offered version can indeed be pinned.
+      const fig = await create(crew.editor, { spec: spec([...byId.values()].filter((r) => [ids.own, ids.ownDraft, ids.otherPublic].includes(r.id)).map((r) => ({ resultId: r.id, version: r.version }))) });
+      expect(fig.latest.layers.every((l) => l.available)).toBe(true);
+    } finally {
+      await t.ctx.db.delete(memberships).where(and(eq(memberships.groupId, otherGroup), eq(memberships.userId, crew.editor.user.id)));
+    }
+    // Search and bad queries behave as on the group's own list.
+    const found = await crew.viewer.agent.get(`/api/groups/${groupId}/pinnable-results?q=${encodeURIComponent('another group')}`);
+    expect(found.body.items.map((r: { id: string }) => r.id)).toEqual([ids.otherPublic]);
+    const bad = await crew.viewer.agent.get(`/api/groups/${groupId}/pinnable-results?pageSize=0`);
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.details[0].field).toBe('query.pageSize');
+    expect((await other.agent.get(`/api/groups/${groupId}/pinnable-results`)).status).toBe(404);
+  });
+
+
   test('each layer as the group may draw it; the others say only that they are unavailable', async () => {
     const fresh = (await makeResult(crew.analyst, groupId, { meta: { title: 'Result without a hue yet' } })).resultId;
     const res = await crew.viewer.agent.post(`/api/groups/${groupId}/layer-data`).send({

@@ -197,6 +197,7 @@ const MATRIX: Entry[] = [
 
   // --- Results registry ---
   { method: 'get', path: '/api/groups/:groupId/results', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  { method: 'get', path: '/api/groups/:groupId/pinnable-results', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
   {
     method: 'post',
     path: '/api/groups/:groupId/results',
