@@ -11,7 +11,7 @@ import { OpenAPIRegistry, OpenApiGeneratorV31, type RouteConfig } from '@asteaso
 import { z } from 'zod';
 import { ACTION_MIN_ROLE, ROLE_LABELS } from '../../shared/access';
 import { apiErrorSchema } from '../../shared/schemas/common';
-import { OPERATIONS, TAGS, type Access, type ApiOperation } from './operations';
+import { OPERATIONS, TAGS, type Access, type Answer, type ApiOperation } from './operations';
 
 export type ApiDocument = ReturnType<OpenApiGeneratorV31['generateDocument']>;
 
@@ -58,8 +58,8 @@ function security(access: Access): Record<string, string[]>[] {
 }
 
 /** The refusals every operation of this kind may answer, unless the operation says more. */
-function standardErrors(op: ApiOperation): Record<number, string> {
-  const out: Record<number, string> = {};
+function standardErrors(op: ApiOperation): Record<number, string | Answer> {
+  const out: Record<number, string | Answer> = {};
   const validated = op.params || op.query || op.headers || (op.body && !('raw' in op.body));
   if (validated) out[400] = '`validation_failed`: `details` name every field that is wrong (`params.groupId`, `query.page`, `meta.sqrtS`) and why.';
   const a = op.access;
@@ -126,6 +126,21 @@ const accepts = (schema: z.ZodType, value: unknown) => schema.safeParse(value).s
 const errorSchema = apiErrorSchema.meta({ id: 'Error' });
 const titleCase = (header: string) => header.replace(/(^|-)([a-z])/g, (_m, dash: string, c: string) => dash + c.toUpperCase());
 
+function response(a: Answer): RouteConfig['responses'][string] {
+  const content = a.schema
+    ? { 'application/json': { schema: a.schema } }
+    : a.contentType
+      ? { [a.contentType]: { schema: { type: 'string' as const, ...(a.contentType.startsWith('text/') ? {} : { format: 'binary' }) } } }
+      : a.status === 204
+        ? undefined
+        : { 'application/json': { schema: { type: 'object' as const } } };
+  return {
+    description: a.description,
+    ...(content ? { content } : {}),
+    ...(a.headers ? { headers: Object.fromEntries(Object.entries(a.headers).map(([name, description]) => [name, { description, schema: { type: 'string' } }])) } : {}),
+  };
+}
+
 function routeConfig(op: ApiOperation): RouteConfig {
   const body = op.body;
   let requestBody: NonNullable<RouteConfig['request']>['body'];
@@ -138,24 +153,10 @@ function routeConfig(op: ApiOperation): RouteConfig {
     const optional = body.json ? accepts(body.json, {}) : false;
     requestBody = { required: !optional, ...(body.multipartNote ? { description: body.multipartNote } : {}), content };
   }
-  const ok = op.ok;
-  const okContent = ok.schema
-    ? { 'application/json': { schema: ok.schema } }
-    : ok.contentType
-      ? { [ok.contentType]: { schema: { type: 'string' as const, ...(ok.contentType.startsWith('text/') ? {} : { format: 'binary' }) } } }
-      : op.ok.status === 204
-        ? undefined
-        : { 'application/json': { schema: { type: 'object' as const } } };
-  const responses: RouteConfig['responses'] = {
-    [ok.status]: {
-      description: ok.description,
-      ...(okContent ? { content: okContent } : {}),
-      ...(ok.headers ? { headers: Object.fromEntries(Object.entries(ok.headers).map(([name, description]) => [name, { description, schema: { type: 'string' } }])) } : {}),
-    },
-  };
+  const responses: RouteConfig['responses'] = { [op.ok.status]: response(op.ok) };
   const errors = { ...standardErrors(op), ...op.errors };
-  for (const [status, description] of Object.entries(errors)) {
-    responses[status] = { description, content: { 'application/json': { schema: errorSchema } } };
+  for (const [status, e] of Object.entries(errors)) {
+    responses[status] = typeof e === 'string' ? { description: e, content: { 'application/json': { schema: errorSchema } } } : response(e);
   }
   return {
     method: op.method,

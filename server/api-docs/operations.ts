@@ -121,8 +121,11 @@ export type ApiOperation = {
   headers?: z.ZodObject;
   body?: Body;
   ok: Answer;
-  /** Refusals beyond the ones every operation of its access gets (400 on bad input, 401/403/404). */
-  errors?: Record<number, string>;
+  /**
+   * Refusals beyond the ones every operation of its access gets (400 on bad input, 401/403/404):
+   * the one error shape with this description, or an answer of its own.
+   */
+  errors?: Record<number, string | Answer>;
   /** Mounted only outside production (`devTools`). */
   devOnly?: boolean;
   /** A route of better-auth, documented here; the router walk of our routes does not see it. */
@@ -170,7 +173,7 @@ const authUser = z.object({ user: z.object({ id: z.string(), name: z.string(), e
 
 export const OPERATIONS: ApiOperation[] = [
   // --- Service ---
-  { method: 'get', path: '/health', tag: 'Service', summary: 'Is the server up and does it reach its database?', access: { kind: 'anyone' }, ok: json(200, '`{ ok: true, db: "up" }`'), errors: { 503: '`{ ok: false, db: "down" }`: the database does not answer.' } },
+  { method: 'get', path: '/health', tag: 'Service', summary: 'Is the server up and does it reach its database?', access: { kind: 'anyone' }, ok: json(200, '`{ ok: true, db: "up" }`', z.object({ ok: z.literal(true), db: z.literal('up') })), errors: { 503: json(503, '`{ ok: false, db: "down" }`: the database does not answer.', z.object({ ok: z.literal(false), db: z.literal('down') })) } },
   { method: 'get', path: '/limits', tag: 'Service', summary: 'The server\'s limits a client checks before sending (largest upload).', access: { kind: 'anyone' }, ok: json(200, '`{ uploadLimitBytes }`', z.object({ uploadLimitBytes: z.number().int() })) },
   { method: 'get', path: '/docs', tag: 'Service', summary: 'This reference as a web page.', access: { kind: 'anyone' }, ok: { status: 200, description: 'An HTML page.', contentType: 'text/html' } },
   { method: 'get', path: '/docs.json', tag: 'Service', summary: 'This reference as an OpenAPI 3.1 document.', access: { kind: 'anyone' }, ok: json(200, 'The OpenAPI document.') },
