@@ -136,7 +136,7 @@ function fieldTable(rows: Row[], firstColumn = 'Field'): string {
         `<tr><td><code>${escapeHtml(row.name)}</code>${row.required ? ' <span class="req">required</span>' : ''}</td><td><code>${escapeHtml(row.type)}</code></td><td>${row.limits.map((l) => escapeHtml(l)).join('; ')}</td><td>${prose(row.description)}</td></tr>`,
     )
     .join('');
-  return `<table><thead><tr><th>${escapeHtml(firstColumn)}</th><th>Type</th><th>Limits</th><th>Notes</th></tr></thead><tbody>${body}</tbody></table>`;
+  return `<div class="scroll"><table><thead><tr><th>${escapeHtml(firstColumn)}</th><th>Type</th><th>Limits</th><th>Notes</th></tr></thead><tbody>${body}</tbody></table></div>`;
 }
 
 const MEDIA_NAMES: Record<string, string> = { 'application/json': 'JSON body', 'multipart/form-data': 'Multipart form (multipart/form-data)' };
@@ -164,7 +164,7 @@ function parameters(op: Operation, resolve: Resolve): string {
         `<tr><td><code>${escapeHtml(p.name)}</code>${p.required ? ' <span class="req">required</span>' : ''}</td><td>${escapeHtml(p.in)}</td><td><code>${escapeHtml(typeLabel(p.schema, resolve))}</code></td><td>${limits(p.schema, resolve).map((l) => escapeHtml(l)).join('; ')}</td><td>${prose(p.description ?? p.schema?.description)}</td></tr>`,
     )
     .join('');
-  return `<h4>Parameters</h4><table><thead><tr><th>Name</th><th>In</th><th>Type</th><th>Limits</th><th>Notes</th></tr></thead><tbody>${rows}</tbody></table>`;
+  return `<h4>Parameters</h4><div class="scroll"><table><thead><tr><th>Name</th><th>In</th><th>Type</th><th>Limits</th><th>Notes</th></tr></thead><tbody>${rows}</tbody></table></div>`;
 }
 
 function responses(op: Operation, resolve: Resolve): string {
@@ -180,7 +180,7 @@ function responses(op: Operation, resolve: Resolve): string {
       return `<tr><td><span class="status ${cls}">${escapeHtml(status)}</span></td><td>${prose(r.description)}${headers.join('')}${detail}</td><td>${types.map((t) => `<code>${escapeHtml(t)}</code>`).join(' ')}${isError ? ' (error)' : ''}</td></tr>`;
     })
     .join('');
-  return `<h4>Responses</h4><table><thead><tr><th>Status</th><th>Meaning</th><th>Content</th></tr></thead><tbody>${rows}</tbody></table>`;
+  return `<h4>Responses</h4><div class="scroll"><table><thead><tr><th>Status</th><th>Meaning</th><th>Content</th></tr></thead><tbody>${rows}</tbody></table></div>`;
 }
 
 const anchor = (s: string) => s.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '');
@@ -219,8 +219,8 @@ h5{font-size:14px;margin:${space.md}px 0 ${space.xs}px}
 .op{background:${colors.surface};border:1px solid ${colors.border};border-radius:${radii.md}px;padding:${space.lg}px;margin:${space.md}px 0}
 .summary{margin:0 0 ${space.sm}px;font-weight:500}
 .who,.note{color:${colors.textMuted};margin:${space.xs}px 0}
-code{font-family:${fonts.mono},ui-monospace,Menlo,Consolas,monospace;font-size:13px;background:${colors.surfaceAlt};padding:1px 4px;border-radius:${radii.sm}px;overflow-wrap:anywhere}
-.path{font-size:14px;background:none;padding:0}
+code{font-family:${fonts.mono},ui-monospace,Menlo,Consolas,monospace;font-size:13px;background:${colors.surfaceAlt};padding:1px 4px;border-radius:${radii.sm}px;overflow-wrap:break-word}
+.path{font-size:14px;background:none;padding:0;overflow-wrap:anywhere}
 .method{display:inline-block;min-width:64px;text-align:center;font-weight:700;font-size:12px;color:${colors.primaryText};border-radius:${radii.sm}px;padding:2px ${space.sm}px}
 .method.get{background:${colors.primary}}
 .method.post{background:${colors.success}}
@@ -234,6 +234,7 @@ code{font-family:${fonts.mono},ui-monospace,Menlo,Consolas,monospace;font-size:1
 table{border-collapse:collapse;width:100%;font-size:13px;line-height:18px;margin:${space.xs}px 0}
 th,td{text-align:left;vertical-align:top;border-top:1px solid ${colors.border};padding:${space.xs}px ${space.sm}px}
 th{color:${colors.textMuted};font-weight:600}
+.scroll{overflow-x:auto}
 details summary{cursor:pointer;color:${colors.primary};margin-top:${space.xs}px}
 @media (max-width:900px){.layout{display:block;padding:${space.md}px}nav{position:static;max-height:none;margin-bottom:${space.lg}px}}
 `;
