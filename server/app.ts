@@ -11,6 +11,7 @@ import { cookieWriteGuard } from './lib/origins';
 import { securityHeaders } from './lib/security-headers';
 import { perMinuteLimit } from './lib/rate-limit';
 import { validate } from './lib/validate';
+import { apiDocsRouter } from './routes/api-docs';
 import { billingRouter, billingWebhook } from './routes/billing';
 import { devRouter } from './routes/dev';
 import { figuresRouter } from './routes/figures';
@@ -79,6 +80,7 @@ export function createApp(ctx: Ctx): Express {
   app.use(['/api/groups/:groupId/results', '/api/groups/:groupId/scans'], resultJson(ctx.env.UPLOAD_LIMIT_BYTES));
   app.use('/api', express.json({ limit: '1mb' }));
   app.use('/api', healthRouter(ctx));
+  app.use('/api', apiDocsRouter(ctx));
   app.use('/api', meRouter(ctx));
   app.use('/api', groupsRouter(ctx));
   app.use('/api', invitationsRouter(ctx));

@@ -4,6 +4,7 @@ import { colors, fonts } from '@/themes/tokens';
 import { useMe, useSignOut } from '@/hooks/use-session';
 import { ROLE_LABELS } from '@/shared/access';
 import { VerifyAddress } from '../account/verify-address';
+import { Anchor } from '../ui/anchor';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
@@ -48,6 +49,10 @@ export function AccountScreen() {
         <Link href="/tokens" style={styles.link}>
           Manage API tokens
         </Link>
+        <Text variant="muted">Every route, who may call it and what it takes, for pipeline authors.</Text>
+        <Anchor href="/api/docs" newTab label="API reference (opens in a new tab)" style={styles.link}>
+          API reference
+        </Anchor>
       </Card>
       {signOut.error ? <Banner tone="error" message={errorMessage(signOut.error)!} /> : null}
       <Button

@@ -38,7 +38,8 @@ export type NormalizedVersion = {
 /** A multipart upload as the route received it: the file and the text fields. */
 export type FileUpload = { file?: { name: string; data: Buffer }; fields: Record<string, unknown> };
 
-const mappingSchema = z
+/** The `mapping` form field of a multipart upload (also shown in the API reference). */
+export const mappingSchema = z
   .object(Object.fromEntries(COLUMN_ROLES.map((r) => [r, z.number({ error: 'must be a column number (0 = first column)' }).int('must be a whole number').min(0, 'must be 0 or more').optional()])))
   .strict() as unknown as z.ZodType<ColumnMapping>;
 

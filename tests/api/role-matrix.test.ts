@@ -70,6 +70,9 @@ type Entry = {
 const MATRIX: Entry[] = [
   { method: 'get', path: '/api/health', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   { method: 'get', path: '/api/limits', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  // The API reference (tests/api/api-docs.test.ts checks that it lists every route).
+  { method: 'get', path: '/api/docs', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  { method: 'get', path: '/api/docs.json', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   { method: 'get', path: '/api/me', access: 'signed-in', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   { method: 'get', path: '/api/groups', access: 'signed-in', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   {

@@ -42,11 +42,19 @@ const isOurApiRoute = (r: string) => {
   const path = r.slice(r.indexOf(' ') + 1);
   return path.startsWith('/api/') && !path.startsWith('/api/auth/');
 };
+const isAuthRoute = (r: string) => {
+  const path = r.slice(r.indexOf(' ') + 1);
+  return path.startsWith('/api/auth/') && !path.includes('{*');
+};
 
-/** Every route of our JSON API (better-auth's /api/auth/* aside), sorted, as `METHOD /path`. */
-export function apiRoutesOf(app: unknown): RouteKey[] {
+/**
+ * Every route of our JSON API (better-auth's /api/auth/* aside), sorted, as `METHOD /path`.
+ * `{ auth: true }` gives the /api/auth routes registered in server/app.ts instead (the checked
+ * sign-in, sign-up and mailed-link POSTs; not better-auth's catch-all `/api/auth/{*any}`).
+ */
+export function apiRoutesOf(app: unknown, opts: { auth?: boolean } = {}): RouteKey[] {
   const stack = (app as { router: { stack: RouterLayer[] } }).router.stack;
-  return [...new Set(registeredRoutes(stack).filter(isOurApiRoute))].sort() as RouteKey[];
+  return [...new Set(registeredRoutes(stack).filter(opts.auth ? isAuthRoute : isOurApiRoute))].sort() as RouteKey[];
 }
 
 /** The method and path of a route key. */
