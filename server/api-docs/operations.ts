@@ -210,6 +210,7 @@ export const OPERATIONS: ApiOperation[] = [
 
   // --- Results: group routes ---
   { method: 'get', path: '/groups/{groupId}/results', tag: 'Results', summary: 'The group\'s results in any state (search, filters, pages).', access: { kind: 'group', action: 'group.read' }, params: groupParams, query: resultListQuery.omit({ groupId: true }), ok: json(200, '`{ items, total, page, pageSize }`: each result with its newest version.') },
+  { method: 'get', path: '/groups/{groupId}/pinnable-results', tag: 'Results', summary: 'What the group may pin in its figures: its own results in any state and other groups\' public ones, each at its newest version the group may use (search, filters, pages).', access: { kind: 'group', action: 'group.read' }, params: groupParams, query: resultListQuery.omit({ groupId: true }), ok: json(200, '`{ items, total, page, pageSize }`.') },
   {
     method: 'post',
     path: '/groups/{groupId}/results',
