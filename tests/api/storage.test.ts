@@ -67,7 +67,7 @@ describe('the counter equals what is stored after every write', () => {
     const a = crew.analyst.agent;
     const base = `/api/groups/${groupId}/results`;
     const ids: Record<string, string> = {};
-    const ok = (status: number) => (res: { status: number; body: unknown }) => {
+    const ok = (status: number) => <R extends { status: number; body: unknown }>(res: R): R => {
       if (res.status !== status) throw new Error(`expected ${status}, got ${res.status}: ${JSON.stringify(res.body)}`);
       return res;
     };
