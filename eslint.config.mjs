@@ -17,6 +17,12 @@ const restrict = (rules) => ({
   ],
 });
 
+/** Storage accounting: only server/services/storage.ts may import its SQL (the counter, the render cache's lock and eviction). */
+const storageOnly = [['db/queries/storage'], 'Stored bytes are counted only through server/services/storage.ts (reserve, resize, release, reserveRenderCache): call it instead.'];
+
+/** The services' layering (below routes and jobs, above the data layer). */
+const servicesLayer = [['server/routes', 'server/jobs', 'app', 'components', 'hooks', 'scripts', '../routes', '../jobs'], 'Services never import routes, jobs (jobs call services) or the app.'];
+
 export default tseslint.config(
   { ignores: ['node_modules/**', 'dist/**', 'tmp/**', '.data/**', '.expo/**', 'db/migrations/**', 'docs/**', 'coverage/**'] },
   js.configs.recommended,
@@ -48,7 +54,15 @@ export default tseslint.config(
   { files: ['components/**/*.{ts,tsx}'], rules: restrict([[['server', 'db', 'app', 'scripts'], 'components/ import hooks/, shared/ and themes/, never routes (app/) or the server.', ['pg', 'express', 'drizzle-orm']]]) },
   { files: ['app/**/*.{ts,tsx}'], rules: restrict([[['server', 'db', 'scripts'], 'app/ holds routes of the web app: no server code.', ['pg', 'express', 'drizzle-orm']]]) },
   // The data layer imports nothing from the server.
-  { files: ['db/**/*.ts'], rules: restrict([[['server', 'app', 'components', 'hooks', 'scripts'], 'db/ is below the server: SQL and schema only (executor types live in db/).']]) },
+  {
+    files: ['db/**/*.ts'],
+    rules: restrict([
+      [['server', 'app', 'components', 'hooks', 'scripts'], 'db/ is below the server: SQL and schema only (executor types live in db/).'],
+      [['./storage', '../queries/storage'], storageOnly[1]],
+    ]),
+  },
+  // Everything else under server/ and scripts/ (seed, figures, fakes, app.ts, worker.ts): storage only through its service.
+  { files: ['server/**/*.ts', 'scripts/**/*.ts'], rules: restrict([storageOnly]) },
   // Server: routes → services → db/queries. Routes never talk SQL.
   {
     files: ['server/routes/**/*.ts'],
@@ -56,11 +70,13 @@ export default tseslint.config(
   },
   {
     files: ['server/services/**/*.ts'],
-    rules: restrict([[['server/routes', 'server/jobs', 'app', 'components', 'hooks', 'scripts', '../routes', '../jobs'], 'Services never import routes, jobs (jobs call services) or the app.']]),
+    rules: restrict([servicesLayer, storageOnly]),
   },
+  // The storage accounting module is the one service that reaches its SQL.
+  { files: ['server/services/storage.ts'], rules: restrict([servicesLayer]) },
   {
     files: ['server/jobs/**/*.ts'],
-    rules: restrict([[['server/routes', 'app', 'components', 'hooks', 'scripts', '../routes'], 'Jobs never import routes or the app.']]),
+    rules: restrict([[['server/routes', 'app', 'components', 'hooks', 'scripts', '../routes'], 'Jobs never import routes or the app.'], storageOnly]),
   },
   {
     files: ['server/{access,auth,context,env,read-cache,session-cache}.ts', 'server/lib/**/*.ts', 'server/clients/**/*.ts'],
@@ -73,6 +89,7 @@ export default tseslint.config(
               group: ['./services', './services/**', './routes', './routes/**', '../services', '../services/**', '../routes', '../routes/**', ...['app', 'components', 'hooks', 'scripts'].flatMap(anyDepth)],
               message: 'Infrastructure (context, lib) does not import services or routes.',
             },
+            { group: storageOnly[0].flatMap(anyDepth), message: storageOnly[1] },
           ],
         },
       ],

@@ -3,47 +3,11 @@ import type { Executor } from '../client';
 import { billingAccounts, groups, invoices, memberships, providerEvents, user } from '../schema';
 
 /**
- * Data access of plans and billing: the group's storage counter under a row lock (quota checks),
- * exact usage by kind, the group's billing account, invoices, and provider events handled once.
+ * Data access of plans and billing: the group's billing account, invoices, and provider events
+ * handled once. (The storage counter and usage by kind are in db/queries/storage.ts.)
  */
 
 export type BillingAccount = typeof billingAccounts.$inferSelect;
-
-/**
- * Locks the group's row for the rest of the transaction and reads its storage counter. Concurrent
- * writers that check a quota queue here, so check-and-add cannot interleave. `FOR NO KEY UPDATE`
- * (the lock an UPDATE of storage_bytes takes anyway) rather than `FOR UPDATE`: inserts of rows
- * that reference the group take `FOR KEY SHARE` on it, which `FOR UPDATE` would wait for, and two
- * uploads that each inserted before locking would deadlock.
- */
-export async function lockGroupStorage(db: Executor, groupId: string): Promise<{ storageBytes: number } | undefined> {
-  const rows = await db.select({ storageBytes: groups.storageBytes }).from(groups).where(eq(groups.id, groupId)).for('no key update');
-  return rows[0];
-}
-
-/**
- * Bytes per kind, summed from the stored rows themselves: the counter must equal uploads plus
- * scan inputs; the render cache is reported beside them and is not part of it.
- */
-export async function usageByKind(db: Executor, groupId: string) {
-  // Plain SQL: the correlated sums need table aliases that the query builder does not render.
-  const r = await db.execute<{ total: string; uploads: string; scan_inputs: string; renders: string; render_count: string }>(sql`
-    select g.storage_bytes as total,
-      coalesce((select sum(v.stored_bytes) from result_versions v join results r on r.id = v.result_id where r.group_id = g.id), 0) as uploads,
-      coalesce((select sum(s.stored_bytes) from scans s where s.group_id = g.id), 0) as scan_inputs,
-      coalesce((select sum(fr.byte_length) from figure_renders fr join figures f on f.id = fr.figure_id where f.group_id = g.id), 0) as renders,
-      (select count(*) from figure_renders fr join figures f on f.id = fr.figure_id where f.group_id = g.id) as render_count
-    from groups g where g.id = ${groupId}`);
-  const row = r.rows[0];
-  if (!row) return undefined;
-  return {
-    totalBytes: Number(row.total),
-    uploadsBytes: Number(row.uploads),
-    scanInputsBytes: Number(row.scan_inputs),
-    rendersBytes: Number(row.renders),
-    renderCount: Number(row.render_count),
-  };
-}
 
 export async function getBillingAccount(db: Executor, groupId: string): Promise<BillingAccount | undefined> {
   const rows = await db.select().from(billingAccounts).where(eq(billingAccounts.groupId, groupId));

@@ -6,8 +6,9 @@ import { memberRoleJoinSql } from './visibility';
 
 /**
  * Data access of figure renders: what a render's cache key depends on (one prepared statement),
- * and the render cache rows (bodies, use times, stale and evicted renders). Scoped by the figure's
- * group wherever a request reaches them.
+ * and the render cache rows (bodies, use times, stale renders). Scoped by the figure's group
+ * wherever a request reaches them. The cache's lock and eviction (its limits) are storage
+ * accounting's, in db/queries/storage.ts.
  */
 
 // ---------------------------------------------------------------------------------------------
@@ -142,37 +143,3 @@ export async function deleteStaleRenders(db: Executor, groupId: string, figureId
   return rows.reduce((s, r) => s + r.bytes, 0);
 }
 
-/**
- * Serialises the group's render-cache writes for the rest of the transaction (a transaction-scoped
- * advisory lock, so that concurrent renders evict in turn instead of deadlocking on each other's
- * rows; it takes no row lock, so renders never queue behind uploads on the group row).
- */
-export async function lockRenderCache(db: Executor, groupId: string) {
-  await db.execute(sql`select pg_advisory_xact_lock(hashtextextended(${`bw-render-cache:${groupId}`}, 0))`);
-}
-
-/**
- * Drops the group's cached renders beyond its plan's limits: those unused for `maxAgeDays`, and,
- * most recently used first, all after the `maxRenders`-th or once `maxBytes` are reached.
- * Returns the bytes freed.
- */
-export async function evictRenders(db: Executor, groupId: string, limits: { maxRenders: number; maxBytes: number; maxAgeDays: number }): Promise<number> {
-  const r = await db.execute<{ bytes: string }>(sql`
-    with ranked as (
-      select fr.id, fr.last_used_at,
-        row_number() over w as n,
-        sum(fr.byte_length) over w as running
-      from ${figureRenders} fr join ${figures} f on f.id = fr.figure_id
-      where f.group_id = ${groupId}
-      window w as (order by fr.last_used_at desc, fr.created_at desc, fr.id)
-    ),
-    gone as (
-      delete from ${figureRenders} where id in (
-        select id from ranked
-        where n > ${limits.maxRenders} or running > ${limits.maxBytes}
-          or last_used_at < now() - make_interval(days => ${limits.maxAgeDays}))
-      returning byte_length
-    )
-    select coalesce(sum(byte_length), 0) as bytes from gone`);
-  return Number(r.rows[0]?.bytes ?? 0);
-}

@@ -267,23 +267,6 @@ export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) 
 }
 
 // ---------------------------------------------------------------------------------------------
-// Storage
-
-/** Adds (or, negative, subtracts) bytes to the group's storage use. */
-export async function addStorage(db: Executor, groupId: string, bytes: number) {
-  if (bytes === 0) return;
-  await db
-    .update(groups)
-    .set({ storageBytes: sql`greatest(${groups.storageBytes} + ${bytes}, 0)` })
-    .where(eq(groups.id, groupId));
-}
-
-export async function getStorage(db: Executor, groupId: string): Promise<number | undefined> {
-  const rows = await db.select({ bytes: groups.storageBytes }).from(groups).where(eq(groups.id, groupId));
-  return rows[0]?.bytes;
-}
-
-// ---------------------------------------------------------------------------------------------
 // Figures
 
 /**

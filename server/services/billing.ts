@@ -8,6 +8,7 @@ import type { Executor } from '../../db/client';
 import { AppError, notFound } from '../lib/errors';
 import { linkMail, type OutgoingMail } from '../clients/mail';
 import { effectivePlan, isReadOnly, lapseNotice } from './plans';
+import * as storage from './storage';
 
 /**
  * Billing through the payment provider's official SDK: customers, Checkout sessions on prices
@@ -46,7 +47,7 @@ async function provider<T>(what: string, fn: () => Promise<T>): Promise<T> {
 // Plan, usage and invoices
 
 export async function getPlanView(ctx: Ctx, groupId: string): Promise<PlanView> {
-  const [account, usage] = await Promise.all([q.getBillingAccount(ctx.db, groupId), q.usageByKind(ctx.db, groupId)]);
+  const [account, usage] = await Promise.all([q.getBillingAccount(ctx.db, groupId), storage.usage(ctx.db, groupId)]);
   if (!usage) throw notFound('Group');
   const eff = effectivePlan(account);
   const readOnly = isReadOnly(eff, usage.totalBytes);
@@ -243,7 +244,7 @@ async function billingMails(tx: Executor, ctx: Ctx, groupId: string, inv: Stripe
   // One after another: they share the transaction's single connection.
   const owners = await q.listOwners(tx, groupId);
   const groupName = await getGroupName(tx, groupId);
-  const usage = await q.usageByKind(tx, groupId);
+  const usage = await storage.usage(tx, groupId);
   const amount = formatMoney(kind === 'paid' ? inv.amount_paid : inv.amount_due, inv.currency);
   const line = inv.lines.data[0];
   const period = line ? `${day(line.period.start)} to ${day(line.period.end)}` : `${day(inv.period_start)} to ${day(inv.period_end)}`;

@@ -14,7 +14,7 @@ import { RenderFailed } from '../figures/render-pool';
 import { pngProblem } from '../figures/render';
 import { buildFigure, captionOf, csvOf } from '../figures/scene';
 import { AppError, notFound } from '../lib/errors';
-import { renderCacheLimits } from './plans';
+import { reserveRenderCache, trimRenderCache } from './storage';
 import { hueOf, layerVisible, metaOf, oversizeError, pinKey, type Audience } from './figure-layers';
 
 /**
@@ -176,19 +176,18 @@ async function renderPrepared(ctx: Ctx, p: Prepared, format: RenderFormat, dpi: 
  * they never count toward its quota (anonymous visitors may ask for public figures, and what
  * they cause must not decide what members can upload), and the cache is bounded by the plan's
  * `renderCache` instead: beyond its count, bytes or age the least recently used renders are
- * dropped, in the same transaction (one group's cache writes at a time, `lockRenderCache`). A
+ * dropped, in the same transaction (one group's cache writes at a time, `reserveRenderCache`). A
  * render of the same version, format, size and audience drawn from older data is dropped too (it
  * can no longer be asked for). A render larger than the whole cache is served and not kept.
  */
 async function cacheRender(ctx: Ctx, key: rq.RenderKey, groupId: string, out: { body: Buffer; contentType: string; notes: string[] }): Promise<'miss' | 'uncached'> {
   try {
     return await ctx.db.transaction(async (tx) => {
-      const limits = await renderCacheLimits(tx, groupId);
-      if (out.body.length > limits.maxBytes) return 'uncached';
-      await rq.lockRenderCache(tx, groupId);
+      const room = await reserveRenderCache(tx, groupId, out.body.length);
+      if (!room) return 'uncached';
       await rq.deleteStaleRenders(tx, groupId, key.figureId, { staleFor: key });
       const inserted = await rq.insertRender(tx, { ...key, ...out });
-      await rq.evictRenders(tx, groupId, limits);
+      await trimRenderCache(tx, groupId, room);
       if (inserted) remember(inserted, out.body);
       return 'miss';
     });

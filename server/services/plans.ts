@@ -3,14 +3,12 @@ import { formatBytes } from '../../shared/bytes';
 import * as q from '../../db/queries/billing';
 import { queuedCost } from '../../db/queries/scan-tasks';
 import type { Executor } from '../../db/client';
-import { AppError, notFound } from '../lib/errors';
+import { AppError } from '../lib/errors';
 
 /**
- * Plans in force and the storage quota. Every write that adds stored bytes (result uploads and
- * versions, draft edits that grow, scan inputs) calls `assertStorageAvailable` in the transaction
- * that then adds the bytes; deletions are never checked. Cached figure renders are not stored
- * bytes of the group: they never count toward the quota (anyone may ask for a public figure) and
- * are bounded by the plan's `renderCache` instead (`renderCacheLimits`).
+ * Plans in force, what a lapsed plan means (read-only), and the plan's scan queue limit. The
+ * storage quota and the render cache's bounds are applied by storage accounting
+ * (server/services/storage.ts), which reads the plan in force from here.
  */
 
 export type AccountState = Pick<q.BillingAccount, 'plan' | 'status' | 'currentPeriodEnd' | 'lastEventAt' | 'updatedAt'> | undefined;
@@ -27,7 +25,7 @@ export type EffectivePlan = { plan: Plan; lapse: Lapse | null };
  * The plan in force for a group's billing account: Institutional only while its subscription is
  * active (the provider's "trialing" is stored as active too); a failed payment or an ended
  * subscription falls back to the free plan's quota. Nothing is deleted: a group above the free
- * quota just cannot add bytes until it pays again or deletes enough (see `assertStorageAvailable`).
+ * quota just cannot add bytes until it pays again or deletes enough (see `reserve` in storage.ts).
  */
 export function effectivePlan(account: AccountState): EffectivePlan {
   if (!account || account.status === 'none') return { plan: FREE_PLAN, lapse: null };
@@ -68,59 +66,10 @@ export function isReadOnly(p: EffectivePlan, usedBytes: number): boolean {
 }
 
 /**
- * Checks that the group may store `addBytes` more, and keeps it so until the transaction ends:
- * the group's row is locked first, so concurrent writers queue and each sees the bytes the one
- * before it added. Call it inside the transaction that adds the bytes (`addStorage`), before the
- * insert. Throws 402 `read_only` when a lapsed plan left the group above the free quota, 413
- * `quota_exceeded` when the bytes do not fit the plan in force. Shrinking or zero writes pass.
- * `what` names the write in the message ("this upload", "this scan", "this render").
- */
-export async function assertStorageAvailable(tx: Executor, groupId: string, addBytes: number, what = 'this upload'): Promise<void> {
-  const locked = await q.lockGroupStorage(tx, groupId);
-  if (!locked) throw notFound('Group');
-  if (addBytes <= 0) return;
-  const p = await planOfGroup(tx, groupId);
-  const used = locked.storageBytes;
-  if (p.lapse && isReadOnly(p, used)) {
-    throw new AppError(402, 'read_only', `This group is read-only. ${lapseNotice(p.lapse, used)}`);
-  }
-  const quota = p.plan.quotaBytes;
-  if (used + addBytes > quota) {
-    const fix =
-      p.plan.id === 'free'
-        ? 'An owner can upgrade to the Institutional plan (Plan screen) or delete drafts.'
-        : 'Delete drafts or cached renders you no longer need.';
-    throw new AppError(
-      413,
-      'quota_exceeded',
-      `This group uses ${formatBytes(used)} of ${formatBytes(quota)} (${p.plan.name} plan); ${what} needs ${formatBytes(addBytes)} more. ${fix}`,
-    );
-  }
-}
-
-/**
- * The render cache allowed by the plan in force (for the figure service's cache: how many renders
- * and bytes a group keeps, and how long an unused one stays). This bound, not the quota, is what
- * holds renders in check.
- */
-export async function renderCacheLimits(db: Executor, groupId: string): Promise<Plan['renderCache']> {
-  return (await planOfGroup(db, groupId)).plan.renderCache;
-}
-
-/**
- * Bytes a scan's draft result may take, checked when the scan starts (the draft itself is saved
- * without a check, so a finished computation is never lost): its provenance and notes, and per
- * grid point x, observed and five expected limits as JSON numbers.
- */
-export function scanDraftAllowance(points: number): number {
-  return 8 * 1024 + 192 * points;
-}
-
-/**
  * Checks that the group may queue a scan of `points` grid points with `perPoint` pseudo-experiments
  * per hypothesis each (1 for an asymptotic point) under the plan in force: what it has queued or
  * running now plus this scan must stay within `scanQueueLimit`. Call it in the transaction that
- * inserts the scan's tasks, after `assertStorageAvailable` (whose lock on the group row makes two
+ * inserts the scan's tasks, after the storage `reserve` (whose lock on the group row makes two
  * starts of the same group queue, so they cannot both squeeze in). Throws 413 `scan_over_plan`
  * when the scan alone is too large for the plan, 429 `scan_queue_full` when it would fit once the
  * group's queued work has finished; both name the field (options.toys, or points for an

@@ -19,7 +19,7 @@ import type { Ctx } from '../context';
 import type { Executor } from '../../db/client';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
 import { safeFileName, slugify } from '../../shared/slug';
-import { assertStorageAvailable } from './plans';
+import * as storage from './storage';
 import { assertCurveValid, canonicalCurve, canonicalMeta, canonicalTheory, limitFileOf, storedBytesOf, type NormalizedVersion } from './result-upload';
 
 /**
@@ -214,7 +214,7 @@ export type WriteHooks = {
 
 /**
  * Creates a result with version 1 as a draft. `opts.slug` is for the demo seed's fixed links;
- * `opts.admitted` skips the quota check for a scan's draft (its room was checked when the scan started).
+ * `opts.admitted` counts a scan's draft without a quota check (its room was reserved when the scan started).
  */
 export async function createResult(
   ctx: Ctx,
@@ -226,7 +226,7 @@ export async function createResult(
   const resultId = await ctx.db.transaction(async (tx) => {
     await opts.hooks?.before?.(tx);
     const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
-    if (!opts.admitted) await assertStorageAvailable(tx, groupId, storedBytes);
+    await storage.reserve(tx, groupId, storedBytes, 'this upload', { admitted: opts.admitted });
     let result: Awaited<ReturnType<typeof q.insertResult>>;
     for (let attempt = 0; !result; attempt++) {
       if (attempt >= 5) throw new Error('could not find a free result slug');
@@ -243,7 +243,6 @@ export async function createResult(
       storedBytes,
       createdBy: actor.id,
     });
-    await q.addStorage(tx, groupId, storedBytes);
     await opts.hooks?.after?.(tx, { resultId: result.id, version: 1 });
     return result.id;
   });
@@ -263,7 +262,7 @@ export async function addVersion(
     await opts.hooks?.before?.(tx);
     if (!(await q.lockResult(tx, groupId, resultId))) throw notFound('Result');
     const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
-    if (!opts.admitted) await assertStorageAvailable(tx, groupId, storedBytes);
+    await storage.reserve(tx, groupId, storedBytes, 'this upload', { admitted: opts.admitted });
     const n = await q.takeNextVersion(tx, groupId, resultId);
     await q.insertVersion(tx, {
       resultId,
@@ -275,7 +274,6 @@ export async function addVersion(
       storedBytes,
       createdBy: actor.id,
     });
-    await q.addStorage(tx, groupId, storedBytes);
     await opts.hooks?.after?.(tx, { resultId, version: n });
     return n;
   });
@@ -300,13 +298,12 @@ export async function updateDraft(ctx: Ctx, groupId: string, resultId: string, v
     const theory = patch.theory === undefined ? (row.theory ?? null) : canonicalTheory(patch.theory);
     if (patch.curve !== undefined || patch.theory !== undefined) assertCurveValid(curve, theory);
     const storedBytes = storedBytesOf({ meta, curve, theory, sourceBytes: row.sourceBytes ?? 0 });
-    await assertStorageAvailable(tx, groupId, storedBytes - row.storedBytes, 'this change');
+    await storage.resize(tx, groupId, row.storedBytes, storedBytes, 'this change');
     await q.updateVersion(tx, groupId, resultId, version, {
       ...versionColumns({ meta, curve, theory }),
       ...(patch.changeNote !== undefined ? { changeNote: patch.changeNote } : {}),
       storedBytes,
     });
-    await q.addStorage(tx, groupId, storedBytes - row.storedBytes);
     await q.touchResult(tx, groupId, resultId);
   });
   return getVersion(ctx, groupId, resultId, version);
@@ -327,7 +324,7 @@ export async function deleteDraft(ctx: Ctx, groupId: string, resultId: string, v
     if (row.state !== 'draft') throw immutable(version, row.state);
     await refuseIfUsedByFigures(tx, { groupId, resultId, version });
     await q.deleteVersion(tx, groupId, resultId, version);
-    await q.addStorage(tx, groupId, -row.storedBytes);
+    await storage.release(tx, groupId, row.storedBytes);
     if ((await q.versionStates(tx, groupId, resultId)).length === 0) await q.deleteResult(tx, groupId, resultId);
     else await q.touchResult(tx, groupId, resultId);
   });
@@ -346,7 +343,7 @@ export async function deleteResult(ctx: Ctx, groupId: string, actor: Actor, resu
     }
     await refuseIfUsedByFigures(tx, { groupId, resultId });
     await q.deleteResult(tx, groupId, resultId);
-    await q.addStorage(tx, groupId, -versions.reduce((sum, v) => sum + v.storedBytes, 0));
+    await storage.release(tx, groupId, versions.reduce((sum, v) => sum + v.storedBytes, 0));
   });
 }
 

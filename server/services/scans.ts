@@ -13,8 +13,8 @@ import * as tq from '../../db/queries/scan-tasks';
 import { toyChunkSizes } from '../../shared/stats/toy-chunks';
 import { estimateSecondsLeft } from '../../shared/scans/progress';
 import { addVersion, createResult, getDetail } from './results';
-import { addStorage } from '../../db/queries/results';
-import { assertScanQueueRoom, assertStorageAvailable, scanDraftAllowance } from './plans';
+import { assertScanQueueRoom } from './plans';
+import * as storage from './storage';
 
 /**
  * Scans: a grid of counting models queued as one task per point, computed by workers, and turned
@@ -137,9 +137,9 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
   const costs = pointTasks(req.options);
   const scanId = await ctx.db.transaction(async (tx) => {
     const storedBytes = req.sourceBytes + Buffer.byteLength(JSON.stringify(req.points));
-    // Room for the inputs and for the draft the scan will save (that save is not refused later).
-    await assertStorageAvailable(tx, groupId, storedBytes + scanDraftAllowance(req.points.length), 'this scan');
-    // The group's queued scan work within its plan (the group row is locked by the check above).
+    // Room for the inputs and for the draft the scan will save (that save is admitted later).
+    await storage.reserve(tx, groupId, storedBytes, 'this scan', { headroom: storage.scanDraftAllowance(req.points.length) });
+    // The group's queued scan work within its plan (the group row is locked by the reserve above).
     await assertScanQueueRoom(tx, groupId, { points: req.points.length, perPoint: costs.reduce((a, b) => a + b, 0), toys: req.options.method === 'toys' });
     const scan = await q.insertScan(tx, {
       groupId,
@@ -165,7 +165,6 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
         chunks: costs.length,
       })),
     );
-    await addStorage(tx, groupId, storedBytes);
     await tq.insertTasks(
       tx,
       req.points.flatMap((_, pointIndex) => costs.map((cost, chunk) => ({ scanId: scan.id, groupId, pointIndex, chunk, cost }))),

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { eq, sql } from 'drizzle-orm';
 import request from 'supertest';
-import * as q from '@/db/queries/figure-renders';
+import * as storageQueries from '@/db/queries/storage';
 import { figureRenders, groups } from '@/db/schema';
 import { FREE_PLAN } from '@/shared/plans';
 import { OFFERED_DPIS } from '@/shared/schemas/figures';
@@ -97,7 +97,7 @@ describe('renders do not count toward storage', () => {
     for (const row of rows) await t.ctx.db.execute(sql`update figure_renders set last_used_at = now() + make_interval(secs => ${order.indexOf(row.format)}) where id = ${row.id}`);
     const byFormat = Object.fromEntries(rows.map((row) => [row.format, row.byteLength]));
     // Room for the two most recent of this figure (other figures' renders are older and go first).
-    const freed = await t.ctx.db.transaction((tx) => q.evictRenders(tx, groupId, { maxRenders: 100, maxBytes: byFormat.png! + byFormat.pdf!, maxAgeDays: 7 }));
+    const freed = await t.ctx.db.transaction((tx) => storageQueries.evictRenders(tx, groupId, { maxRenders: 100, maxBytes: byFormat.png! + byFormat.pdf!, maxAgeDays: 7 }));
     expect(freed).toBeGreaterThanOrEqual(byFormat.svg!);
     const left = (await t.ctx.db.select({ format: figureRenders.format }).from(figureRenders).where(eq(figureRenders.figureId, fig.id))).map((r) => r.format).sort();
     expect(left).toEqual(['pdf', 'png']);

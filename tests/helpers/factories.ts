@@ -1,7 +1,7 @@
 import { and, count, eq } from 'drizzle-orm';
 import { addMember, getGroupName, getRole } from '@/db/queries/groups';
 import { listMailTo } from '@/db/queries/mail';
-import { getStorage } from '@/db/queries/results';
+import { getStorage } from '@/db/queries/storage';
 import { invitations, results, resultVersions } from '@/db/schema';
 import { GROUP_ROLES, type GroupRole } from '@/shared/access';
 import type { Curve, ResultVersion, Theory, VersionMetaInput } from '@/shared/schemas/results';

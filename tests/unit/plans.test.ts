@@ -1,5 +1,6 @@
 import { renderCacheLine, statusLine, usageKinds, usageSummary } from '@/components/billing/plan-text';
-import { effectivePlan, isReadOnly, lapseNotice, scanDraftAllowance, type AccountState } from '@/server/services/plans';
+import { effectivePlan, isReadOnly, lapseNotice, type AccountState } from '@/server/services/plans';
+import { scanDraftAllowance } from '@/server/services/storage';
 import { checkoutSchema, formatMoney, formatPrice, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, usageFraction } from '@/shared/plans';
 import { formatBytes, GB, KB, MB } from '@/shared/bytes';
 
