@@ -10,10 +10,11 @@ import { useIsWide } from '@/hooks/use-layout';
 import { useCancelScan, useScan, useScanPoint } from '@/hooks/use-scans';
 import { colors, fonts, radii, space } from '@/themes/tokens';
 import { ClsPlot } from '../compute/cls-plot';
-import { fmt, LimitSummary } from '../compute/limit-summary';
+import { fmt, fmtFitted, LimitSummary } from '../compute/limit-summary';
 import { PullsTable } from '../compute/pulls-table';
 import { QuickPlot } from '../plot/quick-plot';
 import { Anchor } from '../ui/anchor';
+import { Hatted } from '../ui/hatted';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
@@ -72,7 +73,7 @@ function Diagnostics({ groupId, scanId, index, unit }: { groupId: string; scanId
           {d.result.fit ? (
             <>
               <Text variant="label">
-                Fit: μ̂ = {fmt(d.result.fit.muHat)} ± {fmt(d.result.fit.muError, 2)}
+                Fit: <Hatted letter="μ" /> = {fmtFitted(d.result.fit.muHat)} ± {fmtFitted(d.result.fit.muError, 2)}
                 {d.result.fit.converged ? '' : ' (did not converge)'}
               </Text>
               <PullsTable pulls={d.result.fit.pulls} />
@@ -88,14 +89,21 @@ function Diagnostics({ groupId, scanId, index, unit }: { groupId: string; scanId
   );
 }
 
-function PointsTable({ points, onPick, picked, xsec }: { points: ScanPointSummary[]; onPick: (i: number) => void; picked: number | null; xsec: boolean }) {
-  const cols = ['x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${k}σ`))];
+/**
+ * The grid points with every band column. On wide screens the columns share the card's width (no
+ * hidden horizontal scroll); on a phone the table scrolls sideways.
+ */
+function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointSummary[]; onPick: (i: number) => void; picked: number | null; xsec: boolean; fit: boolean }) {
+  const cols = ['x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${Number(k) > 0 ? '+' : '−'}${Math.abs(Number(k))}σ`))];
+  const Wrap = fit ? View : ScrollView;
+  const td = fit ? [styles.td, styles.tdFit] : styles.td;
+  const stateTd = fit ? styles.stateFit : styles.stateTd;
   return (
-    <ScrollView horizontal>
-      <View role="table" aria-label="Grid points">
+    <Wrap {...(fit ? {} : { horizontal: true })}>
+      <View role="table" aria-label="Grid points" style={fit ? styles.tableFit : undefined}>
         <View role="row" style={[styles.tr, styles.th]}>
           {cols.map((c) => (
-            <Text key={c} variant="label" style={[styles.td, c === 'state' && styles.stateTd]}>
+            <Text key={c} variant="label" style={[td, fit && styles.thFit, c === 'state' && stateTd]}>
               {c}
             </Text>
           ))}
@@ -104,11 +112,11 @@ function PointsTable({ points, onPick, picked, xsec }: { points: ScanPointSummar
           const v = xsec && p.sigmaB ? p.sigmaB : p.observed !== null ? { observed: p.observed, expected: p.expected } : null;
           return (
             <Pressable key={p.index} role="row" aria-label={`Show diagnostics of x = ${p.x}`} onPress={() => onPick(p.index)} style={[styles.tr, picked === p.index && styles.picked]}>
-              <Text style={styles.td}>{fmt(p.x, 6)}</Text>
-              <Text style={[styles.td, styles.stateTd, p.state === 'failed' && styles.failed]}>{pointState(p)}</Text>
-              <Text style={styles.td}>{fmt(v?.observed)}</Text>
+              <Text style={td}>{fmt(p.x, 6)}</Text>
+              <Text style={[td, stateTd, p.state === 'failed' && styles.failed]}>{pointState(p)}</Text>
+              <Text style={td}>{fmt(v?.observed)}</Text>
               {EXPECTED_KEYS.map((k) => (
-                <Text key={k} style={styles.td}>
+                <Text key={k} style={td}>
                   {fmt(v?.expected?.[k])}
                 </Text>
               ))}
@@ -116,7 +124,7 @@ function PointsTable({ points, onPick, picked, xsec }: { points: ScanPointSummar
           );
         })}
       </View>
-    </ScrollView>
+    </Wrap>
   );
 }
 
@@ -174,7 +182,7 @@ export function ScanScreen() {
           <Card>
             <Text variant="title">Grid points</Text>
             <Text variant="caption">Choose a point to see its CLs curve, fit and warnings. {xsec ? `Limits on σ×B in ${unit}.` : 'Limits on μ.'}</Text>
-            <PointsTable points={s.points} picked={picked} onPick={setPicked} xsec={xsec} />
+            <PointsTable points={s.points} picked={picked} onPick={setPicked} xsec={xsec} fit={wide} />
           </Card>
         </View>
         <View style={[styles.col, wide && styles.side]}>
@@ -199,6 +207,10 @@ const styles = StyleSheet.create({
   th: { borderBottomColor: colors.borderStrong },
   td: { width: 86, paddingHorizontal: space.xs, fontSize: 13 },
   stateTd: { width: 116 },
+  tableFit: { width: '100%' },
+  tdFit: { width: undefined, flex: 1, minWidth: 0 },
+  stateFit: { flex: 1.2 },
+  thFit: { fontSize: 13 },
   picked: { backgroundColor: colors.primarySoft },
   failed: { color: colors.danger },
 });

@@ -171,7 +171,7 @@ export function edgeWarning(): string {
 export function fewToysWarning(fewest: number, needed: number): string {
   const digits = 10 ** Math.max(0, Math.floor(Math.log10(needed)) - 1);
   const rounded = Math.ceil(needed / digits) * digits;
-  return `Only ${fewest} pseudo-experiments fall beyond the observed or expected test statistic at a limit: the Monte-Carlo uncertainty is large (${MIN_TAIL_TOYS} or more are needed for about ±20%); use at least ${rounded.toLocaleString('en')} pseudo-experiments per hypothesis.`;
+  return `Only ${fewest} ${fewest === 1 ? 'pseudo-experiment falls' : 'pseudo-experiments fall'} beyond the observed or expected test statistic at a limit: the Monte-Carlo uncertainty is large (${MIN_TAIL_TOYS} or more are needed for about ±20%); use at least ${rounded.toLocaleString('en')} pseudo-experiments per hypothesis.`;
 }
 
 /** The warning for fits that did not converge, or undefined when all did. */
