@@ -24,6 +24,8 @@ import { resultsRouter } from './routes/results';
 import { tokensRouter } from './routes/tokens';
 
 export const DEFAULT_WEB_DIST = path.resolve(__dirname, '../dist');
+/** Example input files (invented numbers), served under /examples/ for download. */
+export const EXAMPLES_DIR = path.resolve(__dirname, '../assets/examples');
 
 /**
  * The whole HTTP surface on one port: better-auth under /api/auth, the JSON API under /api, and
@@ -91,6 +93,17 @@ export function createApp(ctx: Ctx): Express {
   app.use('/api', billingRouter(ctx));
   if (ctx.env.devTools) app.use('/api', devRouter(ctx));
   app.use('/api', (req, _res, next) => next(new AppError(404, 'not_found', `No API route ${req.method} ${req.path}`)));
+
+  // The example input files the README and the scan and upload forms point to, as downloads.
+  app.use(
+    '/examples',
+    express.static(EXAMPLES_DIR, {
+      index: false,
+      fallthrough: true,
+      maxAge: '1h',
+      setHeaders: (res, file) => res.setHeader('Content-Disposition', `attachment; filename="${path.basename(file)}"`),
+    }),
+  );
 
   const dist = ctx.env.WEB_DIST ?? DEFAULT_WEB_DIST;
   const index = path.join(dist, 'index.html');

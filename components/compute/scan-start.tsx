@@ -11,6 +11,7 @@ import { useStartScan } from '@/hooks/use-scans';
 import { useUploadLimit } from '@/hooks/use-limits';
 import { space } from '@/themes/tokens';
 import { Banner } from '../ui/banner';
+import { Anchor } from '../ui/anchor';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
 import { ChoiceGroup } from '../ui/choice-group';
@@ -58,6 +59,7 @@ export function ScanStart({ groupId }: { groupId: string }) {
   const [asimov, setAsimov] = useState<'profiled' | 'nominal'>('profiled');
   const [toys, setToys] = useState('5000');
   const [seed, setSeed] = useState('1');
+  const [theoryLabel, setTheoryLabel] = useState('');
   const [serverProblems, setServerProblems] = useState<Problem[]>([]);
 
   const metaCheck = useMemo(() => checkForm(versionMetaSchema, metaInput({ ...meta, method })), [meta, method]);
@@ -66,7 +68,8 @@ export function ScanStart({ groupId }: { groupId: string }) {
   const toysN = readNumber(toys);
   if (method === 'toys' && (toysN === undefined || !Number.isInteger(toysN) || toysN < 100 || toysN > 1_000_000)) optionErrors.toys = 'A whole number from 100 to 1,000,000';
   const seedN = readNumber(seed);
-  if (seedN === undefined || !Number.isInteger(seedN) || seedN < 0) optionErrors.seed = 'A whole number, 0 or more';
+  if (theoryLabel.trim().length > 120) optionErrors.theoryLabel = 'At most 120 characters';
+  if (method === 'toys' && (seedN === undefined || !Number.isInteger(seedN) || seedN < 0)) optionErrors.seed = 'A whole number, 0 or more';
 
   const pick = async () => {
     setServerProblems([]);
@@ -89,7 +92,8 @@ export function ScanStart({ groupId }: { groupId: string }) {
     const form = new FormData();
     form.append('file', picked.file, picked.name);
     form.append('meta', JSON.stringify(metaCheck.data));
-    form.append('options', JSON.stringify({ cl: metaCheck.data.cl, method, asimov, toys: toysN, seed: seedN }));
+    form.append('options', JSON.stringify({ cl: metaCheck.data.cl, method, asimov, toys: toysN, seed: method === 'toys' ? seedN : 1 }));
+    if (theoryLabel.trim()) form.append('theoryLabel', theoryLabel.trim());
     start.mutate(form, {
       onSuccess: (scan) => router.push(`/groups/${groupId}/scans/${scan.id}`),
       onError: (e) => setServerProblems(e instanceof ApiError ? e.details.map((d) => ({ column: d.field, reason: d.message })) : []),
@@ -103,8 +107,16 @@ export function ScanStart({ groupId }: { groupId: string }) {
       <Card>
         <Text variant="title">1. Scan file</Text>
         <Text variant="muted">
-          One row per grid point and bin: x, sigma_nominal (optional), bin, observed, signal, background:&lt;name&gt;…, systematic:&lt;name&gt;:&lt;process&gt;… — or the project&apos;s scan JSON. See the examples in the README.
+          One row per grid point and bin: x, sigma_nominal (optional), bin, observed, signal, background:&lt;name&gt;…, systematic:&lt;name&gt;:&lt;process&gt;… — or the project&apos;s scan JSON.
         </Text>
+        <View style={styles.row}>
+          <Anchor href="/examples/scan-example.csv" download>
+            Example scan CSV
+          </Anchor>
+          <Anchor href="/examples/scan-example.json" download>
+            Example scan JSON
+          </Anchor>
+        </View>
         <Button label={picked ? 'Choose another file' : 'Choose a scan file'} variant={picked ? 'secondary' : 'primary'} onPress={() => void pick()} style={styles.start} />
         {picked && 'problems' in picked ? <ProblemList problems={picked.problems} title={`${picked.name} cannot be used`} /> : null}
         {points ? (
@@ -135,14 +147,25 @@ export function ScanStart({ groupId }: { groupId: string }) {
               <TextField label="Pseudo-experiments per hypothesis" value={toys} onChangeText={setToys} inputMode="numeric" error={optionErrors.toys} />
             </View>
           ) : null}
-          <View style={styles.grow}>
-            <TextField label="Seed" value={seed} onChangeText={setSeed} inputMode="numeric" error={optionErrors.seed} hint="Point i uses seed + i" />
-          </View>
+          {method === 'toys' ? (
+            <View style={styles.grow}>
+              <TextField label="Seed" value={seed} onChangeText={setSeed} inputMode="numeric" error={optionErrors.seed} hint="Point i uses seed + i" />
+            </View>
+          ) : null}
         </View>
       </Card>
       <Card>
         <Text variant="title">3. What the draft result will say</Text>
         <MetaForm value={{ ...meta, method }} onChange={(p) => setMeta((d) => ({ ...d, ...p }))} errors={shownMetaErrors} onTouch={(f) => setTouched((s) => new Set(s).add(f))} />
+        {points?.some((p) => p.sigmaNominal !== undefined) ? (
+          <TextField
+            label="Name of the theory curve (optional)"
+            value={theoryLabel}
+            onChangeText={setTheoryLabel}
+            error={optionErrors.theoryLabel}
+            hint="The points' nominal σ×B becomes the draft's theory curve; TeX allowed, e.g. $g_V = 1$"
+          />
+        ) : null}
       </Card>
       {serverProblems.length ? <ProblemList problems={serverProblems} title="The server refused the scan" /> : null}
       {start.error && !serverProblems.length ? <Banner tone="error" message={errorMessage(start.error)!} /> : null}

@@ -48,3 +48,20 @@ test('small answers and clients that do not accept gzip get the bytes as they ar
   expect(plain.headers['content-encoding']).toBeUndefined();
   expect(Number(plain.headers['content-length'])).toBe(fs.statSync(path.join(dist, BUNDLE)).size);
 });
+
+test('the example input files download from /examples/, and nothing else of the repository does', async () => {
+  for (const name of ['scan-example.csv', 'scan-example.json', 'limits.csv']) {
+    const res = await request(t.app).get(`/examples/${name}`).buffer(true).parse((r, cb) => {
+      let body = '';
+      r.on('data', (c: Buffer) => (body += c.toString('utf8')));
+      r.on('end', () => cb(null, body));
+    });
+    expect(res.status).toBe(200);
+    expect(res.headers['content-disposition']).toBe(`attachment; filename="${name}"`);
+    expect(res.body).toBe(fs.readFileSync(path.resolve(__dirname, '../../assets/examples', name), 'utf8'));
+  }
+  for (const p of ['/examples/../package.json', '/examples/%2e%2e/package.json', '/examples/nothing.csv']) {
+    const res = await request(t.app).get(p).set('Accept', 'application/json');
+    expect(res.status).toBe(404);
+  }
+});
