@@ -1,10 +1,20 @@
-import { Pressable, StyleSheet, View } from 'react-native';
+import { useRef, useState } from 'react';
+import { Pressable, StyleSheet, View, type ViewProps } from 'react-native';
 import { colors, fonts, radii, space } from '@/themes/tokens';
 import { Text } from './text';
 
 export type Choice<T extends string> = { value: T; label: string; disabled?: boolean };
 
-/** A row of radio chips (keyboard and screen-reader friendly alternative to a select). */
+/** Keys as the web passes them (react-native-web forwards `onKeyDown` to the element). */
+type KeyEvent = { key: string; preventDefault: () => void };
+type Focusable = { focus?: () => void } | null;
+
+/**
+ * A row of radio chips (keyboard and screen-reader friendly alternative to a select). One chip is
+ * in the tab order (the chosen one); the arrow keys, Home and End move among the enabled chips and
+ * Enter or Space chooses the focused one. Choosing is left to Enter/Space rather than done on
+ * every arrow press because a choice here often acts at once (a member's role is saved).
+ */
 export function ChoiceGroup<T extends string>({
   label,
   value,
@@ -16,13 +26,31 @@ export function ChoiceGroup<T extends string>({
   choices: Choice<T>[];
   onChange: (v: T) => void;
 }) {
+  const items = useRef<Focusable[]>([]);
+  const [focused, setFocused] = useState(-1);
+  const enabled = choices.flatMap((c, i) => (c.disabled ? [] : [i]));
+  const selectedIndex = choices.findIndex((c) => c.value === value);
+  const tabStop = focused >= 0 ? focused : selectedIndex >= 0 && !choices[selectedIndex]?.disabled ? selectedIndex : (enabled[0] ?? 0);
+  const onKeyDown = (e: KeyEvent) => {
+    if (!enabled.length) return;
+    const at = Math.max(0, enabled.indexOf(tabStop));
+    const next = { ArrowRight: at + 1, ArrowDown: at + 1, ArrowLeft: at - 1, ArrowUp: at - 1, Home: 0, End: enabled.length - 1 }[e.key];
+    if (next === undefined) return;
+    e.preventDefault();
+    const i = enabled[(next + enabled.length) % enabled.length]!;
+    setFocused(i);
+    items.current[i]?.focus?.();
+  };
   return (
-    <View role="radiogroup" aria-label={label} style={styles.row}>
-      {choices.map((c) => {
+    <View role="radiogroup" aria-label={label} style={styles.row} {...({ onKeyDown } as unknown as ViewProps)}>
+      {choices.map((c, i) => {
         const selected = c.value === value;
         return (
           <Pressable
             key={c.value}
+            ref={((el: Focusable) => (items.current[i] = el)) as never}
+            focusable={i === tabStop}
+            onFocus={() => setFocused(i)}
             role="radio"
             aria-checked={selected}
             aria-label={c.label}

@@ -1,6 +1,7 @@
 import Stripe from 'stripe';
 import { BILLING_INTERVALS, formatMoney, FREE_PLAN, INSTITUTIONAL_PLAN, PLANS, type BillingInterval, type Invoice, type PlanView, type SubscriptionStatus } from '../../shared/plans';
 import { formatBytes } from '../../shared/bytes';
+import { possessive } from '../../shared/words';
 import * as q from '../../db/queries/billing';
 import { getGroupName } from '../../db/queries/groups';
 import type { Ctx } from '../context';
@@ -257,7 +258,7 @@ async function billingMails(tx: Executor, ctx: Ctx, groupId: string, inv: Stripe
       ? linkMail({
           to: o.email,
           kind: 'billing_receipt',
-          subject: `Receipt: ${amount} for ${name}'s Institutional plan`,
+          subject: `Receipt: ${amount} for ${possessive(name)} Institutional plan`,
           lines: [
             `Hello ${o.name},`,
             `${name} paid ${amount} for the Bandwright Institutional plan. Thank you.`,
@@ -270,10 +271,10 @@ async function billingMails(tx: Executor, ctx: Ctx, groupId: string, inv: Stripe
       : linkMail({
           to: o.email,
           kind: 'billing_payment_failed',
-          subject: `Payment failed: ${name}'s Institutional plan`,
+          subject: `Payment failed: ${possessive(name)} Institutional plan`,
           lines: [
             `Hello ${o.name},`,
-            `The payment of ${amount} for ${name}'s Institutional plan (invoice ${number}, ${period}) failed on ${day(inv.created)}${inv.attempt_count > 1 ? ` (attempt ${inv.attempt_count})` : ''}.`,
+            `The payment of ${amount} for ${possessive(name)} Institutional plan (invoice ${number}, ${period}) failed on ${day(inv.created)}${inv.attempt_count > 1 ? ` (attempt ${inv.attempt_count})` : ''}.`,
             `Until it is paid the Free plan's ${formatBytes(FREE_PLAN.quotaBytes)} applies. The group uses ${formatBytes(used)}${used > FREE_PLAN.quotaBytes ? ', so it becomes read-only: nothing is deleted, and reading, downloading and deleting still work, but nothing new can be stored' : ''}.`,
             'Update the card under Manage billing on the Plan screen; the open invoice is then charged again.',
           ],

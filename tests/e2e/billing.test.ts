@@ -66,7 +66,7 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
 
     // The receipt is in the owner's development inbox.
     await o.goto('/inbox');
-    const receipt = o.getByRole('button', { name: `Mail: Receipt: €490.00 for ${groupName}'s Institutional plan` });
+    const receipt = o.getByRole('button', { name: `Mail: Receipt: €490.00 for ${groupName}’s Institutional plan` });
     await receipt.waitFor();
     await receipt.click();
     await o.getByText(`${groupName} paid €490.00 for the Bandwright Institutional plan`, { exact: false }).waitFor();

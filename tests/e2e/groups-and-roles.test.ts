@@ -97,7 +97,13 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await o.reload();
     const roleOfMember = o.getByRole('radiogroup', { name: 'Role of Theo Member' });
     await roleOfMember.waitFor();
-    await roleOfMember.getByRole('radio', { name: 'Viewer' }).click();
+    // With the keyboard: the chosen chip is the group's one tab stop; the arrows move along the
+    // chips and Enter chooses.
+    await roleOfMember.getByRole('radio', { name: 'Analyst' }).focus();
+    await o.keyboard.press('ArrowRight');
+    await o.keyboard.press('ArrowRight');
+    expect(await o.evaluate(() => document.activeElement?.getAttribute('aria-label'))).toBe('Viewer');
+    await o.keyboard.press('Enter');
     // The change is saved on the server before the chip shows it.
     await roleOfMember.locator('[role="radio"][aria-label="Viewer"][aria-checked="true"]').waitFor();
 
