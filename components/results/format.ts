@@ -57,17 +57,8 @@ export function formatRanges(ranges: ExcludedRange[] | undefined, unit: string):
   return `excluded: ${ranges.map((r) => formatRange(r, unit)).join(' and ')}`;
 }
 
-export function formatDate(iso: string | null | undefined): string {
-  if (!iso) return '–';
-  const d = new Date(iso);
-  return Number.isNaN(d.getTime()) ? '–' : d.toLocaleDateString(undefined, { year: 'numeric', month: 'short', day: 'numeric' });
-}
-
-export function formatDateTime(iso: string | null | undefined): string {
-  if (!iso) return '–';
-  const d = new Date(iso);
-  return Number.isNaN(d.getTime()) ? '–' : d.toLocaleString(undefined, { year: 'numeric', month: 'short', day: 'numeric', hour: '2-digit', minute: '2-digit' });
-}
+/** Dates the same everywhere: see shared/dates.ts. */
+export { formatDate, formatDateTime } from '@/shared/dates';
 
 /** The app path of a version's permanent link. */
 export function permalinkPath(slug: string, version: number): string {

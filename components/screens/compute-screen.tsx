@@ -14,6 +14,7 @@ import { errorMessage } from '../ui/form';
 import { Loading } from '../ui/loading';
 import { Screen } from '../ui/screen';
 import { Text } from '../ui/text';
+import { formatDateTime } from '@/shared/dates';
 
 type Tab = 'quick' | 'scan' | 'recent';
 
@@ -29,7 +30,7 @@ function RecentScans({ groupId }: { groupId: string }) {
           <Pressable role="link" aria-label={`Scan ${s.title}, ${s.state}, ${s.donePoints + s.failedPoints} of ${s.totalPoints} points`} style={styles.item}>
             <Text variant="label">{s.title}</Text>
             <Text variant="caption">
-              {s.state} · {s.donePoints + s.failedPoints}/{s.totalPoints} points{s.failedPoints ? ` (${s.failedPoints} failed)` : ''} · started {new Date(s.createdAt).toLocaleString()}
+              {s.state} · {s.donePoints + s.failedPoints}/{s.totalPoints} points{s.failedPoints ? ` (${s.failedPoints} failed)` : ''} · started {formatDateTime(s.createdAt)}
             </Text>
           </Pressable>
         </Link>

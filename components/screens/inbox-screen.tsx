@@ -11,6 +11,7 @@ import { errorMessage } from '../ui/form';
 import { Loading } from '../ui/loading';
 import { Screen } from '../ui/screen';
 import { Text } from '../ui/text';
+import { formatDateTime } from '@/shared/dates';
 
 const URL_RE = /(https?:\/\/[^\s]+)/g;
 
@@ -60,7 +61,7 @@ export function InboxScreen() {
           <Card key={m.id}>
             <Pressable role="button" aria-expanded={open === m.id} aria-label={`Mail: ${m.subject}`} onPress={() => setOpen(open === m.id ? null : m.id)}>
               <Text variant="label">{m.subject}</Text>
-              <Text variant="caption">{new Date(m.createdAt).toLocaleString()}</Text>
+              <Text variant="caption">{formatDateTime(m.createdAt)}</Text>
             </Pressable>
             {open === m.id ? <MailText text={m.text} /> : null}
           </Card>

@@ -18,6 +18,7 @@ import { Loading } from '../ui/loading';
 import { Screen } from '../ui/screen';
 import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
+import { formatDate } from '@/shared/dates';
 
 const roleChoices = (allowed: GroupRole[]) => GROUP_ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r], disabled: !allowed.includes(r) }));
 
@@ -124,7 +125,7 @@ function PendingInvitations({ groupId }: { groupId: string }) {
           <View style={styles.memberName}>
             <Text>{i.email}</Text>
             <Text variant="caption">
-              {ROLE_LABELS[i.role]} · expires {new Date(i.expiresAt).toLocaleDateString()}
+              {ROLE_LABELS[i.role]} · expires {formatDate(i.expiresAt)}
             </Text>
           </View>
           <Button compact variant="secondary" label="Revoke" accessibilityLabel={`Revoke the invitation of ${i.email}`} onPress={() => revoke.mutate(i.id)} />

@@ -10,6 +10,7 @@ import { AppError, notFound } from '../lib/errors';
 import { linkMail, type OutgoingMail } from '../clients/mail';
 import { effectivePlan, isReadOnly, lapseNotice } from './plans';
 import * as storage from './storage';
+import { formatDate } from '../../shared/dates';
 
 /**
  * Billing through the payment provider's official SDK: customers, Checkout sessions on prices
@@ -239,7 +240,7 @@ async function groupOf(tx: Executor, metadataGroupId: string | null | undefined,
   return groupId && (await q.groupExists(tx, groupId)) ? groupId : undefined;
 }
 
-const day = (unix: number | null | undefined) => (unix ? new Date(unix * 1000).toISOString().slice(0, 10) : 'an unknown date');
+const day = (unix: number | null | undefined) => (unix ? formatDate(unix * 1000, { utc: true }) : 'an unknown date');
 
 async function billingMails(tx: Executor, ctx: Ctx, groupId: string, inv: Stripe.Invoice, kind: 'paid' | 'failed'): Promise<OutgoingMail[]> {
   // One after another: they share the transaction's single connection.

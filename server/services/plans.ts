@@ -4,6 +4,7 @@ import * as q from '../../db/queries/billing';
 import { queuedCost } from '../../db/queries/scan-tasks';
 import type { Executor } from '../../db/client';
 import { AppError } from '../lib/errors';
+import { formatDate } from '../../shared/dates';
 
 /**
  * Plans in force, what a lapsed plan means (read-only), and the plan's scan queue limit. The
@@ -41,7 +42,7 @@ export async function planOfGroup(db: Executor, groupId: string): Promise<Effect
   return effectivePlan(await q.getBillingAccount(db, groupId));
 }
 
-const day = (d: Date | null) => (d ? ` on ${d.toISOString().slice(0, 10)}` : '');
+const day = (d: Date | null) => (d ? ` on ${formatDate(d, { utc: true })}` : '');
 
 /** What a lapsed plan means for the group and how an owner fixes it (plan screen and 402 answers). */
 export function lapseNotice(lapse: Lapse, usedBytes: number): string {

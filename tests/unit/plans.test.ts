@@ -92,13 +92,13 @@ describe('the plan in force', () => {
 
   test('the notice says what happened, what it means and how to fix it', () => {
     const failed = lapseNotice({ reason: 'payment_failed', since: at }, 60 * MB);
-    expect(failed).toContain('failed on 2031-03-01');
+    expect(failed).toContain('failed on 1 Mar 2031');
     expect(failed).toContain('60 MB');
     expect(failed).toContain('read-only');
     expect(failed).toContain('nothing was deleted');
     expect(failed).toContain('update the card under Manage billing');
     const ended = lapseNotice({ reason: 'plan_ended', since: at }, 10 * MB);
-    expect(ended).toContain('ended on 2031-03-01');
+    expect(ended).toContain('ended on 1 Mar 2031');
     expect(ended).not.toContain('read-only');
     expect(ended).toContain('subscribe again');
   });
