@@ -244,6 +244,8 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       /** The plan in force, usage by kind, quota and read-only state (every member). */
       plan: (groupId: string) => call<PlanView>('GET', `/api/groups/${enc(groupId)}/plan`),
       invoices: (groupId: string) => call<{ invoices: Invoice[] }>('GET', `/api/groups/${enc(groupId)}/invoices`),
+      /** One invoice as a PDF (owners). */
+      invoicePdfUrl: (groupId: string, invoiceId: string) => `${base}/api/groups/${enc(groupId)}/invoices/${enc(invoiceId)}.pdf`,
       /** A checkout page address at the payment provider (owners); open it in the browser. */
       checkout: (groupId: string, input: CheckoutInput) => call<{ url: string }>('POST', `/api/groups/${enc(groupId)}/billing/checkout`, input),
       /** A billing portal address (owners of a group that has paid before). */

@@ -151,3 +151,12 @@ export const invoiceSchema = z.object({
   createdAt: z.string(),
 });
 export type Invoice = z.infer<typeof invoiceSchema>;
+
+/** How an invoice's state reads, on the plan screen and on the invoice itself. */
+export const INVOICE_STATUS: Record<string, string> = { paid: 'Paid', open: 'Payment failed', void: 'Void', draft: 'Draft', uncollectible: 'Not collected' };
+
+/** Route parameters of one invoice: the provider's id (letters, digits and underscores). */
+export const invoiceParams = z.object({
+  groupId: z.uuid({ error: 'must be a valid id' }),
+  invoiceId: z.string().regex(/^[A-Za-z0-9_]{1,80}$/, 'must be an invoice id (letters, digits, underscores)'),
+});

@@ -2,11 +2,13 @@ import { StyleSheet, View } from 'react-native';
 import { colors, space } from '@/themes/tokens';
 import { formatMoney, type Invoice } from '@/shared/plans';
 import { formatDate } from '../results/format';
+import { api } from '@/hooks/api';
+import { Anchor } from '../ui/anchor';
 import { Text } from '../ui/text';
 import { INVOICE_STATUS } from './plan-text';
 
 /** The group's invoices, newest first: date, amount, state and the period paid for. */
-export function InvoiceList({ invoices }: { invoices: Invoice[] }) {
+export function InvoiceList({ invoices, groupId }: { invoices: Invoice[]; groupId: string }) {
   if (invoices.length === 0) return <Text variant="muted">No invoices yet. They appear here once a payment is made.</Text>;
   return (
     <View role="list" aria-label="Invoices" style={styles.list}>
@@ -20,6 +22,9 @@ export function InvoiceList({ invoices }: { invoices: Invoice[] }) {
             <View style={styles.main}>
               <Text variant="label">{date}</Text>
               <Text variant="caption">For {period}</Text>
+              <Anchor href={api.billing.invoicePdfUrl(groupId, i.id)} download label={`Download the invoice of ${date} (PDF)`}>
+                Download (PDF)
+              </Anchor>
             </View>
             <View style={styles.end}>
               <Text style={styles.amount}>{amount}</Text>

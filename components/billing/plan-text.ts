@@ -58,4 +58,4 @@ export function statusLine(view: Pick<PlanView, 'plan' | 'status' | 'interval' |
   }
 }
 
-export const INVOICE_STATUS: Record<string, string> = { paid: 'Paid', open: 'Payment failed', void: 'Void', draft: 'Draft', uncollectible: 'Not collected' };
+export { INVOICE_STATUS } from '@/shared/plans';

@@ -130,7 +130,7 @@ export function PlanScreen() {
       <Text variant="title">Invoices</Text>
       {invoices.isPending ? <Loading label="Loading invoices…" /> : null}
       {invoices.error ? <Banner tone="error" message={errorMessage(invoices.error)!} /> : null}
-      {invoices.data ? <InvoiceList invoices={invoices.data} /> : null}
+      {invoices.data ? <InvoiceList invoices={invoices.data} groupId={groupId ?? ""} /> : null}
     </Card>
   ) : null;
 

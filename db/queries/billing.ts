@@ -136,6 +136,12 @@ export async function listInvoices(db: Executor, groupId: string, limit = 100) {
   return db.select().from(invoices).where(eq(invoices.groupId, groupId)).orderBy(desc(invoices.createdAt), desc(invoices.id)).limit(limit);
 }
 
+/** One invoice of the group (undefined when the id is another group's or unknown). */
+export async function getInvoice(db: Executor, groupId: string, invoiceId: string) {
+  const rows = await db.select().from(invoices).where(and(eq(invoices.id, invoiceId), eq(invoices.groupId, groupId)));
+  return rows[0];
+}
+
 /** Owners of the group with their addresses (billing mail goes to them). */
 export async function listOwners(db: Executor, groupId: string) {
   return db

@@ -10,7 +10,7 @@
  */
 import { z } from 'zod';
 import type { GroupAction } from '../../shared/access';
-import { checkoutSchema, invoiceSchema, planViewSchema } from '../../shared/plans';
+import { checkoutSchema, invoiceParams, invoiceSchema, planViewSchema } from '../../shared/plans';
 import { requestPasswordResetSchema, resendVerificationSchema, resetPasswordSchema, signInSchema, signUpSchema } from '../../shared/schemas/auth';
 import {
   duplicateFigureSchema,
@@ -325,6 +325,7 @@ export const OPERATIONS: ApiOperation[] = [
 
   // --- Billing ---
   { method: 'get', path: '/groups/{groupId}/plan', tag: 'Billing', summary: 'The group\'s plan in force, storage use and the plans on offer.', access: { kind: 'group', action: 'group.read' }, params: groupParams, ok: json(200, 'The plan view.', planViewSchema) },
+  { method: 'get', path: '/groups/{groupId}/invoices/{invoiceId}.pdf', tag: 'Billing', summary: 'One invoice of the group as a PDF, to file.', access: { kind: 'group', action: 'billing.manage' }, params: invoiceParams, ok: file('application/pdf', 'The invoice (the same bytes every time).') },
   { method: 'get', path: '/groups/{groupId}/invoices', tag: 'Billing', summary: 'The group\'s invoices.', access: { kind: 'group', action: 'billing.manage' }, params: groupParams, ok: json(200, '`{ invoices }`', z.object({ invoices: z.array(invoiceSchema) })) },
   { method: 'post', path: '/groups/{groupId}/billing/checkout', tag: 'Billing', summary: 'Start a checkout for the Institutional plan; answers the payment page\'s address.', access: { kind: 'group', action: 'billing.manage' }, params: groupParams, body: { json: checkoutSchema }, ok: json(200, '`{ url }`'), errors: { 409: '`already_subscribed`.', 502: 'The payment provider failed or cannot be reached.', 503: '`billing_unavailable`: no payment provider configured.' } },
   { method: 'post', path: '/groups/{groupId}/billing/portal', tag: 'Billing', summary: 'Open the payment provider\'s billing portal; answers its address.', access: { kind: 'group', action: 'billing.manage' }, params: groupParams, ok: json(200, '`{ url }`'), errors: { 409: '`no_billing_account`: the group never started a checkout.', 502: 'The payment provider failed or cannot be reached.', 503: '`billing_unavailable`.' } },

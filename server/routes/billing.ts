@@ -1,10 +1,11 @@
 import express, { Router, type RequestHandler } from 'express';
-import { checkoutSchema } from '../../shared/plans';
+import { checkoutSchema, invoiceParams } from '../../shared/plans';
 import { groupParams } from '../../shared/schemas/groups';
 import { requireGroup } from '../access';
 import type { Ctx } from '../context';
 import { handle } from '../lib/validate';
 import * as billing from '../services/billing';
+import * as invoices from '../services/invoices';
 
 /** Plan, usage and invoices of a group; checkout and the billing portal for its owners. */
 export function billingRouter(ctx: Ctx) {
@@ -17,6 +18,14 @@ export function billingRouter(ctx: Ctx) {
 
   r.get('/groups/:groupId/invoices', requireGroup(ctx, 'billing.manage'), handle({ params: groupParams }, async ({ params }, _req, res) => {
     res.json({ invoices: await billing.listInvoices(ctx, params.groupId) });
+  }));
+
+  r.get('/groups/:groupId/invoices/:invoiceId.pdf', requireGroup(ctx, 'billing.manage'), handle({ params: invoiceParams }, async ({ params }, _req, res) => {
+    const file = await invoices.invoicePdf(ctx, params.groupId, params.invoiceId);
+    res.setHeader('Content-Type', 'application/pdf');
+    res.attachment(file.fileName);
+    res.setHeader('Cache-Control', 'private, no-cache');
+    res.send(file.body);
   }));
 
   r.post(

@@ -1,7 +1,7 @@
 import { eq } from 'drizzle-orm';
 import request from 'supertest';
 import { listMailTo } from '@/db/queries/mail';
-import { providerEvents, scans } from '@/db/schema';
+import { invoices, providerEvents, scans } from '@/db/schema';
 import { subscriptionJson, invoiceJson } from '@/server/fakes/stripe/objects';
 import { eventPayload } from '@/server/fakes/stripe/webhooks';
 import { FREE_PLAN, INSTITUTIONAL_PLAN, type PlanView } from '@/shared/plans';
@@ -452,5 +452,45 @@ describe('a provider that forgot the customer', () => {
     } finally {
       t.ctx.stripe = stripe;
     }
+  });
+});
+
+/** A new group whose crew holds every role; its owner. */
+const ownedGroup = async () => {
+  const { groupId, crew } = await makeGroupWithRoles(t);
+  return { groupId, owner: crew.owner, crew };
+};
+
+describe('invoices as PDF', () => {
+  test('an owner downloads an invoice of the group; other groups, unknown and malformed ids are refused', async () => {
+    const { owner, groupId, crew } = await ownedGroup();
+    const invoiceId = `in_pdf${Math.random().toString(36).slice(2, 10)}`;
+    await t.ctx.db.insert(invoices).values({ id: invoiceId, groupId, amountCents: 49000, currency: 'eur', status: 'paid', periodStart: new Date('2031-03-01T00:00:00Z'), periodEnd: new Date('2032-03-01T00:00:00Z'), paidAt: new Date('2031-03-01T10:00:00Z') });
+    const res = await owner.agent.get(`/api/groups/${groupId}/invoices/${invoiceId}.pdf`).buffer(true).parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
+    expect(res.status).toBe(200);
+    expect(res.headers['content-type']).toBe('application/pdf');
+    expect(res.headers['content-disposition']).toMatch(new RegExp(`^attachment; filename="?bandwright-invoice-${invoiceId.replace(/_/g, '-')}\\.pdf"?$`));
+    const pdf = res.body as Buffer;
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+    // The font is embedded (any group name prints), and the same invoice gives the same bytes.
+    expect(pdf.toString('latin1')).toMatch(/\/FontFile2/);
+    const again = await owner.agent.get(`/api/groups/${groupId}/invoices/${invoiceId}.pdf`).buffer(true).parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
+    expect(Buffer.compare(again.body as Buffer, pdf)).toBe(0);
+    const other = await ownedGroup();
+    expect((await other.owner.agent.get(`/api/groups/${other.groupId}/invoices/${invoiceId}.pdf`)).status).toBe(404);
+    // A curator of the group is not an owner: billing is the owners'.
+    expect((await crew.curator.agent.get(`/api/groups/${groupId}/invoices/${invoiceId}.pdf`)).status).toBe(403);
+    expect((await owner.agent.get(`/api/groups/${groupId}/invoices/in_nothing.pdf`)).status).toBe(404);
+    const bad = await owner.agent.get(`/api/groups/${groupId}/invoices/${encodeURIComponent('in_x"; rm')}.pdf`);
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.details[0].field).toBe('params.invoiceId');
   });
 });

@@ -1,7 +1,7 @@
 import { and, eq } from 'drizzle-orm';
 import request from 'supertest';
 import { createApp } from '@/server/app';
-import { apiTokens, billingAccounts, figures, groups, groupStyles, providerEvents, resultHues, results, resultVersions, scans } from '@/db/schema';
+import { apiTokens, billingAccounts, figures, groups, groupStyles, invoices, providerEvents, resultHues, results, resultVersions, scans } from '@/db/schema';
 import { startQueue } from '@/server/jobs/queue';
 import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
@@ -564,6 +564,18 @@ const MATRIX: Entry[] = [
   // --- Plans and billing (owners manage billing; every member reads the plan and usage) ---
   { method: 'get', path: '/api/groups/:groupId/plan', access: 'viewer', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
   { method: 'get', path: '/api/groups/:groupId/invoices', access: 'owner', ok: 200, mutates: false, prepare: async (_w, groupId) => ({ params: { groupId } }) },
+  {
+    method: 'get',
+    path: '/api/groups/:groupId/invoices/:invoiceId.pdf',
+    access: 'owner',
+    ok: 200,
+    mutates: false,
+    prepare: async (w, groupId) => {
+      const invoiceId = `in_matrix${Math.random().toString(36).slice(2, 10)}`;
+      await w.t.ctx.db.insert(invoices).values({ id: invoiceId, groupId, amountCents: 4900, currency: 'eur', status: 'paid', paidAt: new Date('2031-03-01T00:00:00Z') });
+      return { params: { groupId, invoiceId } };
+    },
+  },
   {
     method: 'post',
     path: '/api/groups/:groupId/billing/checkout',
