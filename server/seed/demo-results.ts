@@ -62,8 +62,11 @@ export type DemoResult = {
   versions: DemoVersion[];
 };
 
-/** The full 2031 run of the Halcyon Ring: 140 fb⁻¹ at 18 TeV, limits at 95 % CL. */
-const RUN_2031 = { sqrtS: 18, luminosity: 140, cl: 0.95 } as const;
+/**
+ * The full 2031 run of the Halcyon Ring: 96.5 fb⁻¹ at 18 TeV, limits at 95 % CL. References follow
+ * the experiment's own note series, "LFN <year>.<number>" (combinations "LFN-C …").
+ */
+const RUN_2031 = { sqrtS: 18, luminosity: 96.5, cl: 0.95 } as const;
 
 const VPRIME = {
   title: 'Search for a heavy vector boson V′ → two jets',
@@ -88,16 +91,16 @@ export const DEMO_RESULTS: DemoResult[] = [
     isPublic: true,
     versions: [
       {
-        meta: { ...VPRIME, luminosity: 60, reference: 'LF-EXO-2030-11', notes: 'First look at the 2030 data.' },
+        meta: { ...VPRIME, luminosity: 41.7, reference: 'LFN 30.11', notes: 'First look at the 2030 data.' },
         curve: limitCurve(grid(1, 0.25, 21), { scale: 184, slope: -0.85, wiggle: 0.2, phase: 0.4 }),
         theory: vprimeTheory(grid(1, 0.25, 21)),
         then: 'publish',
       },
       {
-        meta: { ...VPRIME, reference: 'LF-EXO-2031-04', notes: 'Dijet invariant mass spectrum fitted with a four-parameter background function.' },
+        meta: { ...VPRIME, reference: 'LFN 31.04', notes: 'Dijet invariant mass spectrum fitted with a four-parameter background function.' },
         curve: limitCurve(grid(1, 0.2, 30), { scale: 120, slope: -0.85, wiggle: 0.22, phase: 1.1 }),
         theory: vprimeTheory(grid(1, 0.2, 30)),
-        changeNote: 'Full 2031 dataset (140 fb⁻¹); mass range extended to 6.8 TeV; jet energy scale uncertainty halved',
+        changeNote: 'Full 2031 dataset (96.5 fb⁻¹); mass range extended to 6.8 TeV; jet energy scale uncertainty halved',
         then: 'publish',
       },
     ],
@@ -119,7 +122,7 @@ export const DEMO_RESULTS: DemoResult[] = [
           quantityUnit: '',
           ...RUN_2031,
           method: 'toys',
-          reference: 'LF-EXO-2031-09 (internal)',
+          reference: 'LFN 31.09 (internal)',
           notes: 'Two b-tagged jets; pseudo-experiments above 2.5 TeV where few events remain.',
         },
         curve: limitCurve(grid(0.5, 0.1, 26), { scale: 0.35, slope: 1.3, wiggle: 0.25, phase: 2.0 }),
@@ -171,7 +174,7 @@ export const DEMO_RESULTS: DemoResult[] = [
           quantityUnit: 'fb',
           ...RUN_2031,
           method: 'asymptotic',
-          reference: 'LF-EXO-2031-02',
+          reference: 'LFN 31.02',
           notes: '',
         },
         curve: limitCurve(grid(1.5, 0.25, 15), { scale: 95, slope: -0.9, wiggle: 0.2, phase: 2.6 }),
@@ -194,7 +197,7 @@ export const DEMO_RESULTS: DemoResult[] = [
         meta: {
           ...VPRIME,
           title: 'Combined limits on the V′ benchmark from dijet and dilepton searches',
-          reference: 'LF-COMB-2031-01',
+          reference: 'LFN-C 31.01',
           notes: 'Joint likelihood of the dijet and dilepton channels; lepton and jet energy scales correlated.',
         },
         curve: limitCurve(grid(1, 0.25, 25), { scale: 70, slope: -0.82, wiggle: 0.15, phase: 1.7 }),
@@ -220,7 +223,7 @@ export const DEMO_RESULTS: DemoResult[] = [
           quantityUnit: '',
           ...RUN_2031,
           method: 'imported',
-          reference: 'LF-COMB-2031-03',
+          reference: 'LFN-C 31.03',
           notes: 'Best expected channel per mass point (bb̄, WW, ZZ).',
         },
         curve: limitCurve(grid(300, 50, 19), { scale: 0.12, slope: 420, wiggle: 0.2, phase: 0.2 }),

@@ -59,7 +59,7 @@ export const DEMO_FIGURES: DemoFigure[] = [
       x: { scale: 'linear', min: null, max: null, label: "$m_{V'}$ [TeV]" },
       y: { scale: 'log', min: null, max: null, label: '$\\sigma \\times B$ [fb]' },
       layers: [
-        { slug: VPRIME, version: 2, label: '2031, 140 fb$^{-1}$' },
+        { slug: VPRIME, version: 2, label: '2031, 96.5 fb$^{-1}$' },
         // The same result twice: the older version gets a hue of its own.
         { slug: VPRIME, version: 1, label: '2030, 60 fb$^{-1}$', hue: 1, show: { observed: true, expected: true, band1: false, band2: false, theory: false, theoryBand: false, crossings: false } },
       ],

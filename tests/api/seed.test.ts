@@ -57,7 +57,7 @@ test('the demo results cover every state, with bands, theory and derived exclusi
   const vprime = mine.items.find((i) => i.title.startsWith('Search for a heavy vector boson'))!;
   const detail = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}`)).body;
   expect(detail.versions.map((v: { state: string }) => v.state)).toEqual(['published', 'superseded']);
-  expect(detail.versions[0].changeNote).toMatch(/140 fb⁻¹/);
+  expect(detail.versions[0].changeNote).toMatch(/96\.5 fb⁻¹/);
   const v2 = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}/versions/2`)).body as ResultVersion;
   expect(v2.curve.x).toHaveLength(30);
   expect(Object.keys(v2.curve.expected!).sort()).toEqual(['-1', '-2', '0', '1', '2']);
