@@ -2,7 +2,7 @@ import { and, asc, count, desc, eq, getTableColumns, ilike, inArray, max, or, sq
 import type { ResultListQuery } from '../../shared/schemas/results';
 import type { Executor } from '../client';
 import { versionVisibleSql, type Viewer } from './visibility';
-import { figureLayers, figures, groups, results, resultVersions, user } from '../schema';
+import { figureLayers, figures, groups, resultInputs, results, resultVersions, user } from '../schema';
 
 /**
  * Data access of the results registry. Every function is scoped: by the group (routes that have
@@ -282,4 +282,40 @@ export async function listFiguresUsing(db: Executor, target: { groupId: string; 
     .where(and(eq(figureLayers.resultId, target.resultId), target.version === undefined ? undefined : eq(figureLayers.resultVersion, target.version)))
     .orderBy(asc(figures.title), asc(figures.id));
   return rows.map((r) => ({ id: r.id, name: r.groupId === target.groupId ? r.title : "another group's figure" }));
+}
+
+// ---------------------------------------------------------------------------------------------
+// Inputs of derived results
+
+/** Records the inputs of a derived version of the group's result (in the writing transaction). */
+export async function insertVersionInputs(db: Executor, groupId: string, resultId: string, version: number, inputs: { resultId: string; version: number; title: string }[]) {
+  const [own] = await resultOfGroup(db, groupId, resultId);
+  if (!own || !inputs.length) return;
+  await db.insert(resultInputs).values(inputs.map((i, position) => ({ resultId, version, position, inputResultId: i.resultId, inputVersion: i.version, inputTitle: i.title })));
+}
+
+/**
+ * The inputs of a version of the group's result, in order, each with its permanent-link slug and
+ * the newest published version the group may use now (the `pinning` reader), to say when a newer
+ * one exists. An input the group may no longer see (or that was deleted) keeps only its title.
+ */
+export async function listVersionInputs(db: Executor, groupId: string, resultId: string, version: number) {
+  const rows = await db
+    .select({ position: resultInputs.position, resultId: resultInputs.inputResultId, version: resultInputs.inputVersion, title: resultInputs.inputTitle })
+    .from(resultInputs)
+    .where(and(inArray(resultInputs.resultId, resultOfGroup(db, groupId, resultId)), eq(resultInputs.version, version)))
+    .orderBy(asc(resultInputs.position));
+  const ids = [...new Set(rows.flatMap((r) => (r.resultId ? [r.resultId] : [])))];
+  if (!ids.length) return rows.map((r) => ({ ...r, slug: null as string | null, latestPublished: null as number | null }));
+  const visible = await db
+    .select({ id: results.id, slug: results.slug, latest: sql<number | null>`max(${resultVersions.version}) filter (where ${resultVersions.state} = 'published')`.mapWith((v) => (v === null ? null : Number(v))) })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(and(inArray(results.id, ids), versionVisibleSql({ kind: 'pinning', groupId })))
+    .groupBy(results.id, results.slug);
+  const byId = new Map(visible.map((v) => [v.id, v]));
+  return rows.map((r) => {
+    const v = r.resultId ? byId.get(r.resultId) : undefined;
+    return { ...r, resultId: v ? r.resultId : null, slug: v?.slug ?? null, latestPublished: v?.latest ?? null };
+  });
 }

@@ -81,3 +81,23 @@ export const resultVersions = pgTable(
     index().on(t.method),
   ],
 );
+
+/**
+ * The inputs of a derived result version (a best-expected envelope): which result versions it
+ * was built from, in order, with their titles as they were. The input's result may be deleted
+ * later (its id is then null); the title stays for the record.
+ */
+export const resultInputs = pgTable(
+  'result_inputs',
+  {
+    resultId: uuid()
+      .notNull()
+      .references(() => results.id, { onDelete: 'cascade' }),
+    version: integer().notNull(),
+    position: integer().notNull(),
+    inputResultId: uuid().references(() => results.id, { onDelete: 'set null' }),
+    inputVersion: integer().notNull(),
+    inputTitle: text().notNull(),
+  },
+  (t) => [uniqueIndex().on(t.resultId, t.version, t.position), index().on(t.inputResultId)],
+);

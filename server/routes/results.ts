@@ -23,6 +23,8 @@ import { multipartUpload, rawJsonBody } from '../lib/upload';
 import { fromFileUpload, fromJsonBody, parseJsonUpload, type FileUpload } from '../services/result-upload';
 import { requestFingerprint, uploadOnce, type RequestContents, type UploadAnswer } from '../services/upload-idempotency';
 import * as results from '../services/results';
+import * as combine from '../services/combine';
+import { createEnvelopeSchema } from '../../shared/schemas/combine';
 
 const groupListQuery = resultListQuery.omit({ groupId: true });
 const publicListQuery = resultListQuery.pick({ q: true, page: true, pageSize: true });
@@ -75,6 +77,11 @@ export function resultsRouter(ctx: Ctx) {
 
   r.get('/groups/:groupId/results', requireGroup(ctx, 'group.read'), handle({ params: groupParams, query: groupListQuery }, async ({ params, query }, _req, res) => {
     res.json(await results.listInGroup(ctx, params.groupId, query));
+  }));
+
+  // A best-expected envelope of other result versions, stored as a draft of the group.
+  r.post('/groups/:groupId/envelopes', requireGroup(ctx, 'result.write'), handle({ params: groupParams, body: createEnvelopeSchema }, async ({ params, body }, req, res) => {
+    res.status(201).json(await combine.createEnvelope(ctx, params.groupId, actor(req), body));
   }));
 
   // What the group may pin in its figures: its own results (any state), other groups' public ones.

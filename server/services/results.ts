@@ -91,6 +91,7 @@ function toVersion(ctx: Ctx, row: q.VersionRow): ResultVersion {
     permalink: row.state === 'draft' ? null : `${ctx.env.PUBLIC_URL}/r/${row.slug}/v${row.version}`,
     sourceFile: row.sourceName !== null && row.sourceBytes !== null ? { name: row.sourceName, bytes: row.sourceBytes } : null,
     fromScan: null,
+    inputs: null,
   };
 }
 
@@ -155,8 +156,9 @@ async function versionRow(ctx: Ctx, groupId: string, resultId: string, version: 
 
 /** A version as the group's members see it: with the scan that computed it and its points' warnings. */
 export async function getVersion(ctx: Ctx, groupId: string, resultId: string, version: number): Promise<ResultVersion> {
-  const [row, scan] = await Promise.all([versionRow(ctx, groupId, resultId, version), scanOfVersion(ctx.db, groupId, resultId, version)]);
+  const [row, scan, inputs] = await Promise.all([versionRow(ctx, groupId, resultId, version), scanOfVersion(ctx.db, groupId, resultId, version), q.listVersionInputs(ctx.db, groupId, resultId, version)]);
   const v = toVersion(ctx, row);
+  if (inputs.length) v.inputs = inputs;
   if (scan) {
     v.fromScan = {
       scanId: scan.id,

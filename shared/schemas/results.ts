@@ -187,6 +187,12 @@ export type ResultVersion = VersionSummary & {
    * warned (too few pseudo-experiments, low counts…) or failed. Null for uploads and public reads.
    */
   fromScan: { scanId: string; points: { index: number; x: number; warnings: string[]; error: string | null }[] } | null;
+  /**
+   * For members: the result versions a derived version (an envelope) was built from, in order, with
+   * the newest published version of each that the group may use (`null` resultId: deleted or no
+   * longer visible; the title stays).
+   */
+  inputs: { position: number; resultId: string | null; version: number; title: string; slug: string | null; latestPublished: number | null }[] | null;
 };
 
 /**

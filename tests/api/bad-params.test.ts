@@ -16,7 +16,7 @@ import { apiRoutesOf, fillPath, paramNames, splitRoute } from '../helpers/routes
 
 jest.setTimeout(120_000);
 
-type Kind = 'group' | 'uuid' | 'positive' | 'index' | 'slug' | 'user' | 'token';
+type Kind = 'group' | 'uuid' | 'positive' | 'index' | 'slug' | 'user' | 'token' | 'invoice';
 
 /** The kind of every path parameter of the API; a route with a parameter missing here fails the walk. */
 const PARAM_KINDS: Record<string, Kind> = {
@@ -31,6 +31,7 @@ const PARAM_KINDS: Record<string, Kind> = {
   slug: 'slug',
   userId: 'user',
   token: 'token',
+  invoiceId: 'invoice',
 };
 
 const INT_BAD = ['99999999999', '2147483648', '-1', '1.5', 'abc', '1e400', ' ', '0x10'];
@@ -42,6 +43,7 @@ const BAD: Record<Kind, string[]> = {
   slug: ['99999999999'.repeat(8), '-1.5', 'ABC', 'a', '../x', 'a b c'],
   user: ['x'.repeat(101), 'a b', '../x', '%00'],
   token: ['99999999999', '-1', 'abc', 'x'.repeat(101), 'a'.repeat(19) + '!'],
+  invoice: ['x'.repeat(81), 'a b', '../x', 'in-1', '%00'],
 };
 
 /** Numeric query parameters of the GET routes (version of a render, pages, resolution, energy, …). */
@@ -84,6 +86,7 @@ beforeAll(async () => {
     slug: published.slug,
     userId: owner.user.id,
     token: 'a'.repeat(32),
+    invoiceId: 'in_not_issued',
   });
 }, 60_000);
 afterAll(async () => t?.close());

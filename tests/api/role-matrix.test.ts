@@ -216,6 +216,22 @@ const MATRIX: Entry[] = [
       };
     },
   },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/envelopes',
+    access: 'analyst',
+    ok: 201,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const title = uniqueGroupName('Matrix Envelope');
+      const other = await makeResult(w.crew.analyst, groupId, { meta: { title: uniqueGroupName('Matrix Envelope Input') } });
+      return {
+        params: { groupId },
+        body: { title, inputs: [{ resultId: (await sharedResult(w, groupId)).resultId, version: 1 }, { resultId: other.resultId, version: 1 }] },
+        effect: async () => (await versionsOf(w, groupId)).some((v) => v.title === title),
+      };
+    },
+  },
   { method: 'get', path: '/api/groups/:groupId/results/:resultId', access: 'viewer', ok: 200, mutates: false, prepare: async (w, groupId) => ({ params: { groupId, resultId: (await sharedResult(w, groupId)).resultId } }) },
   {
     method: 'patch',

@@ -1,8 +1,9 @@
 import fc from 'fast-check';
 import { bestExpectedEnvelope, type EnvelopeInput } from '@/shared/combine/envelope';
 import { StatsInputError } from '@/shared/stats/errors';
+import type { LimitUnits } from '@/shared/units';
 
-const TeV = { parameterUnit: 'TeV', quantity: 'xsec', quantityUnit: 'fb' } as const;
+const TeV: LimitUnits = { parameterUnit: 'TeV', quantity: 'xsec', quantityUnit: 'fb' };
 
 /** A curve whose ln(limit) is a + b·x (exactly linear in the interpolation), bands as fixed ratios. */
 function loglinear(name: string, a: number, b: number, xs: number[], units = TeV, obsRatio = 1.1): EnvelopeInput {

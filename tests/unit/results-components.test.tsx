@@ -35,6 +35,7 @@ const version: ResultVersion = {
   permalink: null,
   sourceFile: null,
   fromScan: null,
+  inputs: null,
 };
 const detail: ResultDetail = { id: 'r1', slug: 'dijet-z-prime', groupId: 'g1', groupName: 'Invented Dijet Team', isPublic: false, versions: [version] };
 
