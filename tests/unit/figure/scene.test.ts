@@ -1,5 +1,5 @@
 import { buildScene, collectLabels, labelKey, labelsOffPage, resolveFigureTheme, sizePt, type FigureLayerData, type Measure, type Scene } from '@/shared/figure';
-import { FIGURE_THEMES, type FigureSpec } from '@/shared/schemas/figures';
+import { FIGURE_THEMES, type FigureSpec, type FigureSpecInput } from '@/shared/schemas/figures';
 import { exclusionRanges } from '@/shared/stats/exclusion';
 import { placeBoxes } from '@/shared/figure/legend';
 import { pathBounds } from '@/shared/figure/scene';
@@ -358,7 +358,7 @@ describe('labels larger than the page', () => {
     expect(plot.x + plot.width).toBeLessThanOrEqual(W);
     expect(plot.y + plot.height).toBeLessThanOrEqual(H);
   };
-  const cases: [string, Partial<FigureSpec>, string][] = [
+  const cases: [string, Partial<FigureSpecInput>, string][] = [
     ['a 100 em tall y-axis title', { y: { scale: 'log', min: null, max: null, label: TALL } }, 'spec.y.label'],
     ['a million em wide y-axis title', { y: { scale: 'log', min: null, max: null, label: WIDE } }, 'spec.y.label'],
     ['a 100 em tall x-axis title', { x: { scale: 'linear', min: null, max: null, label: TALL } }, 'spec.x.label'],
