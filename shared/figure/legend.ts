@@ -107,8 +107,7 @@ export type LegendLayout = {
 
 /**
  * Lays the legend out in one or two columns (filled top to bottom, then left to right): a key
- * (line sample or filled swatch) then the label, rows as high as the tallest label; a layer's
- * heading row has no key and starts where the keys do.
+ * (line sample or filled swatch) then the label, rows as high as the tallest label.
  */
 export function layoutLegend(entries: readonly LegendEntry[], metrics: readonly TextMetrics[], theme: ResolvedTheme, columns: 1 | 2): LegendLayout {
   const size = theme.type.legend;
@@ -117,12 +116,10 @@ export function layoutLegend(entries: readonly LegendEntry[], metrics: readonly 
   const rows = Math.ceil(entries.length / cols);
   const rowH = Math.max(size, ...metrics.map((m) => m.ascent + m.descent));
   const keyGap = 0.4 * size;
-  // A heading row (key `none`) starts where the keys do; its parts' keys and labels follow beneath.
-  const rowW = (i: number) => (entries[i]!.key.kind === 'none' ? metrics[i]!.width : s.legendKey + keyGap + metrics[i]!.width);
   const colW: number[] = [];
   for (let c = 0; c < cols; c++) {
-    const widths = entries.slice(c * rows, (c + 1) * rows).map((_, j) => rowW(c * rows + j));
-    colW.push(Math.max(0, ...widths));
+    const widths = metrics.slice(c * rows, (c + 1) * rows).map((m) => m.width);
+    colW.push(s.legendKey + keyGap + Math.max(0, ...widths));
   }
   const width = 2 * s.legendPad + colW.reduce((a, b) => a + b, 0) + (cols - 1) * s.legendColumn;
   const height = entries.length === 0 ? 0 : 2 * s.legendPad + rows * rowH + (rows - 1) * s.legendRow;
@@ -139,11 +136,6 @@ export function layoutLegend(entries: readonly LegendEntry[], metrics: readonly 
       const cy = top + rowH / 2;
       const x1 = x0 + s.legendKey;
       const k = e.key;
-      const m = metrics[i]!;
-      if (k.kind === 'none') {
-        out.push({ kind: 'text', x: x0, y: cy + (m.ascent - m.descent) / 2, label: e.label, size, font: theme.font, anchor: 'start', color: theme.colors.text, rotate: 0, role: 'legend' });
-        return;
-      }
       if (k.kind === 'fill') {
         const h = 0.75 * rowH;
         out.push({ kind: 'path', d: rectPath(x0, cy - h / 2, s.legendKey, h), fill: k.color, stroke: null, strokeWidth: 0, dash: null, clip: false, role: 'legend-key', layer: e.layer });
@@ -151,6 +143,7 @@ export function layoutLegend(entries: readonly LegendEntry[], metrics: readonly 
       } else {
         out.push({ kind: 'path', d: `M${n(x0)},${n(cy)}H${n(x1)}`, fill: null, stroke: k.color, strokeWidth: k.width, dash: k.dash, clip: false, role: 'legend-key', layer: e.layer });
       }
+      const m = metrics[i]!;
       out.push({ kind: 'text', x: x1 + keyGap, y: cy + (m.ascent - m.descent) / 2, label: e.label, size, font: theme.font, anchor: 'start', color: theme.colors.text, rotate: 0, role: 'legend' });
     });
     return out;

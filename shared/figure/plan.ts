@@ -23,7 +23,7 @@ export type DrawnLayer = {
   spec: LayerSpec;
   data: AvailableLayer;
   name: string;
-  /** The legend heading: the name, with the layer's luminosity when the layers' luminosities differ. */
+  /** The name in the legend: with the layer's luminosity when the layers' luminosities differ. */
   heading: string;
   color: string;
   /** Dash pattern of the observed line (null = solid), from the layer's `lineStyle`. */
@@ -47,13 +47,11 @@ export type TheoryLine = {
 
 /** What a legend entry shows before its label: a line sample or a filled swatch (with a line on it). */
 export type LegendKey =
-  | { kind: 'none' }
   | { kind: 'line'; color: string; width: number; dash: number[] | null }
   | { kind: 'fill'; color: string; line?: { color: string; width: number; dash: number[] | null } };
 /**
  * One legend row. `field` names the part of the spec that decides its text (a layer's label, or
- * what turns the row on), for the error when a label is larger than the page. A row with key
- * `none` is a layer's heading: its parts follow beneath it.
+ * what turns the row on), for the error when a label is larger than the page.
  */
 export type LegendEntry = { label: string; key: LegendKey; layer?: number; field: string };
 
@@ -240,7 +238,7 @@ function distinct<T>(xs: T[]): T[] {
 /**
  * "√s = 18 TeV, 140 fb⁻¹" lines, one per energy. Luminosities are never joined ("140, 60 fb⁻¹"
  * would not say which is whose): an energy whose layers differ in luminosity is written alone and
- * each layer's luminosity goes into its legend heading (`layerLumi`).
+ * each layer's luminosity goes into its legend entry (`layerLumi`).
  */
 function energyLines(metas: VersionMeta[], theme: ResolvedTheme): string[] {
   const ambiguous = ambiguousEnergies(metas);
@@ -297,8 +295,8 @@ function legendEntries(spec: FigureSpec, plan: Pick<FigurePlan, 'theme' | 'layer
   for (const l of plan.layers) {
     const c = l.data.curve;
     const field = `spec.layers.${l.index}.label`;
-    // Each part in three wordings: alone (one unnamed layer), after the layer's name (its only
-    // part), beneath the layer's heading row (several parts: the name is written once).
+    // Each part in three wordings: alone (one unnamed layer), after the layer's name (the first
+    // part of a named layer), or short beneath that row (the name is written once per layer).
     const parts: { plain: string; of: string; part: string; key: LegendKey }[] = [];
     if (l.spec.show.observed && c.observed) parts.push({ plain: w.observed, of: w.observedOf, part: w.observedPart, key: { kind: 'line', color: l.color, width: theme.lines.observed, dash: l.dash } });
     if (l.spec.show.expected && c.expected?.['0']) parts.push({ plain: w.expected, of: w.expectedOf, part: w.expectedPart, key: { kind: 'line', color: l.color, width: theme.lines.expected, dash: theme.dash.expected } });
@@ -306,11 +304,7 @@ function legendEntries(spec: FigureSpec, plan: Pick<FigurePlan, 'theme' | 'layer
     if (l.band1 && c.expected?.['-1'] && c.expected['1']) parts.push({ plain: w.band1, of: w.band1Of, part: w.band1Part, key: { kind: 'fill', color: bands.band1 } });
     if (l.band2 && c.expected?.['-2'] && c.expected['2']) parts.push({ plain: w.band2, of: w.band2Of, part: w.band2Part, key: { kind: 'fill', color: bands.band2 } });
     if (!prefixed) for (const p of parts) out.push({ label: p.plain, key: p.key, layer: l.index, field });
-    else if (parts.length === 1) out.push({ label: fill(parts[0]!.of, { layer: l.heading }), key: parts[0]!.key, layer: l.index, field });
-    else if (parts.length > 1) {
-      out.push({ label: l.heading, key: { kind: 'none' }, layer: l.index, field });
-      for (const p of parts) out.push({ label: p.part, key: p.key, layer: l.index, field });
-    }
+    else parts.forEach((p, k) => out.push({ label: k === 0 ? fill(p.of, { layer: l.heading }) : p.part, key: p.key, layer: l.index, field }));
   }
   for (const t of plan.theories) {
     const line = { color: theme.colors.theory, width: theme.lines.theory, dash: t.dash.length ? t.dash : null };

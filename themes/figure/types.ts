@@ -26,12 +26,12 @@ export type FigureWords = {
   expectedOf: string;
   band1Of: string;
   band2Of: string;
-  /** The parts beneath a layer's heading row when it shows several (short: the heading names the layer). */
+  /** A layer's further parts, beneath its first row (short: that row names the layer). */
   observedPart: string;
   expectedPart: string;
   band1Part: string;
   band2Part: string;
-  /** A layer's heading with its own luminosity (`{layer}`, `{lumi}`), when the layers' luminosities differ. */
+  /** A layer's name with its own luminosity (`{layer}`, `{lumi}`), when the layers' luminosities differ. */
   layerLumi: string;
   theory: string;
   excluded: string;

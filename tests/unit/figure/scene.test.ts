@@ -188,15 +188,15 @@ describe('legend placement', () => {
       for (const t of texts(scene, 'energy')) expect(inside(box, [t.x, t.y])).toBe(false);
     }
   });
-  test('legend entries name each layer and its parts; a single layer reads plainly', () => {
+  test('legend entries name each layer once, its parts beneath; a single layer reads plainly', () => {
     const two = texts(build(spec(), [dijet, dilepton]), 'legend').map((t) => t.label);
     expect(two).toEqual([
       'Lanternfish dijet, observed',
-      'Lanternfish dijet, expected',
-      'Lanternfish dijet, expected $\\pm 1\\sigma$',
-      'Lanternfish dijet, expected $\\pm 2\\sigma$',
+      'expected',
+      '$\\pm 1\\sigma$',
+      '$\\pm 2\\sigma$',
       'Lanternfish dilepton, observed',
-      'Lanternfish dilepton, expected',
+      'expected',
       'Vee-prime benchmark A',
       'Excluded (observed)',
     ]);
@@ -212,7 +212,7 @@ describe('outreach', () => {
     expect(paths(scene, 'band2')).toHaveLength(0);
     expect(paths(scene, 'band1')).toHaveLength(1);
     const words = texts(scene).filter((t) => t.role !== 'tick').map((t) => t.label);
-    expect(words).toEqual(expect.arrayContaining(['Lanternfish dijet: observed limit', 'Lanternfish dijet: expected limit', 'Lanternfish dijet: expected range', 'Ruled out by this search', 'Mass of the new particle [TeV]', 'How often it would be made [fb]']));
+    expect(words).toEqual(expect.arrayContaining(['Lanternfish dijet: observed limit', 'expected limit', 'expected range', 'Above the observed limit: ruled out', 'Ruled out by this search', 'Mass of the new particle [TeV]', 'How often it would be made [fb]']));
     for (const w of words) expect(w).not.toMatch(/\\sigma|\\pm|CL\b|\\mu|fb\$\^/);
     const withCl = build({ ...s, clLabel: true }, [dijet, dilepton]);
     expect(texts(withCl, 'cl').map((t) => t.label)).toEqual(['95% confidence']);
