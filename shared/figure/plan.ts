@@ -70,6 +70,8 @@ export type FigurePlan = {
   /** Lines of the energy / confidence-level block (and the plain-language explanation), top to bottom. */
   info: { label: string; role: 'energy' | 'cl' | 'explain' }[];
   legend: LegendEntry[];
+  /** The legend's columns: the spec's, or one when two would not fit inside the plot. */
+  legendColumns: 1 | 2;
   notes: string[];
   /** The layer whose observed limit is compared with its theory for the shading, if any. */
   shadingLayer: DrawnLayer | null;
@@ -370,13 +372,17 @@ export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[],
     .map(([x, y]) => ({ fx: (axisUnit(xScale, x) - x0) / (x1 - x0 || 1), u: axisUnit(yScale, y) }));
   const position = spec.legend.position;
   const corners: Corner[] = position === 'none' ? [] : position === 'auto' ? LEGEND_CORNERS : [position];
+  // Two columns wider than the plot would run over its frame: one column then (the scene checks
+  // again with measured text).
+  const inset = theme.spacing.legendInset;
+  const legendColumns: 1 | 2 = spec.legend.columns === 2 && roughLegendSize(legend, theme, 2).w > est.width - 2 * inset ? 1 : spec.legend.columns;
   const reach = roomForBoxes({
     pts: roomPts,
     domain: base.map((v) => axisUnit(yScale, v)) as [number, number],
     movable: { low: spec.y.min === null && (yScale === 'log' || base[0] < 0), high: spec.y.max === null },
     plot: est,
     inset: theme.spacing.legendInset,
-    legend: legend.length && corners.length ? { ...roughLegendSize(legend, theme, spec.legend.columns), corners } : null,
+    legend: legend.length && corners.length ? { ...roughLegendSize(legend, theme, legendColumns), corners } : null,
     info: info.length ? roughInfoSize(info.map((i) => i.label), theme) : null,
     annotations: spec.annotations.map((n) => ({ fx: n.x, fy: 1 - n.y, fw: roughWidth(n.text, theme.type.annotation) / est.width, fh: (1.05 * theme.type.annotation) / est.height })),
   });
@@ -386,7 +392,7 @@ export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[],
   const y = planAxisTicks(yScale, yDomain, est.height, theme.type.tick, false, theme.ticks.plainDecades);
   const notes = hidden === 0 ? [] : [hidden === 1 ? theme.words.hiddenOne : fill(theme.words.hiddenMany, { n: hidden })];
   for (const n of [...refused, ...unitNotes]) notes.push(n.text);
-  return { theme, widthPt, heightPt, layers: drawn, hidden, theories, x, y, xTitle: xTitle(spec, drawn, theme), yTitle: yTitle(spec, drawn, theme), info, legend, notes, shadingLayer };
+  return { theme, widthPt, heightPt, layers: drawn, hidden, theories, x, y, xTitle: xTitle(spec, drawn, theme), yTitle: yTitle(spec, drawn, theme), info, legend, legendColumns, notes, shadingLayer };
 }
 
 /** Every label of a plan with its size and font, in drawing order, without repeats. */

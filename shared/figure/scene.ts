@@ -287,7 +287,9 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   const infoGap = 0.25 * t.annotation;
   const info = infoMetrics.length ? { w: Math.max(...infoMetrics.map((x) => x.width)), h: infoMetrics.reduce((a, x) => a + height(x), 0) + (infoMetrics.length - 1) * infoGap } : null;
   const legendMetrics = plan.legend.map((e) => m(e.label, t.legend));
-  const legend = plan.legend.length ? layoutLegend(plan.legend, legendMetrics, theme, spec.legend.columns) : null;
+  let legend = plan.legend.length ? layoutLegend(plan.legend, legendMetrics, theme, plan.legendColumns) : null;
+  // Two measured columns wider than the plot: one column, inside the frame.
+  if (legend && plan.legendColumns === 2 && legend.width > plot.width - 2 * s.legendInset) legend = layoutLegend(plan.legend, legendMetrics, theme, 1);
   const position = spec.legend.position;
   const fixed: Corner | null = position === 'auto' || position === 'none' ? null : position;
   const placed = placeBoxes({ plot, inset: s.legendInset, samples, obstacles, legend: legend ? { w: legend.width, h: legend.height, fixed } : null, info });

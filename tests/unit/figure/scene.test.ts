@@ -178,8 +178,11 @@ describe('legend placement', () => {
     const none = build(spec({ legend: { position: 'none', columns: 1 } }), [dijet, dilepton]);
     expect(none.legendCorner).toBe('none');
     expect(none.items.some((p) => p.role === 'legend' || p.role === 'legend-key')).toBe(false);
-    const two = build(spec({ legend: { position: 'auto', columns: 2 } }), [dijet, dilepton]);
+    // (On a page wide enough for both: two columns wider than the plot fall back to one, see style.test.ts.)
+    const two = build(spec({ size: { preset: 'two-column' }, legend: { position: 'auto', columns: 2 } }), [dijet, dilepton]);
     expect(new Set(texts(two, 'legend').map((t) => Math.round(t.x))).size).toBe(2);
+    const narrow = build(spec({ legend: { position: 'auto', columns: 2 } }), [dijet, dilepton]);
+    expect(legendBox(narrow)!.width).toBeLessThanOrEqual(narrow.plot.width);
   });
   test('the energy block never shares the legend corner', () => {
     for (const position of ['top-left', 'top-right', 'bottom-left', 'bottom-right'] as const) {
