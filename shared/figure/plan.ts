@@ -168,7 +168,12 @@ export function drawnLayers(
   });
   // Layers of one energy with different luminosities: each names its own in the legend.
   const ambiguous = ambiguousEnergies(drawn.map((l) => l.data.meta));
-  for (const l of drawn) if (ambiguous.has(shortNumber(l.data.meta.sqrtS))) l.heading = fill(theme.words.layerLumi, { layer: l.name, lumi: shortNumber(l.data.meta.luminosity) });
+  for (const l of drawn) {
+    const lumi = shortNumber(l.data.meta.luminosity);
+    // A name that already says its luminosity ("2031, 140 fb$^{-1}$") is not told it twice.
+    const says = new RegExp(`(^|[^\\d.])${lumi.replace('.', '\\.')}\\s*(fb|/fb)`).test(l.name);
+    if (ambiguous.has(shortNumber(l.data.meta.sqrtS)) && !says) l.heading = fill(theme.words.layerLumi, { layer: l.name, lumi });
+  }
   return { drawn, hidden, unitNotes, refused };
 }
 

@@ -218,6 +218,12 @@ describe('luminosities', () => {
     expect(legend).toContain('Lanternfish dijet (140 fb$^{-1}$), observed');
     expect(legend).toContain('Lanternfish dilepton (60 fb$^{-1}$), observed');
   });
+  test('a layer label that already names its luminosity is not told it twice', () => {
+    const s = spec({ layers: [{ resultId: ID[0], version: 3, label: 'Dijet, 140 fb$^{-1}$' }, { resultId: ID[1], version: 1, label: 'Dilepton' }] });
+    const legend = texts(build(s, [dijet, lumi60]), 'legend').map((t) => t.label);
+    expect(legend).toContain('Dijet, 140 fb$^{-1}$, observed');
+    expect(legend).toContain('Dilepton (60 fb$^{-1}$), observed');
+  });
   test('one luminosity: the energy line carries it and the legend does not repeat it', () => {
     const scene = build(spec(), [dijet, dilepton]);
     expect(texts(scene, 'energy').map((t) => t.label)).toEqual(['$\\sqrt{s}$ = 18 TeV, 140 fb$^{-1}$']);
