@@ -2,7 +2,7 @@
  * The composer's editing rules as pure functions over a figure spec, with an undo history.
  * Tested in tests/unit/composer-model.test.ts.
  */
-import type { FigureSpec, FigureTheme, LayerParts, LayerSpec } from '@/shared/schemas/figures';
+import { bandsLayersOf, type FigureSpec, type FigureTheme, type LayerParts, type LayerSpec } from '@/shared/schemas/figures';
 
 export type History = { past: FigureSpec[]; present: FigureSpec; future: FigureSpec[] };
 export const UNDO_DEPTH = 30;
@@ -35,27 +35,46 @@ const DEFAULT_PARTS: LayerParts = { observed: true, expected: true, band1: true,
 /** Adds a result version as the last layer (at most 12; the same version twice is refused). */
 export function addLayer(spec: FigureSpec, resultId: string, version: number): FigureSpec {
   if (spec.layers.length >= 12 || spec.layers.some((l) => l.resultId === resultId && l.version === version)) return spec;
-  const layer: LayerSpec = { resultId, version, label: '', show: { ...DEFAULT_PARTS }, hue: null };
-  return { ...spec, layers: [...spec.layers, layer], bandsLayer: spec.layers.length === 0 ? 0 : spec.bandsLayer };
+  const layer: LayerSpec = { resultId, version, label: '', show: { ...DEFAULT_PARTS }, hue: null, color: null, lineStyle: 'solid', theoryLabel: '' };
+  const next = { ...spec, layers: [...spec.layers, layer] };
+  return spec.layers.length === 0 ? withBands(next, [0]) : next;
 }
 
-/** Removes a layer; the bands stay with their layer (or go to the first when it was removed). */
+/**
+ * The spec with these layers carrying the bands. A spec that lists them (`bandsLayers`) keeps
+ * the list and its first entry in `bandsLayer` for older readers; an older spec (one
+ * `bandsLayer`, at most one entry here) stays in its form.
+ */
+function withBands(spec: FigureSpec, list: number[]): FigureSpec {
+  const sorted = [...new Set(list)].sort((a, b) => a - b);
+  return spec.bandsLayers ? { ...spec, bandsLayers: sorted, bandsLayer: sorted[0] ?? null } : { ...spec, bandsLayer: sorted[0] ?? null };
+}
+
+/** Turns a layer's ±1σ/±2σ bands on or off (any number of layers may carry them). */
+export function setLayerBands(spec: FigureSpec, index: number, on: boolean): FigureSpec {
+  const list = bandsLayersOf(spec).filter((b) => b !== index);
+  const next = on ? [...list, index] : list;
+  const sorted = [...new Set(next)].sort((a, b) => a - b);
+  return { ...spec, bandsLayers: sorted, bandsLayer: sorted[0] ?? null };
+}
+
+/** Removes a layer; the bands stay with their layers (or go to the first when the only bands layer was removed). */
 export function removeLayer(spec: FigureSpec, index: number): FigureSpec {
   const layers = spec.layers.filter((_, i) => i !== index);
-  let bands = spec.bandsLayer;
-  if (bands !== null) bands = bands === index ? (layers.length ? 0 : null) : bands > index ? bands - 1 : bands;
-  return { ...spec, layers, bandsLayer: bands };
+  const before = bandsLayersOf(spec);
+  let bands = before.filter((b) => b !== index).map((b) => (b > index ? b - 1 : b));
+  if (bands.length === 0 && before.includes(index) && layers.length) bands = [0];
+  return withBands({ ...spec, layers }, bands);
 }
 
-/** Moves a layer up (−1) or down (+1); the bands follow the layer that carries them. */
+/** Moves a layer up (−1) or down (+1); the bands follow the layers that carry them. */
 export function moveLayer(spec: FigureSpec, index: number, delta: -1 | 1): FigureSpec {
   const to = index + delta;
   if (to < 0 || to >= spec.layers.length) return spec;
   const layers = [...spec.layers];
   [layers[index], layers[to]] = [layers[to]!, layers[index]!];
-  const b = spec.bandsLayer;
-  const bandsLayer = b === index ? to : b === to ? index : b;
-  return { ...spec, layers, bandsLayer };
+  const bands = bandsLayersOf(spec).map((b) => (b === index ? to : b === to ? index : b));
+  return withBands({ ...spec, layers }, bands);
 }
 
 export function updateLayer(spec: FigureSpec, index: number, patch: Partial<LayerSpec>): FigureSpec {

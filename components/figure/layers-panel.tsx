@@ -1,8 +1,9 @@
 import { useState } from 'react';
-import { StyleSheet, View } from 'react-native';
+import { Pressable, StyleSheet, View } from 'react-native';
 import type { FigureLayerInfo } from '@/shared/schemas/figure-views';
 import type { FigureLayerData } from '@/shared/figure/types';
-import type { FigureSpec, LayerParts } from '@/shared/schemas/figures';
+import { hueColor, resolveFigureTheme } from '@/shared/figure';
+import { bandsLayersOf, LINE_STYLES, type FigureSpec, type LayerParts, type LayerSpec, type LineStyle } from '@/shared/schemas/figures';
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/hooks/api';
 import { useDebounced } from '@/hooks/use-debounced';
@@ -10,11 +11,12 @@ import { colors, radii, space } from '@/themes/tokens';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Checkbox } from '../ui/checkbox';
+import { ChoiceGroup } from '../ui/choice-group';
 import { errorMessage } from '../ui/form';
 import { Loading } from '../ui/loading';
 import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
-import { addLayer, moveLayer, removeLayer, updateLayer } from './composer-model';
+import { addLayer, moveLayer, removeLayer, setLayerBands, updateLayer } from './composer-model';
 
 const PART_LABELS: [keyof LayerParts, string][] = [
   ['observed', 'Observed'],
@@ -25,6 +27,60 @@ const PART_LABELS: [keyof LayerParts, string][] = [
   ['theoryBand', 'Theory band'],
   ['crossings', 'Crossing markers'],
 ];
+
+const LINE_STYLE_LABELS: Record<LineStyle, string> = { solid: 'Solid', dashed: 'Dashed', dotted: 'Dotted', dashdot: 'Dash-dot' };
+
+/**
+ * A layer's colour: the group's colour for the result, one of the palette's (swatches, a radio
+ * group), or an own hue in degrees (a free colour, stored as #rrggbb).
+ */
+function LayerColor({ layer, index, palette, onChange }: { layer: LayerSpec; index: number; palette: readonly string[]; onChange: (patch: Partial<LayerSpec>, mergeKey?: string) => void }) {
+  const [hue, setHue] = useState('');
+  const n = index + 1;
+  const selected = (i: number | null) => layer.color === null && layer.hue === i;
+  return (
+    <View style={styles.colorBlock}>
+      <Text variant="label">Colour of layer {n}</Text>
+      <View role="radiogroup" aria-label={`Colour of layer ${n}`} style={styles.swatches}>
+        <Pressable
+          role="radio"
+          aria-checked={selected(null)}
+          aria-label={`The result's own colour (layer ${n})`}
+          onPress={() => onChange({ hue: null, color: null })}
+          style={[styles.auto, selected(null) && styles.swatchOn]}
+        >
+          <Text variant="caption">Auto</Text>
+        </Pressable>
+        {palette.map((c, i) => (
+          <Pressable
+            key={c}
+            role="radio"
+            aria-checked={selected(i)}
+            aria-label={`Palette colour ${i + 1} (layer ${n})`}
+            onPress={() => onChange({ hue: i, color: null })}
+            style={[styles.swatch, { backgroundColor: c }, selected(i) && styles.swatchOn]}
+          />
+        ))}
+        {layer.color ? <View aria-label={`Own colour ${layer.color} (layer ${n})`} role="img" style={[styles.swatch, styles.swatchOn, { backgroundColor: layer.color }]} /> : null}
+      </View>
+      <View style={styles.hueRow}>
+        <View style={styles.grow}>
+          <TextField
+            label={`Own hue of layer ${n} (0–359°)`}
+            value={hue}
+            keyboardType="numeric"
+            placeholder="e.g. 140 for a green"
+            onChangeText={(t) => {
+              setHue(t);
+              const v = Number(t);
+              if (t.trim() !== '' && Number.isFinite(v)) onChange({ color: hueColor(v) }, `hue-${index}`);
+            }}
+          />
+        </View>
+      </View>
+    </View>
+  );
+}
 
 /**
  * Search what the figure's group may pin (its own results, other groups' public ones) and add a
@@ -64,13 +120,18 @@ export function LayersPanel({
   data,
   info,
   groupId,
+  palette,
 }: {
   groupId: string;
+  /** The layer colours to offer (the group's house palette); default: the theme's. */
+  palette?: readonly string[];
   spec: FigureSpec;
   onChange: (next: FigureSpec, mergeKey?: string) => void;
   data: FigureLayerData[] | undefined;
   info: FigureLayerInfo[];
 }) {
+  const swatches = palette ?? resolveFigureTheme(spec.theme).palette;
+  const bands = bandsLayersOf(spec);
   return (
     <View style={styles.col}>
       {spec.layers.length === 0 ? <Text variant="muted">No layers yet: add results below.</Text> : null}
@@ -95,7 +156,21 @@ export function LayersPanel({
                 <Checkbox key={k} label={`${label} (layer ${i + 1})`} checked={layer.show[k]} onChange={(v) => onChange(updateLayer(spec, i, { show: { ...layer.show, [k]: v } }))} />
               ))}
             </View>
-            <Checkbox label={`Layer ${i + 1} carries the ±1σ/±2σ bands`} checked={spec.bandsLayer === i} onChange={(v) => onChange({ ...spec, bandsLayer: v ? i : null })} />
+            <Checkbox label={`Layer ${i + 1} carries the ±1σ/±2σ bands`} checked={bands.includes(i)} onChange={(v) => onChange(setLayerBands(spec, i, v))} />
+            <LayerColor layer={layer} index={i} palette={swatches} onChange={(patch, key) => onChange(updateLayer(spec, i, patch), key)} />
+            <Text variant="label">Observed line of layer {i + 1}</Text>
+            <ChoiceGroup
+              label={`Observed line style of layer ${i + 1}`}
+              value={layer.lineStyle}
+              choices={LINE_STYLES.map((s) => ({ value: s, label: LINE_STYLE_LABELS[s] }))}
+              onChange={(v) => onChange(updateLayer(spec, i, { lineStyle: v }))}
+            />
+            <TextField
+              label={`Theory curve name of layer ${i + 1}`}
+              value={layer.theoryLabel}
+              placeholder="Empty: the name given at upload; $…$ for TeX"
+              onChangeText={(t) => onChange(updateLayer(spec, i, { theoryLabel: t }), `theory-${i}`)}
+            />
             <View style={styles.row}>
               <Button compact variant="secondary" label="Up" accessibilityLabel={`Move layer ${i + 1} up`} disabled={i === 0} onPress={() => onChange(moveLayer(spec, i, -1))} />
               <Button compact variant="secondary" label="Down" accessibilityLabel={`Move layer ${i + 1} down`} disabled={i === spec.layers.length - 1} onPress={() => onChange(moveLayer(spec, i, 1))} />
@@ -120,4 +195,11 @@ const styles = StyleSheet.create({
   picker: { gap: space.sm, borderTopWidth: 1, borderTopColor: colors.border, paddingTop: space.md },
   found: { flexDirection: 'row', alignItems: 'center', gap: space.sm },
   grow: { flex: 1, minWidth: 0 },
+  colorBlock: { gap: space.xs },
+  swatches: { flexDirection: 'row', flexWrap: 'wrap', gap: space.xs, alignItems: 'center' },
+  // 32 px targets, with a ring on the chosen one (not colour alone: the ring and aria-checked).
+  swatch: { width: 32, height: 32, borderRadius: radii.sm, borderWidth: 2, borderColor: 'transparent' },
+  auto: { minWidth: 44, height: 32, borderRadius: radii.sm, borderWidth: 1, borderColor: colors.border, alignItems: 'center', justifyContent: 'center', paddingHorizontal: space.xs },
+  swatchOn: { borderColor: colors.text, borderWidth: 3 },
+  hueRow: { flexDirection: 'row', gap: space.sm, maxWidth: 360 },
 });

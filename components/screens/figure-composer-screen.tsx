@@ -75,7 +75,7 @@ export function FigureComposerScreen() {
   const controls = (
     <View style={styles.col}>
       <Section title="Layers">
-        <LayersPanel groupId={groupId!} spec={spec} onChange={change} data={layerData.data} info={f.latest.layers} />
+        <LayersPanel groupId={groupId!} spec={spec} onChange={change} data={layerData.data} info={f.latest.layers} palette={style.data?.style?.palette} />
       </Section>
       <Section title="Look and labels" initiallyOpen={wide}>
         <StylePanel spec={spec} onChange={change} />

@@ -208,3 +208,18 @@ export function paletteProblems(palette: readonly string[]): string[] {
   }
   return problems;
 }
+
+/**
+ * A layer colour from a free hue (degrees, wrapping): HSL with saturation 0.7 and lightness 0.4
+ * (the usual HSL to RGB conversion), dark enough for a line on white, for the composer's free hue.
+ */
+export function hueColor(hueDeg: number): string {
+  const h = (((Number.isFinite(hueDeg) ? hueDeg : 0) % 360) + 360) % 360;
+  const s = 0.7;
+  const l = 0.4;
+  const c = (1 - Math.abs(2 * l - 1)) * s;
+  const x = c * (1 - Math.abs(((h / 60) % 2) - 1));
+  const m = l - c / 2;
+  const [r, g, b] = h < 60 ? [c, x, 0] : h < 120 ? [x, c, 0] : h < 180 ? [0, c, x] : h < 240 ? [0, x, c] : h < 300 ? [x, 0, c] : [c, 0, x];
+  return toHex([r + m, g + m, b + m]);
+}

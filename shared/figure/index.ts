@@ -13,5 +13,5 @@ export { figureCsv, captionDraft } from './export';
 export { splitLabel, labelPlainText, type LabelSegment } from './labels';
 export { outreachSpec } from './outreach';
 export { sizePt } from './plan';
-export { paletteProblems, PALETTE_THRESHOLDS } from './color';
+export { hueColor, paletteProblems, PALETTE_THRESHOLDS } from './color';
 export * from './types';

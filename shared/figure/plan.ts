@@ -3,7 +3,7 @@
  * the axis ranges and ticks, and every label's text. `collectLabels` lists these labels for batch
  * typesetting; `buildScene` lays them out with the measured sizes.
  */
-import { figureSizeCm, type FigureSpec, type LayerSpec } from '../schemas/figures';
+import { bandsLayersOf, figureSizeCm, type FigureSpec, type LayerSpec } from '../schemas/figures';
 import type { Curve, Theory, VersionMeta } from '../schemas/results';
 import { tint } from './color';
 import { layerColor, type ResolvedTheme } from './theme';
@@ -23,15 +23,27 @@ export type DrawnLayer = {
   spec: LayerSpec;
   data: AvailableLayer;
   name: string;
+  /** The name in the legend: with the layer's luminosity when the layers' luminosities differ. */
+  heading: string;
   color: string;
-  /** Which expected bands this layer draws (only the bands layer draws any). */
+  /** Dash pattern of the observed line (null = solid), from the layer's `lineStyle`. */
+  dash: number[] | null;
+  /** Which expected bands this layer draws (only layers in `bandsLayers` draw any). */
   band1: boolean;
   band2: boolean;
   theory: Theory | null;
 };
 
 /** A distinct theory curve (layers sharing the same prediction draw it once). */
-export type TheoryLine = { theory: Theory; layer: number; label: string; dash: number[]; band: boolean };
+export type TheoryLine = {
+  theory: Theory;
+  layer: number;
+  label: string;
+  dash: number[];
+  band: boolean;
+  /** The spec field that names it: a layer's `theoryLabel`, or else what turns it on. */
+  field: string;
+};
 
 /** What a legend entry shows before its label: a line sample or a filled swatch (with a line on it). */
 export type LegendKey =
@@ -55,9 +67,11 @@ export type FigurePlan = {
   y: AxisPlan;
   xTitle: string;
   yTitle: string;
-  /** Lines of the energy / confidence-level block, top to bottom. */
-  info: { label: string; role: 'energy' | 'cl' }[];
+  /** Lines of the energy / confidence-level block (and the plain-language explanation), top to bottom. */
+  info: { label: string; role: 'energy' | 'cl' | 'explain' }[];
   legend: LegendEntry[];
+  /** The legend's columns: the spec's, or one when two would not fit inside the plot. */
+  legendColumns: 1 | 2;
   notes: string[];
   /** The layer whose observed limit is compared with its theory for the shading, if any. */
   shadingLayer: DrawnLayer | null;
@@ -110,6 +124,7 @@ export function drawnLayers(
   const refused: UnitNote[] = [];
   let hidden = 0;
   let axisUnits: LimitUnits | null = null;
+  const bandLayers = new Set(bandsLayersOf(spec));
   spec.layers.forEach((ls, i) => {
     const d = layers[i];
     let data = d && d.available === true ? d : null;
@@ -136,19 +151,40 @@ export function drawnLayers(
         };
       }
     }
-    const isBands = spec.bandsLayer === i;
+    const isBands = bandLayers.has(i);
+    const style = ls.lineStyle ?? 'solid';
     drawn.push({
       index: i,
       spec: ls,
       data,
       name,
-      color: layerColor(theme, ls.hue ?? data.hue),
+      heading: name,
+      color: ls.color ? ls.color.toLowerCase() : layerColor(theme, ls.hue ?? data.hue),
+      dash: style === 'solid' ? null : (theme.dash.observed[style] ?? null),
       band1: isBands && ls.show.band1,
       band2: isBands && ls.show.band2 && theme.maxBands >= 2,
       theory: ls.show.theory && data.theory ? data.theory : null,
     });
   });
+  // Layers of one energy with different luminosities: each names its own in the legend.
+  const ambiguous = ambiguousEnergies(drawn.map((l) => l.data.meta));
+  for (const l of drawn) {
+    const lumi = shortNumber(l.data.meta.luminosity);
+    // A name that already says its luminosity ("2031, 140 fb$^{-1}$") is not told it twice.
+    const says = new RegExp(`(^|[^\\d.])${lumi.replace('.', '\\.')}\\s*(fb|/fb)`).test(l.name);
+    if (ambiguous.has(shortNumber(l.data.meta.sqrtS)) && !says) l.heading = fill(theme.words.layerLumi, { layer: l.name, lumi });
+  }
   return { drawn, hidden, unitNotes, refused };
+}
+
+/** Energies (as written) whose layers differ in luminosity. */
+function ambiguousEnergies(metas: readonly VersionMeta[]): Set<string> {
+  const byEnergy = new Map<string, Set<string>>();
+  for (const m of metas) {
+    const e = shortNumber(m.sqrtS);
+    byEnergy.set(e, (byEnergy.get(e) ?? new Set()).add(shortNumber(m.luminosity)));
+  }
+  return new Set([...byEnergy.entries()].filter(([, lumis]) => lumis.size > 1).map(([e]) => e));
 }
 
 /**
@@ -206,16 +242,20 @@ function distinct<T>(xs: T[]): T[] {
   return [...new Set(xs)];
 }
 
-/** "√s = 18 TeV, 140 fb⁻¹" lines: one per energy, luminosities of that energy joined. */
+/**
+ * "√s = 18 TeV, 140 fb⁻¹" lines, one per energy. Luminosities are never joined ("140, 60 fb⁻¹"
+ * would not say which is whose): an energy whose layers differ in luminosity is written alone and
+ * each layer's luminosity goes into its legend entry (`layerLumi`).
+ */
 function energyLines(metas: VersionMeta[], theme: ResolvedTheme): string[] {
-  const byEnergy = new Map<string, string[]>();
+  const ambiguous = ambiguousEnergies(metas);
+  const lines = new Map<string, string>();
   for (const m of metas) {
-    const e = shortNumber(m.sqrtS);
-    const list = byEnergy.get(e) ?? [];
-    list.push(shortNumber(m.luminosity));
-    byEnergy.set(e, list);
+    const sqrtS = shortNumber(m.sqrtS);
+    if (lines.has(sqrtS)) continue;
+    lines.set(sqrtS, ambiguous.has(sqrtS) ? fill(theme.words.energyOnly, { sqrtS }) : fill(theme.words.energy, { sqrtS, lumi: shortNumber(m.luminosity) }));
   }
-  return [...byEnergy.entries()].map(([sqrtS, lumis]) => fill(theme.words.energy, { sqrtS, lumi: distinct(lumis).join(', ') }));
+  return [...lines.values()];
 }
 
 function theoryLines(drawn: DrawnLayer[], theme: ResolvedTheme): TheoryLine[] {
@@ -224,14 +264,21 @@ function theoryLines(drawn: DrawnLayer[], theme: ResolvedTheme): TheoryLine[] {
   for (const l of drawn) {
     if (!l.theory) continue;
     const key = JSON.stringify([l.theory.x, l.theory.central]);
-    if (seen.has(key)) continue;
+    const own = l.spec.theoryLabel?.trim() ?? '';
+    const shared = seen.get(key);
+    if (shared) {
+      // One curve, one legend row: the first layer that names it names it.
+      if (own && !shared.field.endsWith('.theoryLabel')) Object.assign(shared, { label: own, field: `spec.layers.${l.index}.theoryLabel` });
+      continue;
+    }
     const dash = theme.dash.theory[out.length % theme.dash.theory.length] ?? null;
     const t: TheoryLine = {
       theory: l.theory,
       layer: l.index,
-      label: l.theory.label?.trim() || theme.words.theory,
+      label: own || l.theory.label?.trim() || theme.words.theory,
       dash: dash ?? [],
       band: l.spec.show.theoryBand && !!l.theory.lower && !!l.theory.upper,
+      field: own ? `spec.layers.${l.index}.theoryLabel` : `spec.layers.${l.index}.show.theory`,
     };
     seen.set(key, t);
     out.push(t);
@@ -251,21 +298,25 @@ function legendEntries(spec: FigureSpec, plan: Pick<FigurePlan, 'theme' | 'layer
   const { theme } = plan;
   const w = theme.words;
   const prefixed = plan.layers.length > 1 || plan.layers.some((l) => l.spec.label.trim() !== '');
-  const word = (plain: string, of: string, l: DrawnLayer) => (prefixed ? fill(of, { layer: l.name }) : plain);
   const out: LegendEntry[] = [];
   for (const l of plan.layers) {
     const c = l.data.curve;
     const field = `spec.layers.${l.index}.label`;
-    if (l.spec.show.observed && c.observed) out.push({ label: word(w.observed, w.observedOf, l), key: { kind: 'line', color: l.color, width: theme.lines.observed, dash: null }, layer: l.index, field });
-    if (l.spec.show.expected && c.expected?.['0']) out.push({ label: word(w.expected, w.expectedOf, l), key: { kind: 'line', color: l.color, width: theme.lines.expected, dash: theme.dash.expected }, layer: l.index, field });
+    // Each part in three wordings: alone (one unnamed layer), after the layer's name (the first
+    // part of a named layer), or short beneath that row (the name is written once per layer).
+    const parts: { plain: string; of: string; part: string; key: LegendKey }[] = [];
+    if (l.spec.show.observed && c.observed) parts.push({ plain: w.observed, of: w.observedOf, part: w.observedPart, key: { kind: 'line', color: l.color, width: theme.lines.observed, dash: l.dash } });
+    if (l.spec.show.expected && c.expected?.['0']) parts.push({ plain: w.expected, of: w.expectedOf, part: w.expectedPart, key: { kind: 'line', color: l.color, width: theme.lines.expected, dash: theme.dash.expected } });
     const bands = bandColors(l, theme);
-    if (l.band1 && c.expected?.['-1'] && c.expected['1']) out.push({ label: word(w.band1, w.band1Of, l), key: { kind: 'fill', color: bands.band1 }, layer: l.index, field });
-    if (l.band2 && c.expected?.['-2'] && c.expected['2']) out.push({ label: word(w.band2, w.band2Of, l), key: { kind: 'fill', color: bands.band2 }, layer: l.index, field });
+    if (l.band1 && c.expected?.['-1'] && c.expected['1']) parts.push({ plain: w.band1, of: w.band1Of, part: w.band1Part, key: { kind: 'fill', color: bands.band1 } });
+    if (l.band2 && c.expected?.['-2'] && c.expected['2']) parts.push({ plain: w.band2, of: w.band2Of, part: w.band2Part, key: { kind: 'fill', color: bands.band2 } });
+    if (!prefixed) for (const p of parts) out.push({ label: p.plain, key: p.key, layer: l.index, field });
+    else parts.forEach((p, k) => out.push({ label: k === 0 ? fill(p.of, { layer: l.heading }) : p.part, key: p.key, layer: l.index, field }));
   }
   for (const t of plan.theories) {
     const line = { color: theme.colors.theory, width: theme.lines.theory, dash: t.dash.length ? t.dash : null };
-    // The name comes from the result (or the theme); the figure can only leave the curve out.
-    out.push({ label: t.label, key: t.band ? { kind: 'fill', color: theme.colors.theoryBand, line } : { kind: 'line', ...line }, layer: t.layer, field: `spec.layers.${t.layer}.show.theory` });
+    // The name comes from a layer's `theoryLabel`, else the result (or the theme).
+    out.push({ label: t.label, key: t.band ? { kind: 'fill', color: theme.colors.theoryBand, line } : { kind: 'line', ...line }, layer: t.layer, field: t.field });
   }
   if (plan.shadingLayer) out.push({ label: w.excluded, key: { kind: 'fill', color: theme.colors.excluded }, field: 'spec.excludedShading' });
   return out;
@@ -304,15 +355,18 @@ export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[],
     info.push({ label: cls.map((cl) => fill(theme.words.cl, { cl })).join(', '), role: 'cl' });
   }
   const shadingLayer = spec.excludedShading ? (drawn.find(canCompare) ?? null) : null;
+  // Plain-language themes say in one line what the limit curves mean.
+  if (theme.words.explainLimit && drawn.some((l) => l.spec.show.observed && l.data.curve.observed)) info.push({ label: theme.words.explainLimit, role: 'explain' });
   const theories = theoryLines(drawn, theme);
   const legend = legendEntries(spec, { theme, layers: drawn, theories, shadingLayer });
 
   let xs = drawn.flatMap((l) => l.data.curve.x);
   if (xs.length === 0) xs = drawn.flatMap((l) => l.theory?.x ?? []);
-  const xDomain = axisDomain(spec.x, xs, { pad: 0, fromZero: false });
+  // Ranges end on the data or on a round value just outside it (`tight`), without padding.
+  const xDomain = axisDomain(spec.x, xs, { pad: 0, fromZero: false, tight: true });
   const points = drawn.flatMap((l) => shownPoints(l, xDomain));
   const ys = points.map((p) => p[1]);
-  const yOpts = { pad: 0.05, fromZero: true };
+  const yOpts = { pad: 0, fromZero: true, tight: true };
   const base = axisDomain(spec.y, ys, yOpts);
   const est = estimatedPlotSize(theme, widthPt, heightPt);
 
@@ -323,13 +377,17 @@ export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[],
     .map(([x, y]) => ({ fx: (axisUnit(xScale, x) - x0) / (x1 - x0 || 1), u: axisUnit(yScale, y) }));
   const position = spec.legend.position;
   const corners: Corner[] = position === 'none' ? [] : position === 'auto' ? LEGEND_CORNERS : [position];
+  // Two columns wider than the plot would run over its frame: one column then (the scene checks
+  // again with measured text).
+  const inset = theme.spacing.legendInset;
+  const legendColumns: 1 | 2 = spec.legend.columns === 2 && roughLegendSize(legend, theme, 2).w > est.width - 2 * inset ? 1 : spec.legend.columns;
   const reach = roomForBoxes({
     pts: roomPts,
     domain: base.map((v) => axisUnit(yScale, v)) as [number, number],
     movable: { low: spec.y.min === null && (yScale === 'log' || base[0] < 0), high: spec.y.max === null },
     plot: est,
     inset: theme.spacing.legendInset,
-    legend: legend.length && corners.length ? { ...roughLegendSize(legend, theme, spec.legend.columns), corners } : null,
+    legend: legend.length && corners.length ? { ...roughLegendSize(legend, theme, legendColumns), corners } : null,
     info: info.length ? roughInfoSize(info.map((i) => i.label), theme) : null,
     annotations: spec.annotations.map((n) => ({ fx: n.x, fy: 1 - n.y, fw: roughWidth(n.text, theme.type.annotation) / est.width, fh: (1.05 * theme.type.annotation) / est.height })),
   });
@@ -339,7 +397,7 @@ export function planFigure(spec: FigureSpec, layers: readonly FigureLayerData[],
   const y = planAxisTicks(yScale, yDomain, est.height, theme.type.tick, false, theme.ticks.plainDecades);
   const notes = hidden === 0 ? [] : [hidden === 1 ? theme.words.hiddenOne : fill(theme.words.hiddenMany, { n: hidden })];
   for (const n of [...refused, ...unitNotes]) notes.push(n.text);
-  return { theme, widthPt, heightPt, layers: drawn, hidden, theories, x, y, xTitle: xTitle(spec, drawn, theme), yTitle: yTitle(spec, drawn, theme), info, legend, notes, shadingLayer };
+  return { theme, widthPt, heightPt, layers: drawn, hidden, theories, x, y, xTitle: xTitle(spec, drawn, theme), yTitle: yTitle(spec, drawn, theme), info, legend, legendColumns, notes, shadingLayer };
 }
 
 /** Every label of a plan with its size and font, in drawing order, without repeats. */

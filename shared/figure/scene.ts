@@ -7,7 +7,7 @@ import { scaleLinear, scaleLog } from 'd3-scale';
 import { area, line } from 'd3-shape';
 import type { FigureSpec } from '../schemas/figures';
 import { rangesBelow, type ExcludedRange } from '../stats/exclusion';
-import { cornerBox, densify, layoutLegend, n, overlaps, placeBoxes, rectPath, type Corner } from './legend';
+import { cornerBox, densify, layoutLegend, n, overlaps, placeBoxes, type Corner } from './legend';
 import { bandColors, noteHalves, planFigure, planLabels, type DrawnLayer, type FigurePlan } from './plan';
 import type { ResolvedTheme } from './theme';
 import { thinLabels, type AxisPlan } from './ticks';
@@ -201,16 +201,26 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
     items.push({ kind: 'path', d, fill: style.fill ?? null, stroke: style.stroke ?? null, strokeWidth: style.width ?? 0, dash: style.dash ?? null, clip: true, role, layer });
   };
 
-  // Excluded shading: vertical strips over the x ranges where the observed limit is below theory.
+  // Excluded shading: over the x ranges where the observed limit is below theory, the region above
+  // the observed limit (the σ × B it excludes there) up to the top of the plot. It follows the
+  // limit between the grid points as the exclusion does (linear in x and ln σ) and never takes
+  // part in the axis range.
   const shading = plan.shadingLayer;
   if (shading) {
-    const c = shading.data.curve;
-    const ranges = excludedRanges(positiveGrid(c.x, c.observed), positiveGrid(shading.data.theory!.x, shading.data.theory!.central));
+    const obs = positiveGrid(shading.data.curve.x, shading.data.curve.observed);
+    const ranges = excludedRanges(obs, positiveGrid(shading.data.theory!.x, shading.data.theory!.central));
+    // Far outside the plot a coordinate only needs to stay beyond it (the clip does the rest).
+    const far = 3 * side;
+    const clampX = (v: number) => Math.max(plot.x - far, Math.min(plotRight + far, v));
+    const clampY = (v: number) => (Number.isFinite(v) ? Math.max(plot.y - far, Math.min(plotBottom + far, v)) : plotBottom + far);
     for (const r of ranges) {
-      if (!okX(r.from) || !okX(r.to)) continue;
-      const x0 = Math.max(plot.x, Math.min(plotRight, X(r.from)));
-      const x1 = Math.max(plot.x, Math.min(plotRight, X(r.to)));
-      if (x1 - x0 > 0) items.push({ kind: 'path', d: rectPath(x0, plot.y, x1 - x0, plot.height), fill: theme.colors.excluded, stroke: null, strokeWidth: 0, dash: null, clip: true, role: 'excluded', layer: shading.index });
+      if (!okX(r.from) || !okX(r.to) || !(r.to > r.from)) continue;
+      const xs = [r.from, ...obs.map((p) => p[0]).filter((x) => x > r.from && x < r.to), r.to].filter(okX);
+      const edge = xs.map((x) => [clampX(X(x)), clampY(Y(logInterpolate(obs, x)))] as Pt);
+      if (edge.length < 2 || !(edge[edge.length - 1]![0] > edge[0]![0])) continue;
+      const top = Math.min(plot.y, ...edge.map((p) => p[1]));
+      const d = `M${edge.map((p) => `${n(p[0])},${n(p[1])}`).join('L')}V${n(top)}H${n(edge[0]![0])}Z`;
+      items.push({ kind: 'path', d, fill: theme.colors.excluded, stroke: null, strokeWidth: 0, dash: null, clip: true, role: 'excluded', layer: shading.index });
     }
   }
 
@@ -232,7 +242,7 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
 
   for (const th of plan.theories) curve(linePath(th.theory.x, th.theory.central), 'theory', th.layer, { stroke: theme.colors.theory, width: theme.lines.theory, dash: th.dash.length ? th.dash : null });
   for (const l of plan.layers) if (l.spec.show.expected) curve(linePath(l.data.curve.x, l.data.curve.expected?.['0']), 'expected', l.index, { stroke: l.color, width: theme.lines.expected, dash: theme.dash.expected });
-  for (const l of plan.layers) if (l.spec.show.observed) curve(linePath(l.data.curve.x, l.data.curve.observed), 'observed', l.index, { stroke: l.color, width: theme.lines.observed });
+  for (const l of plan.layers) if (l.spec.show.observed) curve(linePath(l.data.curve.x, l.data.curve.observed), 'observed', l.index, { stroke: l.color, width: theme.lines.observed, dash: l.dash });
 
   for (const l of plan.layers) items.push(...crossingMarkers(l, theme, X, Y, okX, okY));
 
@@ -277,7 +287,9 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   const infoGap = 0.25 * t.annotation;
   const info = infoMetrics.length ? { w: Math.max(...infoMetrics.map((x) => x.width)), h: infoMetrics.reduce((a, x) => a + height(x), 0) + (infoMetrics.length - 1) * infoGap } : null;
   const legendMetrics = plan.legend.map((e) => m(e.label, t.legend));
-  const legend = plan.legend.length ? layoutLegend(plan.legend, legendMetrics, theme, spec.legend.columns) : null;
+  let legend = plan.legend.length ? layoutLegend(plan.legend, legendMetrics, theme, plan.legendColumns) : null;
+  // Two measured columns wider than the plot: one column, inside the frame.
+  if (legend && plan.legendColumns === 2 && legend.width > plot.width - 2 * s.legendInset) legend = layoutLegend(plan.legend, legendMetrics, theme, 1);
   const position = spec.legend.position;
   const fixed: Corner | null = position === 'auto' || position === 'none' ? null : position;
   const placed = placeBoxes({ plot, inset: s.legendInset, samples, obstacles, legend: legend ? { w: legend.width, h: legend.height, fixed } : null, info });
@@ -302,9 +314,13 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
 
   if (legend && placed.legend) {
     const box = cornerBox(plot, placed.legend, legend.width, legend.height, s.legendInset);
-    // A legend larger than the plot (huge type on a small page) still stays on the page.
+    // The legend sits inside the frame, clear of the axes and their tick labels. One wider or
+    // taller than the plot (huge type on a small page) starts at the plot's left or top inset, so
+    // it never runs over the y tick labels or the notes above the plot, and stays on the page.
+    const x = legend.width > plot.width - 2 * s.legendInset ? plot.x + s.legendInset : box.x;
+    const y = legend.height > plot.height - 2 * s.legendInset ? plot.y + s.legendInset : box.y;
     const clamp = (v: number, size: number, page: number) => Math.max(0, Math.min(v, page - size));
-    items.push(...legend.draw(clamp(box.x, legend.width, W), clamp(box.y, legend.height, H)));
+    items.push(...legend.draw(clamp(x, legend.width, W), clamp(y, legend.height, H)));
   }
 
   // Labels whose text the figure decides (its own words, or its results' words it chose to show):
@@ -314,9 +330,16 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   if (plan.xTitle) oversize.check(plan.xTitle, t.axisTitle, false, 'spec.x.label', spec.x.label.trim() ? 'The x-axis title' : "The automatic x-axis title (from the first layer's result)", 'write a shorter one or choose a larger size');
   if (plan.yTitle) oversize.check(plan.yTitle, t.axisTitle, true, 'spec.y.label', spec.y.label.trim() ? 'The y-axis title' : "The automatic y-axis title (from the first layer's result)", 'write a shorter one or choose a larger size');
   spec.annotations.forEach((a, i) => oversize.check(a.text, t.annotation, false, `spec.annotations.${i}.text`, `Annotation ${i + 1}`, 'shorten it or choose a larger size'));
-  plan.info.forEach((line) => oversize.check(line.label, t.annotation, false, line.role === 'energy' ? 'spec.energyLabel' : 'spec.clLabel', line.role === 'energy' ? 'The energy label' : 'The confidence-level label', 'turn it off or choose a larger size'));
+  const infoField = { energy: ['spec.energyLabel', 'The energy label'], cl: ['spec.clLabel', 'The confidence-level label'], explain: ['spec.theme', 'The explanation line'] } as const;
+  plan.info.forEach((line) => oversize.check(line.label, t.annotation, false, infoField[line.role][0], infoField[line.role][1], line.role === 'explain' ? 'choose a larger size' : 'turn it off or choose a larger size'));
   plan.legend.forEach((e) => {
-    const fix = e.field.endsWith('.show.theory') ? "hide this layer's theory curve or choose a larger size" : e.field.endsWith('.label') ? 'give the layer a shorter label or choose a larger size' : 'turn it off or choose a larger size';
+    const fix = e.field.endsWith('.show.theory')
+      ? "hide this layer's theory curve or choose a larger size"
+      : e.field.endsWith('.theoryLabel')
+        ? 'give the theory curve a shorter name or choose a larger size'
+        : e.field.endsWith('.label')
+          ? 'give the layer a shorter label or choose a larger size'
+          : 'turn it off or choose a larger size';
     oversize.check(e.label, t.legend, false, e.field, 'The legend entry', fix);
   });
 

@@ -31,7 +31,11 @@ export function resolveFigureTheme(theme: FigureTheme, house?: HouseStyle | null
     font: house?.font ?? base.font,
     type: scaleAll(base.type, ts),
     lines: scaleAll(base.lines, ls),
-    dash: { expected: base.dash.expected.map((d) => round3(d * ls)), theory: base.dash.theory.map((p) => p.map((d) => round3(d * ls))) },
+    dash: {
+      expected: base.dash.expected.map((d) => round3(d * ls)),
+      theory: base.dash.theory.map((p) => p.map((d) => round3(d * ls))),
+      observed: { dashed: base.dash.observed.dashed.map((d) => round3(d * ls)), dotted: base.dash.observed.dotted.map((d) => round3(d * ls)), dashdot: base.dash.observed.dashdot.map((d) => round3(d * ls)) },
+    },
     markerRadius: round3(base.markerRadius * ls),
     palette: [...(house?.palette && house.palette.length > 0 ? house.palette : base.palette)].map((c) => c.toLowerCase()),
     colors: { ...base.colors },

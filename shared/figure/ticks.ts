@@ -148,8 +148,13 @@ export const axisUnit = (scale: 'linear' | 'log', v: number) => (scale === 'log'
  * of its span, stretched to reach `reach.low` / `reach.high` (axis units, i.e. log10 on a log
  * axis: room the legend asked for) and rounded outward to round values. A linear axis with
  * `fromZero` starts at zero when all its values are positive (limits are).
+ *
+ * `tight` (the figures' default): a linear end is rounded outward only to the nearest multiple
+ * of a fine round step (1, 2 or 5 × 10^k, about a fortieth of the span: where a minor tick
+ * could sit), so the range starts and ends on the data or a round value just outside it,
+ * instead of up to a whole major step further; log ends go to the 1, 2 or 5 × 10^k just outside.
  */
-export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { pad: number; fromZero: boolean; reach?: { low?: number; high?: number } }): [number, number] {
+export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { pad: number; fromZero: boolean; tight?: boolean; reach?: { low?: number; high?: number } }): [number, number] {
   const log = axis.scale === 'log';
   const vs = usable(values, log);
   const fixed = fixedEnds(axis);
@@ -181,7 +186,7 @@ export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { pa
   const span = b - a;
   if (fixed.min === null && !(opts.fromZero && a === 0)) a = reachLow(a - opts.pad * span);
   if (fixed.max === null) b = reachHigh(b + opts.pad * span);
-  const niced = scaleLinear().domain([a, b]).nice().domain() as [number, number];
+  const niced = opts.tight ? tightEnds(a, b) : (scaleLinear().domain([a, b]).nice().domain() as [number, number]);
   const out: [number, number] = [fixed.min ?? niced[0], fixed.max ?? niced[1]];
   // Data near the largest doubles overflow when padded (±∞, then NaN): such a range is drawn as
   // the largest finite one around it.
@@ -191,6 +196,21 @@ export function axisDomain(axis: AxisSpec, values: readonly number[], opts: { pa
     return hi2 > lo2 ? [lo2, hi2] : [0, 1];
   }
   return out;
+}
+
+/** [a, b] rounded outward to multiples of a round step of about (b − a) / 40 (see `axisDomain`). */
+function tightEnds(a: number, b: number): [number, number] {
+  if (!(Number.isFinite(a) && Number.isFinite(b) && b > a)) return [a, b];
+  const raw = (b - a) / 40;
+  const k = Math.floor(Math.log10(raw));
+  const m = raw / 10 ** k;
+  const mantissa = m <= 1 ? 1 : m <= 2 ? 2 : m <= 5 ? 5 : 10;
+  // Steps below 1 as a division by a whole number keep decimals exact (0.1 = 1 / 10).
+  const per = k < 0 ? 10 ** -k / mantissa : 0;
+  const step = mantissa * 10 ** k;
+  const lo = per > 0 ? Math.floor(a * per + EPS) / per : Math.floor(a / step + EPS) * step;
+  const hi = per > 0 ? Math.ceil(b * per - EPS) / per : Math.ceil(b / step - EPS) * step;
+  return Number.isFinite(lo) && Number.isFinite(hi) && hi > lo ? [clean(lo), clean(hi)] : [a, b];
 }
 
 const clampExponent = (k: number) => Math.max(-300, Math.min(300, k));

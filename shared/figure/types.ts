@@ -44,7 +44,7 @@ export type Primitive =
       opacity?: number;
       /** Clipped to the plot area. */
       clip: boolean;
-      /** What it is ("band2", "band1", "expected", "observed", "theory", "theory-band", "excluded", "grid", "axis", "tick", "crossing", "legend-key"). */
+      /** What it is ("band2", "band1", "expected", "observed", "theory", "theory-band", "excluded" (the region above the observed limit where it excludes the theory), "grid", "axis", "tick", "crossing", "legend-key"). */
       role: string;
       /** The layer it belongs to, if any. */
       layer?: number;
@@ -61,7 +61,7 @@ export type Primitive =
       color: string;
       /** Degrees, counter-clockwise (−90 for a vertical axis title reads bottom to top). */
       rotate: 0 | -90;
-      role: 'tick' | 'axis-title' | 'legend' | 'annotation' | 'energy' | 'cl' | 'note';
+      role: 'tick' | 'axis-title' | 'legend' | 'annotation' | 'energy' | 'cl' | 'explain' | 'note';
     };
 
 export type Scene = {

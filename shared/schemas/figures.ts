@@ -62,6 +62,10 @@ export const layerPartsSchema = z.object({
 });
 export type LayerParts = z.output<typeof layerPartsSchema>;
 
+/** Line styles of a layer's observed limit. */
+export const LINE_STYLES = ['solid', 'dashed', 'dotted', 'dashdot'] as const;
+export type LineStyle = (typeof LINE_STYLES)[number];
+
 export const layerSchema = z.object({
   resultId: z.uuid('must be a result id'),
   /** The pinned result version: the figure draws exactly this one. */
@@ -71,6 +75,12 @@ export const layerSchema = z.object({
   show: layerPartsSchema.default({ observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false }),
   /** Palette index override; null = the hue the group gave this result. */
   hue: z.number().int().min(0).max(HUE_COUNT - 1).nullable().default(null),
+  /** A free colour (#rrggbb, e.g. from the composer's hue slider) that wins over `hue`; null = the palette's. */
+  color: z.string().regex(/^#[0-9a-fA-F]{6}$/, 'must be a colour like #1b3f8b').nullable().default(null),
+  /** How the observed line is drawn (the expected line stays dashed in the theme's own pattern). */
+  lineStyle: z.enum(LINE_STYLES, { error: `must be one of ${LINE_STYLES.join(', ')}` }).default('solid'),
+  /** Name of this layer's theory curve in the legend; empty = the result's own name for it. */
+  theoryLabel: label.default(''),
 });
 export type LayerSpec = z.output<typeof layerSchema>;
 
@@ -107,8 +117,13 @@ export const figureSpecSchema = z
     x: axisSchema.default({ scale: 'linear', min: null, max: null, label: '' }),
     y: axisSchema.default({ scale: 'log', min: null, max: null, label: '' }),
     layers: z.array(layerSchema).max(FIGURE_LIMITS.maxLayers, `at most ${FIGURE_LIMITS.maxLayers} layers`),
-    /** Index of the layer that carries the ±1σ/±2σ bands (only one does); null = none. */
+    /**
+     * Older specs: the one layer that carries the ±1σ/±2σ bands; null = none. Read only when
+     * `bandsLayers` is absent (see `bandsLayersOf`); writers keep it at the first of `bandsLayers`.
+     */
     bandsLayer: z.number().int().min(0).nullable().default(0),
+    /** The layers that carry the ±1σ/±2σ bands (any number); absent = `[bandsLayer]` (older specs). */
+    bandsLayers: z.array(z.number().int().min(0)).max(FIGURE_LIMITS.maxLayers).optional(),
     legend: z
       .object({ position: z.enum(LEGEND_POSITIONS).default('auto'), columns: z.union([z.literal(1), z.literal(2)]).default(1) })
       .default({ position: 'auto', columns: 1 }),
@@ -127,6 +142,10 @@ export const figureSpecSchema = z
     if (s.bandsLayer !== null && s.bandsLayer >= Math.max(1, s.layers.length) && s.layers.length > 0) {
       ctx.addIssue({ code: 'custom', path: ['bandsLayer'], message: `must point at one of the ${s.layers.length} layers` });
     }
+    (s.bandsLayers ?? []).forEach((b, i, all) => {
+      if (b >= s.layers.length) ctx.addIssue({ code: 'custom', path: ['bandsLayers', i], message: `must point at one of the ${s.layers.length} layers` });
+      else if (all.indexOf(b) !== i) ctx.addIssue({ code: 'custom', path: ['bandsLayers', i], message: 'names a layer twice' });
+    });
     for (const axis of ['x', 'y'] as const) {
       const a = s[axis];
       if (a.min !== null && a.max !== null && !(a.max > a.min)) ctx.addIssue({ code: 'custom', path: [axis, 'max'], message: 'must be larger than min' });
@@ -135,6 +154,12 @@ export const figureSpecSchema = z
   });
 export type FigureSpec = z.output<typeof figureSpecSchema>;
 export type FigureSpecInput = z.input<typeof figureSpecSchema>;
+
+/** The layers that carry the expected bands: `bandsLayers`, or for older specs the one `bandsLayer`. */
+export function bandsLayersOf(spec: Pick<FigureSpec, 'bandsLayer' | 'bandsLayers'>): number[] {
+  if (spec.bandsLayers) return spec.bandsLayers;
+  return spec.bandsLayer === null ? [] : [spec.bandsLayer];
+}
 
 /** The page size of a spec in centimetres. */
 export function figureSizeCm(spec: Pick<FigureSpec, 'size'>): { widthCm: number; heightCm: number } {

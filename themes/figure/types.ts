@@ -21,17 +21,28 @@ export type FigureWords = {
   expected: string;
   band1: string;
   band2: string;
-  /** The same entries when several layers share the legend. */
+  /** The same entries when several layers share the legend and a layer shows one part only. */
   observedOf: string;
   expectedOf: string;
   band1Of: string;
   band2Of: string;
+  /** A layer's further parts, beneath its first row (short: that row names the layer). */
+  observedPart: string;
+  expectedPart: string;
+  band1Part: string;
+  band2Part: string;
+  /** A layer's name with its own luminosity (`{layer}`, `{lumi}`), when the layers' luminosities differ. */
+  layerLumi: string;
   theory: string;
   excluded: string;
   /** The confidence-level line. */
   cl: string;
   /** One energy and luminosity. */
   energy: string;
+  /** An energy alone, when its layers differ in luminosity (each layer's is then in the legend). */
+  energyOnly: string;
+  /** One line saying what the curves mean (plain-language themes), or null for none. */
+  explainLimit: string | null;
   /** Axis titles used when the spec leaves them empty. */
   xAxis: string;
   xAxisNoUnit: string;
@@ -57,7 +68,7 @@ export type FigureThemeTokens = {
   /** Line widths in points. */
   lines: { observed: number; expected: number; theory: number; frame: number; tick: number; grid: number; legendFrame: number; marker: number };
   /** Dash patterns in points (before the house style's line scale). */
-  dash: { expected: number[]; theory: number[][] };
+  dash: { expected: number[]; theory: number[][]; observed: { dashed: number[]; dotted: number[]; dashdot: number[] } };
   /** Radius of a crossing marker, points. */
   markerRadius: number;
   /**

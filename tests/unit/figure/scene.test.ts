@@ -1,5 +1,5 @@
 import { buildScene, collectLabels, labelKey, labelsOffPage, resolveFigureTheme, sizePt, type FigureLayerData, type Measure, type Scene } from '@/shared/figure';
-import { FIGURE_THEMES, type FigureSpec } from '@/shared/schemas/figures';
+import { FIGURE_THEMES, type FigureSpec, type FigureSpecInput } from '@/shared/schemas/figures';
 import { exclusionRanges } from '@/shared/stats/exclusion';
 import { placeBoxes } from '@/shared/figure/legend';
 import { pathBounds } from '@/shared/figure/scene';
@@ -178,8 +178,11 @@ describe('legend placement', () => {
     const none = build(spec({ legend: { position: 'none', columns: 1 } }), [dijet, dilepton]);
     expect(none.legendCorner).toBe('none');
     expect(none.items.some((p) => p.role === 'legend' || p.role === 'legend-key')).toBe(false);
-    const two = build(spec({ legend: { position: 'auto', columns: 2 } }), [dijet, dilepton]);
+    // (On a page wide enough for both: two columns wider than the plot fall back to one, see style.test.ts.)
+    const two = build(spec({ size: { preset: 'two-column' }, legend: { position: 'auto', columns: 2 } }), [dijet, dilepton]);
     expect(new Set(texts(two, 'legend').map((t) => Math.round(t.x))).size).toBe(2);
+    const narrow = build(spec({ legend: { position: 'auto', columns: 2 } }), [dijet, dilepton]);
+    expect(legendBox(narrow)!.width).toBeLessThanOrEqual(narrow.plot.width);
   });
   test('the energy block never shares the legend corner', () => {
     for (const position of ['top-left', 'top-right', 'bottom-left', 'bottom-right'] as const) {
@@ -188,15 +191,15 @@ describe('legend placement', () => {
       for (const t of texts(scene, 'energy')) expect(inside(box, [t.x, t.y])).toBe(false);
     }
   });
-  test('legend entries name each layer and its parts; a single layer reads plainly', () => {
+  test('legend entries name each layer once, its parts beneath; a single layer reads plainly', () => {
     const two = texts(build(spec(), [dijet, dilepton]), 'legend').map((t) => t.label);
     expect(two).toEqual([
       'Lanternfish dijet, observed',
-      'Lanternfish dijet, expected',
-      'Lanternfish dijet, expected $\\pm 1\\sigma$',
-      'Lanternfish dijet, expected $\\pm 2\\sigma$',
+      'expected',
+      '$\\pm 1\\sigma$',
+      '$\\pm 2\\sigma$',
       'Lanternfish dilepton, observed',
-      'Lanternfish dilepton, expected',
+      'expected',
       'Vee-prime benchmark A',
       'Excluded (observed)',
     ]);
@@ -212,7 +215,7 @@ describe('outreach', () => {
     expect(paths(scene, 'band2')).toHaveLength(0);
     expect(paths(scene, 'band1')).toHaveLength(1);
     const words = texts(scene).filter((t) => t.role !== 'tick').map((t) => t.label);
-    expect(words).toEqual(expect.arrayContaining(['Lanternfish dijet: observed limit', 'Lanternfish dijet: expected limit', 'Lanternfish dijet: expected range', 'Ruled out by this search', 'Mass of the new particle [TeV]', 'How often it would be made [fb]']));
+    expect(words).toEqual(expect.arrayContaining(['Lanternfish dijet: observed limit', 'expected limit', 'expected range', 'Above the observed limit: ruled out', 'Ruled out by this search', 'Mass of the new particle [TeV]', 'How often it would be made [fb]']));
     for (const w of words) expect(w).not.toMatch(/\\sigma|\\pm|CL\b|\\mu|fb\$\^/);
     const withCl = build({ ...s, clLabel: true }, [dijet, dilepton]);
     expect(texts(withCl, 'cl').map((t) => t.label)).toEqual(['95% confidence']);
@@ -358,7 +361,7 @@ describe('labels larger than the page', () => {
     expect(plot.x + plot.width).toBeLessThanOrEqual(W);
     expect(plot.y + plot.height).toBeLessThanOrEqual(H);
   };
-  const cases: [string, Partial<FigureSpec>, string][] = [
+  const cases: [string, Partial<FigureSpecInput>, string][] = [
     ['a 100 em tall y-axis title', { y: { scale: 'log', min: null, max: null, label: TALL } }, 'spec.y.label'],
     ['a million em wide y-axis title', { y: { scale: 'log', min: null, max: null, label: WIDE } }, 'spec.y.label'],
     ['a 100 em tall x-axis title', { x: { scale: 'linear', min: null, max: null, label: TALL } }, 'spec.x.label'],
