@@ -61,7 +61,7 @@ export const DEMO_FIGURES: DemoFigure[] = [
       layers: [
         { slug: VPRIME, version: 2, label: '2031, 96.5 fb$^{-1}$' },
         // The same result twice: the older version gets a hue of its own.
-        { slug: VPRIME, version: 1, label: '2030, 60 fb$^{-1}$', hue: 1, show: { observed: true, expected: true, band1: false, band2: false, theory: false, theoryBand: false, crossings: false } },
+        { slug: VPRIME, version: 1, label: '2030, 41.7 fb$^{-1}$', hue: 1, show: { observed: true, expected: true, band1: false, band2: false, theory: false, theoryBand: false, crossings: false } },
       ],
       bandsLayer: 0,
       excludedShading: false,

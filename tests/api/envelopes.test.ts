@@ -17,7 +17,8 @@ let groupA: string;
 let groupB: string;
 
 /** A curve whose expected median is a·exp(−m/s) on the grid, with ±1σ/±2σ bands around it. */
-function curveOf(x: number[], a: number, s: number): Curve {
+type FullCurve = Curve & { observed: number[]; expected: Record<'-2' | '-1' | '0' | '1' | '2', number[]> };
+function curveOf(x: number[], a: number, s: number): FullCurve {
   const r = (v: number) => Number(v.toPrecision(8));
   const exp = x.map((m) => r(a * Math.exp(-m / s)));
   return {
@@ -72,8 +73,8 @@ test('two crossing inputs: each point names the input chosen, the switch sits at
   expect(v.choice.segments.map((s) => s.input)).toEqual([0, 1]);
   // At an input's own grid point, the envelope reports that input's observed limit and band.
   const i3000 = v.curve.x.indexOf(3000);
-  expect(v.curve.observed[i3000]).toBeCloseTo(80 * Math.exp(-3) * 1.1, 6);
-  expect(v.curve.expected['1']![i3000]).toBeCloseTo(80 * Math.exp(-3) * 1.4, 6);
+  expect(v.curve.observed![i3000]).toBeCloseTo(80 * Math.exp(-3) * 1.1, 6);
+  expect(v.curve.expected!['1']![i3000]).toBeCloseTo(80 * Math.exp(-3) * 1.4, 6);
 
   const page = await alice.agent.get(`/api/groups/${groupA}/results/${v.resultId}/versions/1`);
   expect(page.status).toBe(200);
@@ -111,7 +112,7 @@ test('units: an input in TeV and pb is converted onto the first input\'s GeV and
   const gev = await upload(alice, groupA, curveOf(grid(1000, 500, 5), 40, 1500), { title: 'In GeV and fb' });
   // The same expected curve in TeV and pb, scaled so that it is lower everywhere (so it is chosen).
   const tevCurve = curveOf(grid(1, 0.5, 5), 40 / 1000, 1.5);
-  const scaled: Curve = { ...tevCurve, observed: tevCurve.observed.map((y) => y / 2), expected: Object.fromEntries(Object.entries(tevCurve.expected).map(([k, ys]) => [k, ys!.map((y) => y / 2)])) as Curve['expected'] };
+  const scaled: Curve = { ...tevCurve, observed: tevCurve.observed.map((y) => y / 2), expected: Object.fromEntries(Object.entries(tevCurve.expected).map(([k, ys]) => [k, ys.map((y) => y / 2)])) as Curve['expected'] };
   const tev = await upload(alice, groupA, scaled, { title: 'In TeV and pb', parameterUnit: 'TeV', quantityUnit: 'pb' });
   const res = await alice.agent.post(`/api/groups/${groupA}/envelopes`).send({ inputs: [{ resultId: gev.resultId, version: 1 }, { resultId: tev.resultId, version: 1 }] });
   expect(res.status).toBe(201);
