@@ -5,12 +5,16 @@ import { childProcessEnv, loadEnv } from './env';
 import { startQueue } from './jobs/queue';
 import { startWorkerProcesses, type WorkerProcesses } from './jobs/worker-processes';
 import { startStripeFake, type StripeFake } from './fakes/stripe';
+import { fillSearchText } from './services/results';
 
 /** Server entry: `node --import tsx server/index.ts` (npm start runs it with its own database). */
 async function main() {
   const env = loadEnv();
   const ctx = createContext(env);
   await runMigrations(ctx.db);
+  // Versions stored before search text existed get it from the same normaliser the writes use.
+  const filled = await fillSearchText(ctx);
+  if (filled) console.log(`[server] search text written for ${filled} older result version(s)`);
   ctx.jobs = await startQueue(env);
   let workers: WorkerProcesses | undefined;
   if (env.WORKERS > 0) {

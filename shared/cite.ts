@@ -55,7 +55,7 @@ const TEXT_ESCAPES: Record<string, string> = {
 /** Text for a braced BibTeX field: LaTeX specials escaped, control characters and line breaks as spaces. */
 export function bibtexText(text: string): string {
   return text
-    .replace(/[\u0000-\u001f\u007f]+/gu, ' ')
+    .replace(/\p{Cc}+/gu, ' ')
     .replace(/[\\{}#$%&_~^]/gu, (c) => TEXT_ESCAPES[c]!)
     .replace(/\s+/gu, ' ')
     .trim();

@@ -127,6 +127,16 @@ export async function deleteFigure(db: Executor, groupId: string, figureId: stri
 }
 
 
+/** A public figure with its group's name (any group: public figures are for everyone), or undefined. */
+export async function getPublicFigure(db: Executor, figureId: string) {
+  const rows = await db
+    .select({ id: figures.id, groupId: figures.groupId, groupName: groups.name, title: figures.title, lastVersion: figures.lastVersion, updatedAt: figures.updatedAt })
+    .from(figures)
+    .innerJoin(groups, eq(groups.id, figures.groupId))
+    .where(and(eq(figures.id, figureId), eq(figures.isPublic, true)));
+  return rows[0];
+}
+
 /** Public figures of every group, most recently changed first, paged. */
 export async function listPublicFigures(db: Executor, f: { q?: string; theme?: string; page: number; pageSize: number }) {
   const conditions: (SQL | undefined)[] = [eq(figures.isPublic, true)];

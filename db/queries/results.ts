@@ -1,5 +1,6 @@
-import { and, asc, count, desc, eq, getTableColumns, ilike, inArray, max, or, sql, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, getTableColumns, gt, ilike, inArray, isNull, like, max, or, sql, type SQL } from 'drizzle-orm';
 import type { ResultListQuery } from '../../shared/schemas/results';
+import { normaliseSearchText } from '../../shared/search';
 import type { Executor } from '../client';
 import { versionVisibleSql, type Viewer } from './visibility';
 import { figureLayers, figures, groups, resultInputs, results, resultVersions, user } from '../schema';
@@ -155,6 +156,45 @@ export async function getVersion(db: Executor, groupId: string, resultId: string
   return rows[0];
 }
 
+/**
+ * The newest published version of the result `slug` that `viewer` may see (its current one), or
+ * undefined; `anyVisible` says whether the viewer may see some version of it at all (a result
+ * with drafts only, or only retracted versions, has no published one).
+ */
+export async function getLatestPublishedByLink(db: Executor, viewer: Viewer, slug: string) {
+  const rows = await db
+    .select({ version: resultVersions.version, state: resultVersions.state })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(and(eq(results.slug, slug), versionVisibleSql(viewer)))
+    .orderBy(desc(resultVersions.version));
+  return { published: rows.find((r) => r.state === 'published')?.version, anyVisible: rows.length > 0 };
+}
+
+/** The newest published version after `version` of the result `slug` that `viewer` may see, if any. */
+export async function newerPublishedVersion(db: Executor, viewer: Viewer, slug: string, version: number): Promise<number | undefined> {
+  const [row] = await db
+    .select({ version: max(resultVersions.version) })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .where(and(eq(results.slug, slug), gt(resultVersions.version, version), eq(resultVersions.state, 'published'), versionVisibleSql(viewer)));
+  return row?.version ?? undefined;
+}
+
+/** Versions whose search text was never written (rows older than the column), a batch at a time. */
+export async function versionsWithoutSearchText(db: Executor, limit: number) {
+  return db
+    .select({ id: resultVersions.id, title: resultVersions.title, model: resultVersions.model, reference: resultVersions.reference })
+    .from(resultVersions)
+    .where(isNull(resultVersions.searchText))
+    .limit(limit);
+}
+
+/** Writes a version's search text (derived from its own columns; not a change of the version). */
+export async function setSearchText(db: Executor, versionId: string, searchText: string) {
+  await db.update(resultVersions).set({ searchText }).where(eq(resultVersions.id, versionId));
+}
+
 /** A version by its permanent link (`slug`, `version`), if `viewer` may see it. */
 export async function getVersionByLink(db: Executor, viewer: Viewer, slug: string, version: number) {
   const rows = await selectFullVersion(db).where(and(eq(results.slug, slug), eq(resultVersions.version, version), versionVisibleSql(viewer)));
@@ -166,7 +206,7 @@ export async function updateVersion(
   groupId: string,
   resultId: string,
   version: number,
-  patch: Partial<Pick<typeof resultVersions.$inferInsert, 'state' | 'publishedAt' | 'retractedAt' | 'retractionReason' | 'storedBytes' | 'curve' | 'theory' | 'changeNote' | 'title' | 'model' | 'parameterName' | 'parameterUnit' | 'quantity' | 'quantityUnit' | 'sqrtS' | 'luminosity' | 'cl' | 'method' | 'reference' | 'notes'>>,
+  patch: Partial<Pick<typeof resultVersions.$inferInsert, 'state' | 'publishedAt' | 'retractedAt' | 'retractionReason' | 'storedBytes' | 'curve' | 'theory' | 'changeNote' | 'title' | 'model' | 'parameterName' | 'parameterUnit' | 'quantity' | 'quantityUnit' | 'sqrtS' | 'luminosity' | 'cl' | 'method' | 'reference' | 'notes' | 'searchText'>>,
 ) {
   await db
     .update(resultVersions)
@@ -207,8 +247,18 @@ export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) 
 
   const conditions: (SQL | undefined)[] = [];
   if (f.q) {
+    // The normalised text (shared/search.ts, on both sides) finds Z′ for Z' or Zprime, tt̄ for
+    // ttbar, μ for mu; the plain match stays for rows whose search text is not written yet.
     const p = containsPattern(f.q);
-    conditions.push(or(ilike(resultVersions.title, p), ilike(resultVersions.model, p), ilike(resultVersions.reference, p)));
+    const normalised = normaliseSearchText(f.q);
+    conditions.push(
+      or(
+        normalised ? like(resultVersions.searchText, containsPattern(normalised)) : undefined,
+        ilike(resultVersions.title, p),
+        ilike(resultVersions.model, p),
+        ilike(resultVersions.reference, p),
+      ),
+    );
   }
   if (f.groupId) conditions.push(eq(results.groupId, f.groupId));
   if (f.parameter) conditions.push(sql`lower(${resultVersions.parameterName}) = lower(${f.parameter})`);

@@ -58,6 +58,12 @@ export const resultVersions = pgTable(
     method: resultMethod().notNull(),
     reference: text().notNull().default(''),
     notes: text().notNull().default(''),
+    /**
+     * Title, model and reference through shared/search.ts `versionSearchText` (primes, bars, Greek
+     * names and TeX made one spelling), written by the registry with every write of those fields;
+     * null until then (rows older than the column are filled at server start).
+     */
+    searchText: text(),
     curve: jsonb().$type<Curve>().notNull(),
     theory: jsonb().$type<Theory>(),
     changeNote: text().notNull().default(''),

@@ -47,7 +47,9 @@ import {
   createResultSchema,
   createTokenSchema,
   createVersionSchema,
+  latestLinkParams,
   permalinkParams,
+  publicResultListQuery,
   publishSchema,
   resultListQuery,
   resultParams,
@@ -252,8 +254,10 @@ export const OPERATIONS: ApiOperation[] = [
 
   // --- Results: what the caller may see, and public ---
   { method: 'get', path: '/results', tag: 'Results', summary: 'Results you may see: your groups\' in any state and every public one.', access: { kind: 'optional', note: 'Signed out: public results only.' }, query: resultListQuery, ok: json(200, '`{ items, total, page, pageSize }`') },
-  { method: 'get', path: '/results/{slug}/v{version}', tag: 'Results', summary: 'A version by its permanent link.', access: { kind: 'optional', note: 'Members see their groups\' drafts; everyone sees public, published versions.' }, params: permalinkParams, ok: json(200, 'The version.') },
-  { method: 'get', path: '/public/results', tag: 'Results', summary: 'Public results (search and pages).', access: { kind: 'anyone' }, query: resultListQuery.pick({ q: true, page: true, pageSize: true }), ok: json(200, '`{ items, total, page, pageSize }`') },
+  { method: 'get', path: '/results/{slug}/latest', tag: 'Results', summary: 'The current version of a result: its newest published version you may see (the app\'s `/r/<slug>`).', access: { kind: 'optional', note: 'Signed out: public results only.' }, params: latestLinkParams, ok: json(200, 'The version, with `newerVersion: null`.'), errors: { 404: '`not_found`, or `not_published`: you may see the result but none of its versions is published.' } },
+  { method: 'get', path: '/results/{slug}/v{version}', tag: 'Results', summary: 'A version by its permanent link.', access: { kind: 'optional', note: 'Members see their groups\' drafts; everyone sees public, published versions.' }, params: permalinkParams, ok: json(200, 'The version; `newerVersion` names a newer published version you may see.') },
+  { method: 'get', path: '/public/results', tag: 'Results', summary: 'Public results (search, the filters and sort of the signed-in list, pages); published public results only.', access: { kind: 'anyone' }, query: publicResultListQuery, ok: json(200, '`{ items, total, page, pageSize }`') },
+  { method: 'get', path: '/public/results/{slug}/latest', tag: 'Results', summary: 'The current version of a public result (its newest published version).', access: { kind: 'anyone' }, params: latestLinkParams, ok: json(200, 'The version.'), errors: { 404: '`not_found`, or `not_published`: the result is public but none of its versions is published.' } },
   { method: 'get', path: '/public/results/{slug}/v{version}', tag: 'Results', summary: 'A public version by its permanent link.', access: { kind: 'anyone' }, params: permalinkParams, ok: json(200, 'The version.') },
   { method: 'get', path: '/public/results/{slug}/v{version}/export.csv', tag: 'Results', summary: 'Download a public version as CSV.', access: { kind: 'anyone' }, params: permalinkParams, ok: file('text/csv', 'The curve as CSV.') },
   { method: 'get', path: '/public/results/{slug}/v{version}/export.json', tag: 'Results', summary: 'Download a public version as the project\'s JSON file.', access: { kind: 'anyone' }, params: permalinkParams, ok: file('application/json', 'A `bandwright-limit-result/1` file.') },
@@ -309,6 +313,7 @@ export const OPERATIONS: ApiOperation[] = [
   { method: 'get', path: '/figures/{figureId}/export.csv', tag: 'Figures', summary: 'The data a figure draws, as CSV.', access: { kind: 'optional', note: 'As the renders.' }, params: figureIdParams, query: renderQuery.pick({ version: true }), ok: file('text/csv', 'The CSV.') },
   { method: 'get', path: '/figures/{figureId}/caption.txt', tag: 'Figures', summary: 'A caption for a figure, as text.', access: { kind: 'optional', note: 'As the renders.' }, params: figureIdParams, query: renderQuery.pick({ version: true }), ok: file('text/plain', 'The caption.') },
   { method: 'get', path: '/public/figures', tag: 'Figures', summary: 'Public figures (search and pages).', access: { kind: 'anyone' }, query: publicFigureListQuery, ok: json(200, '`{ items, total, page, pageSize }`') },
+  { method: 'get', path: '/public/figures/{figureId}', tag: 'Figures', summary: 'A public figure\'s page: title, group, caption, the result versions it pins that the public may see (with permanent links).', access: { kind: 'anyone' }, params: figureIdParams, ok: json(200, '`{ id, title, theme, groupName, version, savedAt, permalink, caption, pins, hiddenLayers }`.') },
   ...RENDER_FORMATS.map(
     (format): ApiOperation => ({
       method: 'get',

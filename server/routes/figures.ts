@@ -147,6 +147,10 @@ export function figuresRouter(ctx: Ctx) {
     res.json(await figures.listPublic(ctx, query));
   }));
 
+  r.get('/public/figures/:figureId', handle({ params: figureIdParams }, async ({ params }, _req, res) => {
+    res.json(await figures.getPublicDetail(ctx, params.figureId));
+  }));
+
   for (const format of RENDER_FORMATS) {
     r.get(`/public/figures/:figureId/render.${format}`, anonymousRenders, handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, _req, res) => {
       sendRender(res, await renders.renderPublic(ctx, params.figureId, { format, ...query }), 'public, max-age=60');

@@ -3,7 +3,9 @@ import { groupParams } from '../../shared/schemas/groups';
 import {
   createResultSchema,
   createVersionSchema,
+  latestLinkParams,
   permalinkParams,
+  publicResultListQuery,
   publishSchema,
   resultListQuery,
   resultParams,
@@ -27,7 +29,6 @@ import * as combine from '../services/combine';
 import { createEnvelopeSchema } from '../../shared/schemas/combine';
 
 const groupListQuery = resultListQuery.omit({ groupId: true });
-const publicListQuery = resultListQuery.pick({ q: true, page: true, pageSize: true });
 const MAX_FILE_NAME = 200;
 
 /** The multipart parts of a request (multer put them on req.file and req.body), or undefined for JSON. */
@@ -172,14 +173,23 @@ export function resultsRouter(ctx: Ctx) {
     res.json(await results.listVisible(ctx, req.user?.id ?? null, query));
   }));
 
+  // `/r/<slug>`: the current (newest published) version the caller may see.
+  r.get('/results/:slug/latest', optionalUser(ctx), handle({ params: latestLinkParams }, async ({ params }, req, res) => {
+    res.json(await results.getLatestByLink(ctx, { kind: 'user', userId: req.user?.id ?? null }, params.slug));
+  }));
+
   r.get('/results/:slug/v:version', optionalUser(ctx), handle({ params: permalinkParams }, async ({ params }, req, res) => {
     res.json(await results.getByLink(ctx, { kind: 'user', userId: req.user?.id ?? null }, params.slug, params.version));
   }));
 
   // --- Public results, whoever asks ----------------------------------------------------------
 
-  r.get('/public/results', handle({ query: publicListQuery }, async ({ query }, _req, res) => {
+  r.get('/public/results', handle({ query: publicResultListQuery }, async ({ query }, _req, res) => {
     res.json(await results.listPublic(ctx, query));
+  }));
+
+  r.get('/public/results/:slug/latest', handle({ params: latestLinkParams }, async ({ params }, _req, res) => {
+    res.json(await results.getLatestByLink(ctx, { kind: 'public' }, params.slug));
   }));
 
   r.get('/public/results/:slug/v:version', handle({ params: permalinkParams }, async ({ params }, _req, res) => {

@@ -6,6 +6,7 @@ import type {
   FigureSummary,
   FigureVersionDetail,
   GroupStyleView,
+  PublicFigureDetail,
   PublicFigureListQuery,
   PublicFigurePage,
   ResultHueView,
@@ -17,7 +18,7 @@ import type { Ctx } from '../context';
 import type { Executor } from '../../db/client';
 import { oversizeLabelsOf } from '../figures/scene';
 import { notFound } from '../lib/errors';
-import { dropOlderRenders } from './figure-renders';
+import { dropOlderRenders, exportFigure } from './figure-renders';
 import { assertLayersUsable, assignHues, groupLayerData, hueOf, layerRows, layerVisible, oversizeError, pinKey } from './figure-layers';
 
 /**
@@ -114,6 +115,46 @@ export async function listPublic(ctx: Ctx, query: Required<Pick<PublicFigureList
     total: rows.total,
     page: query.page,
     pageSize: query.pageSize,
+  };
+}
+
+/**
+ * A public figure's own page (`/f/<id>`): title, group, caption (as the public's caption.txt),
+ * and the result versions its layers pin that the public may see, with their permanent links;
+ * 404 for a figure that is not public, as for an unknown one.
+ */
+export async function getPublicDetail(ctx: Ctx, figureId: string): Promise<PublicFigureDetail> {
+  const f = await q.getPublicFigure(ctx.db, figureId);
+  if (!f) throw notFound('Figure');
+  const v = await q.getFigureVersion(ctx.db, f.groupId, figureId, f.lastVersion);
+  if (!v) throw notFound('Figure');
+  const caption = await exportFigure(ctx, figureId, null, 'caption', f.lastVersion);
+  const rows = await q.getLayerVersions(ctx.db, { kind: 'public' }, v.spec.layers.map((l) => ({ resultId: l.resultId, version: l.version })));
+  const byPin = new Map(rows.map((r) => [pinKey(r.resultId, r.version), r]));
+  const pins: PublicFigureDetail['pins'] = [];
+  const seen = new Set<string>();
+  let hiddenLayers = 0;
+  for (const l of v.spec.layers) {
+    const row = byPin.get(pinKey(l.resultId, l.version));
+    if (!layerVisible(row, f.groupId, 'public')) {
+      hiddenLayers++;
+      continue;
+    }
+    if (seen.has(pinKey(row.resultId, row.version))) continue;
+    seen.add(pinKey(row.resultId, row.version));
+    pins.push({ slug: row.slug, version: row.version, title: row.title, state: row.state, permalink: `${ctx.env.PUBLIC_URL}/r/${row.slug}/v${row.version}` });
+  }
+  return {
+    id: f.id,
+    title: v.spec.title,
+    theme: v.spec.theme,
+    groupName: f.groupName,
+    version: f.lastVersion,
+    savedAt: v.createdAt.toISOString(),
+    permalink: `${ctx.env.PUBLIC_URL}/f/${f.id}`,
+    caption: caption.body,
+    pins,
+    hiddenLayers,
   };
 }
 

@@ -11,6 +11,7 @@ import type {
   UpdateDraftInput,
   VersionMeta,
 } from '../../shared/schemas/results';
+import { versionSearchText } from '../../shared/search';
 import { exclusionRanges } from '../../shared/stats/exclusion';
 import { StatsInputError } from '../../shared/stats/errors';
 import * as q from '../../db/queries/results';
@@ -49,7 +50,8 @@ const immutable = (version: number, state: ResultState) =>
 
 /** The columns of a version from its provenance and numbers (the meta keys are column names). */
 function versionColumns(v: { meta: VersionMeta; curve: NormalizedVersion['curve']; theory: Theory | null }) {
-  return { ...canonicalMeta(v.meta), curve: canonicalCurve(v.curve), theory: canonicalTheory(v.theory) };
+  const meta = canonicalMeta(v.meta);
+  return { ...meta, searchText: versionSearchText(meta), curve: canonicalCurve(v.curve), theory: canonicalTheory(v.theory) };
 }
 
 const metaOf = (row: q.VersionRow): VersionMeta => canonicalMeta({ ...row, quantityUnit: row.quantityUnit as VersionMeta['quantityUnit'] });
@@ -92,6 +94,7 @@ function toVersion(ctx: Ctx, row: q.VersionRow): ResultVersion {
     sourceFile: row.sourceName !== null && row.sourceBytes !== null ? { name: row.sourceName, bytes: row.sourceBytes } : null,
     fromScan: null,
     inputs: null,
+    newerVersion: null,
   };
 }
 
@@ -129,8 +132,9 @@ export async function listVisible(ctx: Ctx, userId: string | null, query: ListQu
   return ctx.reads.get(`list:user:${userId ?? '-'}:${JSON.stringify(query)}`, async () => toPage(await q.listResults(ctx.db, { kind: 'user', userId }, query), query));
 }
 
-export async function listPublic(ctx: Ctx, query: Pick<ListQuery, 'q' | 'page' | 'pageSize'>): Promise<ResultPage> {
-  const full: ListQuery = { ...query, sort: 'updated' };
+/** Public results (open versions only), with the signed-in list's filters but no group or state choice. */
+export async function listPublic(ctx: Ctx, query: Omit<ListQuery, 'groupId' | 'state'>): Promise<ResultPage> {
+  const full: ListQuery = { ...query, groupId: undefined, state: undefined };
   return ctx.reads.get(`list:public:${JSON.stringify(full)}`, async () => toPage(await q.listResults(ctx.db, { kind: 'public' }, full), full));
 }
 
@@ -168,13 +172,44 @@ export async function getVersion(ctx: Ctx, groupId: string, resultId: string, ve
   return v;
 }
 
-/** A version by its permanent link; 404 (revealing nothing) when the caller may not see it. */
+/**
+ * A version by its permanent link; 404 (revealing nothing) when the caller may not see it. A
+ * version with a newer published one the caller may see names it (`newerVersion`).
+ */
 export async function getByLink(ctx: Ctx, viewer: q.Viewer, slug: string, version: number): Promise<ResultVersion> {
   return ctx.reads.get(`link:${JSON.stringify(viewer)}:${slug}:${version}`, async () => {
-    const row = await q.getVersionByLink(ctx.db, viewer, slug, version);
+    const [row, newer] = await Promise.all([q.getVersionByLink(ctx.db, viewer, slug, version), q.newerPublishedVersion(ctx.db, viewer, slug, version)]);
     if (!row) throw notFound('Result');
-    return toVersion(ctx, row);
+    return { ...toVersion(ctx, row), newerVersion: newer ?? null };
   });
+}
+
+/**
+ * `/r/<slug>`: the result's current version, i.e. the newest published one the caller may see.
+ * 404 `not_published` (saying so) when the caller may see the result but none of its versions is
+ * published; 404 as for any unknown link otherwise.
+ */
+export async function getLatestByLink(ctx: Ctx, viewer: q.Viewer, slug: string): Promise<ResultVersion> {
+  const latest = await ctx.reads.get(`latest:${JSON.stringify(viewer)}:${slug}`, () => q.getLatestPublishedByLink(ctx.db, viewer, slug));
+  if (latest.published === undefined) {
+    if (latest.anyVisible) throw new AppError(404, 'not_published', 'This result has no published version yet (only drafts, or every version was retracted)');
+    throw notFound('Result');
+  }
+  return getByLink(ctx, viewer, slug, latest.published);
+}
+
+/**
+ * Writes the search text of versions stored before the column existed (server start), with the
+ * same normaliser the writes use. Returns how many were filled.
+ */
+export async function fillSearchText(ctx: Ctx, batch = 500): Promise<number> {
+  let filled = 0;
+  for (;;) {
+    const rows = await q.versionsWithoutSearchText(ctx.db, batch);
+    for (const r of rows) await q.setSearchText(ctx.db, r.id, versionSearchText(r));
+    filled += rows.length;
+    if (rows.length < batch) return filled;
+  }
 }
 
 export type ExportFile = { fileName: string; contentType: string; body: string };

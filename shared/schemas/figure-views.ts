@@ -126,6 +126,25 @@ export type FigureDetail = FigureSummary & {
 };
 
 export type PublicFigureSummary = { id: string; title: string; theme: FigureTheme; groupName: string; version: number; updatedAt: string };
+/** A pinned result version as the public page of a figure lists it (only versions the public may see). */
+export type PublicFigurePin = { slug: string; version: number; title: string; state: import('./results').ResultState; permalink: string };
+/** `GET /api/public/figures/:figureId`: a public figure's own page. */
+export type PublicFigureDetail = {
+  id: string;
+  title: string;
+  theme: FigureTheme;
+  groupName: string;
+  version: number;
+  /** The latest version's latest change (its save time). */
+  savedAt: string;
+  /** The permanent address of the figure's page. */
+  permalink: string;
+  /** The caption draft (the caption.txt export, as the public reads it). */
+  caption: string;
+  pins: PublicFigurePin[];
+  /** How many layers the public may not see (drawn without them). */
+  hiddenLayers: number;
+};
 export type PublicFigurePage = { items: PublicFigureSummary[]; total: number; page: number; pageSize: number };
 
 export type GroupStyleView = { style: HouseStyle; updatedAt: string | null };

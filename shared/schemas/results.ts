@@ -112,6 +112,7 @@ export const visibilitySchema = z.object({ public: z.boolean({ error: 'must be t
 export const resultParams = z.object({ groupId: uuidParam, resultId: uuidParam });
 export const versionParams = resultParams.extend({ version: versionParam });
 export const permalinkParams = z.object({ slug: slugParam, version: versionParam });
+export const latestLinkParams = z.object({ slug: slugParam });
 
 export const RESULT_SORTS = ['updated', 'title', 'sqrtS'] as const;
 export const resultListQuery = z.object({
@@ -125,6 +126,9 @@ export const resultListQuery = z.object({
   ...pageParams,
 });
 export type ResultListQuery = Partial<z.output<typeof resultListQuery>>;
+/** The public list: the same filters and sort, published public results only (no group or state choice). */
+export const publicResultListQuery = resultListQuery.omit({ groupId: true, state: true });
+export type PublicResultListQuery = Partial<z.output<typeof publicResultListQuery>>;
 
 /** One row of a results list: the result with its latest visible version. */
 export type ResultSummary = {
@@ -193,6 +197,11 @@ export type ResultVersion = VersionSummary & {
    * longer visible; the title stays).
    */
   inputs: { position: number; resultId: string | null; version: number; title: string; slug: string | null; latestPublished: number | null }[] | null;
+  /**
+   * On permanent-link reads: the newest published version after this one that the caller may see
+   * (this one is then superseded or retracted), else null.
+   */
+  newerVersion: number | null;
 };
 
 /**

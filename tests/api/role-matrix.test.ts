@@ -355,6 +355,9 @@ const MATRIX: Entry[] = [
   { method: 'get', path: '/api/results', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   { method: 'get', path: '/api/results/:slug/v:version', access: 'anonymous', ok: 200, mutates: false, prepare: async (w) => ({ params: { slug: (await publicResult(w)).slug, version: '1' } }) },
   { method: 'get', path: '/api/public/results', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  ...(['/api/results/:slug/latest', '/api/public/results/:slug/latest'] as const).map(
+    (path): Entry => ({ method: 'get', path, access: 'anonymous', ok: 200, mutates: false, prepare: async (w) => ({ params: { slug: (await publicResult(w)).slug } }) }),
+  ),
   ...(['', '/export.csv', '/export.json'] as const).map(
     (suffix): Entry => ({
       method: 'get',
@@ -565,6 +568,7 @@ const MATRIX: Entry[] = [
     }),
   ),
   { method: 'get', path: '/api/public/figures', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
+  { method: 'get', path: '/api/public/figures/:figureId', access: 'anonymous', ok: 200, mutates: false, prepare: async (w) => ({ params: { figureId: await publicFigure(w) } }) },
   ...['render.svg', 'render.pdf', 'render.png'].map(
     (suffix): Entry => ({
       method: 'get',

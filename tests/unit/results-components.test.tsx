@@ -36,6 +36,7 @@ const version: ResultVersion = {
   sourceFile: null,
   fromScan: null,
   inputs: null,
+  newerVersion: null,
 };
 const detail: ResultDetail = { id: 'r1', slug: 'dijet-z-prime', groupId: 'g1', groupName: 'Invented Dijet Team', isPublic: false, versions: [version] };
 
