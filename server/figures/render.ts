@@ -1,6 +1,6 @@
 import { Resvg } from '@resvg/resvg-js';
 import { createHash } from 'node:crypto';
-import { deflateSync } from 'node:zlib';
+import { crc32, deflateSync } from 'node:zlib';
 import { JSDOM } from 'jsdom';
 import { jsPDF } from 'jspdf';
 // The package's main entry is a UMD build that fails in Node; the ES build works.
@@ -8,6 +8,7 @@ import { svg2pdf } from 'svg2pdf.js/dist/svg2pdf.es.min.js';
 import { labelKey, type FontRole, type Glyphs, type Scene } from '../../shared/figure/types';
 import { FIGURE_LIMITS } from '../../shared/schemas/figures';
 import { fontBytes, fontFile } from './fonts';
+import { subsetTtf } from './font-subset';
 import { labelPlainText } from '../../shared/figure/labels';
 
 /**
@@ -49,7 +50,41 @@ const pngOptions = (widthPt: number, dpi: number) => ({
  * calls this only in a renderer process (server/figures/render-pool.ts), never in its own.
  */
 export function svgToPng(svg: string, widthPt: number, dpi: number): Buffer {
-  return Buffer.from(new Resvg(svg, pngOptions(widthPt, dpi)).render().asPng());
+  return withResolution(Buffer.from(new Resvg(svg, pngOptions(widthPt, dpi)).render().asPng()), dpi);
+}
+
+/**
+ * The PNG with its resolution recorded: a `pHYs` chunk (pixels per metre on both axes, unit 1 =
+ * metre; W3C PNG 2nd edition, 2003, §11.3.5.3) placed before the first IDAT, as the format asks,
+ * replacing any the encoder wrote. Without it, programs that place images by size (LaTeX, word
+ * processors) assume 72 or 96 dpi and draw a 300 dpi figure four times too large.
+ */
+export function withResolution(png: Buffer, dpi: number): Buffer {
+  const ppm = Math.round(dpi / 0.0254);
+  const data = Buffer.alloc(13);
+  data.write('pHYs', 0, 'latin1');
+  data.writeUInt32BE(ppm, 4);
+  data.writeUInt32BE(ppm, 8);
+  data.writeUInt8(1, 12);
+  const chunk = Buffer.alloc(4 + 13 + 4);
+  chunk.writeUInt32BE(9, 0);
+  data.copy(chunk, 4);
+  chunk.writeUInt32BE(crc32(data), 17);
+  const parts: Buffer[] = [png.subarray(0, 8)];
+  let at = 8;
+  let placed = false;
+  while (at + 8 <= png.length) {
+    const length = png.readUInt32BE(at);
+    const type = png.toString('latin1', at + 4, at + 8);
+    const end = at + 12 + length;
+    if (type === 'IDAT' && !placed) {
+      parts.push(chunk);
+      placed = true;
+    }
+    if (type !== 'pHYs') parts.push(png.subarray(at, end));
+    at = end;
+  }
+  return Buffer.concat(parts);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -98,8 +133,24 @@ if (!pdfApi.__bwFastFlate) {
   pdfApi.__bwFastFlate = true;
 }
 
+/** What the text layer needs of an embedded font: jsPDF's font object (glyph lookup, the glyphs used). */
+type EmbeddedFont = {
+  family: string;
+  has: (code: number) => boolean;
+};
+type JsPdfTtf = {
+  characterToGlyph: (code: number) => number;
+  toUnicode: Record<number, number>;
+  subset: { encode: (ids: number[], indexToLocFormat: number) => ArrayLike<number> };
+};
+
 const fontBase64 = new Map<FontRole, string>();
-function embedFont(doc: jsPDF, role: FontRole): string {
+/**
+ * Embeds the shipped TTF of `role`. jsPDF would write the whole font but for its glyph outlines
+ * (its own subsetter keeps every table, glyph names and the full cmap: 86 KB of Inter for one
+ * word); `subsetTtf` writes only what the text layer's glyphs need.
+ */
+function embedFont(doc: jsPDF, role: FontRole): EmbeddedFont {
   const f = fontFile(role);
   let b64 = fontBase64.get(role);
   if (!b64) {
@@ -108,7 +159,34 @@ function embedFont(doc: jsPDF, role: FontRole): string {
   }
   doc.addFileToVFS(f.fileName, b64);
   doc.addFont(f.fileName, f.family, 'normal');
-  return f.family;
+  const meta = (doc.internal as unknown as { getFont: (family: string, style: string) => { metadata: JsPdfTtf } }).getFont(f.family, 'normal').metadata;
+  meta.subset.encode = (ids) => {
+    const chars = new Map<number, number>();
+    for (const [gid, code] of Object.entries(meta.toUnicode)) chars.set(code, Number(gid));
+    return subsetTtf(fontBytes(role), ids, chars);
+  };
+  return { family: f.family, has: (code) => meta.characterToGlyph(code) > 0 };
+}
+
+/**
+ * A label's plain text in runs of the font role that has their characters: the label's own
+ * font, else the other shipped one (as the typesetter falls back per character; Source Serif 4
+ * has no superscript minus, so "fb⁻¹" in a serif label takes "⁻" from Inter). jsPDF cuts a
+ * string at the first character its font lacks, so a character neither font has is left out.
+ */
+function textRuns(text: string, own: FontRole, fonts: (role: FontRole) => EmbeddedFont): { role: FontRole; text: string }[] {
+  const other: FontRole = own === 'sans' ? 'serif' : 'sans';
+  const runs: { role: FontRole; text: string }[] = [];
+  for (const ch of text) {
+    const code = ch.charCodeAt(0);
+    if (ch.length > 1) continue; // outside the BMP: jsPDF reads UTF-16 units
+    const role = /\s/.test(ch) || fonts(own).has(code) ? own : fonts(other).has(code) ? other : null;
+    if (!role) continue;
+    const last = runs[runs.length - 1];
+    if (last && last.role === role) last.text += ch;
+    else runs.push({ role, text: ch });
+  }
+  return runs;
 }
 
 export type PdfMeta = { title: string; subject?: string; created: Date };
@@ -127,27 +205,38 @@ export async function svgToPdf(svg: string, scene: Scene, glyphs: Glyphs, meta: 
 
   const texts = scene.items.filter((i) => i.kind === 'text');
   // The text layer needs at least one font; a figure without labels still embeds the sans one,
-  // so every PDF we make says which font its (absent) text would use.
-  const roles = new Set<FontRole>(texts.length ? texts.map((t) => t.font) : ['sans']);
-  const families = new Map<FontRole, string>([...roles].map((r) => [r, embedFont(doc, r)]));
+  // so every PDF we make says which font its (absent) text would use. A font is embedded when a
+  // label first needs it (its own role, or the other one for a character its own lacks).
+  const embedded = new Map<FontRole, EmbeddedFont>();
+  const fonts = (role: FontRole) => {
+    let f = embedded.get(role);
+    if (!f) embedded.set(role, (f = embedFont(doc, role)));
+    return f;
+  };
+  for (const role of texts.length ? texts.map((t) => t.font) : (['sans'] as const)) fonts(role);
   for (const t of texts) {
-    const text = labelPlainText(t.label);
     const g = glyphs.get(labelKey(t));
-    if (!text || !g) continue;
-    doc.setFont(families.get(t.font)!, 'normal');
+    const runs = g ? textRuns(labelPlainText(t.label), t.font, fonts) : [];
+    if (!runs.length || !g) continue;
     doc.setFontSize(t.size);
-    const natural = doc.getStringUnitWidth(text) * t.size;
+    const widths = runs.map((r) => {
+      doc.setFont(fonts(r.role).family, 'normal');
+      return doc.getStringUnitWidth(r.text) * t.size;
+    });
+    const natural = widths.reduce((a, b) => a + b, 0);
+    // Selecting the text highlights the drawn label, not a box of another width.
+    const scale = natural > 0 && g.width > 0 ? g.width / natural : 1;
     const shift = t.anchor === 'middle' ? g.width / 2 : t.anchor === 'end' ? g.width : 0;
-    const [x, y] = t.rotate === -90 ? [t.x, t.y + shift] : [t.x - shift, t.y];
-    doc.text(text, x, y, {
-      renderingMode: 'invisible',
-      angle: t.rotate === -90 ? 90 : 0,
-      // Selecting the text highlights the drawn label, not a box of another width.
-      ...(natural > 0 && g.width > 0 ? { horizontalScale: g.width / natural } : {}),
+    let advance = 0;
+    runs.forEach((r, i) => {
+      const [x, y] = t.rotate === -90 ? [t.x, t.y + shift - advance] : [t.x - shift + advance, t.y];
+      doc.setFont(fonts(r.role).family, 'normal');
+      doc.text(r.text, x, y, { renderingMode: 'invisible', angle: t.rotate === -90 ? 90 : 0, ...(scale !== 1 ? { horizontalScale: scale } : {}) });
+      advance += widths[i]! * scale;
     });
   }
   if (!texts.length) {
-    doc.setFont(families.get('sans')!, 'normal');
+    doc.setFont(fonts('sans').family, 'normal');
     doc.setFontSize(1);
     doc.text(' ', 0, h, { renderingMode: 'invisible' });
   }

@@ -28,7 +28,7 @@ import { hueOf, layerVisible, metaOf, oversizeError, pinKey, type Audience } fro
 // Rendering
 
 /** Bumped when the renderers change what they draw, so cached renders of the old look are not served. */
-const RENDER_REVISION = 'r5';
+const RENDER_REVISION = 'r6';
 /** PNG resolutions whose renders are kept (the ones offered to the public); others are made on request and not stored. */
 const CACHED_DPIS = new Set<number>(OFFERED_DPIS);
 
