@@ -1,5 +1,6 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { ResultListQuery } from '@/shared/schemas/results';
+import type { CreateEnvelopeInput } from '@/shared/schemas/combine';
 import { api, keys } from './api';
 
 /** A page of results visible to the caller (their groups' and everyone's public ones). */
@@ -52,6 +53,12 @@ export function useCreateResult(groupId: string) {
 export function useAddVersion(groupId: string, resultId: string) {
   const refresh = useRefreshResults();
   return useMutation({ mutationFn: (form: FormData) => api.results.addVersion(groupId, resultId, form), onSuccess: () => refresh() });
+}
+
+/** Builds a best-expected envelope (a new draft result, or a new version of the envelope `resultId`). */
+export function useCreateEnvelope(groupId: string) {
+  const refresh = useRefreshResults();
+  return useMutation({ mutationFn: (input: CreateEnvelopeInput) => api.results.createEnvelope(groupId, input), onSuccess: () => refresh() });
 }
 
 export function usePublishVersion(groupId: string, resultId: string) {

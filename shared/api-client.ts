@@ -26,6 +26,7 @@ import type {
   UpdateDraftInput,
 } from './schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from './schemas/scan-views';
+import type { CreateEnvelopeInput, EnvelopeVersion } from './schemas/combine';
 import type {
   FigureDetail,
   FigureSummary,
@@ -178,6 +179,11 @@ export function createApiClient(opts: ApiClientOptions = {}) {
         call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/publish`, input),
       retract: (groupId: string, resultId: string, version: number, reason: string) =>
         call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/retract`, { reason }),
+      /**
+       * The best-expected envelope of 2–20 versions the group may build on, stored as a draft (or a
+       * new version of `resultId`); the answer adds which input was chosen at every point.
+       */
+      createEnvelope: (groupId: string, input: CreateEnvelopeInput) => call<EnvelopeVersion>('POST', `/api/groups/${enc(groupId)}/envelopes`, input),
       /** A version by its permanent link, for anyone allowed to see it (public, or a member of its group). */
       byLink: (slug: string, version: number) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/v${version}`),
       exportUrl: (groupId: string, resultId: string, version: number, format: 'csv' | 'json') =>

@@ -149,7 +149,14 @@ export function ResultsListScreen() {
     <Screen
       title="Results"
       subtitle={groupFilter === 'all' ? 'All your groups and public results' : groups.find((g) => g.id === groupFilter)?.name}
-      actions={can('result.write') ? <Button label="Upload a result" onPress={() => router.push('/results/new')} /> : undefined}
+      actions={
+        can('result.write') ? (
+          <View style={styles.actions}>
+            <Button label="Upload a result" onPress={() => router.push('/results/new')} />
+            <Button variant="secondary" label="Best-expected envelope" accessibilityHint="Builds one result from several: at each point the one expected to limit best" onPress={() => router.push('/envelopes/new')} />
+          </View>
+        ) : undefined
+      }
     >
       <View style={styles.searchBox}>
         <TextField label="Search results" value={search} onChangeText={setSearch} placeholder="Title, model or reference" autoCapitalize="none" inputMode="search" />
@@ -205,6 +212,7 @@ export function ResultsListScreen() {
 }
 
 const styles = StyleSheet.create({
+  actions: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
   searchBox: { gap: space.md },
   filters: { gap: space.md },
   filtersWide: { flexDirection: 'row', flexWrap: 'wrap', alignItems: 'flex-start' },

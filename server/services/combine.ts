@@ -1,6 +1,6 @@
 import { bestExpectedEnvelope } from '../../shared/combine/envelope';
-import type { CreateEnvelopeInput } from '../../shared/schemas/combine';
-import type { ResultVersion, VersionMeta } from '../../shared/schemas/results';
+import type { CreateEnvelopeInput, EnvelopeVersion } from '../../shared/schemas/combine';
+import type { VersionMeta } from '../../shared/schemas/results';
 import { StatsInputError } from '../../shared/stats/errors';
 import { getLayerVersions } from '../../db/queries/figures';
 import { insertVersionInputs } from '../../db/queries/results';
@@ -16,14 +16,12 @@ import { addVersion, createResult, type Actor } from './results';
  * layers — and stored as a draft in the caller's group with its inputs recorded beside it.
  */
 
-/** The stored draft, and for every point of its curve which input (index into `inputs`) was chosen. */
-export type EnvelopeAnswer = ResultVersion & { choice: { chosen: number[]; crossing: boolean[]; segments: { input: number; from: number; to: number }[] } };
 
 const refuse = (details: ErrorDetail[]): never => {
   throw new AppError(400, 'validation_failed', `${details[0]!.field}: ${details[0]!.message}`, details);
 };
 
-export async function createEnvelope(ctx: Ctx, groupId: string, actor: Actor, body: Required<Pick<CreateEnvelopeInput, 'inputs'>> & Pick<CreateEnvelopeInput, 'title' | 'resultId'>): Promise<EnvelopeAnswer> {
+export async function createEnvelope(ctx: Ctx, groupId: string, actor: Actor, body: Required<Pick<CreateEnvelopeInput, 'inputs'>> & Pick<CreateEnvelopeInput, 'title' | 'resultId'>): Promise<EnvelopeVersion> {
   const pins = body.inputs.map((i) => ({ resultId: i.resultId, version: i.version }));
   const seen = new Set<string>();
   const dup = pins.findIndex((p) => (seen.has(`${p.resultId}@${p.version}`) ? true : (seen.add(`${p.resultId}@${p.version}`), false)));

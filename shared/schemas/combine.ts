@@ -4,6 +4,7 @@
 import { z } from 'zod';
 import { ENVELOPE_MAX_INPUTS, ENVELOPE_MIN_INPUTS } from '../combine/envelope';
 import { intField, uuidParam } from './common';
+import type { ResultVersion } from './results';
 
 /** Build an envelope from 2–20 result versions; as a new result, or a new version of `resultId`. */
 export const createEnvelopeSchema = z.object({
@@ -16,3 +17,6 @@ export const createEnvelopeSchema = z.object({
   resultId: uuidParam.optional(),
 });
 export type CreateEnvelopeInput = z.input<typeof createEnvelopeSchema>;
+
+/** The answer to building an envelope: the stored version, and per curve point the input chosen (an index into `inputs`). */
+export type EnvelopeVersion = ResultVersion & { choice: { chosen: number[]; crossing: boolean[]; segments: { input: number; from: number; to: number }[] } };
