@@ -184,7 +184,7 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.getByRole('button', { name: 'Cite version 1 of this figure', exact: true }).click();
     const bibtex = await page.getByRole('region', { name: 'Citation of version 1 of this figure' }).getByRole('textbox', { name: 'BibTeX text' }).inputValue();
     expect(bibtex).toContain(`url = {${e.base}/f/${seeded.figure.id}}`);
-    expect(bibtex).toContain('title = {Halcyon Ring Z′ limits, one column}');
+    expect(bibtex).toContain('title = {{Halcyon Ring Z′ limits, one column}}');
     await fullShot(page, vp, 'public-figure');
 
     await pin.click();
