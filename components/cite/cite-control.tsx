@@ -67,7 +67,8 @@ export function CiteControl({ source, what }: { source: Omit<CiteSource, 'access
 }
 
 function CiteBox({ title, text, copyLabel, ref }: { title: string; text: string; copyLabel: string; ref?: Ref<TextInput> }) {
-  const lines = text.split('\n').length;
+  // Long lines wrap on a phone: a few rows more than the text's own lines, then the box scrolls.
+  const rows = Math.min(text.split('\n').length + 3, 16);
   return (
     <View style={styles.box}>
       <View style={styles.boxHead}>
@@ -80,9 +81,9 @@ function CiteBox({ title, text, copyLabel, ref }: { title: string; text: string;
         editable={false}
         multiline
         selectTextOnFocus
-        numberOfLines={Math.min(lines, 16)}
+        numberOfLines={rows}
         aria-label={`${title} text`}
-        style={[styles.code, { height: Math.min(lines, 16) * 18 + 2 * space.sm + 2 }]}
+        style={[styles.code, { height: rows * 18 + 2 * space.sm + 2 }]}
       />
     </View>
   );
