@@ -39,6 +39,11 @@ export function usePermalink(slug: string, version: number | null) {
   return useQuery({ queryKey: keys.permalink(slug, version ?? 0), queryFn: () => api.results.byLink(slug, version!), enabled: !!slug && !!version });
 }
 
+/** `/r/<slug>`: the newest published version the caller may see; works signed out for public results. */
+export function useLatestPermalink(slug: string) {
+  return useQuery({ queryKey: keys.latestPermalink(slug), queryFn: () => api.results.latestByLink(slug), enabled: !!slug });
+}
+
 /** After any change to a result, every list and detail of results may be stale. */
 function useRefreshResults() {
   const qc = useQueryClient();

@@ -34,6 +34,7 @@ import type {
   GroupStyleView,
   LayerDataRequest,
   LayerDataResponse,
+  PublicFigureDetail,
   PublicFigureListQuery,
   PublicFigurePage,
   ResultHueView,
@@ -186,12 +187,15 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       createEnvelope: (groupId: string, input: CreateEnvelopeInput) => call<EnvelopeVersion>('POST', `/api/groups/${enc(groupId)}/envelopes`, input),
       /** A version by its permanent link, for anyone allowed to see it (public, or a member of its group). */
       byLink: (slug: string, version: number) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/v${version}`),
+      /** `/r/<slug>`: the newest published version the caller may see (404 `not_published` when the result has none). */
+      latestByLink: (slug: string) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/latest`),
       exportUrl: (groupId: string, resultId: string, version: number, format: 'csv' | 'json') =>
         `${base}/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/export.${format}`,
     },
     publicResults: {
       list: (query: { q?: string; page?: number; pageSize?: number } = {}) => call<ResultPage>('GET', `/api/public/results${qs(query)}`),
       get: (slug: string, version: number) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/v${version}`),
+      latest: (slug: string) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/latest`),
       exportUrl: (slug: string, version: number, format: 'csv' | 'json') => `${base}/api/public/results/${enc(slug)}/v${version}/export.${format}`,
     },
     scans: {
@@ -237,6 +241,8 @@ export function createApiClient(opts: ApiClientOptions = {}) {
     },
     publicFigures: {
       list: (query: PublicFigureListQuery = {}) => call<PublicFigurePage>('GET', `/api/public/figures${qs(query)}`),
+      /** A public figure's page: title, group, caption, the pinned versions the public may see, hidden-layer count. */
+      get: (figureId: string) => call<PublicFigureDetail>('GET', `/api/public/figures/${enc(figureId)}`),
       renderUrl: (figureId: string, format: RenderFormat, opts: { version?: number; size?: keyof typeof SIZE_PRESETS; dpi?: number } = {}) =>
         `${base}/api/public/figures/${enc(figureId)}/render.${format}${qs(opts)}`,
     },
