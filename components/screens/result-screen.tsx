@@ -35,6 +35,7 @@ export function ResultActions({ detail, version, role }: { detail: ResultDetail;
   const [reason, setReason] = useState('');
   const [errors, setErrors] = useState<FieldErrors>({});
   const [confirmDelete, setConfirmDelete] = useState(false);
+  const [confirmPublish, setConfirmPublish] = useState(false);
   const mayWrite = can(role, 'result.write');
   const mayPublish = can(role, 'result.publish');
   const hasPublished = detail.versions.some((v) => v.state === 'published' || v.state === 'superseded');
@@ -56,11 +57,27 @@ export function ResultActions({ detail, version, role }: { detail: ResultDetail;
       {version.state === 'draft' && mayPublish ? (
         <View style={styles.block}>
           <Checkbox label="Make the result public" hint="Anyone, signed in or not, can then open and download its published versions." checked={makePublic} onChange={setMakePublic} />
-          <Button label={`Publish version ${version.version}`} loading={publish.isPending} onPress={() => publish.mutate({ version: version.version, isPublic: makePublic })} />
-          <Text variant="caption">Published versions never change; a later version supersedes this one.</Text>
+          {confirmPublish ? (
+            <View style={styles.block} role="alertdialog" aria-label={`Publish version ${version.version}?`}>
+              <Text>
+                {`Publish version ${version.version}${makePublic ? ' for everyone' : ' for the group'}? This is permanent: a published version never changes and can only be retracted, with a reason everyone sees.`}
+              </Text>
+              <View style={styles.row}>
+                <Button
+                  label="Publish now"
+                  loading={publish.isPending}
+                  onPress={() => publish.mutate({ version: version.version, isPublic: makePublic }, { onSettled: () => setConfirmPublish(false) })}
+                />
+                <Button variant="ghost" label="Not yet" onPress={() => setConfirmPublish(false)} />
+              </View>
+            </View>
+          ) : (
+            <Button label={`Publish version ${version.version}…`} accessibilityLabel={`Publish version ${version.version}`} onPress={() => setConfirmPublish(true)} />
+          )}
+          <Text variant="caption">Published versions never change; a later version supersedes this one. The author is told by mail.</Text>
         </View>
       ) : null}
-      {version.state === 'draft' && !mayPublish ? <Text variant="muted">A curator or owner of the group publishes drafts.</Text> : null}
+      {version.state === 'draft' && !mayPublish ? <Text variant="muted">A curator or owner of the group publishes drafts; they were told by mail that this one awaits review.</Text> : null}
       {version.state === 'published' && mayPublish ? (
         retracting ? (
           <View style={styles.block}>

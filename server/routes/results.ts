@@ -153,12 +153,12 @@ export function resultsRouter(ctx: Ctx) {
     res.status(204).end();
   }));
 
-  r.post('/groups/:groupId/results/:resultId/versions/:version/publish', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: publishSchema }, async ({ params, body }, _req, res) => {
-    res.json(await results.publish(ctx, params.groupId, params.resultId, params.version, body));
+  r.post('/groups/:groupId/results/:resultId/versions/:version/publish', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: publishSchema }, async ({ params, body }, req, res) => {
+    res.json(await results.publish(ctx, params.groupId, actor(req), params.resultId, params.version, body));
   }));
 
-  r.post('/groups/:groupId/results/:resultId/versions/:version/retract', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: retractSchema }, async ({ params, body }, _req, res) => {
-    res.json(await results.retract(ctx, params.groupId, params.resultId, params.version, body.reason));
+  r.post('/groups/:groupId/results/:resultId/versions/:version/retract', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: retractSchema }, async ({ params, body }, req, res) => {
+    res.json(await results.retract(ctx, params.groupId, actor(req), params.resultId, params.version, body.reason));
   }));
 
   for (const format of ['csv', 'json'] as const) {

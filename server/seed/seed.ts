@@ -111,8 +111,8 @@ export async function seedDemoResults(ctx: Ctx): Promise<number> {
         : await resultsService.createResult(ctx, group.id, uploader, input, { slug: demo.slug });
       resultId = stored.resultId;
       if (v.then === 'draft') continue;
-      await resultsService.publish(ctx, group.id, resultId, stored.version, i === 0 ? { public: demo.isPublic } : {});
-      if (typeof v.then === 'object') await resultsService.retract(ctx, group.id, resultId, stored.version, v.then.retract);
+      await resultsService.publish(ctx, group.id, publisher, resultId, stored.version, i === 0 ? { public: demo.isPublic } : {});
+      if (typeof v.then === 'object') await resultsService.retract(ctx, group.id, publisher, resultId, stored.version, v.then.retract);
     }
     added += 1;
   }
