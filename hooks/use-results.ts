@@ -1,5 +1,5 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { ResultListQuery } from '@/shared/schemas/results';
+import type { PublicResultListQuery, ResultListQuery } from '@/shared/schemas/results';
 import type { CreateEnvelopeInput } from '@/shared/schemas/combine';
 import { api, keys } from './api';
 
@@ -14,11 +14,12 @@ export function useResults(query: ResultListQuery, enabled = true) {
 }
 
 /** Public published results, for anyone (signed in or not). */
-export function usePublicResults(query: { q?: string; page?: number; pageSize?: number }) {
+export function usePublicResults(query: PublicResultListQuery, enabled = true) {
   return useQuery({
     queryKey: keys.publicResults(query),
     queryFn: () => api.publicResults.list(query),
     placeholderData: keepPreviousData,
+    enabled,
   });
 }
 

@@ -19,6 +19,7 @@ import type {
   CreateResultInput,
   CreateVersionInput,
   ResultDetail,
+  PublicResultListQuery,
   ResultListQuery,
   ResultPage,
   ResultVersion,
@@ -193,7 +194,7 @@ export function createApiClient(opts: ApiClientOptions = {}) {
         `${base}/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/export.${format}`,
     },
     publicResults: {
-      list: (query: { q?: string; page?: number; pageSize?: number } = {}) => call<ResultPage>('GET', `/api/public/results${qs(query)}`),
+      list: (query: PublicResultListQuery = {}) => call<ResultPage>('GET', `/api/public/results${qs(query)}`),
       get: (slug: string, version: number) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/v${version}`),
       latest: (slug: string) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/latest`),
       exportUrl: (slug: string, version: number, format: 'csv' | 'json') => `${base}/api/public/results/${enc(slug)}/v${version}/export.${format}`,

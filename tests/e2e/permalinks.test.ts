@@ -127,6 +127,25 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await context.close();
   });
 
+  test('the public list searches Zprime as Z′ and has the signed-in list\'s filters', async () => {
+    const { page, context } = await newPage(e, vp);
+    await page.goto('/public');
+    await page.getByLabel('Search public results').fill('Zprime');
+    await page.getByRole('link', { name: new RegExp(`^${seeded.current.title.slice(0, 12)}`) }).first().waitFor();
+    // On phones the filters start folded.
+    const unfold = page.getByRole('button', { name: /^Filters and sort/ });
+    if (await unfold.count()) await unfold.click();
+    await page.getByRole('button', { name: 'Method: Any method', exact: true }).click();
+    await page.getByRole('radio', { name: 'Pseudo-experiment CLs', exact: true }).click();
+    await page.getByRole('region', { name: 'No public results match' }).waitFor();
+    expect(page.url()).toContain('method=toys');
+    expect(await page.getByRole('button', { name: /^State:/ }).count()).toBe(0);
+    await page.getByRole('button', { name: 'Clear filters', exact: true }).click();
+    await page.getByRole('link', { name: new RegExp(`^${seeded.current.title.slice(0, 12)}`) }).first().waitFor();
+    expect(pageErrors(page)).toEqual([]);
+    await context.close();
+  });
+
   test('an older version says a newer one is published and links to it', async () => {
     const { page, context } = await newPage(e, vp);
     await page.goto(`/r/${seeded.current.slug}/v1`);
