@@ -67,6 +67,19 @@ export function useCreateEnvelope(groupId: string) {
   return useMutation({ mutationFn: (input: CreateEnvelopeInput) => api.results.createEnvelope(groupId, input), onSuccess: () => refresh() });
 }
 
+/**
+ * The envelope of the picked inputs as it would be stored, recomputed when they change (nothing
+ * is stored); its error carries the refusals naming `inputs.N`.
+ */
+export function useEnvelopePreview(groupId: string, inputs: { resultId: string; version: number }[]) {
+  return useQuery({
+    queryKey: ['results', 'envelope-preview', groupId, inputs],
+    queryFn: () => api.results.previewEnvelope(groupId, { inputs }),
+    enabled: !!groupId && inputs.length >= 2,
+    retry: false,
+  });
+}
+
 export function usePublishVersion(groupId: string, resultId: string) {
   const refresh = useRefreshResults();
   return useMutation({

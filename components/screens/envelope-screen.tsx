@@ -5,14 +5,18 @@ import { can } from '@/shared/access';
 import { ApiError } from '@/shared/api-client';
 import { ENVELOPE_MAX_INPUTS, ENVELOPE_MIN_INPUTS } from '@/shared/combine/envelope';
 import { useCurrentGroup } from '@/hooks/use-current-group';
-import { useCreateEnvelope } from '@/hooks/use-results';
+import { useCreateEnvelope, useEnvelopePreview } from '@/hooks/use-results';
+import { useIsWide } from '@/hooks/use-layout';
 import { colors, radii, space } from '@/themes/tokens';
+import { QuickPlot } from '../plot/quick-plot';
+import { axisLabels } from '../results/format';
 import { ResultPicker } from '../results/result-picker';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
 import { EmptyState } from '../ui/empty-state';
 import { errorMessage } from '../ui/form';
+import { Loading } from '../ui/loading';
 import { Screen } from '../ui/screen';
 import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
@@ -43,6 +47,8 @@ export function NewEnvelopeScreen() {
   const [picks, setPicks] = useState<Pick[]>([]);
   const [title, setTitle] = useState('');
   const create = useCreateEnvelope(group?.id ?? '');
+  const preview = useEnvelopePreview(group?.id ?? '', picks);
+  const wide = useIsWide();
   const [names, setNames] = useState<Record<string, string>>({});
 
   if (!group) {
@@ -61,7 +67,10 @@ export function NewEnvelopeScreen() {
   }
 
   const key = (p: Pick) => `${p.resultId}@${p.version}`;
-  const { byInput, other } = refusals(create.error);
+  // What the preview refused (before anything is stored), or what building refused.
+  const { byInput, other } = refusals(create.error ?? preview.error);
+  const p = preview.data && !preview.error ? preview.data : null;
+  const labels = p ? axisLabels(p.meta) : null;
   const tooFew = picks.length < ENVELOPE_MIN_INPUTS;
   const full = picks.length >= ENVELOPE_MAX_INPUTS;
   const submit = () =>
@@ -114,12 +123,34 @@ export function NewEnvelopeScreen() {
           />
         )}
       </Card>
+      {picks.length >= 2 ? (
+        <Card>
+          <Text variant="title">Preview</Text>
+          {preview.isFetching && !p ? <Loading label="Checking the inputs and computing the envelope…" /> : null}
+          {p && labels ? (
+            <View style={[styles.preview, preview.isFetching && styles.stale]}>
+              <QuickPlot curve={p.curve} theory={p.theory} xLabel={labels.x} yLabel={labels.y} height={wide ? 300 : 240} />
+              <Text variant="label">Which input where</Text>
+              <View role="list" aria-label="Which input the envelope takes where">
+                {p.choice.segments.map((seg, k) => (
+                  <Text key={k} role="listitem">
+                    {`${fmt(seg.from)}–${fmt(seg.to)}${p.meta.parameterUnit ? ` ${p.meta.parameterUnit}` : ''}: ${p.inputs[seg.input]!.title} v${p.inputs[seg.input]!.version}`}
+                  </Text>
+                ))}
+              </View>
+              {p.inputs.some((_, i) => !p.choice.chosen.includes(i)) ? (
+                <Text variant="caption">{`Never the lowest expected limit, so not used: ${p.inputs.filter((_, i) => !p.choice.chosen.includes(i)).map((i) => i.title).join('; ')}.`}</Text>
+              ) : null}
+            </View>
+          ) : null}
+        </Card>
+      ) : null}
       <Card>
         <TextField label="Title of the envelope" hint="Empty: “Best expected of N: ” and the first input's title." value={title} onChangeText={setTitle} maxLength={200} />
         {other.length ? <Banner tone="error" message={other.join(' · ')} /> : null}
-        {create.error && !(create.error instanceof ApiError && create.error.details.length) ? <Banner tone="error" message={errorMessage(create.error)!} /> : null}
+        {[create.error, preview.error].map((e, k) => (e && !(e instanceof ApiError && e.details.length) ? <Banner key={k} tone="error" message={errorMessage(e)!} /> : null))}
         {byInput.size ? <Banner tone="error" message="Some inputs cannot be combined: see the messages beside them." /> : null}
-        <Button label="Build the envelope" disabled={tooFew} loading={create.isPending} onPress={submit} accessibilityHint="Stores the envelope as a draft result and opens it" />
+        <Button label="Build the envelope" disabled={tooFew || !!preview.error} loading={create.isPending} onPress={submit} accessibilityHint="Stores the envelope as a draft result and opens it" />
         {tooFew ? <Text variant="caption">Add at least {ENVELOPE_MIN_INPUTS} inputs.</Text> : null}
       </Card>
     </Screen>
@@ -131,4 +162,9 @@ const styles = StyleSheet.create({
   inputBad: { borderColor: colors.danger },
   grow: { flex: 1, minWidth: 0, gap: space.xs },
   error: { color: colors.danger },
+  preview: { gap: space.sm },
+  stale: { opacity: 0.6 },
 });
+
+/** A parameter value with at most four significant digits (crossings fall between grid points). */
+const fmt = (x: number) => String(Number(x.toPrecision(4)));

@@ -64,17 +64,25 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     const build = page.getByRole('button', { name: 'Build the envelope', exact: true });
     expect(await build.isDisabled()).toBe(true);
 
-    // A limit on μ cannot join limits on σ×B: refused, and said beside that input.
+    // A limit on μ cannot join limits on σ×B: the check refuses it before anything is stored, beside that input.
     await pick(page, `Scalar to photons ${vp}`);
     await pick(page, `Scalar signal strength ${vp}`);
-    await build.click();
     const bad = page.getByRole('group', { name: new RegExp(`^Input 2: Scalar signal strength ${vp}`) });
     await page.getByText('Some inputs cannot be combined: see the messages beside them.', { exact: true }).waitFor();
     expect(await bad.innerText()).toMatch(/μ|mu|quantit/i);
     await fullShot(page, vp, 'envelope-refused');
     await page.getByRole('button', { name: 'Remove input 2', exact: true }).click();
 
+    expect(await build.isDisabled()).toBe(true);
     await pick(page, `Scalar to jets ${vp}`);
+    // The preview: the curve and which input it takes where (photons below the crossing, jets above).
+    const where = page.getByRole('list', { name: 'Which input the envelope takes where' });
+    await where.waitFor();
+    const stretches = await where.getByRole('listitem').allInnerTexts();
+    expect(stretches).toHaveLength(2);
+    expect(stretches[0]).toMatch(new RegExp(`^1–2\\.079 TeV: Scalar to photons ${vp} v1$`));
+    expect(stretches[1]).toMatch(new RegExp(`^2\\.079–4 TeV: Scalar to jets ${vp} v1$`));
+    await fullShot(page, vp, 'envelope-preview');
     await page.getByLabel('Title of the envelope').fill(`Scalar envelope ${vp}`);
     await build.click();
     await page.getByRole('heading', { name: `Scalar envelope ${vp}`, exact: true }).waitFor();
