@@ -93,6 +93,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const [meta, setMeta] = useState<MetaDraft>(initialMeta ?? EMPTY_META);
   const [touched, setTouched] = useState<Set<string>>(new Set());
   const [changeNote, setChangeNote] = useState('');
+  const [theoryLabel, setTheoryLabel] = useState('');
   const [fromServer, setFromServer] = useState<Problem[]>([]);
   const [serverFields, setServerFields] = useState<FieldErrors>({});
 
@@ -179,6 +180,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
       meta: metaCheck.data,
       mapping: analysed?.kind === 'csv' ? mapping : undefined,
       changeNote: isVersion ? changeNote.trim() : undefined,
+      theoryLabel: preview?.theory ? theoryLabel : undefined,
     });
     save.mutate(body, {
       onSuccess: (v) => router.replace(`/groups/${target.groupId}/results/${v.resultId}?v=${v.version}` as Href),
@@ -256,6 +258,16 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
         />
       ) : null}
       <MetaForm value={meta} onChange={changeMeta} errors={shownErrors} onTouch={touch} />
+      {preview?.theory ? (
+        <TextField
+          label="Name of the theory curve"
+          hint={`Shown in figure legends, e.g. “V′ benchmark (NLO)”.${preview.theory.label ? ` Empty: “${preview.theory.label}” from the file.` : ''}`}
+          value={theoryLabel}
+          onChangeText={setTheoryLabel}
+          maxLength={120}
+          error={serverFields.theoryLabel}
+        />
+      ) : null}
     </Step>
   );
 

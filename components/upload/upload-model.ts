@@ -295,10 +295,11 @@ export function draftFromMeta(m: VersionMeta): MetaDraft {
  * The multipart body of an upload: the file as picked, the checked provenance and, for CSV, the
  * confirmed column roles (column indexes by role).
  */
-export function uploadForm(opts: { file: Blob; fileName: string; meta: VersionMeta; mapping?: ColumnMapping; changeNote?: string }): FormData {
+export function uploadForm(opts: { file: Blob; fileName: string; meta: VersionMeta; mapping?: ColumnMapping; changeNote?: string; theoryLabel?: string }): FormData {
   const form = new FormData();
   form.append('meta', JSON.stringify(opts.meta));
   if (opts.mapping) form.append('mapping', JSON.stringify(opts.mapping));
+  if (opts.theoryLabel?.trim()) form.append('theoryLabel', opts.theoryLabel.trim());
   if (opts.changeNote !== undefined) form.append('changeNote', opts.changeNote);
   form.append('file', opts.file, opts.fileName);
   return form;
@@ -315,7 +316,7 @@ export function splitServerDetails(error: unknown): { problems: Problem[]; field
   if (!(error instanceof ApiError)) return { problems, fields };
   for (const d of error.details) {
     const at = /^(?:line|point) (\d+), (.+)$/.exec(d.field);
-    const field = /^meta\.(\w+)/.exec(d.field)?.[1] ?? (d.field === 'changeNote' ? 'changeNote' : undefined);
+    const field = /^meta\.(\w+)/.exec(d.field)?.[1] ?? (d.field === 'changeNote' || d.field === 'theoryLabel' ? d.field : undefined);
     if (at) problems.push({ row: Number(at[1]), column: at[2]!, reason: d.message });
     else if (field) fields[field] ??= d.message.charAt(0).toUpperCase() + d.message.slice(1);
     else problems.push({ column: d.field || 'file', reason: d.message });

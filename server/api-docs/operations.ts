@@ -143,6 +143,7 @@ const resultUploadForm = z.object({
   file: fileField('The CSV file (comma, semicolon or tab; UTF-8; columns recognised by their names) or the project\'s JSON file ("format": "bandwright-limit-result/1").'),
   meta: versionMetaSchema.optional().meta({ description: 'The provenance, as JSON text. Required with a CSV file; with the project\'s JSON file it replaces the file\'s own.' }),
   mapping: mappingSchema.optional().meta({ description: 'JSON text: role → column number from 0 (e.g. {"x":0,"observed":2}), when the headers do not say.' }),
+  theoryLabel: z.string().max(120).optional().meta({ description: 'The name of the file\'s theory curve (e.g. "V′ benchmark (NLO)"), shown in figure legends; replaces a name the file gives.' }),
 });
 const versionUploadForm = resultUploadForm.extend({ changeNote: createVersionSchema.shape.changeNote });
 const uploadFormNote = 'Parts `meta` and `mapping` are JSON text. One file, at most 20 fields of up to 256 KB each.';

@@ -8,6 +8,7 @@ import {
   createVersionSchema,
   LIMIT_FILE_FORMAT,
   MAX_CURVE_POINTS,
+  theorySchema,
   versionMetaSchema,
   type Curve,
   type Theory,
@@ -237,7 +238,7 @@ export async function readUploadedFile(job: FileJob): Promise<FileReading> {
  * A multipart upload: `file` (CSV, or the project's JSON detected by extension or content),
  * `meta` (JSON text; optional for the project's JSON file, where it replaces the file's own),
  * `mapping` (JSON text, role → column number; detected from the headers when absent) and, for a
- * new version, `changeNote`.
+ * new version, `changeNote`; `theoryLabel` names the file's theory curve.
  */
 export async function fromFileUpload(upload: FileUpload, opts: { changeNote: boolean }): Promise<NormalizedVersion & { changeNote?: string }> {
   const { fields } = upload;
@@ -247,6 +248,8 @@ export async function fromFileUpload(upload: FileUpload, opts: { changeNote: boo
   let meta = parseWith(versionMetaSchema, metaRaw, 'meta', details);
   const mapping = parseWith(mappingSchema, jsonField(fields, 'mapping', details), 'mapping', details);
   const changeNote = opts.changeNote ? parseWith(changeNoteSchema, fields.changeNote ?? '', 'changeNote', details) : undefined;
+  // The theory curve's name (the legend's "theory" entry), when the file's theory columns have none.
+  const theoryLabel = fields.theoryLabel !== undefined ? parseWith(theorySchema.shape.label, fields.theoryLabel, 'theoryLabel', details) : undefined;
 
   const file = upload.file;
   let reading: FileReading | undefined;
@@ -269,7 +272,7 @@ export async function fromFileUpload(upload: FileUpload, opts: { changeNote: boo
   return {
     meta: canonicalMeta(meta),
     curve: canonicalCurve(reading.curve),
-    theory: reading.theory,
+    theory: reading.theory && theoryLabel ? { ...reading.theory, label: theoryLabel } : reading.theory,
     source: { name: file!.name, data: file!.data },
     ...(reading.warnings.length ? { warnings: reading.warnings } : {}),
     ...(changeNote !== undefined ? { changeNote } : {}),

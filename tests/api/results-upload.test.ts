@@ -29,6 +29,16 @@ function uploadCsv(person: Person, groupId: string, content: string | Buffer, op
 const storageOf = async (groupId: string) => (await crew.owner.agent.get(`/api/groups/${groupId}`)).body.storageBytes as number;
 
 describe('good uploads', () => {
+  test('the theory curve of a CSV is named at upload (theoryLabel); a name too long is refused by field', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    const named = await uploadCsv(crew.analyst, groupId, sampleCsv()).field('theoryLabel', 'Z* benchmark (NLO)');
+    expect(named.status).toBe(201);
+    expect((named.body as ResultVersion).theory?.label).toBe('Z* benchmark (NLO)');
+    const long = await uploadCsv(crew.analyst, groupId, sampleCsv()).field('theoryLabel', 'x'.repeat(121));
+    expect(long.status).toBe(400);
+    expect(details(long.body).map((d) => d.field)).toEqual(['theoryLabel']);
+  });
+
   test('a comma CSV with bands and theory becomes draft version 1 with every column', async () => {
     const { groupId } = await makeGroupWithRoles(t, { crew });
     const csv = sampleCsv();
