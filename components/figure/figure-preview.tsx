@@ -10,7 +10,7 @@ import { Banner } from '../ui/banner';
 import { errorMessage } from '../ui/form';
 import { Loading } from '../ui/loading';
 import { Text } from '../ui/text';
-import { SceneView } from './scene-view';
+import { SceneView, type Placing } from './scene-view';
 
 /** Layout from the server's typeset metrics, the same ones its renderers use. */
 function measureFrom(glyphs: Glyphs): Measure {
@@ -30,7 +30,7 @@ function sameLayers(data: FigureLayerData[], spec: FigureSpec): boolean {
  * The live preview: the shared scene builder on the layers' data, drawn with the server's typeset
  * labels, so it is the figure the exports will contain.
  */
-export function FigurePreview({ spec, style, data }: { spec: FigureSpec; style: HouseStyle | null; data: UseQueryResult<FigureLayerData[]> }) {
+export function FigurePreview({ spec, style, data, placing }: { spec: FigureSpec; style: HouseStyle | null; data: UseQueryResult<FigureLayerData[]>; placing?: Placing | null }) {
   const settled = useDebounced(spec, 250);
   const theme = useMemo(() => resolveFigureTheme(settled.theme, style), [settled.theme, style]);
   const labels = useMemo(() => (data.data ? collectLabels(settled, data.data, theme) : []), [settled, data.data, theme]);
@@ -47,7 +47,8 @@ export function FigurePreview({ spec, style, data }: { spec: FigureSpec; style: 
       {data.error ? <Banner tone="error" message={errorMessage(data.error)!} /> : null}
       {error ? <Banner tone="error" message={`The labels could not be typeset: ${errorMessage(error)}`} /> : null}
       {!scene && !data.error && !error ? <Loading label="Drawing the preview…" /> : null}
-      {scene ? <SceneView scene={scene} glyphs={glyphs} accessibilityLabel={`Preview of the figure “${settled.title}” with ${settled.layers.length} layer(s)`} /> : null}
+      {placing ? <Banner tone="info" message={`Press or drag on the preview to place annotation ${placing.index + 1}; its “across” and “up” fields change with it.`} /> : null}
+      {scene ? <SceneView scene={scene} glyphs={glyphs} placing={placing} accessibilityLabel={`Preview of the figure “${settled.title}” with ${settled.layers.length} layer(s)`} /> : null}
       {scene?.notes.map((n) => (
         <Banner key={n} tone="warning" message={n} />
       ))}

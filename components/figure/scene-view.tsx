@@ -1,6 +1,7 @@
-import { useState } from 'react';
-import { View, type LayoutChangeEvent } from 'react-native';
+import { useRef, useState } from 'react';
+import { Platform, View, type LayoutChangeEvent } from 'react-native';
 import Svg, { ClipPath, Defs, G, Path, Rect } from 'react-native-svg';
+import { annotationPlace } from '@/shared/figure/place';
 import { labelKey, type Glyphs, type Primitive, type Scene } from '@/shared/figure/types';
 
 /** Where a typeset label starts, from its anchor point and width. */
@@ -13,8 +14,13 @@ function labelOrigin(p: Extract<Primitive, { kind: 'text' }>, width: number): nu
  * outlines as the server's SVG, PDF and PNG, scaled to the width available. Labels are paths, so
  * no user text is ever interpreted as markup.
  */
-export function SceneView({ scene, glyphs, accessibilityLabel, maxWidth }: { scene: Scene; glyphs: Glyphs; accessibilityLabel: string; maxWidth?: number }) {
+/** Placing an annotation with the pointer: each press or drag moves it there; `onEnd` when the button is let go. */
+export type Placing = { index: number; onMove: (place: { x: number; y: number }) => void; onEnd: () => void };
+
+export function SceneView({ scene, glyphs, accessibilityLabel, maxWidth, placing }: { scene: Scene; glyphs: Glyphs; accessibilityLabel: string; maxWidth?: number; placing?: Placing | null }) {
   const [width, setWidth] = useState(0);
+  const box = useRef<View>(null);
+  const down = useRef(false);
   const onLayout = (e: LayoutChangeEvent) => {
     const w = Math.floor(e.nativeEvent.layout.width);
     if (w !== width) setWidth(w);
@@ -22,8 +28,36 @@ export function SceneView({ scene, glyphs, accessibilityLabel, maxWidth }: { sce
   const shown = Math.min(width, maxWidth ?? Number.POSITIVE_INFINITY);
   const height = shown > 0 ? (shown * scene.heightPt) / scene.widthPt : 0;
   const clipId = 'plot-clip';
+  // Pointer placement (web): the page point under the pointer, in the scene's points.
+  const at = (e: { nativeEvent: { clientX?: number; clientY?: number } }) => {
+    const node = box.current as unknown as { getBoundingClientRect?: () => { left: number; top: number } } | null;
+    const r = node?.getBoundingClientRect?.();
+    if (!r || shown <= 0 || e.nativeEvent.clientX === undefined || e.nativeEvent.clientY === undefined) return null;
+    const k = scene.widthPt / shown;
+    return annotationPlace(scene.plot, (e.nativeEvent.clientX - r.left) * k, (e.nativeEvent.clientY - r.top) * k);
+  };
+  const pointer =
+    placing && Platform.OS === 'web'
+      ? {
+          onPointerDown: (e: { nativeEvent: { clientX?: number; clientY?: number } }) => {
+            down.current = true;
+            const p = at(e);
+            if (p) placing.onMove(p);
+          },
+          onPointerMove: (e: { nativeEvent: { clientX?: number; clientY?: number } }) => {
+            if (!down.current) return;
+            const p = at(e);
+            if (p) placing.onMove(p);
+          },
+          onPointerUp: () => {
+            if (!down.current) return;
+            down.current = false;
+            placing.onEnd();
+          },
+        }
+      : {};
   return (
-    <View onLayout={onLayout} role="img" aria-label={accessibilityLabel} style={{ width: '100%' }}>
+    <View ref={box} onLayout={onLayout} role="img" aria-label={accessibilityLabel} style={[{ width: '100%' }, placing ? ({ cursor: 'crosshair', touchAction: 'none' } as object) : null]} {...pointer}>
       {shown > 0 ? (
         <Svg width={shown} height={height} viewBox={`0 0 ${scene.widthPt} ${scene.heightPt}`}>
           <Defs>

@@ -39,7 +39,19 @@ function AxisControls({ name, axis, onChange }: { name: 'x' | 'y'; axis: AxisSpe
 }
 
 /** Theme, size, axes, legend and the free labels of a figure. */
-export function StylePanel({ spec, onChange }: { spec: FigureSpec; onChange: (next: FigureSpec, mergeKey?: string) => void }) {
+export function StylePanel({
+  spec,
+  onChange,
+  placing,
+  onPlace,
+}: {
+  spec: FigureSpec;
+  onChange: (next: FigureSpec, mergeKey?: string) => void;
+  /** The annotation being placed with the pointer on the preview, if any. */
+  placing?: number | null;
+  /** Start (an index) or stop (null) placing an annotation on the preview; the fields stay the keyboard way. */
+  onPlace?: (index: number | null) => void;
+}) {
   const preset = (spec.size.preset === 'custom' ? 'web' : spec.size.preset) as Preset;
   return (
     <View style={styles.col}>
@@ -71,7 +83,19 @@ export function StylePanel({ spec, onChange }: { spec: FigureSpec; onChange: (ne
               <TextField label={`Annotation ${i + 1} up (0–1)`} value={String(a.y)} inputMode="decimal" onChangeText={(t) => onChange({ ...spec, annotations: spec.annotations.map((x, k) => (k === i ? { ...x, y: Math.min(1, Math.max(0, num(t) ?? 0)) } : x)) }, `annotation-y-${i}`)} />
             </View>
           </View>
-          <Button compact variant="ghost" label="Remove" accessibilityLabel={`Remove annotation ${i + 1}`} style={styles.start} onPress={() => onChange({ ...spec, annotations: spec.annotations.filter((_, k) => k !== i) })} />
+          <View style={styles.row}>
+            {onPlace ? (
+              <Button
+                compact
+                variant="secondary"
+                label={placing === i ? 'Stop placing' : 'Place on the preview'}
+                accessibilityLabel={placing === i ? `Stop placing annotation ${i + 1}` : `Place annotation ${i + 1} on the preview`}
+                aria-pressed={placing === i}
+                onPress={() => onPlace(placing === i ? null : i)}
+              />
+            ) : null}
+            <Button compact variant="ghost" label="Remove" accessibilityLabel={`Remove annotation ${i + 1}`} onPress={() => onChange({ ...spec, annotations: spec.annotations.filter((_, k) => k !== i) })} />
+          </View>
         </View>
       ))}
       {spec.annotations.length < 10 ? (

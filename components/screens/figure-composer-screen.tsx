@@ -65,6 +65,7 @@ function Composer({ groupId, figure: f }: { groupId: string; figure: FigureDetai
   const [note, setNote] = useState('');
   const [problem, setProblem] = useState<string | null>(null);
   const [confirmDelete, setConfirmDelete] = useState(false);
+  const [placing, setPlacing] = useState<number | null>(null);
   const layerData = useLayerData(groupId, history.present.layers);
 
   // Start editing from the stored latest version again after each save.
@@ -104,13 +105,27 @@ function Composer({ groupId, figure: f }: { groupId: string; figure: FigureDetai
         <LayersPanel groupId={groupId} spec={spec} onChange={change} data={layerData.data} info={f?.latest.layers ?? []} palette={style.data?.style?.palette} />
       </Section>
       <Section title="Look and labels" initiallyOpen={wide}>
-        <StylePanel spec={spec} onChange={change} />
+        <StylePanel spec={spec} onChange={change} placing={placing} onPlace={setPlacing} />
       </Section>
     </View>
   );
   const preview = (
     <Card>
-      <FigurePreview spec={spec} style={style.data?.style ?? null} data={layerData} />
+      <FigurePreview
+        spec={spec}
+        style={style.data?.style ?? null}
+        data={layerData}
+        placing={
+          placing !== null && placing < spec.annotations.length
+            ? {
+                index: placing,
+                // One drag is one undo step.
+                onMove: (p) => change({ ...spec, annotations: spec.annotations.map((a, k) => (k === placing ? { ...a, ...p } : a)) }, `annotation-place-${placing}`),
+                onEnd: () => setPlacing(null),
+              }
+            : null
+        }
+      />
     </Card>
   );
 

@@ -13,5 +13,6 @@ export { figureCsv, captionDraft } from './export';
 export { splitLabel, labelPlainText, type LabelSegment } from './labels';
 export { outreachSpec } from './outreach';
 export { sizePt } from './plan';
+export { annotationPlace } from './place';
 export { hueColor, paletteProblems, PALETTE_THRESHOLDS } from './color';
 export * from './types';

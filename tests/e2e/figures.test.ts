@@ -96,6 +96,23 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.getByRole('button', { name: 'Undo', exact: true }).click();
     await page.getByRole('button', { name: 'Size: Slide, 16:9 (25.4 cm)', exact: true }).waitFor();
     await offPage.waitFor({ state: 'detached' });
+    // An annotation placed by dragging on the preview (the fields are the keyboard way and follow it).
+    await page.getByRole('button', { name: 'Add an annotation', exact: true }).click();
+    await page.getByRole('button', { name: 'Place annotation 1 on the preview', exact: true }).click();
+    await page.getByText(/^Press or drag on the preview to place annotation 1/).waitFor();
+    const box = (await preview.boundingBox())!;
+    await page.mouse.move(box.x + box.width * 0.3, box.y + box.height * 0.3);
+    await page.mouse.down();
+    await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.45, { steps: 5 });
+    await page.mouse.up();
+    await page.getByRole('button', { name: 'Place annotation 1 on the preview', exact: true }).waitFor();
+    const across = Number(await page.getByLabel('Annotation 1 across (0–1)', { exact: true }).inputValue());
+    const up = Number(await page.getByLabel('Annotation 1 up (0–1)', { exact: true }).inputValue());
+    expect([across, up]).not.toEqual([0.05, 0.6]);
+    expect(across).toBeGreaterThan(0.2);
+    expect(across).toBeLessThan(0.8);
+    expect(up).toBeGreaterThan(0.2);
+    expect(up).toBeLessThan(0.8);
     // Leaving with unsaved edits asks first: refused, the composer stays.
     page.once('dialog', (d) => void d.dismiss());
     await page.getByRole('link', { name: 'Results', exact: true }).click();
