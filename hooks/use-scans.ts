@@ -52,3 +52,12 @@ export function useCancelScan(groupId: string, scanId: string) {
     },
   });
 }
+
+/** Reruns one point of an ended pseudo-experiment scan with more pseudo-experiments (a new scan). */
+export function useRerunPoint(groupId: string, scanId: string, index: number) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (toys: number) => api.scans.rerunPoint(groupId, scanId, index, { toys }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: scanKeys.list(groupId) }),
+  });
+}

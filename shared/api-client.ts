@@ -43,7 +43,7 @@ import type {
   TypesetResponse,
 } from './schemas/figure-views';
 import type { FigureSpecInput, HouseStyle, RenderFormat, SIZE_PRESETS } from './schemas/figures';
-import type { CreateScanInput } from './schemas/scans';
+import type { CreateScanInput, RerunPointInput } from './schemas/scans';
 
 /** `?a=1&b=x` from the defined entries of a query object ('' when none). */
 function qs(query: Record<string, string | number | boolean | undefined>): string {
@@ -209,6 +209,9 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       cancel: (groupId: string, scanId: string) => call<ScanDetail>('POST', `/api/groups/${enc(groupId)}/scans/${enc(scanId)}/cancel`, {}),
       point: (groupId: string, scanId: string, index: number) =>
         call<ScanPointDetail>('GET', `/api/groups/${enc(groupId)}/scans/${enc(scanId)}/points/${index}`),
+      /** A new scan: the other points copied, this one queued with `toys` pseudo-experiments per hypothesis. */
+      rerunPoint: (groupId: string, scanId: string, index: number, input: RerunPointInput) =>
+        call<ScanDetail>('POST', `/api/groups/${enc(groupId)}/scans/${enc(scanId)}/points/${index}/rerun`, input),
       inputsUrl: (groupId: string, scanId: string) => `${base}/api/groups/${enc(groupId)}/scans/${enc(scanId)}/inputs.json`,
     },
     figures: {

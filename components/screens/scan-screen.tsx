@@ -1,4 +1,4 @@
-import { Link, useLocalSearchParams } from 'expo-router';
+import { Link, useLocalSearchParams, useRouter } from 'expo-router';
 import { useState } from 'react';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import { EXPECTED_KEYS } from '@/shared/schemas/counting-model';
@@ -7,11 +7,12 @@ import type { ScanDetail, ScanPointSummary } from '@/shared/schemas/scan-views';
 import { api } from '@/hooks/api';
 import { useCurrentGroup } from '@/hooks/use-current-group';
 import { useIsWide } from '@/hooks/use-layout';
-import { useCancelScan, useScan, useScanPoint } from '@/hooks/use-scans';
+import { useCancelScan, useRerunPoint, useScan, useScanPoint } from '@/hooks/use-scans';
 import { colors, fonts, radii, space } from '@/themes/tokens';
 import { ClsPlot } from '../compute/cls-plot';
 import { fmt, fmtFitted, LimitSummary } from '../compute/limit-summary';
 import { PullsTable } from '../compute/pulls-table';
+import { RerunPoint } from '../scans/rerun-point';
 import { QuickPlot } from '../plot/quick-plot';
 import { Anchor } from '../ui/anchor';
 import { Hatted } from '../ui/hatted';
@@ -53,7 +54,23 @@ function pointState(p: ScanPointSummary): string {
   return p.tasks.running > 0 ? `running${chunks}` : `queued${chunks}`;
 }
 
-function Diagnostics({ groupId, scanId, index, unit }: { groupId: string; scanId: string; index: number; unit: string }) {
+/** The rerun control of a point, wired to the API: on success the new scan's progress page opens. */
+function RerunControl({ groupId, scanId, index, x, current, max }: { groupId: string; scanId: string; index: number; x: string; current: number; max: number }) {
+  const rerun = useRerunPoint(groupId, scanId, index);
+  const router = useRouter();
+  return (
+    <RerunPoint
+      x={x}
+      current={current}
+      max={max}
+      pending={rerun.isPending}
+      error={rerun.error}
+      onRerun={(toys) => rerun.mutate(toys, { onSuccess: (scan) => router.push(`/groups/${groupId}/scans/${scan.id}`) })}
+    />
+  );
+}
+
+function Diagnostics({ groupId, scanId, index, unit, canRerun }: { groupId: string; scanId: string; index: number; unit: string; canRerun: boolean }) {
   const p = useScanPoint(groupId, scanId, index);
   if (p.isPending) return <Loading label="Loading diagnostics…" />;
   if (p.error) return <Banner tone="error" message={errorMessage(p.error)!} />;
@@ -84,7 +101,9 @@ function Diagnostics({ groupId, scanId, index, unit }: { groupId: string; scanId
       <Text variant="caption">
         Attempts: {d.attempts}
         {d.computeMs !== null ? ` · computed in ${fmt(d.computeMs, 3)} ms` : ''}
+        {d.rerun ? ` · ${d.rerun.toys.toLocaleString('en')} pseudo-experiments per hypothesis` : ''}
       </Text>
+      {canRerun && d.rerun ? <RerunControl key={`${scanId}-${index}`} groupId={groupId} scanId={scanId} index={index} x={fmt(d.x, 6)} current={d.rerun.toys} max={d.rerun.maxToys} /> : null}
     </Card>
   );
 }
@@ -186,7 +205,7 @@ export function ScanScreen() {
           </Card>
         </View>
         <View style={[styles.col, wide && styles.side]}>
-          {picked !== null ? <Diagnostics groupId={groupId!} scanId={scanId!} index={picked} unit={unit} /> : <Banner tone="info" message="Choose a grid point to see its diagnostics." />}
+          {picked !== null ? <Diagnostics groupId={groupId!} scanId={scanId!} index={picked} unit={unit} canRerun={!running && s.options.method === 'toys' && can('result.write')} /> : <Banner tone="info" message="Choose a grid point to see its diagnostics." />}
         </View>
       </View>
     </Screen>

@@ -81,6 +81,11 @@ export async function getPoint(db: Executor, groupId: string, scanId: string, in
   return rows[0];
 }
 
+/** Every point of a scan with its input and outcome, for a rerun that copies them. */
+export async function listPointsForCopy(db: Executor, groupId: string, scanId: string) {
+  return db.select().from(scanPoints).where(inArray(scanPoints.scanId, scanOfGroup(db, groupId, scanId))).orderBy(asc(scanPoints.index));
+}
+
 export async function listFinishedPoints(db: Executor, scanId: string) {
   return db
     .select()
@@ -104,7 +109,7 @@ export async function listPointInputs(db: Executor, groupId: string, scanId: str
  * the scan is over.
  */
 export async function claimPoint(db: Executor, scanId: string, index: number, attempt = 1) {
-  const r = await db.execute<{ x: number; sigma_nominal: number | null; model: Record<string, unknown>; chunks: number; options: ScanOptions }>(sql`
+  const r = await db.execute<{ x: number; sigma_nominal: number | null; model: Record<string, unknown>; chunks: number; toys: number | null; options: ScanOptions }>(sql`
     with s as (select state, options from ${scans} where id = ${scanId}),
     started as (
       update ${scans} set state = 'running', started_at = coalesce(started_at, now())
@@ -114,11 +119,11 @@ export async function claimPoint(db: Executor, scanId: string, index: number, at
       update ${scanPoints} set attempts = greatest(attempts, ${attempt})
       where scan_id = ${scanId} and index = ${index} and state = 'queued'
         and (select state from s) in ('queued', 'running')
-      returning x, sigma_nominal, model, chunks
+      returning x, sigma_nominal, model, chunks, toys
     )
-    select p.x, p.sigma_nominal, p.model, p.chunks, s.options from p cross join s`);
+    select p.x, p.sigma_nominal, p.model, p.chunks, p.toys, s.options from p cross join s`);
   const row = r.rows[0];
-  return row ? { x: row.x, sigmaNominal: row.sigma_nominal, model: row.model, chunks: row.chunks, options: row.options } : undefined;
+  return row ? { x: row.x, sigmaNominal: row.sigma_nominal, model: row.model, chunks: row.chunks, toys: row.toys, options: row.options } : undefined;
 }
 
 /**

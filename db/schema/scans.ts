@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { bigint, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { type AnyPgColumn, bigint, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import type { ScanOptions } from '../../shared/schemas/scans';
 import type { VersionMeta } from '../../shared/schemas/results';
 import { user } from './auth';
@@ -38,6 +38,12 @@ export const scans = pgTable(
     /** Bytes of stored inputs, counted toward the group's storage use. */
     storedBytes: bigint({ mode: 'number' }).notNull(),
     resultId: uuid().references(() => results.id, { onDelete: 'set null' }),
+    /**
+     * A rerun of one point of an ended scan with more pseudo-experiments: the scan it copies its
+     * other points from (done, their outcomes reused), and the point it computes again.
+     */
+    rerunOf: uuid().references((): AnyPgColumn => scans.id, { onDelete: 'set null' }),
+    rerunPoint: integer(),
     /** Set by the one process that turns the scan into a draft (claimed before, so never twice). */
     draftClaimedAt: timestamp({ withTimezone: true }),
     resultVersion: integer(),
@@ -71,6 +77,8 @@ export const scanPoints = pgTable(
     attempts: integer().notNull().default(0),
     /** Tasks the point is computed in: 1, or its chunks of pseudo-experiments. */
     chunks: integer().notNull().default(1),
+    /** Pseudo-experiments per hypothesis of this point when not the scan's `options.toys` (a point rerun with more). */
+    toys: integer(),
     computeMs: doublePrecision(),
     finishedAt: timestamp({ withTimezone: true }),
   },

@@ -61,7 +61,7 @@ import {
   versionParams,
   visibilitySchema,
 } from '../../shared/schemas/results';
-import { createScanSchema, scanOptionsSchema, scanParams, scanPointParams } from '../../shared/schemas/scans';
+import { createScanSchema, rerunPointSchema, scanOptionsSchema, scanParams, scanPointParams } from '../../shared/schemas/scans';
 import { mappingSchema } from '../services/result-upload';
 
 export type HttpMethod = 'get' | 'post' | 'put' | 'patch' | 'delete';
@@ -280,6 +280,17 @@ export const OPERATIONS: ApiOperation[] = [
   { method: 'get', path: '/groups/{groupId}/scans/{scanId}', tag: 'Scans', summary: 'A scan\'s progress: points, tasks, retries, time left.', access: { kind: 'group', action: 'group.read' }, params: scanParams, ok: json(200, 'The scan with its points.') },
   { method: 'post', path: '/groups/{groupId}/scans/{scanId}/cancel', tag: 'Scans', summary: 'Cancel a scan; the points done so far become the draft.', access: { kind: 'group', action: 'result.write' }, params: scanParams, ok: json(200, 'The scan as cancelled.'), errors: { 409: '`finished`: the scan has ended.' } },
   { method: 'get', path: '/groups/{groupId}/scans/{scanId}/points/{index}', tag: 'Scans', summary: 'One grid point\'s diagnostics: CLs curve, μ̂, fitted nuisance parameters.', access: { kind: 'group', action: 'group.read' }, params: scanPointParams, ok: json(200, 'The point.') },
+  {
+    method: 'post',
+    path: '/groups/{groupId}/scans/{scanId}/points/{index}/rerun',
+    tag: 'Scans',
+    summary: 'Rerun one point of an ended pseudo-experiment scan with more pseudo-experiments: a new scan whose other points are copied as computed; its draft becomes a new version of the same result.',
+    access: { kind: 'group', action: 'result.write' },
+    params: scanPointParams,
+    body: { json: rerunPointSchema },
+    ok: json(201, 'The new scan, queued.'),
+    errors: { 409: '`running`: the scan has not ended; `not_pseudo_experiments`: an asymptotic scan.', 413: '`quota_exceeded`.', 429: '`scan_queue_full`: it fits once the group\'s queue drains.' },
+  },
   { method: 'get', path: '/groups/{groupId}/scans/{scanId}/inputs.json', tag: 'Scans', summary: 'Download a scan\'s inputs (points and options) as JSON.', access: { kind: 'group', action: 'group.read' }, params: scanParams, ok: file('application/json', 'A `bandwright-scan/1` file.') },
 
   // --- Figures: group routes ---

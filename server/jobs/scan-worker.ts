@@ -43,9 +43,12 @@ type PointFailure = { field: string; reason: string };
  */
 export type TaskOutcome = { outcome: 'computed' } | { outcome: 'stopped'; steps: number; of: number } | { outcome: 'skipped' } | { outcome: 'failed' };
 
-/** Options of one point's pseudo-experiments: the scan's, with the point's own seed (scan seed + index). */
-function toyOptions(o: ScanOptions, index: number): ToyPointOptions {
-  return { cl: o.cl, asimov: o.asimov, toys: o.toys, seed: o.seed + index };
+/**
+ * Options of one point's pseudo-experiments: the scan's, with the point's own seed (scan seed +
+ * index) and its own count when it was rerun with more.
+ */
+function toyOptions(o: ScanOptions, index: number, toys: number | null): ToyPointOptions {
+  return { cl: o.cl, asimov: o.asimov, toys: toys ?? o.toys, seed: o.seed + index };
 }
 
 /** Fitted nuisance parameters for the diagnostics (the limit stands without them). */
@@ -85,7 +88,7 @@ export async function mergePointIfComplete(ctx: Ctx, scanId: string, index: numb
   if (done.length < point.chunks || done.some((c) => !c.samples || !c.stats)) return;
   const started = performance.now();
   const model = point.model as CountingModelInput;
-  const options = toyOptions(scan.options, index);
+  const options = toyOptions(scan.options, index, point.toys);
   const limit = mergeToyChunks(
     planToyPoint(model, options, 'model'),
     done.map((c) => ({ chunk: c.chunk, toys: c.cost, samples: decodeToySamples(c.samples!), fits: c.stats!.fits, failedFits: c.stats!.failed, generated: c.stats!.generated })),
@@ -128,7 +131,7 @@ async function runToyChunk(ctx: Ctx, queue: ScanQueue, task: ClaimedTask, point:
   const started = performance.now();
   let plan: ToyPlan;
   try {
-    plan = planToyPoint(point.model, toyOptions(point.options, task.pointIndex), 'model');
+    plan = planToyPoint(point.model, toyOptions(point.options, task.pointIndex, point.toys), 'model');
   } catch (e) {
     if (!(e instanceof StatsInputError)) throw e;
     await tq.finishTask(ctx.db, task.id, { state: 'failed', error: `${e.field}: ${e.reason}` });

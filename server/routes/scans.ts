@@ -1,6 +1,6 @@
 import { Router } from 'express';
 import { groupParams } from '../../shared/schemas/groups';
-import { scanParams, scanPointParams } from '../../shared/schemas/scans';
+import { rerunPointSchema, scanParams, scanPointParams } from '../../shared/schemas/scans';
 import { safeFileName } from '../../shared/slug';
 import { requireGroup } from '../access';
 import type { Ctx } from '../context';
@@ -36,6 +36,11 @@ export function scansRouter(ctx: Ctx) {
 
   r.get('/groups/:groupId/scans/:scanId/points/:index', requireGroup(ctx, 'group.read'), handle({ params: scanPointParams }, async ({ params }, _req, res) => {
     res.json(await scans.getPointDetail(ctx, params.groupId, params.scanId, params.index));
+  }));
+
+  // A new scan: the other points copied as done, this one queued with more pseudo-experiments.
+  r.post('/groups/:groupId/scans/:scanId/points/:index/rerun', requireGroup(ctx, 'result.write'), handle({ params: scanPointParams, body: rerunPointSchema }, async ({ params, body }, req, res) => {
+    res.status(201).json(await scans.rerunPoint(ctx, params.groupId, req.user!.id, params.scanId, params.index, body));
   }));
 
   r.get('/groups/:groupId/scans/:scanId/inputs.json', requireGroup(ctx, 'group.read'), handle({ params: scanParams }, async ({ params }, _req, res) => {

@@ -66,6 +66,11 @@ export function isReadOnly(p: EffectivePlan, usedBytes: number): boolean {
   return p.lapse !== null && usedBytes > FREE_PLAN.quotaBytes;
 }
 
+/** The most pseudo-experiments per hypothesis each of `points` points may have under the plan's queue limit. */
+export function planToysPerPoint(plan: Plan, points: number): number {
+  return Math.floor(plan.scanQueueLimit / points);
+}
+
 /**
  * Checks that the group may queue a scan of `points` grid points with `perPoint` pseudo-experiments
  * per hypothesis each (1 for an asymptotic point) under the plan in force: what it has queued or
@@ -76,16 +81,16 @@ export function isReadOnly(p: EffectivePlan, usedBytes: number): boolean {
  * group's queued work has finished; both name the field (options.toys, or points for an
  * asymptotic scan) and the limit.
  */
-export async function assertScanQueueRoom(tx: Executor, groupId: string, scan: { points: number; perPoint: number; toys: boolean }): Promise<void> {
+export async function assertScanQueueRoom(tx: Executor, groupId: string, scan: { points: number; perPoint: number; toys: boolean; field?: string }): Promise<void> {
   const { plan } = await planOfGroup(tx, groupId);
   const limit = plan.scanQueueLimit;
   const cost = scan.points * scan.perPoint;
   const n = (v: number) => v.toLocaleString('en');
-  const field = scan.toys ? 'options.toys' : 'points';
+  const field = scan.field ?? (scan.toys ? 'options.toys' : 'points');
   const what = scan.toys ? `${n(scan.points)} points × ${n(scan.perPoint)} pseudo-experiments = ${n(cost)}` : `${n(scan.points)} asymptotic points`;
   const upgrade = plan.id === 'free' ? ' An owner can upgrade to the Institutional plan (Plan screen) for more.' : '';
   if (cost > limit) {
-    const most = scan.toys ? `at most ${n(Math.floor(limit / scan.points))} with ${n(scan.points)} points` : `at most ${n(limit)} points`;
+    const most = scan.toys ? `at most ${n(planToysPerPoint(plan, scan.points))} with ${n(scan.points)} points` : `at most ${n(limit)} points`;
     throw new AppError(
       413,
       'scan_over_plan',

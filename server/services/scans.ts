@@ -2,18 +2,19 @@ import { z } from 'zod';
 import { CsvFileError, decodeText } from '../../shared/curves/csv';
 import { parseScanCsv } from '../../shared/scans/csv';
 import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
-import { createScanSchema, DEFAULT_SCAN_THEORY_LABEL, scanFileSchema, scanOptionsSchema, theoryLabelSchema, type ScanInputPoint, type ScanOptions } from '../../shared/schemas/scans';
+import { createScanSchema, DEFAULT_SCAN_THEORY_LABEL, MAX_TOYS_PER_POINT, scanFileSchema, scanOptionsSchema, theoryLabelSchema, type RerunPointInput, type ScanInputPoint, type ScanOptions } from '../../shared/schemas/scans';
 import { versionMetaSchema, type Curve, type Theory, type VersionMeta } from '../../shared/schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from '../../shared/schemas/scan-views';
 import * as q from '../../db/queries/scans';
 import { getRole } from '../../db/queries/groups';
+import type { Executor } from '../../db/client';
 import type { Ctx } from '../context';
 import { AppError, notFound, validationError, type ErrorDetail } from '../lib/errors';
 import * as tq from '../../db/queries/scan-tasks';
 import { toyChunkSizes } from '../../shared/stats/toy-chunks';
 import { estimateSecondsLeft } from '../../shared/scans/progress';
 import { addVersion, createResult, getDetail } from './results';
-import { assertScanQueueRoom } from './plans';
+import { assertScanQueueRoom, planOfGroup, planToysPerPoint } from './plans';
 import * as storage from './storage';
 
 /**
@@ -90,6 +91,21 @@ function bins(model: Record<string, unknown>): number {
   return Array.isArray(model.observed) ? model.observed.length : 1;
 }
 
+/** What SCAN_COST_LIMIT bounds: points × bins × pseudo-experiments per hypothesis (1 per asymptotic point). */
+function scanCost(binsPerPoint: number[], perPoint: number): number {
+  return binsPerPoint.reduce((sum, b) => sum + b * perPoint, 0);
+}
+
+/**
+ * The most pseudo-experiments per hypothesis that one point with `model` may be given when it is
+ * computed again: the scan start's rules for a scan of that one point (SCAN_COST_LIMIT, the plan's
+ * scanQueueLimit, the options' own maximum).
+ */
+async function maxRerunToys(ctx: Ctx, db: Executor, groupId: string, model: Record<string, unknown>): Promise<number> {
+  const { plan } = await planOfGroup(db, groupId);
+  return Math.min(MAX_TOYS_PER_POINT, Math.floor(ctx.env.SCAN_COST_LIMIT / scanCost([bins(model)], 1)), planToysPerPoint(plan, 1));
+}
+
 /** Checks that apply to the scan as a whole, before anything is queued. */
 function checkScan(ctx: Ctx, req: ScanRequest) {
   const details: ErrorDetail[] = [];
@@ -104,7 +120,7 @@ function checkScan(ctx: Ctx, req: ScanRequest) {
   if (req.points.length < 2) details.push({ field: 'points', message: 'a scan needs at least two grid points' });
   if (details.length) invalid(details);
   const perPoint = req.options.method === 'toys' ? req.options.toys : 1;
-  const cost = req.points.reduce((sum, p) => sum + bins(p.model as Record<string, unknown>) * perPoint, 0);
+  const cost = scanCost(req.points.map((p) => bins(p.model as Record<string, unknown>)), perPoint);
   if (cost > ctx.env.SCAN_COST_LIMIT) {
     throw new AppError(
       413,
@@ -238,7 +254,69 @@ export async function getPointDetail(ctx: Ctx, groupId: string, scanId: string, 
   if (!s) throw notFound('Scan');
   const p = await q.getPoint(ctx.db, groupId, scanId, index);
   if (!p) throw notFound('Grid point');
-  return { index: p.index, x: p.x, sigmaNominal: p.sigmaNominal, state: p.state, model: p.model, result: p.result as ScanPointDetail['result'], error: p.error, attempts: p.attempts, computeMs: p.computeMs };
+  const rerun = s.options.method === 'toys' ? { toys: p.toys ?? s.options.toys, maxToys: await maxRerunToys(ctx, ctx.db, groupId, p.model) } : null;
+  return { index: p.index, x: p.x, sigmaNominal: p.sigmaNominal, state: p.state, model: p.model, result: p.result as ScanPointDetail['result'], error: p.error, attempts: p.attempts, computeMs: p.computeMs, rerun };
+}
+
+/**
+ * Reruns one point of an ended pseudo-experiment scan with more pseudo-experiments: a new scan of
+ * the same inputs and options, aimed at the same result, in which every other point the old scan
+ * computed (done or failed) is copied with its stored outcome and only the chosen point is queued,
+ * with `toys` per hypothesis (its seed stays the scan seed + index, so the first chunks repeat the
+ * old ones and the rest add to them). Points the old scan never computed (cancelled) are left out,
+ * as they are left out of its draft. When the point finishes, the draft is a new version of the
+ * result ("Point x = … rerun with N pseudo-experiments"); the old version stays.
+ */
+export async function rerunPoint(ctx: Ctx, groupId: string, userId: string, scanId: string, index: number, body: RerunPointInput): Promise<ScanDetail> {
+  requireQueue(ctx);
+  const old = await q.getScan(ctx.db, groupId, scanId);
+  if (!old) throw notFound('Scan');
+  if (old.options.method !== 'toys') throw new AppError(409, 'not_pseudo_experiments', 'Only points of a pseudo-experiment scan can be rerun with more pseudo-experiments');
+  if (old.state === 'queued' || old.state === 'running') throw new AppError(409, 'running', 'This scan is still running: rerun a point once it has finished or been cancelled');
+  const points = await q.listPointsForCopy(ctx.db, groupId, scanId);
+  const target = points.find((p) => p.index === index);
+  if (!target) throw notFound('Grid point');
+  const current = target.toys ?? old.options.toys;
+  const n = (v: number) => v.toLocaleString('en');
+  if (body.toys <= current) invalid([{ field: 'toys', message: `must be more than the point's current ${n(current)} pseudo-experiments` }]);
+  const most = await maxRerunToys(ctx, ctx.db, groupId, target.model);
+  if (body.toys > most) invalid([{ field: 'toys', message: `must be at most ${n(most)} for this point (the scan cost limit and the plan's queue limit)` }]);
+  const kept = points.filter((p) => p.index !== index && (p.state === 'done' || p.state === 'failed'));
+  const costs = toyChunkSizes(body.toys);
+  const inputs = [...kept, target].sort((a, b) => a.index - b.index);
+  const newId = await ctx.db.transaction(async (tx) => {
+    const storedBytes = Buffer.byteLength(
+      JSON.stringify(inputs.map((p) => ({ x: p.x, sigmaNominal: p.sigmaNominal, sigmaNominalLow: p.sigmaNominalLow, sigmaNominalHigh: p.sigmaNominalHigh, model: p.model }))),
+    );
+    await storage.reserve(tx, groupId, storedBytes, 'this scan', { headroom: storage.scanDraftAllowance(inputs.length) });
+    await assertScanQueueRoom(tx, groupId, { points: 1, perPoint: body.toys, toys: true, field: 'toys' });
+    const scan = await q.insertScan(tx, {
+      groupId,
+      options: old.options,
+      meta: old.meta,
+      targetResultId: old.resultId ?? old.targetResultId,
+      totalPoints: inputs.length,
+      donePoints: kept.filter((p) => p.state === 'done').length,
+      failedPoints: kept.filter((p) => p.state === 'failed').length,
+      sourceName: old.sourceName,
+      theoryLabel: old.theoryLabel,
+      storedBytes,
+      createdBy: userId,
+      rerunOf: old.id,
+      rerunPoint: index,
+    });
+    await q.insertScanPoints(
+      tx,
+      inputs.map((p) =>
+        p.index === index
+          ? { scanId: scan.id, index, x: p.x, sigmaNominal: p.sigmaNominal, sigmaNominalLow: p.sigmaNominalLow, sigmaNominalHigh: p.sigmaNominalHigh, model: p.model, chunks: costs.length, toys: body.toys }
+          : { ...p, scanId: scan.id },
+      ),
+    );
+    await tq.insertTasks(tx, costs.map((cost, chunk) => ({ scanId: scan.id, groupId, pointIndex: index, chunk, cost })));
+    return scan.id;
+  });
+  return getScan(ctx, groupId, newId);
 }
 
 export async function scanInputs(ctx: Ctx, groupId: string, scanId: string) {
@@ -306,6 +384,13 @@ export function theoryOfPoints(points: q.ScanPointRow[], quantity: VersionMeta['
   };
 }
 
+/** The change note of a scan's new version: which point a rerun computed again, else the scan. */
+function changeNoteOf(scan: q.ScanRow, points: q.ScanPointRow[]): string {
+  const point = scan.rerunPoint !== null ? points.find((p) => p.index === scan.rerunPoint) : undefined;
+  if (point?.toys) return `Point x = ${point.x} rerun with ${point.toys.toLocaleString('en')} pseudo-experiments`;
+  return `Recomputed by scan ${scan.id.slice(0, 8)}`;
+}
+
 /**
  * Turns a finished or cancelled scan into a draft result version, at most once: the caller must
  * first win the claim on the scan (another finisher, or a canceller at the same moment, backs off).
@@ -324,14 +409,17 @@ export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancell
   const actor = { id: scan.createdBy ?? '', role: role ?? 'analyst' };
   const curve = curveOfPoints(points, scan.meta.quantity);
   const opts = scan.options;
-  const how = `Computed by Bandwright from event counts: ${opts.method === 'toys' ? `pseudo-experiment CLs (${opts.toys} per hypothesis, seed ${opts.seed})` : `asymptotic CLs (${opts.asimov} Asimov dataset)`}, ${Math.round(opts.cl * 100)}% CL, scan ${scan.id}.`;
+  // Points rerun with more pseudo-experiments (here or in the scans this one was copied from).
+  const own = points.filter((p) => p.toys !== null && p.toys !== opts.toys).map((p) => `x = ${p.x} with ${p.toys}`);
+  const toys = `${opts.toys} per hypothesis${own.length ? ` (${own.join(', ')})` : ''}, seed ${opts.seed}`;
+  const how = `Computed by Bandwright from event counts: ${opts.method === 'toys' ? `pseudo-experiment CLs (${toys})` : `asymptotic CLs (${opts.asimov} Asimov dataset)`}, ${Math.round(opts.cl * 100)}% CL, scan ${scan.id}.`;
   const notes = [scan.meta.notes, how, failed ? `${failed} grid point(s) failed and are not in the curve.` : '', why === 'cancelled' ? `The scan was cancelled after ${points.length} of ${scan.totalPoints} points.` : '']
     .filter(Boolean)
     .join('\n');
   const meta: VersionMeta = { ...scan.meta, method: opts.method, cl: opts.cl, notes: notes.slice(0, 5000) };
   const input = { meta, curve, theory: theoryOfPoints(points, scan.meta.quantity, scan.theoryLabel), source: null };
   const version = scan.targetResultId
-    ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: `Recomputed by scan ${scan.id.slice(0, 8)}` }, { admitted: true })
+    ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: changeNoteOf(scan, points) }, { admitted: true })
     : await createResult(ctx, scan.groupId, actor, input, { admitted: true });
   await q.setScanOutcome(ctx.db, scan.groupId, scanId, { state: why, resultId: version.resultId, resultVersion: version.version });
 }

@@ -81,4 +81,10 @@ export type ScanPointDetail = {
   error: { field: string; reason: string } | null;
   attempts: number;
   computeMs: number | null;
+  /**
+   * Pseudo-experiment scans: the point's pseudo-experiments per hypothesis (`toys`) and the most a
+   * rerun of it may ask for (`maxToys`: the scan start's cost rule and the plan's queue limit for one
+   * point); null for asymptotic scans.
+   */
+  rerun: { toys: number; maxToys: number } | null;
 };

@@ -5,7 +5,7 @@
 import { z } from 'zod';
 import { asimovChoiceSchema, type CountingModelInput } from './counting-model';
 import { versionMetaSchema } from './results';
-import { intParam, uuidParam } from './common';
+import { intField, intParam, uuidParam } from './common';
 
 const sigmaValue = z.number({ error: 'must be a number' }).positive('must be positive').refine(Number.isFinite, 'must be finite').optional();
 
@@ -39,13 +39,16 @@ export type ScanInputPoint = { x: number; sigmaNominal?: number; sigmaNominalLow
 
 export const SCAN_METHODS = ['asymptotic', 'toys'] as const;
 
+/** The most pseudo-experiments per hypothesis a point may ask for (whatever the plan). */
+export const MAX_TOYS_PER_POINT = 1_000_000;
+
 /** How every point is computed. */
 export const scanOptionsSchema = z
   .object({
     cl: z.number({ error: 'must be a number' }).gt(0, 'must be between 0 and 1').lt(1, 'must be between 0 and 1').default(0.95),
     method: z.enum(SCAN_METHODS, { error: 'must be "asymptotic" or "toys"' }).default('asymptotic'),
     asimov: asimovChoiceSchema.default('profiled'),
-    toys: z.number({ error: 'must be a number' }).int('must be a whole number').min(100, 'must be at least 100').max(1_000_000, 'must be at most 1,000,000').default(5000),
+    toys: z.number({ error: 'must be a number' }).int('must be a whole number').min(100, 'must be at least 100').max(MAX_TOYS_PER_POINT, 'must be at most 1,000,000').default(5000),
     seed: z.number({ error: 'must be a number' }).int('must be a whole number').min(0).max(2 ** 31 - 1).default(1),
   })
   .default({ cl: 0.95, method: 'asymptotic', asimov: 'profiled', toys: 5000, seed: 1 });
@@ -79,3 +82,10 @@ export type CreateScanInput = z.input<typeof createScanSchema>;
 /** Route parameters of one scan and of one of its grid points. */
 export const scanParams = z.object({ groupId: uuidParam, scanId: uuidParam });
 export const scanPointParams = scanParams.extend({ index: intParam({ min: 0 }) });
+
+/**
+ * Rerun one point of an ended pseudo-experiment scan with more pseudo-experiments per hypothesis
+ * (more than the point's current count, within the bound its diagnostics give as `rerun.maxToys`).
+ */
+export const rerunPointSchema = z.object({ toys: intField({ min: 1 }) });
+export type RerunPointInput = z.input<typeof rerunPointSchema>;

@@ -445,6 +445,21 @@ const MATRIX: Entry[] = [
     prepare: async (w, groupId) => ({ params: { groupId, scanId: await sharedScan(w, groupId), index: '1' } }),
   },
   {
+    method: 'post',
+    path: '/api/groups/:groupId/scans/:scanId/points/:index/rerun',
+    access: 'analyst',
+    ok: 201,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const scanId = await cancelledToyScan(w, groupId, uniqueGroupName('Matrix Rerun'));
+      return {
+        params: { groupId, scanId, index: '1' },
+        body: { toys: 200 },
+        effect: async () => (await w.t.ctx.db.select({ id: scans.id }).from(scans).where(eq(scans.rerunOf, scanId))).length === 1,
+      };
+    },
+  },
+  {
     method: 'get',
     path: '/api/groups/:groupId/scans/:scanId/inputs.json',
     access: 'viewer',
@@ -661,6 +676,14 @@ const scanBody = (title: string) => ({
 async function startScan(w: World, groupId: string, title: string): Promise<string> {
   const res = await w.crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send(scanBody(title));
   if (res.status !== 201) throw new Error(`scan start failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body.id as string;
+}
+/** A pseudo-experiment scan started and cancelled at once by the group's analyst (an ended scan whose points may be rerun). */
+async function cancelledToyScan(w: World, groupId: string, title: string): Promise<string> {
+  const res = await w.crew.analyst.agent.post(`/api/groups/${groupId}/scans`).send({ ...scanBody(title), options: { method: 'toys', toys: 100 } });
+  if (res.status !== 201) throw new Error(`scan start failed: ${res.status} ${JSON.stringify(res.body)}`);
+  const cancel = await w.crew.analyst.agent.post(`/api/groups/${groupId}/scans/${res.body.id}/cancel`).send({});
+  if (cancel.status !== 200) throw new Error(`scan cancel failed: ${cancel.status}`);
   return res.body.id as string;
 }
 async function scanTitled(w: World, groupId: string, title: string) {
