@@ -26,7 +26,7 @@ import type {
   UpdateDraftInput,
 } from './schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from './schemas/scan-views';
-import type { CreateEnvelopeInput, EnvelopeVersion } from './schemas/combine';
+import type { CombinationAnswer, CreateCombinationInput, CreateEnvelopeInput, EnvelopeVersion } from './schemas/combine';
 import type {
   FigureDetail,
   FigureSummary,
@@ -185,6 +185,11 @@ export function createApiClient(opts: ApiClientOptions = {}) {
        * new version of `resultId`); the answer adds which input was chosen at every point.
        */
       createEnvelope: (groupId: string, input: CreateEnvelopeInput) => call<EnvelopeVersion>('POST', `/api/groups/${enc(groupId)}/envelopes`, input),
+      /**
+       * A joint combination of scan-computed versions, started as a scan; with `dryRun: true` only
+       * its plan (nuisance parameters per input, common and missing parameter values).
+       */
+      createCombination: (groupId: string, input: CreateCombinationInput) => call<CombinationAnswer>('POST', `/api/groups/${enc(groupId)}/combinations`, input),
       /** A version by its permanent link, for anyone allowed to see it (public, or a member of its group). */
       byLink: (slug: string, version: number) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/v${version}`),
       /** `/r/<slug>`: the newest published version the caller may see (404 `not_published` when the result has none). */

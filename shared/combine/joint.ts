@@ -89,7 +89,8 @@ export function concatenateModels(channels: readonly CountingModel[], unlinked: 
         backgrounds.set(bg.name, yields);
         backgroundOrder.push(bg.name);
       }
-      bg.yields.forEach((y, k) => (yields![offsets[i]! + k] += y));
+      const into = yields;
+      bg.yields.forEach((y, k) => (into[offsets[i]! + k] = into[offsets[i]! + k]! + y));
     }
   });
 
