@@ -17,6 +17,14 @@ export interface PreparedModel {
   logEffects: Float64Array;
   /** affects[k·nProc + p] = 1 when systematic k changes process p in some bin. */
   affects: Uint8Array;
+  /**
+   * Bins systematic k can change: [binFrom[k], binTo[k]) holds every bin with a non-zero effect of
+   * k on any process (empty, 0 to 0, when none). Outside it ∂ν_i/∂θ_k is exactly 0, so the fit's
+   * sums skip those bins with the same result; a combination of channels (shared/combine/joint.ts)
+   * has most parameters acting in one channel's bins only.
+   */
+  binFrom: Int32Array;
+  binTo: Int32Array;
   processNames: string[];
   parameterNames: string[];
   /** Nominal signal and total background per bin. */
@@ -56,6 +64,23 @@ export function prepareModel(input: unknown, fieldPrefix = ''): PreparedModel {
       }
     }
   });
+  const binFrom = new Int32Array(nPar);
+  const binTo = new Int32Array(nPar);
+  for (let k = 0; k < nPar; k++) {
+    let from = nBins;
+    let to = 0;
+    for (let p = 0; p < nProc; p++) {
+      const base = (k * nProc + p) * nBins;
+      for (let i = 0; i < nBins; i++) {
+        if (logEffects[base + i] !== 0) {
+          if (i < from) from = i;
+          if (i + 1 > to) to = i + 1;
+        }
+      }
+    }
+    binFrom[k] = from < to ? from : 0;
+    binTo[k] = from < to ? to : 0;
+  }
   const signal = Float64Array.from(model.signal);
   const background = new Float64Array(nBins);
   for (let p = 1; p < nProc; p++) for (let i = 0; i < nBins; i++) background[i] = (background[i] as number) + (yields[p * nBins + i] as number);
@@ -75,6 +100,8 @@ export function prepareModel(input: unknown, fieldPrefix = ''): PreparedModel {
     yields,
     logEffects,
     affects,
+    binFrom,
+    binTo,
     processNames,
     parameterNames: model.systematics.map((s) => s.name),
     signal,
