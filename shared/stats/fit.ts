@@ -124,7 +124,7 @@ export class Likelihood {
 
   /** y_pi(θ), s_i and b_i for the θ stored at `theta[offset…]`. */
   private setYields(theta: ArrayLike<number>, offset: number): void {
-    const { nBins, nProc, nPar, yields, logEffects, affects, binFrom, binTo } = this.model;
+    const { nBins, nProc, nPar, yields, logEffects, affects, effectFrom, effectTo } = this.model;
     const { y, s, b, expo } = this;
     if (nPar === 0) {
       y.set(yields);
@@ -137,8 +137,8 @@ export class Likelihood {
           any = true;
           const t = theta[offset + k] as number;
           const base = (k * nProc + p) * nBins;
-          const to = binTo[k] as number;
-          for (let i = binFrom[k] as number; i < to; i++) expo[i] = (expo[i] as number) + t * (logEffects[base + i] as number);
+          const to = effectTo[k * nProc + p] as number;
+          for (let i = effectFrom[k * nProc + p] as number; i < to; i++) expo[i] = (expo[i] as number) + t * (logEffects[base + i] as number);
         }
         const base = p * nBins;
         if (any) for (let i = 0; i < nBins; i++) y[base + i] = (yields[base + i] as number) * exp(expo[i] as number);
@@ -196,7 +196,7 @@ export class Likelihood {
    * is `fixedMu` and x holds θ only. Assumes setYields was called for this θ.
    */
   private derivatives(x: Float64Array, freeMu: boolean, fixedMu: number): number {
-    const { nBins, nProc, nPar, logEffects, affects, binFrom, binTo } = this.model;
+    const { nBins, nProc, nPar, logEffects, affects, binFrom, binTo, effectFrom, effectTo } = this.model;
     const { y, s, b, w, v, dnu, data, grad, hess } = this;
     const off = freeMu ? 1 : 0;
     const mu = freeMu ? (x[0] as number) : fixedMu;
@@ -227,8 +227,8 @@ export class Likelihood {
         const coef = p === 0 ? mu : 1;
         const lb = (k * nProc + p) * nBins;
         const yb = p * nBins;
-        const to = binTo[k] as number;
-        for (let i = binFrom[k] as number; i < to; i++) dnu[row + i] = (dnu[row + i] as number) + coef * (y[yb + i] as number) * (logEffects[lb + i] as number);
+        const to = effectTo[k * nProc + p] as number;
+        for (let i = effectFrom[k * nProc + p] as number; i < to; i++) dnu[row + i] = (dnu[row + i] as number) + coef * (y[yb + i] as number) * (logEffects[lb + i] as number);
       }
     }
     hess.fill(0, 0, d * d);
@@ -278,7 +278,8 @@ export class Likelihood {
           const lk = (k * nProc + p) * nBins;
           const ll = (l * nProc + p) * nBins;
           const yb = p * nBins;
-          for (let i = from; i < to; i++) {
+          const pTo = min(effectTo[k * nProc + p] as number, effectTo[l * nProc + p] as number);
+          for (let i = max(effectFrom[k * nProc + p] as number, effectFrom[l * nProc + p] as number); i < pTo; i++) {
             h += coef * (w[i] as number) * (y[yb + i] as number) * (logEffects[lk + i] as number) * (logEffects[ll + i] as number);
           }
         }

@@ -25,6 +25,9 @@ export interface PreparedModel {
    */
   binFrom: Int32Array;
   binTo: Int32Array;
+  /** The same per systematic and process: [effectFrom[k·nProc + p], effectTo[k·nProc + p]). */
+  effectFrom: Int32Array;
+  effectTo: Int32Array;
   processNames: string[];
   parameterNames: string[];
   /** Nominal signal and total background per bin. */
@@ -66,16 +69,26 @@ export function prepareModel(input: unknown, fieldPrefix = ''): PreparedModel {
   });
   const binFrom = new Int32Array(nPar);
   const binTo = new Int32Array(nPar);
+  const effectFrom = new Int32Array(nPar * nProc);
+  const effectTo = new Int32Array(nPar * nProc);
   for (let k = 0; k < nPar; k++) {
     let from = nBins;
     let to = 0;
     for (let p = 0; p < nProc; p++) {
       const base = (k * nProc + p) * nBins;
+      let pFrom = nBins;
+      let pTo = 0;
       for (let i = 0; i < nBins; i++) {
         if (logEffects[base + i] !== 0) {
-          if (i < from) from = i;
-          if (i + 1 > to) to = i + 1;
+          if (i < pFrom) pFrom = i;
+          pTo = i + 1;
         }
+      }
+      if (pFrom < pTo) {
+        effectFrom[k * nProc + p] = pFrom;
+        effectTo[k * nProc + p] = pTo;
+        if (pFrom < from) from = pFrom;
+        if (pTo > to) to = pTo;
       }
     }
     binFrom[k] = from < to ? from : 0;
@@ -102,6 +115,8 @@ export function prepareModel(input: unknown, fieldPrefix = ''): PreparedModel {
     affects,
     binFrom,
     binTo,
+    effectFrom,
+    effectTo,
     processNames,
     parameterNames: model.systematics.map((s) => s.name),
     signal,
