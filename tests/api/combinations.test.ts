@@ -170,3 +170,12 @@ test('bad inputs are refused naming the field, and nothing is stored', async () 
   }
   expect([await groupScans(), await groupResults()]).toEqual(before);
 });
+
+test("a combination is bounded like any scan: pseudo-experiments beyond the free plan's queue are refused, nothing stored", async () => {
+  const before = [await groupScans(), await groupResults()];
+  const res = await crew.analyst.agent.post(url()).send({ inputs: [pin(jets), pin(leptons)], options: { method: 'toys', toys: 1_000_000 } });
+  expect(res.status).toBe(413);
+  expect(res.body.error.code).toBe('scan_over_plan');
+  expect(JSON.stringify(res.body.error.details)).toContain('options.toys');
+  expect([await groupScans(), await groupResults()]).toEqual(before);
+});
