@@ -27,7 +27,7 @@ import type {
   UpdateDraftInput,
 } from './schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from './schemas/scan-views';
-import type { CreateEnvelopeInput, EnvelopePreview, EnvelopeVersion } from './schemas/combine';
+import type { CombinationAnswer, CreateCombinationInput, CreateEnvelopeInput, EnvelopePreview, EnvelopeVersion } from './schemas/combine';
 import type {
   FigureDetail,
   FigureSummary,
@@ -188,6 +188,11 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       createEnvelope: (groupId: string, input: CreateEnvelopeInput) => call<EnvelopeVersion>('POST', `/api/groups/${enc(groupId)}/envelopes`, input),
       /** The envelope as it would be stored, without storing it (the builder's check and preview). */
       previewEnvelope: (groupId: string, input: Omit<CreateEnvelopeInput, 'resultId'>) => call<EnvelopePreview>('POST', `/api/groups/${enc(groupId)}/envelopes/preview`, input),
+      /**
+       * A joint combination of scan-computed versions, started as a scan; with `dryRun: true` only
+       * its plan (nuisance parameters per input, common and missing parameter values).
+       */
+      createCombination: (groupId: string, input: CreateCombinationInput) => call<CombinationAnswer>('POST', `/api/groups/${enc(groupId)}/combinations`, input),
       /** A version by its permanent link, for anyone allowed to see it (public, or a member of its group). */
       byLink: (slug: string, version: number) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/v${version}`),
       /** `/r/<slug>`: the newest published version the caller may see (404 `not_published` when the result has none). */

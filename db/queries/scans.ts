@@ -1,8 +1,10 @@
-import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, or, sql } from 'drizzle-orm';
 import type { ExpectedLimits } from '../../shared/schemas/counting-model';
 import type { ScanOptions } from '../../shared/schemas/scans';
 import type { Executor } from '../client';
+import { results, resultVersions } from '../schema/results';
 import { scanPoints, scans } from '../schema/scans';
+import { versionVisibleSql, type Viewer } from './visibility';
 
 export type ScanRow = typeof scans.$inferSelect;
 export type ScanPointRow = typeof scanPoints.$inferSelect;
@@ -209,7 +211,7 @@ export async function setScanOutcome(
  */
 export async function scanOfVersion(db: Executor, groupId: string, resultId: string, version: number) {
   const [scan] = await db
-    .select({ id: scans.id })
+    .select({ id: scans.id, combination: scans.combination })
     .from(scans)
     .where(and(eq(scans.groupId, groupId), eq(scans.resultId, resultId), eq(scans.resultVersion, version)))
     .limit(1);
@@ -225,5 +227,27 @@ export async function scanOfVersion(db: Executor, groupId: string, resultId: str
     .where(and(eq(scanPoints.scanId, scan.id), sql`(jsonb_array_length(coalesce(${scanPoints.result}->'warnings', '[]'::jsonb)) > 0 or ${scanPoints.state} = 'failed')`))
     .orderBy(asc(scanPoints.index))
     .limit(500);
-  return { id: scan.id, points };
+  return { id: scan.id, combination: scan.combination, points };
+}
+
+/**
+ * The scans that computed the result versions `pins` name, for the versions `viewer` may see (the
+ * one visibility rule, in the statement), each with its finished points' inputs: the counting
+ * models a joint combination puts side by side. A version no scan made is absent.
+ */
+export async function listScanInputsOfVersions(db: Executor, viewer: Viewer, pins: { resultId: string; version: number }[]) {
+  if (!pins.length) return [];
+  const made = await db
+    .select({ resultId: resultVersions.resultId, version: resultVersions.version, scanId: scans.id, options: scans.options, meta: scans.meta, theoryLabel: scans.theoryLabel })
+    .from(resultVersions)
+    .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .innerJoin(scans, and(eq(scans.resultId, resultVersions.resultId), eq(scans.resultVersion, resultVersions.version)))
+    .where(and(or(...pins.map((p) => and(eq(resultVersions.resultId, p.resultId), eq(resultVersions.version, p.version)))), versionVisibleSql(viewer)));
+  if (!made.length) return [];
+  const points = await db
+    .select({ scanId: scanPoints.scanId, x: scanPoints.x, sigmaNominal: scanPoints.sigmaNominal, model: scanPoints.model })
+    .from(scanPoints)
+    .where(and(inArray(scanPoints.scanId, made.map((m) => m.scanId)), eq(scanPoints.state, 'done')))
+    .orderBy(asc(scanPoints.x));
+  return made.map((m) => ({ ...m, points: points.filter((p) => p.scanId === m.scanId) }));
 }

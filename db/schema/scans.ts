@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { type AnyPgColumn, bigint, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import type { CombinationPlan } from '../../shared/schemas/combine';
 import type { ScanOptions } from '../../shared/schemas/scans';
 import type { VersionMeta } from '../../shared/schemas/results';
 import { user } from './auth';
@@ -48,6 +49,11 @@ export const scans = pgTable(
     draftClaimedAt: timestamp({ withTimezone: true }),
     resultVersion: integer(),
     error: text(),
+    /**
+     * Set when the scan is a joint combination of other results (server/services/combine.ts): the
+     * input versions and their scans, the nuisance parameters unlinked and shared, the grid.
+     */
+    combination: jsonb().$type<CombinationPlan>(),
     createdBy: text().references(() => user.id, { onDelete: 'set null' }),
     createdAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
     startedAt: timestamp({ withTimezone: true }),

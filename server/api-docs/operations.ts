@@ -10,7 +10,7 @@
  */
 import { z } from 'zod';
 import type { GroupAction } from '../../shared/access';
-import { createEnvelopeSchema, previewEnvelopeSchema } from '../../shared/schemas/combine';
+import { createCombinationSchema, createEnvelopeSchema, previewEnvelopeSchema } from '../../shared/schemas/combine';
 import { checkoutSchema, invoiceParams, invoiceSchema, planViewSchema } from '../../shared/plans';
 import { requestPasswordResetSchema, resendVerificationSchema, resetPasswordSchema, signInSchema, signUpSchema } from '../../shared/schemas/auth';
 import {
@@ -216,6 +216,18 @@ export const OPERATIONS: ApiOperation[] = [
   { method: 'get', path: '/groups/{groupId}/results', tag: 'Results', summary: 'The group\'s results in any state (search, filters, pages).', access: { kind: 'group', action: 'group.read' }, params: groupParams, query: resultListQuery.omit({ groupId: true }), ok: json(200, '`{ items, total, page, pageSize }`: each result with its newest version.') },
   { method: 'post', path: '/groups/{groupId}/envelopes/preview', tag: 'Results', summary: 'The best-expected envelope as it would be stored, checked and computed but not stored: the builder\'s preview. The same refusals as building it (naming `inputs.N`).', access: { kind: 'group', action: 'result.write' }, params: groupParams, body: { json: previewEnvelopeSchema }, ok: json(200, '`{ meta, curve, theory, choice, inputs }`.') },
   { method: 'post', path: '/groups/{groupId}/envelopes', tag: 'Results', summary: 'Build the best-expected envelope of 2–20 result versions the group may use (its own, or other groups\' public ones) and store it as a draft result, or as a new version of `resultId`, with its inputs recorded. The answer adds `choice`: per curve point, the index of the input chosen there, the crossings and the stretches of each input.', access: { kind: 'group', action: 'result.write' }, params: groupParams, body: { json: createEnvelopeSchema }, ok: json(201, 'The stored draft version with `choice`.') },
+  {
+    method: 'post',
+    path: '/groups/{groupId}/combinations',
+    tag: 'Results',
+    summary: 'Combine 2–10 result versions computed by scans as independent channels: at every parameter value all inputs have, their counting models side by side in one likelihood and one limit on a common μ, computed as a scan of the group (same queue, progress, cancel and draft).',
+    description: 'Inputs follow the same rule as an envelope\'s (the group\'s own results, other groups\' public published versions) and must have stored counting models. Nuisance parameters with the same name are one parameter unless listed in `unlinked` (then one per input, named with the input index). The limit is in σ×B when every input gives the same nominal σ×B at every common value, else on μ (said in `combination.quantityNote` and the draft\'s notes). With `dryRun: true` only the plan is answered: each input\'s nuisance parameters and missing parameter values, the common grid, the shared names. The scan is bounded like any scan (`SCAN_COST_LIMIT`, the plan\'s queue room).',
+    access: { kind: 'group', action: 'result.write' },
+    params: groupParams,
+    body: { json: createCombinationSchema },
+    ok: json(201, 'The started scan with `combination` (the plan, also stored with the scan and shown on its draft). A dry run answers 200 `{ dryRun: true, combination }`.'),
+    errors: { 413: '`scan_too_large` / `scan_over_plan`: the combined scan is over the cost limit or the plan.', 429: '`scan_queue_full`: the group\'s queue is full.', 503: '`no_queue`: the job queue is not running.' },
+  },
   { method: 'get', path: '/groups/{groupId}/pinnable-results', tag: 'Results', summary: 'What the group may pin in its figures: its own results in any state and other groups\' public ones, each at its newest version the group may use (search, filters, pages).', access: { kind: 'group', action: 'group.read' }, params: groupParams, query: resultListQuery.omit({ groupId: true }), ok: json(200, '`{ items, total, page, pageSize }`.') },
   {
     method: 'post',

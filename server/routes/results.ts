@@ -26,7 +26,7 @@ import { fromFileUpload, fromJsonBody, parseJsonUpload, type FileUpload } from '
 import { requestFingerprint, uploadOnce, type RequestContents, type UploadAnswer } from '../services/upload-idempotency';
 import * as results from '../services/results';
 import * as combine from '../services/combine';
-import { createEnvelopeSchema, previewEnvelopeSchema } from '../../shared/schemas/combine';
+import { createCombinationSchema, createEnvelopeSchema, previewEnvelopeSchema } from '../../shared/schemas/combine';
 
 const groupListQuery = resultListQuery.omit({ groupId: true });
 const MAX_FILE_NAME = 200;
@@ -87,6 +87,12 @@ export function resultsRouter(ctx: Ctx) {
 
   r.post('/groups/:groupId/envelopes', requireGroup(ctx, 'result.write'), handle({ params: groupParams, body: createEnvelopeSchema }, async ({ params, body }, req, res) => {
     res.status(201).json(await combine.createEnvelope(ctx, params.groupId, actor(req), body));
+  }));
+
+  // A joint combination of scan-computed results, started as a scan (201), or its plan only (dry run, 200).
+  r.post('/groups/:groupId/combinations', requireGroup(ctx, 'result.write'), handle({ params: groupParams, body: createCombinationSchema }, async ({ params, body }, req, res) => {
+    const answer = await combine.createCombination(ctx, params.groupId, actor(req), body);
+    res.status(answer.dryRun ? 200 : 201).json(answer);
   }));
 
   // What the group may pin in its figures: its own results (any state), other groups' public ones.

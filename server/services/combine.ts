@@ -1,13 +1,18 @@
 import { bestExpectedEnvelope } from '../../shared/combine/envelope';
-import type { CreateEnvelopeInput, EnvelopePreview, EnvelopeVersion } from '../../shared/schemas/combine';
+import { jointGrid, nuisanceOverview, type ChannelGrid } from '../../shared/combine/joint';
+import type { CombinationAnswer, CombinationPlan, CreateCombinationBody, CreateEnvelopeInput, EnvelopePreview, EnvelopeVersion } from '../../shared/schemas/combine';
+import { countingModelSchema, type CountingModel } from '../../shared/schemas/counting-model';
 import type { VersionMeta } from '../../shared/schemas/results';
+import type { ScanInputPoint } from '../../shared/schemas/scans';
 import { StatsInputError } from '../../shared/stats/errors';
 import { getLayerVersions } from '../../db/queries/figures';
 import { insertVersionInputs } from '../../db/queries/results';
+import { listScanInputsOfVersions } from '../../db/queries/scans';
 import type { Ctx } from '../context';
 import { AppError, type ErrorDetail } from '../lib/errors';
 import { metaOf } from './figure-layers';
 import { addVersion, createResult, type Actor } from './results';
+import { startScan } from './scans';
 
 /**
  * Derived results of the combination board. A best-expected envelope (shared/combine/envelope.ts)
@@ -16,10 +21,33 @@ import { addVersion, createResult, type Actor } from './results';
  * layers — and stored as a draft in the caller's group with its inputs recorded beside it.
  */
 
-
 const refuse = (details: ErrorDetail[]): never => {
   throw new AppError(400, 'validation_failed', `${details[0]!.field}: ${details[0]!.message}`, details);
 };
+
+type Pin = { resultId: string; version: number };
+const pinKey = (p: Pin) => `${p.resultId}@${p.version}`;
+
+/**
+ * The input versions as the group may build on them (the `pinning` reader of the one visibility
+ * rule), in the order given; refuses a repeated input or one the group may not use (`inputs.N`),
+ * and inputs at different confidence levels (`what` needs one).
+ */
+async function loadInputs(ctx: Ctx, groupId: string, pins: Pin[], what: string) {
+  const seen = new Set<string>();
+  const dup = pins.findIndex((p) => (seen.has(pinKey(p)) ? true : (seen.add(pinKey(p)), false)));
+  if (dup >= 0) refuse([{ field: `inputs.${dup}`, message: 'is listed twice' }]);
+  const rows = await getLayerVersions(ctx.db, { kind: 'pinning', groupId }, pins);
+  const byPin = new Map(rows.map((r) => [pinKey(r), r]));
+  const missing = pins.flatMap((p, i) => (byPin.has(pinKey(p)) ? [] : [{ field: `inputs.${i}`, message: `version ${p.version} of result ${p.resultId} cannot be used by this group: an input must be one of the group's own results or a published version of a public result` }]));
+  if (missing.length) refuse(missing);
+  const inputs = pins.map((p) => byPin.get(pinKey(p))!);
+  const cls = inputs.findIndex((r) => r.cl !== inputs[0]!.cl);
+  if (cls >= 0) refuse([{ field: `inputs.${cls}`, message: `(${inputName(inputs[cls]!)}) is at ${inputs[cls]!.cl * 100}% CL, ${inputName(inputs[0]!)} at ${inputs[0]!.cl * 100}%: ${what} needs one confidence level` }]);
+  return inputs;
+}
+
+const inputName = (r: { title: string; version: number }) => `“${r.title}” v${r.version}`;
 
 type EnvelopeBody = Required<Pick<CreateEnvelopeInput, 'inputs'>> & Pick<CreateEnvelopeInput, 'title'>;
 
@@ -29,17 +57,8 @@ type EnvelopeBody = Required<Pick<CreateEnvelopeInput, 'inputs'>> & Pick<CreateE
  */
 async function planEnvelope(ctx: Ctx, groupId: string, body: EnvelopeBody) {
   const pins = body.inputs.map((i) => ({ resultId: i.resultId, version: i.version }));
-  const seen = new Set<string>();
-  const dup = pins.findIndex((p) => (seen.has(`${p.resultId}@${p.version}`) ? true : (seen.add(`${p.resultId}@${p.version}`), false)));
-  if (dup >= 0) refuse([{ field: `inputs.${dup}`, message: 'is listed twice' }]);
-  const rows = await getLayerVersions(ctx.db, { kind: 'pinning', groupId }, pins);
-  const byPin = new Map(rows.map((r) => [`${r.resultId}@${r.version}`, r]));
-  const missing = pins.flatMap((p, i) => (byPin.has(`${p.resultId}@${p.version}`) ? [] : [{ field: `inputs.${i}`, message: `version ${p.version} of result ${p.resultId} cannot be used by this group: an input must be one of the group's own results or a published version of a public result` }]));
-  if (missing.length) refuse(missing);
-  const inputs = pins.map((p) => byPin.get(`${p.resultId}@${p.version}`)!);
-  const name = (r: (typeof inputs)[number]) => `“${r.title}” v${r.version}`;
-  const cls = inputs.findIndex((r) => r.cl !== inputs[0]!.cl);
-  if (cls >= 0) refuse([{ field: `inputs.${cls}`, message: `(${name(inputs[cls]!)}) is at ${inputs[cls]!.cl * 100}% CL, ${name(inputs[0]!)} at ${inputs[0]!.cl * 100}%: an envelope needs one confidence level` }]);
+  const inputs = await loadInputs(ctx, groupId, pins, 'an envelope');
+  const name = inputName;
 
   let env: ReturnType<typeof bestExpectedEnvelope>;
   try {
@@ -87,4 +106,119 @@ export async function createEnvelope(ctx: Ctx, groupId: string, actor: Actor, bo
     ? await addVersion(ctx, groupId, actor, body.resultId, { ...input, changeNote: `Rebuilt from ${plan.recorded.length} inputs` }, { hooks })
     : await createResult(ctx, groupId, actor, input, { hooks });
   return { ...version, choice: plan.choice };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Joint combination
+
+/**
+ * A joint combination of result versions computed by scans (shared/combine/joint.ts): their stored
+ * counting models are concatenated at every parameter value all inputs have, and the combined grid
+ * is started as a scan of the caller's group — the same engine, queue, plan limits
+ * (`startScan`: SCAN_COST_LIMIT, the plan's queue room), progress, cancel and draft as any scan.
+ * The inputs follow the `pinning` reader (as an envelope's) and must have stored models; the plan
+ * (inputs, unlinked and shared parameters, grid) is stored with the scan and its draft lists the
+ * inputs. `dryRun` answers the plan only.
+ */
+export async function createCombination(ctx: Ctx, groupId: string, actor: Actor, body: CreateCombinationBody): Promise<CombinationAnswer> {
+  const pins = body.inputs.map((i) => ({ resultId: i.resultId, version: i.version }));
+  const inputs = await loadInputs(ctx, groupId, pins, 'a combination');
+  const scans = await listScanInputsOfVersions(ctx.db, { kind: 'pinning', groupId }, pins);
+  const scanOf = new Map(scans.map((s) => [pinKey(s), s]));
+  const noModels = inputs.flatMap((r, i) =>
+    scanOf.get(pinKey(r))?.points.length ? [] : [{ field: `inputs.${i}`, message: `(${inputName(r)}) has no stored counting models: only results computed by a scan can be combined jointly (an uploaded curve can go into a best-expected envelope)` }],
+  );
+  if (noModels.length) refuse(noModels);
+  const units = inputs.findIndex((r) => r.parameterUnit !== inputs[0]!.parameterUnit || r.parameterName !== inputs[0]!.parameterName);
+  if (units >= 0) refuse([{ field: `inputs.${units}`, message: `(${inputName(inputs[units]!)}) is a scan of ${inputs[units]!.parameterName} [${inputs[units]!.parameterUnit}], ${inputName(inputs[0]!)} of ${inputs[0]!.parameterName} [${inputs[0]!.parameterUnit}]: a combination needs one parameter` }]);
+
+  // The channels: each input's finished points with a valid model (the others are not in its result).
+  const channels: (ChannelGrid & { scan: (typeof scans)[number] })[] = inputs.map((r) => {
+    const scan = scanOf.get(pinKey(r))!;
+    return {
+      scan,
+      points: scan.points.flatMap((p) => {
+        const m = countingModelSchema.safeParse(p.model);
+        return m.success ? [{ x: p.x, sigmaNominal: p.sigmaNominal, model: m.data as CountingModel }] : [];
+      }),
+    };
+  });
+  const overview = nuisanceOverview(channels.map((c) => ({ systematics: [...new Map(c.points.flatMap((p) => p.model.systematics).map((s) => [s.name, s])).values()] })));
+  const known = new Set(overview.perInput.flat());
+  const unknown = body.unlinked.flatMap((n, k) => (known.has(n) ? [] : [{ field: `unlinked.${k}`, message: `"${n}" is not a nuisance parameter of any input (known: ${[...known].join(', ') || 'none'})` }]));
+  if (unknown.length) refuse(unknown);
+  const unlinked = [...new Set(body.unlinked)];
+
+  let grid: ReturnType<typeof jointGrid>;
+  try {
+    grid = jointGrid(channels, unlinked);
+  } catch (e) {
+    if (!(e instanceof StatsInputError)) throw e;
+    return refuse([{ field: e.field, message: e.reason }]);
+  }
+  const common = grid.points.map((p) => p.x);
+  if (common.length < 2) {
+    refuse([{ field: 'inputs', message: common.length ? `only ${inputs[0]!.parameterName} = ${common[0]} is in every input; a combination needs at least two common parameter values` : `no value of ${inputs[0]!.parameterName} is in every input: the inputs' grids do not meet` }]);
+  }
+
+  // σ×B when every input limits σ×B in one unit and gives the same nominal σ×B at every common value.
+  const xsecInputs = inputs.every((r) => r.quantity === 'xsec' && r.quantityUnit === inputs[0]!.quantityUnit);
+  const quantity: CombinationPlan['quantity'] = xsecInputs && grid.sigmaAgrees ? 'xsec' : 'mu';
+  const quantityNote =
+    quantity === 'xsec'
+      ? null
+      : !xsecInputs
+        ? 'The limit is on the signal strength μ only: not every input limits σ×B in the same unit.'
+        : 'The limit is on the signal strength μ only: the inputs do not give the same nominal σ×B at every common parameter value, so no single σ×B corresponds to μ = 1.';
+  const combination: CombinationPlan = {
+    inputs: inputs.map((r, i) => ({
+      resultId: r.resultId,
+      version: r.version,
+      title: r.title,
+      scanId: channels[i]!.scan.scanId,
+      nuisance: overview.perInput[i]!,
+      points: channels[i]!.points.length,
+      missing: grid.missing[i]!,
+    })),
+    common,
+    shared: overview.shared,
+    unlinked,
+    quantity,
+    quantityNote,
+  };
+  if (body.dryRun) return { dryRun: true, combination };
+
+  const first = metaOf(inputs[0]!);
+  const correlated = overview.shared.filter((n) => !unlinked.includes(n));
+  const notes = [
+    `Joint combination of ${inputs.length} inputs as independent channels: at each of the ${common.length} parameter values every input has, the inputs' bins in one likelihood and one limit on a common signal strength μ (each channel's signal at its own nominal σ×B).`,
+    `Inputs: ${inputs.map(inputName).join('; ')}.`,
+    correlated.length ? `One parameter shared by the inputs (fully correlated): ${correlated.join(', ')}.` : 'No nuisance parameter is shared between the inputs.',
+    unlinked.length ? `Unlinked (one parameter per input): ${unlinked.join(', ')}.` : '',
+    grid.missing.some((m) => m.length) ? `Left out (not in every input): ${grid.missing.flatMap((m, i) => (m.length ? [`${inputName(inputs[i]!)} at ${m.join(', ')}`] : [])).join('; ')}.` : '',
+    quantityNote ?? '',
+  ].filter(Boolean);
+  const meta: VersionMeta = {
+    ...first,
+    title: body.title ?? `Combination of ${inputs.length}: ${first.title}`.slice(0, 200),
+    quantity,
+    quantityUnit: quantity === 'xsec' ? first.quantityUnit : '',
+    method: body.options.method,
+    reference: '',
+    notes: notes.join('\n').slice(0, 5000),
+  };
+  const points: ScanInputPoint[] = grid.points.map((p) => ({ x: p.x, ...(p.sigmaNominal !== null ? { sigmaNominal: p.sigmaNominal } : {}), model: p.model }));
+  const theoryLabel = quantity === 'xsec' && channels.every((c) => c.scan.theoryLabel === channels[0]!.scan.theoryLabel) ? channels[0]!.scan.theoryLabel : null;
+  const options = { cl: inputs[0]!.cl, ...body.options };
+  const scan = await startScan(ctx, groupId, actor.id, {
+    points,
+    options,
+    meta,
+    resultId: body.resultId,
+    theoryLabel,
+    sourceName: null,
+    sourceBytes: Buffer.byteLength(JSON.stringify(combination)),
+    combination,
+  });
+  return { dryRun: false, ...scan, combination };
 }

@@ -167,6 +167,7 @@ export async function getVersion(ctx: Ctx, groupId: string, resultId: string, ve
   if (scan) {
     v.fromScan = {
       scanId: scan.id,
+      ...(scan.combination ? { combination: scan.combination } : {}),
       points: scan.points.map((p) => ({ index: p.index, x: p.x, warnings: p.warnings ?? [], error: p.error ? `${p.error.field}: ${p.error.reason}` : null })),
     };
   }

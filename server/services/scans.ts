@@ -5,6 +5,8 @@ import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
 import { createScanSchema, DEFAULT_SCAN_THEORY_LABEL, MAX_TOYS_PER_POINT, scanFileSchema, scanOptionsSchema, theoryLabelSchema, type RerunPointInput, type ScanInputPoint, type ScanOptions } from '../../shared/schemas/scans';
 import { versionMetaSchema, type Curve, type Theory, type VersionMeta } from '../../shared/schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from '../../shared/schemas/scan-views';
+import type { CombinationPlan } from '../../shared/schemas/combine';
+import { insertVersionInputs } from '../../db/queries/results';
 import * as q from '../../db/queries/scans';
 import { getRole } from '../../db/queries/groups';
 import type { Executor } from '../../db/client';
@@ -22,7 +24,8 @@ import * as storage from './storage';
  * into a draft result version when the last point finishes (or the scan is cancelled).
  */
 
-export type ScanRequest = { points: ScanInputPoint[]; options: ScanOptions; meta: VersionMeta; resultId?: string; theoryLabel: string | null; sourceName: string | null; sourceBytes: number };
+/** `combination`: the scan is a joint combination of other results (server/services/combine.ts), recorded with it. */
+export type ScanRequest = { points: ScanInputPoint[]; options: ScanOptions; meta: VersionMeta; resultId?: string; theoryLabel: string | null; sourceName: string | null; sourceBytes: number; combination?: CombinationPlan };
 
 function invalid(details: ErrorDetail[]): never {
   const first = details[0]!;
@@ -166,6 +169,7 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
       sourceName: req.sourceName,
       theoryLabel: req.theoryLabel,
       storedBytes,
+      combination: req.combination ?? null,
       createdBy: userId,
     });
     await q.insertScanPoints(
@@ -385,10 +389,10 @@ export function theoryOfPoints(points: q.ScanPointRow[], quantity: VersionMeta['
 }
 
 /** The change note of a scan's new version: which point a rerun computed again, else the scan. */
-function changeNoteOf(scan: q.ScanRow, points: q.ScanPointRow[]): string {
+function changeNoteOf(scan: q.ScanRow, points: q.ScanPointRow[], combined: boolean): string {
   const point = scan.rerunPoint !== null ? points.find((p) => p.index === scan.rerunPoint) : undefined;
   if (point?.toys) return `Point x = ${point.x} rerun with ${point.toys.toLocaleString('en')} pseudo-experiments`;
-  return `Recomputed by scan ${scan.id.slice(0, 8)}`;
+  return `${combined ? 'Recombined' : 'Recomputed'} by scan ${scan.id.slice(0, 8)}`;
 }
 
 /**
@@ -418,8 +422,11 @@ export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancell
     .join('\n');
   const meta: VersionMeta = { ...scan.meta, method: opts.method, cl: opts.cl, notes: notes.slice(0, 5000) };
   const input = { meta, curve, theory: theoryOfPoints(points, scan.meta.quantity, scan.theoryLabel), source: null };
+  // A joint combination's draft lists the result versions it combines (as an envelope's does).
+  const combined = scan.combination?.inputs.map((i) => ({ resultId: i.resultId, version: i.version, title: i.title }));
+  const hooks = combined ? { after: (tx: Parameters<typeof insertVersionInputs>[0], w: { resultId: string; version: number }) => insertVersionInputs(tx, scan.groupId, w.resultId, w.version, combined) } : undefined;
   const version = scan.targetResultId
-    ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: changeNoteOf(scan, points) }, { admitted: true })
-    : await createResult(ctx, scan.groupId, actor, input, { admitted: true });
+    ? await addVersion(ctx, scan.groupId, actor, scan.targetResultId, { ...input, changeNote: changeNoteOf(scan, points, !!combined) }, { admitted: true, hooks })
+    : await createResult(ctx, scan.groupId, actor, input, { admitted: true, hooks });
   await q.setScanOutcome(ctx.db, scan.groupId, scanId, { state: why, resultId: version.resultId, resultVersion: version.version });
 }

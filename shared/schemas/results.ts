@@ -190,7 +190,12 @@ export type ResultVersion = VersionSummary & {
    * For members: the scan that computed this version, with the grid points whose computation
    * warned (too few pseudo-experiments, low counts…) or failed. Null for uploads and public reads.
    */
-  fromScan: { scanId: string; points: { index: number; x: number; warnings: string[]; error: string | null }[] } | null;
+  fromScan: {
+    scanId: string;
+    points: { index: number; x: number; warnings: string[]; error: string | null }[];
+    /** When the scan was a joint combination: its inputs, the parameters unlinked and shared, the grid. */
+    combination?: import('./combine').CombinationPlan | null;
+  } | null;
   /**
    * For members: the result versions a derived version (an envelope) was built from, in order, with
    * the newest published version of each that the group may use (`null` resultId: deleted or no

@@ -124,7 +124,7 @@ export class Likelihood {
 
   /** y_pi(θ), s_i and b_i for the θ stored at `theta[offset…]`. */
   private setYields(theta: ArrayLike<number>, offset: number): void {
-    const { nBins, nProc, nPar, yields, logEffects, affects } = this.model;
+    const { nBins, nProc, nPar, yields, logEffects, affects, effectFrom, effectTo } = this.model;
     const { y, s, b, expo } = this;
     if (nPar === 0) {
       y.set(yields);
@@ -137,7 +137,8 @@ export class Likelihood {
           any = true;
           const t = theta[offset + k] as number;
           const base = (k * nProc + p) * nBins;
-          for (let i = 0; i < nBins; i++) expo[i] = (expo[i] as number) + t * (logEffects[base + i] as number);
+          const to = effectTo[k * nProc + p] as number;
+          for (let i = effectFrom[k * nProc + p] as number; i < to; i++) expo[i] = (expo[i] as number) + t * (logEffects[base + i] as number);
         }
         const base = p * nBins;
         if (any) for (let i = 0; i < nBins; i++) y[base + i] = (yields[base + i] as number) * exp(expo[i] as number);
@@ -195,7 +196,7 @@ export class Likelihood {
    * is `fixedMu` and x holds θ only. Assumes setYields was called for this θ.
    */
   private derivatives(x: Float64Array, freeMu: boolean, fixedMu: number): number {
-    const { nBins, nProc, nPar, logEffects, affects } = this.model;
+    const { nBins, nProc, nPar, logEffects, affects, binFrom, binTo, effectFrom, effectTo } = this.model;
     const { y, s, b, w, v, dnu, data, grad, hess } = this;
     const off = freeMu ? 1 : 0;
     const mu = freeMu ? (x[0] as number) : fixedMu;
@@ -226,7 +227,8 @@ export class Likelihood {
         const coef = p === 0 ? mu : 1;
         const lb = (k * nProc + p) * nBins;
         const yb = p * nBins;
-        for (let i = 0; i < nBins; i++) dnu[row + i] = (dnu[row + i] as number) + coef * (y[yb + i] as number) * (logEffects[lb + i] as number);
+        const to = effectTo[k * nProc + p] as number;
+        for (let i = effectFrom[k * nProc + p] as number; i < to; i++) dnu[row + i] = (dnu[row + i] as number) + coef * (y[yb + i] as number) * (logEffects[lb + i] as number);
       }
     }
     hess.fill(0, 0, d * d);
@@ -245,7 +247,8 @@ export class Likelihood {
         const lb = k * nProc * nBins; // process 0 = signal
         const signalAffected = affects[k * nProc] === 1;
         let h = 0;
-        for (let i = 0; i < nBins; i++) {
+        const to = binTo[k] as number;
+        for (let i = binFrom[k] as number; i < to; i++) {
           const si = s[i] as number;
           h += (v[i] as number) * si * (dnu[row + i] as number);
           if (signalAffected) h += (w[i] as number) * si * (logEffects[lb + i] as number);
@@ -256,13 +259,18 @@ export class Likelihood {
     }
     for (let k = 0; k < nPar; k++) {
       const row = k * nBins;
+      const kFrom = binFrom[k] as number;
+      const kTo = binTo[k] as number;
       let g = (x[off + k] as number) - (this.globals[k] as number);
-      for (let i = 0; i < nBins; i++) g += (w[i] as number) * (dnu[row + i] as number);
+      for (let i = kFrom; i < kTo; i++) g += (w[i] as number) * (dnu[row + i] as number);
       grad[off + k] = g;
       for (let l = k; l < nPar; l++) {
         const rowL = l * nBins;
         let h = k === l ? 1 : 0;
-        for (let i = 0; i < nBins; i++) h += (v[i] as number) * (dnu[row + i] as number) * (dnu[rowL + i] as number);
+        // Only bins both parameters act in: elsewhere every term below is exactly 0.
+        const from = max(kFrom, binFrom[l] as number);
+        const to = min(kTo, binTo[l] as number);
+        for (let i = from; i < to; i++) h += (v[i] as number) * (dnu[row + i] as number) * (dnu[rowL + i] as number);
         // Σ_i w_i ∂²ν_i/∂θ_k∂θ_l, with ∂²y_pi/∂θ_k∂θ_l = y_pi ln(1+δ_kpi) ln(1+δ_lpi)
         for (let p = 0; p < nProc; p++) {
           if (affects[k * nProc + p] === 0 || affects[l * nProc + p] === 0) continue;
@@ -270,7 +278,8 @@ export class Likelihood {
           const lk = (k * nProc + p) * nBins;
           const ll = (l * nProc + p) * nBins;
           const yb = p * nBins;
-          for (let i = 0; i < nBins; i++) {
+          const pTo = min(effectTo[k * nProc + p] as number, effectTo[l * nProc + p] as number);
+          for (let i = max(effectFrom[k * nProc + p] as number, effectFrom[l * nProc + p] as number); i < pTo; i++) {
             h += coef * (w[i] as number) * (y[yb + i] as number) * (logEffects[lk + i] as number) * (logEffects[ll + i] as number);
           }
         }

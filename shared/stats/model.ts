@@ -17,6 +17,17 @@ export interface PreparedModel {
   logEffects: Float64Array;
   /** affects[k·nProc + p] = 1 when systematic k changes process p in some bin. */
   affects: Uint8Array;
+  /**
+   * Bins systematic k can change: [binFrom[k], binTo[k]) holds every bin with a non-zero effect of
+   * k on any process (empty, 0 to 0, when none). Outside it ∂ν_i/∂θ_k is exactly 0, so the fit's
+   * sums skip those bins with the same result; a combination of channels (shared/combine/joint.ts)
+   * has most parameters acting in one channel's bins only.
+   */
+  binFrom: Int32Array;
+  binTo: Int32Array;
+  /** The same per systematic and process: [effectFrom[k·nProc + p], effectTo[k·nProc + p]). */
+  effectFrom: Int32Array;
+  effectTo: Int32Array;
   processNames: string[];
   parameterNames: string[];
   /** Nominal signal and total background per bin. */
@@ -56,6 +67,33 @@ export function prepareModel(input: unknown, fieldPrefix = ''): PreparedModel {
       }
     }
   });
+  const binFrom = new Int32Array(nPar);
+  const binTo = new Int32Array(nPar);
+  const effectFrom = new Int32Array(nPar * nProc);
+  const effectTo = new Int32Array(nPar * nProc);
+  for (let k = 0; k < nPar; k++) {
+    let from = nBins;
+    let to = 0;
+    for (let p = 0; p < nProc; p++) {
+      const base = (k * nProc + p) * nBins;
+      let pFrom = nBins;
+      let pTo = 0;
+      for (let i = 0; i < nBins; i++) {
+        if (logEffects[base + i] !== 0) {
+          if (i < pFrom) pFrom = i;
+          pTo = i + 1;
+        }
+      }
+      if (pFrom < pTo) {
+        effectFrom[k * nProc + p] = pFrom;
+        effectTo[k * nProc + p] = pTo;
+        if (pFrom < from) from = pFrom;
+        if (pTo > to) to = pTo;
+      }
+    }
+    binFrom[k] = from < to ? from : 0;
+    binTo[k] = from < to ? to : 0;
+  }
   const signal = Float64Array.from(model.signal);
   const background = new Float64Array(nBins);
   for (let p = 1; p < nProc; p++) for (let i = 0; i < nBins; i++) background[i] = (background[i] as number) + (yields[p * nBins + i] as number);
@@ -75,6 +113,10 @@ export function prepareModel(input: unknown, fieldPrefix = ''): PreparedModel {
     yields,
     logEffects,
     affects,
+    binFrom,
+    binTo,
+    effectFrom,
+    effectTo,
     processNames,
     parameterNames: model.systematics.map((s) => s.name),
     signal,

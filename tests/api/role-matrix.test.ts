@@ -2,7 +2,10 @@ import { and, eq } from 'drizzle-orm';
 import request from 'supertest';
 import { createApp } from '@/server/app';
 import { apiTokens, billingAccounts, figures, groups, groupStyles, invoices, providerEvents, resultHues, results, resultVersions, scans } from '@/db/schema';
+import { scanPoints, scanTasks } from '@/db/schema/scans';
 import { startQueue } from '@/server/jobs/queue';
+import { saveDraft } from '@/server/services/scans';
+import { computeScan } from '@/shared/stats';
 import { GROUP_ROLES, ROLE_RANK, type GroupRole } from '@/shared/access';
 import { apiErrorSchema } from '@/shared/schemas/common';
 import { uniqueEmail, verifyAddress, type Agent, type TestApp } from '../helpers/app';
@@ -241,6 +244,18 @@ const MATRIX: Entry[] = [
     prepare: async (w, groupId) => {
       const other = await makeResult(w.crew.analyst, groupId, { meta: { title: uniqueGroupName('Matrix Preview Input') } });
       return { params: { groupId }, body: { inputs: [{ resultId: (await sharedResult(w, groupId)).resultId, version: 1 }, { resultId: other.resultId, version: 1 }] } };
+    },
+  },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/combinations',
+    access: 'analyst',
+    ok: 201,
+    mutates: true,
+    prepare: async (w, groupId) => {
+      const title = uniqueGroupName('Matrix Combination');
+      const inputs = [await computedScanResult(w, groupId, uniqueGroupName('Matrix Channel A')), await computedScanResult(w, groupId, uniqueGroupName('Matrix Channel B'))];
+      return { params: { groupId }, body: { title, inputs }, effect: async () => scanTitled(w, groupId, title) };
     },
   },
   { method: 'get', path: '/api/groups/:groupId/results/:resultId', access: 'viewer', ok: 200, mutates: false, prepare: async (w, groupId) => ({ params: { groupId, resultId: (await sharedResult(w, groupId)).resultId } }) },
@@ -685,6 +700,25 @@ async function cancelledToyScan(w: World, groupId: string, title: string): Promi
   const cancel = await w.crew.analyst.agent.post(`/api/groups/${groupId}/scans/${res.body.id}/cancel`).send({});
   if (cancel.status !== 200) throw new Error(`scan cancel failed: ${cancel.status}`);
   return res.body.id as string;
+}
+/**
+ * A scan-computed result version (no worker runs here): a scan started through the API, its points
+ * computed by the engine and stored as a worker would, its tasks closed, its draft saved by the
+ * scans service. The input of a joint combination.
+ */
+async function computedScanResult(w: World, groupId: string, title: string): Promise<{ resultId: string; version: number }> {
+  const scanId = await startScan(w, groupId, title);
+  const db = w.t.ctx.db;
+  const computed = computeScan(scanBody(title).points);
+  for (const [index, r] of computed.entries()) {
+    if ('error' in r) throw new Error('engine failed');
+    await db.update(scanPoints).set({ state: 'done', result: r as unknown as Record<string, unknown> }).where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.index, index)));
+  }
+  await db.update(scanTasks).set({ state: 'done' }).where(eq(scanTasks.scanId, scanId));
+  await db.update(scans).set({ state: 'running', donePoints: computed.length }).where(eq(scans.id, scanId));
+  await saveDraft(w.t.ctx, scanId, 'done');
+  const [row] = await db.select({ resultId: scans.resultId, version: scans.resultVersion }).from(scans).where(eq(scans.id, scanId));
+  return { resultId: row!.resultId!, version: row!.version! };
 }
 async function scanTitled(w: World, groupId: string, title: string) {
   const rows = await w.t.ctx.db.select({ meta: scans.meta }).from(scans).where(eq(scans.groupId, groupId));
