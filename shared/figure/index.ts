@@ -10,7 +10,7 @@ export { resolveFigureTheme, layerColor, type ResolvedTheme } from './theme';
 export { collectLabels, buildScene, labelsOffPage } from './scene';
 export { sceneToSvg, escapeXml } from './svg';
 export { figureCsv, captionDraft } from './export';
-export { splitLabel, labelPlainText, type LabelSegment } from './labels';
+export { splitLabel, labelPlainText, labelTextRuns, type LabelSegment, type LabelRun } from './labels';
 export { outreachSpec } from './outreach';
 export { sizePt } from './plan';
 export { hueColor, paletteProblems, PALETTE_THRESHOLDS } from './color';
