@@ -16,6 +16,9 @@ const base = {
   testEnvironment: 'node',
 };
 module.exports = {
+  // CI machines have 2 cores shared by the test workers, PostgreSQL and the renderer processes: a
+  // sign-up (scrypt) plus a few writes can pass 5 s there. Tests set longer limits where they need them.
+  testTimeout: 30_000,
   projects: [
     { ...base, displayName: 'unit', testMatch: ['<rootDir>/tests/unit/**/*.test.ts'] },
     {

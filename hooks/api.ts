@@ -28,5 +28,7 @@ export const keys = {
   result: (groupId: string, resultId: string) => ['results', 'detail', groupId, resultId] as const,
   resultVersion: (groupId: string, resultId: string, version: number) => ['results', 'detail', groupId, resultId, 'v', version] as const,
   permalink: (slug: string, version: number) => ['results', 'link', slug, version] as const,
+  /** `/r/<slug>`: whichever version is current; under 'results', so a publish refreshes it. */
+  latestPermalink: (slug: string) => ['results', 'link', slug, 'latest'] as const,
   tokens: ['tokens'] as const,
 };

@@ -114,3 +114,8 @@ export function useFigureActions(groupId: string, figureId: string) {
 export function usePublicFigures(query: PublicFigureListQuery) {
   return useQuery({ queryKey: ['public-figures', query] as const, queryFn: () => api.publicFigures.list(query), placeholderData: keepPreviousData });
 }
+
+/** A public figure's own page (`/f/<id>`), for anyone; 404 when the figure is not public. */
+export function usePublicFigure(figureId: string) {
+  return useQuery({ queryKey: ['public-figures', 'one', figureId] as const, queryFn: () => api.publicFigures.get(figureId), enabled: !!figureId });
+}

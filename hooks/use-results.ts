@@ -1,5 +1,6 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { ResultListQuery } from '@/shared/schemas/results';
+import type { PublicResultListQuery, ResultListQuery } from '@/shared/schemas/results';
+import type { CreateEnvelopeInput } from '@/shared/schemas/combine';
 import { api, keys } from './api';
 
 /** A page of results visible to the caller (their groups' and everyone's public ones). */
@@ -13,11 +14,12 @@ export function useResults(query: ResultListQuery, enabled = true) {
 }
 
 /** Public published results, for anyone (signed in or not). */
-export function usePublicResults(query: { q?: string; page?: number; pageSize?: number }) {
+export function usePublicResults(query: PublicResultListQuery, enabled = true) {
   return useQuery({
     queryKey: keys.publicResults(query),
     queryFn: () => api.publicResults.list(query),
     placeholderData: keepPreviousData,
+    enabled,
   });
 }
 
@@ -38,6 +40,11 @@ export function usePermalink(slug: string, version: number | null) {
   return useQuery({ queryKey: keys.permalink(slug, version ?? 0), queryFn: () => api.results.byLink(slug, version!), enabled: !!slug && !!version });
 }
 
+/** `/r/<slug>`: the newest published version the caller may see; works signed out for public results. */
+export function useLatestPermalink(slug: string) {
+  return useQuery({ queryKey: keys.latestPermalink(slug), queryFn: () => api.results.latestByLink(slug), enabled: !!slug });
+}
+
 /** After any change to a result, every list and detail of results may be stale. */
 function useRefreshResults() {
   const qc = useQueryClient();
@@ -52,6 +59,25 @@ export function useCreateResult(groupId: string) {
 export function useAddVersion(groupId: string, resultId: string) {
   const refresh = useRefreshResults();
   return useMutation({ mutationFn: (form: FormData) => api.results.addVersion(groupId, resultId, form), onSuccess: () => refresh() });
+}
+
+/** Builds a best-expected envelope (a new draft result, or a new version of the envelope `resultId`). */
+export function useCreateEnvelope(groupId: string) {
+  const refresh = useRefreshResults();
+  return useMutation({ mutationFn: (input: CreateEnvelopeInput) => api.results.createEnvelope(groupId, input), onSuccess: () => refresh() });
+}
+
+/**
+ * The envelope of the picked inputs as it would be stored, recomputed when they change (nothing
+ * is stored); its error carries the refusals naming `inputs.N`.
+ */
+export function useEnvelopePreview(groupId: string, inputs: { resultId: string; version: number }[]) {
+  return useQuery({
+    queryKey: ['results', 'envelope-preview', groupId, inputs],
+    queryFn: () => api.results.previewEnvelope(groupId, { inputs }),
+    enabled: !!groupId && inputs.length >= 2,
+    retry: false,
+  });
 }
 
 export function usePublishVersion(groupId: string, resultId: string) {

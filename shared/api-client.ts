@@ -19,6 +19,7 @@ import type {
   CreateResultInput,
   CreateVersionInput,
   ResultDetail,
+  PublicResultListQuery,
   ResultListQuery,
   ResultPage,
   ResultVersion,
@@ -26,6 +27,7 @@ import type {
   UpdateDraftInput,
 } from './schemas/results';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from './schemas/scan-views';
+import type { CreateEnvelopeInput, EnvelopePreview, EnvelopeVersion } from './schemas/combine';
 import type {
   FigureDetail,
   FigureSummary,
@@ -33,6 +35,7 @@ import type {
   GroupStyleView,
   LayerDataRequest,
   LayerDataResponse,
+  PublicFigureDetail,
   PublicFigureListQuery,
   PublicFigurePage,
   ResultHueView,
@@ -182,14 +185,24 @@ export function createApiClient(opts: ApiClientOptions = {}) {
         call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/publish`, input),
       retract: (groupId: string, resultId: string, version: number, reason: string) =>
         call<ResultVersion>('POST', `/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/retract`, { reason }),
+      /**
+       * The best-expected envelope of 2–20 versions the group may build on, stored as a draft (or a
+       * new version of `resultId`); the answer adds which input was chosen at every point.
+       */
+      createEnvelope: (groupId: string, input: CreateEnvelopeInput) => call<EnvelopeVersion>('POST', `/api/groups/${enc(groupId)}/envelopes`, input),
+      /** The envelope as it would be stored, without storing it (the builder's check and preview). */
+      previewEnvelope: (groupId: string, input: Omit<CreateEnvelopeInput, 'resultId'>) => call<EnvelopePreview>('POST', `/api/groups/${enc(groupId)}/envelopes/preview`, input),
       /** A version by its permanent link, for anyone allowed to see it (public, or a member of its group). */
       byLink: (slug: string, version: number) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/v${version}`),
+      /** `/r/<slug>`: the newest published version the caller may see (404 `not_published` when the result has none). */
+      latestByLink: (slug: string) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/latest`),
       exportUrl: (groupId: string, resultId: string, version: number, format: 'csv' | 'json') =>
         `${base}/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/export.${format}`,
     },
     publicResults: {
-      list: (query: { q?: string; page?: number; pageSize?: number } = {}) => call<ResultPage>('GET', `/api/public/results${qs(query)}`),
+      list: (query: PublicResultListQuery = {}) => call<ResultPage>('GET', `/api/public/results${qs(query)}`),
       get: (slug: string, version: number) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/v${version}`),
+      latest: (slug: string) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/latest`),
       exportUrl: (slug: string, version: number, format: 'csv' | 'json') => `${base}/api/public/results/${enc(slug)}/v${version}/export.${format}`,
     },
     scans: {
@@ -237,6 +250,8 @@ export function createApiClient(opts: ApiClientOptions = {}) {
     },
     publicFigures: {
       list: (query: PublicFigureListQuery = {}) => call<PublicFigurePage>('GET', `/api/public/figures${qs(query)}`),
+      /** A public figure's page: title, group, caption, the pinned versions the public may see, hidden-layer count. */
+      get: (figureId: string) => call<PublicFigureDetail>('GET', `/api/public/figures/${enc(figureId)}`),
       renderUrl: (figureId: string, format: RenderFormat, opts: RenderUrlOptions = {}) => `${base}/api/public/figures/${enc(figureId)}/render.${format}${renderQs(opts)}`,
     },
     tokens: {

@@ -4,18 +4,14 @@ import type { FigureLayerInfo } from '@/shared/schemas/figure-views';
 import type { FigureLayerData } from '@/shared/figure/types';
 import { hueColor, resolveFigureTheme } from '@/shared/figure';
 import { bandsLayersOf, LINE_STYLES, type FigureSpec, type LayerParts, type LayerSpec, type LineStyle } from '@/shared/schemas/figures';
-import { useQuery } from '@tanstack/react-query';
-import { api } from '@/hooks/api';
-import { useDebounced } from '@/hooks/use-debounced';
 import { colors, radii, space } from '@/themes/tokens';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Checkbox } from '../ui/checkbox';
 import { ChoiceGroup } from '../ui/choice-group';
-import { errorMessage } from '../ui/form';
-import { Loading } from '../ui/loading';
 import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
+import { ResultPicker } from '../results/result-picker';
 import { addLayer, moveLayer, removeLayer, setLayerBands, updateLayer } from './composer-model';
 
 const PART_LABELS: [keyof LayerParts, string][] = [
@@ -78,37 +74,6 @@ function LayerColor({ layer, index, palette, onChange }: { layer: LayerSpec; ind
           />
         </View>
       </View>
-    </View>
-  );
-}
-
-/**
- * Search what the figure's group may pin (its own results, other groups' public ones) and add a
- * result (its newest version the group may draw) as a layer.
- */
-function ResultPicker({ groupId, onAdd }: { groupId: string; onAdd: (resultId: string, version: number) => void }) {
-  const [q, setQ] = useState('');
-  const query = useDebounced(q, 300);
-  const found = useQuery({ queryKey: ['results', 'picker', groupId, query], queryFn: () => api.results.listPinnable(groupId, { q: query || undefined, pageSize: 8 }) });
-  return (
-    <View style={styles.picker}>
-      <TextField label="Find results to add" value={q} onChangeText={setQ} placeholder="Title, model or reference" />
-      {found.isPending ? <Loading label="Searching…" /> : null}
-      {found.error ? <Banner tone="error" message={errorMessage(found.error)!} /> : null}
-      {found.data?.items.length === 0 ? <Text variant="muted">No result matches.</Text> : null}
-      {found.data?.items.map((r) => (
-        <View key={r.id} style={styles.found}>
-          <View style={styles.grow}>
-            <Text variant="label" numberOfLines={2}>
-              {r.title}
-            </Text>
-            <Text variant="caption">
-              v{r.version} · {r.state} · {r.groupName}
-            </Text>
-          </View>
-          <Button compact variant="secondary" label="Add" accessibilityLabel={`Add ${r.title} as a layer`} onPress={() => onAdd(r.id, r.version)} />
-        </View>
-      ))}
     </View>
   );
 }
@@ -182,7 +147,7 @@ export function LayersPanel({
           </View>
         );
       })}
-      <ResultPicker groupId={groupId} onAdd={(id, v) => onChange(addLayer(spec, id, v))} />
+      <ResultPicker groupId={groupId} onAdd={(r) => onChange(addLayer(spec, r.id, r.version))} />
     </View>
   );
 }
@@ -192,8 +157,6 @@ const styles = StyleSheet.create({
   layer: { borderWidth: 1, borderColor: colors.border, borderRadius: radii.md, padding: space.md, gap: space.sm },
   parts: { flexDirection: 'row', flexWrap: 'wrap', columnGap: space.md },
   row: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm },
-  picker: { gap: space.sm, borderTopWidth: 1, borderTopColor: colors.border, paddingTop: space.md },
-  found: { flexDirection: 'row', alignItems: 'center', gap: space.sm },
   grow: { flex: 1, minWidth: 0 },
   colorBlock: { gap: space.xs },
   swatches: { flexDirection: 'row', flexWrap: 'wrap', gap: space.xs, alignItems: 'center' },

@@ -1,4 +1,5 @@
 import { Link, usePathname } from 'expo-router';
+import { confirmLeave } from '@/hooks/use-leave-guard';
 import type { ReactNode } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { useSafeAreaInsets } from 'react-native-safe-area-context';
@@ -27,7 +28,7 @@ export function AppShell({ children }: { children: ReactNode }) {
             {items.map((item) => {
               const active = isActive(item, pathname);
               return (
-                <Link key={item.path} href={item.href} asChild>
+                <Link key={item.path} href={item.href} asChild onPress={(e) => (confirmLeave() ? undefined : e.preventDefault())}>
                   <Pressable role="link" aria-label={item.label} aria-current={active ? 'page' : undefined} style={StyleSheet.flatten([styles.sideItem, active && styles.sideItemActive])}>
                     <Text style={[styles.sideIcon, active && styles.sideTextActive]}>{item.icon}</Text>
                     <Text style={[styles.sideText, active && styles.sideTextActive]}>{item.label}</Text>
@@ -57,7 +58,7 @@ export function AppShell({ children }: { children: ReactNode }) {
           const active = isActive(item, pathname);
           const short = item.label.replace(' (development)', '');
           return (
-            <Link key={item.path} href={item.href} asChild>
+            <Link key={item.path} href={item.href} asChild onPress={(e) => (confirmLeave() ? undefined : e.preventDefault())}>
               <Pressable role="link" aria-label={item.label} aria-current={active ? 'page' : undefined} style={styles.tab}>
                 <Text style={[styles.tabIcon, active && styles.tabActive]}>{item.icon}</Text>
                 <Text style={[styles.tabText, active && styles.tabActive]}>{short}</Text>

@@ -1,4 +1,5 @@
 import { useRouter } from 'expo-router';
+import { confirmLeave } from '@/hooks/use-leave-guard';
 import { useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { ROLE_LABELS } from '@/shared/access';
@@ -54,7 +55,7 @@ export function GroupSwitcher({ dark = false }: { dark?: boolean }) {
             aria-label="Create a group"
             onPress={() => {
               setOpen(false);
-              router.push('/groups/new');
+              if (confirmLeave()) router.push('/groups/new');
             }}
             style={styles.item}
           >

@@ -11,6 +11,7 @@ import { CopyButton } from '../ui/copy-button';
 import { Text } from '../ui/text';
 import { axisLabels, parameterLabel, permalinkPath } from './format';
 import { ExclusionSummary } from './exclusion-summary';
+import { NewerVersionNotice } from './newer-version-notice';
 import { PointsTable } from './points-table';
 import { Provenance } from './provenance';
 import { PublicBadge, StateBadge } from './state-badge';
@@ -97,10 +98,14 @@ export function ResultView({ version, downloads, side, top }: { version: ResultV
       </Text>
     </View>
   );
+  const newer =
+    version.newerVersion !== null && version.newerVersion !== undefined ? (
+      <NewerVersionNotice slug={version.slug} version={version.version} state={version.state} newerVersion={version.newerVersion} />
+    ) : null;
   const retraction =
     version.state === 'retracted' ? (
       <Banner tone="error" message={`This version was retracted${version.retractionReason ? `: ${version.retractionReason.replace(/[.!]?\s*$/, '.')}` : '.'} Do not use its numbers.`} />
-    ) : version.state === 'superseded' ? (
+    ) : version.state === 'superseded' && !newer ? (
       <Banner tone="warning" message="A newer version of this result has been published; this one is kept for reference." />
     ) : null;
 
@@ -109,6 +114,7 @@ export function ResultView({ version, downloads, side, top }: { version: ResultV
       <View style={styles.gap}>
         {status}
         {retraction}
+        {newer}
         {top}
         <View style={styles.columns}>
           <View style={styles.main}>
@@ -129,6 +135,7 @@ export function ResultView({ version, downloads, side, top }: { version: ResultV
     <View style={styles.gap}>
       {status}
       {retraction}
+      {newer}
       {top}
       {plot}
       {derived}

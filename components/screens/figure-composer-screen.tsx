@@ -1,13 +1,15 @@
-import { useLocalSearchParams, useRouter } from 'expo-router';
+import { useLocalSearchParams, useRouter, type Href } from 'expo-router';
 import { useEffect, useRef, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { figureSpecSchema, type FigureSpec } from '@/shared/schemas/figures';
-import type { FigureLayerInfo } from '@/shared/schemas/figure-views';
+import { can } from '@/shared/access';
+import type { FigureDetail, FigureLayerInfo } from '@/shared/schemas/figure-views';
 import { api } from '@/hooks/api';
 import { useCurrentGroup } from '@/hooks/use-current-group';
-import { useFigure, useFigureActions, useHouseStyle, useLayerData, useSaveFigure } from '@/hooks/use-figures';
+import { useCreateFigure, useFigure, useFigureActions, useHouseStyle, useLayerData, useSaveFigure } from '@/hooks/use-figures';
 import { useIsWide } from '@/hooks/use-layout';
-import { space } from '@/themes/tokens';
+import { useLeaveGuard } from '@/hooks/use-leave-guard';
+import { colors, space } from '@/themes/tokens';
 import { edit, redo, startHistory, undo, type History } from '../figure/composer-model';
 import { FigurePreview } from '../figure/figure-preview';
 import { LayersPanel } from '../figure/layers-panel';
@@ -24,40 +26,60 @@ import { Section } from '../ui/section';
 import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
 
+/** A figure before its first save: nothing is stored until "Save" (then it gets its address). */
+export const NEW_FIGURE_SPEC = { title: 'New figure', theme: 'publication', size: { preset: 'one-column' }, layers: [] } as const;
+
 /**
  * The composer: layers from the registry, what each shows, theme, size, axes and labels, with a
- * live preview drawn by the shared scene builder. Saving makes a new version of the figure.
+ * live preview drawn by the shared scene builder. Saving makes a new version of the figure; at
+ * `/groups/<group>/figures/new` the first save creates it.
  */
 export function FigureComposerScreen() {
   const { groupId, figureId } = useLocalSearchParams<{ groupId: string; figureId: string }>();
   const figure = useFigure(groupId!, figureId!);
-  const style = useHouseStyle(groupId!);
-  const save = useSaveFigure(groupId!, figureId!);
-  const actions = useFigureActions(groupId!, figureId!);
+  if (figure.isPending) return <Screen title="Figure"><Loading label="Loading the figure…" /></Screen>;
+  if (figure.error) return <Screen title="Figure"><Banner tone="error" message={errorMessage(figure.error)!} /></Screen>;
+  return <Composer groupId={groupId!} figure={figure.data} />;
+}
+
+/** `/groups/<group>/figures/new`: the composer on an unsaved figure. */
+export function NewFigureScreen() {
+  const { groupId } = useLocalSearchParams<{ groupId: string }>();
+  return <Composer groupId={groupId!} figure={null} />;
+}
+
+function Composer({ groupId, figure: f }: { groupId: string; figure: FigureDetail | null }) {
+  const figureId = f?.id ?? '';
+  const style = useHouseStyle(groupId);
+  const save = useSaveFigure(groupId, figureId);
+  const create = useCreateFigure(groupId);
+  const actions = useFigureActions(groupId, figureId);
   const { groups } = useCurrentGroup();
   const role = groups.find((g) => g.id === groupId)?.role;
-  const canWrite = role === 'owner' || role === 'curator' || role === 'analyst' || role === 'editor';
+  const canWrite = can(role, 'figure.write');
   const wide = useIsWide();
   const router = useRouter();
-  const [history, setHistory] = useState<History | null>(null);
+  const savedSpec = f?.latest.spec ?? NEW_FIGURE_SPEC;
+  const [history, setHistory] = useState<History>(() => startHistory(figureSpecSchema.parse(savedSpec)));
   const lastKey = useRef<string | undefined>(undefined);
   const [note, setNote] = useState('');
   const [problem, setProblem] = useState<string | null>(null);
-  const layerData = useLayerData(groupId!, history?.present.layers ?? []);
+  const [confirmDelete, setConfirmDelete] = useState(false);
+  const layerData = useLayerData(groupId, history.present.layers);
 
-  // Start editing from the stored latest version (again after each save).
-  const loadedVersion = figure.data?.latest.version;
+  // Start editing from the stored latest version again after each save.
+  const loadedVersion = f?.latest.version;
   useEffect(() => {
-    if (figure.data) setHistory(startHistory(figure.data.latest.spec));
+    if (f) setHistory(startHistory(f.latest.spec));
   }, [loadedVersion]); // eslint-disable-line react-hooks/exhaustive-deps
 
-  if (figure.isPending || !history) return <Screen title="Figure">{figure.error ? <Banner tone="error" message={errorMessage(figure.error)!} /> : <Loading label="Loading the figure…" />}</Screen>;
-  if (figure.error) return <Screen title="Figure"><Banner tone="error" message={errorMessage(figure.error)!} /></Screen>;
-  const f = figure.data!;
   const spec = history.present;
-  const dirty = JSON.stringify(spec) !== JSON.stringify(f.latest.spec);
+  const dirty = f ? JSON.stringify(spec) !== JSON.stringify(f.latest.spec) : true;
+  const untouched = !f && history.past.length === 0;
+  useLeaveGuard(canWrite && dirty && !untouched && !save.isPending && !create.isPending ? 'Leave the figure without saving? Your changes will be lost.' : null);
+
   const change = (next: FigureSpec, mergeKey?: string) => {
-    setHistory((h) => (h ? edit(h, next, mergeKey, lastKey.current) : h));
+    setHistory((h) => edit(h, next, mergeKey, lastKey.current));
     lastKey.current = mergeKey;
   };
   const doSave = () => {
@@ -68,14 +90,18 @@ export function FigureComposerScreen() {
       return;
     }
     setProblem(null);
+    if (!f) {
+      create.mutate({ spec: parsed.data }, { onSuccess: (made) => router.replace(`/groups/${groupId}/figures/${made.id}` as Href) });
+      return;
+    }
     save.mutate({ spec: parsed.data, note }, { onSuccess: () => setNote('') });
   };
-  const v = f.latest.version;
+  const v = f?.latest.version ?? 0;
 
   const controls = (
     <View style={styles.col}>
       <Section title="Layers">
-        <LayersPanel groupId={groupId!} spec={spec} onChange={change} data={layerData.data} info={f.latest.layers} palette={style.data?.style?.palette} />
+        <LayersPanel groupId={groupId} spec={spec} onChange={change} data={layerData.data} info={f?.latest.layers ?? []} palette={style.data?.style?.palette} />
       </Section>
       <Section title="Look and labels" initiallyOpen={wide}>
         <StylePanel spec={spec} onChange={change} />
@@ -91,21 +117,21 @@ export function FigureComposerScreen() {
   return (
     <Screen
       title={spec.title || 'Untitled figure'}
-      subtitle={`Version ${v}${dirty ? ' · unsaved changes' : ''} · ${f.isPublic ? 'public' : 'group only'}`}
+      subtitle={f ? `Version ${v}${dirty ? ' · unsaved changes' : ''} · ${f.isPublic ? 'public' : 'group only'}` : 'Not saved yet: the figure is stored when you first save it'}
       actions={
         canWrite ? (
           <>
             <Button compact variant="secondary" label="Undo" disabled={history.past.length === 0} onPress={() => setHistory(undo(history))} />
             <Button compact variant="secondary" label="Redo" disabled={history.future.length === 0} onPress={() => setHistory(redo(history))} />
-            <Button compact label="Save" accessibilityLabel="Save as a new version" disabled={!dirty} loading={save.isPending} onPress={doSave} />
+            <Button compact label="Save" accessibilityLabel={f ? 'Save as a new version' : 'Save the new figure'} disabled={!dirty} loading={save.isPending || create.isPending} onPress={doSave} />
           </>
         ) : null
       }
     >
       {problem ? <Banner tone="error" message={problem} /> : null}
-      {save.error ? <Banner tone="error" message={errorMessage(save.error)!} /> : null}
+      {save.error || create.error ? <Banner tone="error" message={errorMessage(save.error ?? create.error)!} /> : null}
       {save.isSuccess && !dirty ? <Banner tone="success" message={`Saved as version ${v}.`} /> : null}
-      {canWrite && dirty ? <TextField label="What changed (optional)" value={note} onChangeText={setNote} /> : null}
+      {canWrite && dirty && f ? <TextField label="What changed (optional)" value={note} onChangeText={setNote} /> : null}
       {wide ? (
         <View style={styles.row}>
           <View style={styles.controls}>{canWrite ? controls : null}</View>
@@ -113,10 +139,11 @@ export function FigureComposerScreen() {
         </View>
       ) : (
         <View style={styles.col}>
-          {preview}
+          <View style={canWrite ? styles.phonePreview : undefined}>{preview}</View>
           {canWrite ? controls : null}
         </View>
       )}
+      {f ? (
       <Card>
         <Text variant="title">Downloads (version {v})</Text>
         <View style={styles.links}>
@@ -142,7 +169,8 @@ export function FigureComposerScreen() {
         </View>
         {dirty ? <Text variant="caption">Downloads show the saved version; save to include your changes.</Text> : null}
       </Card>
-      {canWrite ? (
+      ) : null}
+      {canWrite && f ? (
         <Card>
           <Text variant="title">Copies and sharing</Text>
           <Checkbox label="Public: anyone can see and download this figure" checked={f.isPublic} onChange={(p) => actions.visibility.mutate(p)} />
@@ -157,7 +185,24 @@ export function FigureComposerScreen() {
               onPress={() => actions.outreach.mutate(undefined, { onSuccess: (c) => router.push(`/groups/${groupId}/figures/${c.id}`) })}
             />
           </View>
-          {[actions.duplicate.error, actions.outreach.error, actions.visibility.error].filter(Boolean).map((e, i) => (
+          {confirmDelete ? (
+            <View style={styles.confirm}>
+              <Text>Delete “{f.title}” with all its versions? Cached downloads go with it; results stay. This cannot be undone.</Text>
+              <View style={styles.links}>
+                <Button
+                  compact
+                  variant="danger"
+                  label="Delete figure"
+                  loading={actions.remove.isPending}
+                  onPress={() => actions.remove.mutate(undefined, { onSuccess: () => router.replace('/figures') })}
+                />
+                <Button compact variant="ghost" label="Keep it" onPress={() => setConfirmDelete(false)} />
+              </View>
+            </View>
+          ) : (
+            <Button compact variant="ghost" label="Delete this figure…" accessibilityLabel={`Delete the figure ${f.title}`} onPress={() => setConfirmDelete(true)} />
+          )}
+          {[actions.duplicate.error, actions.outreach.error, actions.visibility.error, actions.remove.error].filter(Boolean).map((e, i) => (
             <Banner key={i} tone="error" message={errorMessage(e)!} />
           ))}
         </Card>
@@ -184,4 +229,7 @@ const styles = StyleSheet.create({
   controls: { flex: 2, gap: space.lg },
   preview: { flex: 3, position: 'sticky' as never, top: 0 },
   links: { flexDirection: 'row', flexWrap: 'wrap', gap: space.lg },
+  confirm: { gap: space.sm },
+  // On a phone the preview stays at the top of the screen while the controls scroll beneath it.
+  phonePreview: { position: 'sticky' as never, top: 0, zIndex: 2, backgroundColor: colors.bg },
 });

@@ -1,9 +1,8 @@
 import { Link, useRouter } from 'expo-router';
 import { Pressable, StyleSheet } from 'react-native';
-import { figureSpecSchema } from '@/shared/schemas/figures';
 import { useCurrentGroup } from '@/hooks/use-current-group';
 import { api } from '@/hooks/api';
-import { useCreateFigure, useFigures } from '@/hooks/use-figures';
+import { useFigures } from '@/hooks/use-figures';
 import { colors, fonts, radii, space } from '@/themes/tokens';
 import { FigureThumb } from '../figure/figure-thumb';
 import { THEME_LABELS } from '../figure/style-panel';
@@ -22,7 +21,6 @@ import { Text } from '../ui/text';
 export function FiguresScreen() {
   const { group, can } = useCurrentGroup();
   const list = useFigures(group?.id);
-  const create = useCreateFigure(group?.id ?? '');
   const router = useRouter();
   if (!group) {
     return (
@@ -31,18 +29,14 @@ export function FiguresScreen() {
       </Screen>
     );
   }
-  const start = () =>
-    create.mutate(
-      { spec: figureSpecSchema.parse({ title: 'New figure', theme: 'publication', size: { preset: 'one-column' }, layers: [] }) },
-      { onSuccess: (f) => router.push(`/groups/${group.id}/figures/${f.id}`) },
-    );
+  // Nothing is stored until the composer's first save.
+  const start = () => router.push(`/groups/${group.id}/figures/new`);
   return (
     <Screen
       title="Figures"
       subtitle={group.name}
-      actions={can('figure.write') ? <Button label="New figure" onPress={start} loading={create.isPending} /> : null}
+      actions={can('figure.write') ? <Button label="New figure" onPress={start} /> : null}
     >
-      {create.error ? <Banner tone="error" message={errorMessage(create.error)!} /> : null}
       {list.isPending ? <Loading label="Loading figures…" /> : null}
       {list.error ? <Banner tone="error" message={errorMessage(list.error)!} /> : null}
       {list.data?.length === 0 ? (

@@ -1,4 +1,4 @@
-import { useLocalSearchParams, useRouter } from 'expo-router';
+import { Link, useLocalSearchParams, useRouter, type Href } from 'expo-router';
 import { useEffect, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { useDebounced } from '@/hooks/use-debounced';
@@ -6,7 +6,7 @@ import { usePublicFigures } from '@/hooks/use-figures';
 import { api } from '@/hooks/api';
 import { FIGURE_THEMES, type FigureTheme } from '@/shared/schemas/figures';
 import type { PublicFigureSummary } from '@/shared/schemas/figure-views';
-import { space } from '@/themes/tokens';
+import { colors, space } from '@/themes/tokens';
 import { FigureThumb } from '../figure/figure-thumb';
 import { THEME_LABELS } from '../figure/style-panel';
 import { PublicFrame } from '../nav/public-frame';
@@ -90,9 +90,11 @@ function FigureCard({ figure: f }: { figure: PublicFigureSummary }) {
     <Card style={styles.card}>
       <FigureThumb uri={url('svg')} title={f.title} />
       <View style={styles.meta}>
-        <Text variant="title" numberOfLines={2}>
-          {f.title}
-        </Text>
+        <Link href={`/f/${f.id}` as Href} aria-label={`${f.title}: figure page`}>
+          <Text variant="title" numberOfLines={2} style={styles.titleLink}>
+            {f.title}
+          </Text>
+        </Link>
         <Text variant="caption">
           {f.groupName} · {THEME_LABELS[f.theme]} · version {f.version} · {formatDate(f.updatedAt)}
         </Text>
@@ -115,5 +117,6 @@ const styles = StyleSheet.create({
   stale: { opacity: 0.6 },
   card: { gap: space.sm },
   meta: { gap: space.xs },
+  titleLink: { color: colors.primary, textDecorationLine: 'underline' },
   downloads: { flexDirection: 'row', flexWrap: 'wrap', gap: space.lg },
 });

@@ -5,9 +5,10 @@ import { can, type GroupRole } from '@/shared/access';
 import { ApiError } from '@/shared/api-client';
 import { retractSchema, type ResultDetail, type ResultVersion } from '@/shared/schemas/results';
 import { api } from '@/hooks/api';
-import { useDeleteDraft, usePublishVersion, useResult, useResultVersion, useRetractVersion, useSetVisibility } from '@/hooks/use-results';
+import { useCreateEnvelope, useDeleteDraft, usePublishVersion, useResult, useResultVersion, useRetractVersion, useSetVisibility } from '@/hooks/use-results';
 import { useMe } from '@/hooks/use-session';
 import { colors, fonts, space } from '@/themes/tokens';
+import { permalinkPath } from '../results/format';
 import { ResultView } from '../results/result-view';
 import { VersionHistory } from '../results/version-history';
 import { Banner } from '../ui/banner';
@@ -34,6 +35,7 @@ export function ResultActions({ detail, version, role }: { detail: ResultDetail;
   const [reason, setReason] = useState('');
   const [errors, setErrors] = useState<FieldErrors>({});
   const [confirmDelete, setConfirmDelete] = useState(false);
+  const [confirmPublish, setConfirmPublish] = useState(false);
   const mayWrite = can(role, 'result.write');
   const mayPublish = can(role, 'result.publish');
   const hasPublished = detail.versions.some((v) => v.state === 'published' || v.state === 'superseded');
@@ -55,11 +57,27 @@ export function ResultActions({ detail, version, role }: { detail: ResultDetail;
       {version.state === 'draft' && mayPublish ? (
         <View style={styles.block}>
           <Checkbox label="Make the result public" hint="Anyone, signed in or not, can then open and download its published versions." checked={makePublic} onChange={setMakePublic} />
-          <Button label={`Publish version ${version.version}`} loading={publish.isPending} onPress={() => publish.mutate({ version: version.version, isPublic: makePublic })} />
-          <Text variant="caption">Published versions never change; a later version supersedes this one.</Text>
+          {confirmPublish ? (
+            <View style={styles.block} role="alertdialog" aria-label={`Publish version ${version.version}?`}>
+              <Text>
+                {`Publish version ${version.version}${makePublic ? ' for everyone' : ' for the group'}? This is permanent: a published version never changes and can only be retracted, with a reason everyone sees.`}
+              </Text>
+              <View style={styles.row}>
+                <Button
+                  label="Publish now"
+                  loading={publish.isPending}
+                  onPress={() => publish.mutate({ version: version.version, isPublic: makePublic }, { onSettled: () => setConfirmPublish(false) })}
+                />
+                <Button variant="ghost" label="Not yet" onPress={() => setConfirmPublish(false)} />
+              </View>
+            </View>
+          ) : (
+            <Button label={`Publish version ${version.version}…`} accessibilityLabel={`Publish version ${version.version}`} onPress={() => setConfirmPublish(true)} />
+          )}
+          <Text variant="caption">Published versions never change; a later version supersedes this one. The author is told by mail.</Text>
         </View>
       ) : null}
-      {version.state === 'draft' && !mayPublish ? <Text variant="muted">A curator or owner of the group publishes drafts.</Text> : null}
+      {version.state === 'draft' && !mayPublish ? <Text variant="muted">A curator or owner of the group publishes drafts; they were told by mail that this one awaits review.</Text> : null}
       {version.state === 'published' && mayPublish ? (
         retracting ? (
           <View style={styles.block}>
@@ -155,6 +173,53 @@ export function ScanOrigin({ groupId, origin, unit }: { groupId: string; origin:
   );
 }
 
+/**
+ * The inputs a derived version (a best-expected envelope) was built from, each linked to its
+ * permanent link, with a note where a newer published version exists, and for writers "rebuild
+ * from the latest inputs" (a new version; this one stays).
+ */
+export function EnvelopeInputs({ groupId, version, role, onRebuilt }: { groupId: string; version: ResultVersion; role: GroupRole | undefined; onRebuilt: (v: number) => void }) {
+  const rebuild = useCreateEnvelope(groupId);
+  const inputs = version.inputs ?? [];
+  const newer = inputs.filter((i) => i.resultId && i.latestPublished !== null && i.latestPublished > i.version);
+  const gone = inputs.filter((i) => !i.resultId);
+  const submit = () =>
+    rebuild.mutate(
+      {
+        resultId: version.resultId,
+        inputs: inputs.flatMap((i) => (i.resultId ? [{ resultId: i.resultId, version: i.latestPublished !== null && i.latestPublished > i.version ? i.latestPublished : i.version }] : [])),
+      },
+      { onSuccess: (v) => onRebuilt(v.version) },
+    );
+  return (
+    <Card>
+      <Text variant="title">Built from {inputs.length} inputs</Text>
+      <View style={styles.block} role="list" aria-label="Inputs of this envelope">
+        {inputs.map((i) => (
+          <View key={i.position} role="listitem" style={styles.inputRow}>
+            {i.slug ? (
+              <Link href={permalinkPath(i.slug, i.version) as Href} style={styles.link}>
+                {`${i.position + 1}. ${i.title} v${i.version}`}
+              </Link>
+            ) : (
+              <Text>{`${i.position + 1}. ${i.title} v${i.version} (no longer available to this group)`}</Text>
+            )}
+            {i.resultId && i.latestPublished !== null && i.latestPublished > i.version ? <Text variant="caption">{`Version ${i.latestPublished} is published`}</Text> : null}
+          </View>
+        ))}
+      </View>
+      {newer.length ? (
+        <Banner tone="warning" message={`${newer.length === 1 ? 'One input has' : `${newer.length} inputs have`} a newer published version than the one used here.`} />
+      ) : null}
+      {gone.length ? <Banner tone="warning" message="An input is no longer available to this group; a rebuild leaves it out." /> : null}
+      {newer.length && can(role, 'result.write') ? (
+        <Button variant="secondary" label="Rebuild from the latest inputs" loading={rebuild.isPending} onPress={submit} accessibilityHint="Adds a new draft version built from the newest published inputs; this version stays" />
+      ) : null}
+      {rebuild.error ? <Banner tone="error" message={errorMessage(rebuild.error)!} /> : null}
+    </Card>
+  );
+}
+
 export function ResultScreen() {
   const params = useLocalSearchParams<{ groupId: string; resultId: string; v?: string }>();
   const groupId = String(params.groupId ?? '');
@@ -197,6 +262,7 @@ export function ResultScreen() {
             <>
               <ResultActions detail={detail.data} version={v} role={role} />
               {v.fromScan ? <ScanOrigin groupId={groupId} origin={v.fromScan} unit={v.meta.parameterUnit} /> : null}
+              {v.inputs ? <EnvelopeInputs groupId={groupId} version={v} role={role} onRebuilt={(n) => router.setParams({ v: String(n) })} /> : null}
               <Card>
                 <Text variant="title">Versions</Text>
                 <VersionHistory versions={versions} selected={v.version} onSelect={(n) => router.setParams({ v: String(n) })} />
@@ -211,6 +277,7 @@ export function ResultScreen() {
 
 const styles = StyleSheet.create({
   block: { gap: space.sm },
+  inputRow: { gap: 2 },
   row: { flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' },
   failed: { color: colors.danger },
   link: { color: colors.primary, fontFamily: fonts.semibold, fontSize: 15, lineHeight: 22 },

@@ -1,4 +1,5 @@
-import { ActivityIndicator, Pressable, StyleSheet, Text, type PressableProps, type StyleProp, type ViewStyle } from 'react-native';
+import type { Ref } from 'react';
+import { ActivityIndicator, Pressable, StyleSheet, Text, type PressableProps, type StyleProp, type View, type ViewStyle } from 'react-native';
 import { colors, fonts, radii, space } from '@/themes/tokens';
 
 type Variant = 'primary' | 'secondary' | 'danger' | 'ghost';
@@ -11,6 +12,8 @@ export type ButtonProps = Omit<PressableProps, 'children' | 'style'> & {
   accessibilityLabel?: string;
   style?: StyleProp<ViewStyle>;
   compact?: boolean;
+  /** The pressable itself (e.g. to give it focus back when a panel it opened closes). */
+  ref?: Ref<View>;
 };
 
 export function Button({ label, variant = 'primary', loading, disabled, style, compact, accessibilityLabel, ...rest }: ButtonProps) {

@@ -177,6 +177,7 @@ export async function getLayerVersions(db: Executor, viewer: Viewer, pins: { res
       resultId: resultVersions.resultId,
       version: resultVersions.version,
       groupId: results.groupId,
+      groupName: groups.name,
       isPublic: results.isPublic,
       slug: results.slug,
       state: resultVersions.state,
@@ -198,6 +199,7 @@ export async function getLayerVersions(db: Executor, viewer: Viewer, pins: { res
     })
     .from(resultVersions)
     .innerJoin(results, eq(results.id, resultVersions.resultId))
+    .innerJoin(groups, eq(groups.id, results.groupId))
     .where(and(pinMatch(pins), versionVisibleSql(viewer)));
 }
 

@@ -369,3 +369,16 @@ export async function listVersionInputs(db: Executor, groupId: string, resultId:
     return { ...r, resultId: v ? r.resultId : null, slug: v?.slug ?? null, latestPublished: v?.latest ?? null };
   });
 }
+
+// ---------------------------------------------------------------------------------------------
+// Who to tell about a version
+
+/** The account that created a version of the group's result (null when it was deleted). */
+export async function versionAuthor(db: Executor, groupId: string, resultId: string, version: number) {
+  const [row] = await db
+    .select({ id: user.id, name: user.name, email: user.email })
+    .from(resultVersions)
+    .innerJoin(user, eq(user.id, resultVersions.createdBy))
+    .where(and(inArray(resultVersions.resultId, resultOfGroup(db, groupId, resultId)), eq(resultVersions.version, version)));
+  return row ?? null;
+}

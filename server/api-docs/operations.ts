@@ -10,7 +10,7 @@
  */
 import { z } from 'zod';
 import type { GroupAction } from '../../shared/access';
-import { createEnvelopeSchema } from '../../shared/schemas/combine';
+import { createEnvelopeSchema, previewEnvelopeSchema } from '../../shared/schemas/combine';
 import { checkoutSchema, invoiceParams, invoiceSchema, planViewSchema } from '../../shared/plans';
 import { requestPasswordResetSchema, resendVerificationSchema, resetPasswordSchema, signInSchema, signUpSchema } from '../../shared/schemas/auth';
 import {
@@ -213,6 +213,7 @@ export const OPERATIONS: ApiOperation[] = [
 
   // --- Results: group routes ---
   { method: 'get', path: '/groups/{groupId}/results', tag: 'Results', summary: 'The group\'s results in any state (search, filters, pages).', access: { kind: 'group', action: 'group.read' }, params: groupParams, query: resultListQuery.omit({ groupId: true }), ok: json(200, '`{ items, total, page, pageSize }`: each result with its newest version.') },
+  { method: 'post', path: '/groups/{groupId}/envelopes/preview', tag: 'Results', summary: 'The best-expected envelope as it would be stored, checked and computed but not stored: the builder\'s preview. The same refusals as building it (naming `inputs.N`).', access: { kind: 'group', action: 'result.write' }, params: groupParams, body: { json: previewEnvelopeSchema }, ok: json(200, '`{ meta, curve, theory, choice, inputs }`.') },
   { method: 'post', path: '/groups/{groupId}/envelopes', tag: 'Results', summary: 'Build the best-expected envelope of 2–20 result versions the group may use (its own, or other groups\' public ones) and store it as a draft result, or as a new version of `resultId`, with its inputs recorded. The answer adds `choice`: per curve point, the index of the input chosen there, the crossings and the stretches of each input.', access: { kind: 'group', action: 'result.write' }, params: groupParams, body: { json: createEnvelopeSchema }, ok: json(201, 'The stored draft version with `choice`.') },
   { method: 'get', path: '/groups/{groupId}/pinnable-results', tag: 'Results', summary: 'What the group may pin in its figures: its own results in any state and other groups\' public ones, each at its newest version the group may use (search, filters, pages).', access: { kind: 'group', action: 'group.read' }, params: groupParams, query: resultListQuery.omit({ groupId: true }), ok: json(200, '`{ items, total, page, pageSize }`.') },
   {

@@ -26,7 +26,7 @@ import { fromFileUpload, fromJsonBody, parseJsonUpload, type FileUpload } from '
 import { requestFingerprint, uploadOnce, type RequestContents, type UploadAnswer } from '../services/upload-idempotency';
 import * as results from '../services/results';
 import * as combine from '../services/combine';
-import { createEnvelopeSchema } from '../../shared/schemas/combine';
+import { createEnvelopeSchema, previewEnvelopeSchema } from '../../shared/schemas/combine';
 
 const groupListQuery = resultListQuery.omit({ groupId: true });
 const MAX_FILE_NAME = 200;
@@ -81,6 +81,10 @@ export function resultsRouter(ctx: Ctx) {
   }));
 
   // A best-expected envelope of other result versions, stored as a draft of the group.
+  r.post('/groups/:groupId/envelopes/preview', requireGroup(ctx, 'result.write'), handle({ params: groupParams, body: previewEnvelopeSchema }, async ({ params, body }, _req, res) => {
+    res.json(await combine.previewEnvelope(ctx, params.groupId, body));
+  }));
+
   r.post('/groups/:groupId/envelopes', requireGroup(ctx, 'result.write'), handle({ params: groupParams, body: createEnvelopeSchema }, async ({ params, body }, req, res) => {
     res.status(201).json(await combine.createEnvelope(ctx, params.groupId, actor(req), body));
   }));
@@ -153,12 +157,12 @@ export function resultsRouter(ctx: Ctx) {
     res.status(204).end();
   }));
 
-  r.post('/groups/:groupId/results/:resultId/versions/:version/publish', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: publishSchema }, async ({ params, body }, _req, res) => {
-    res.json(await results.publish(ctx, params.groupId, params.resultId, params.version, body));
+  r.post('/groups/:groupId/results/:resultId/versions/:version/publish', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: publishSchema }, async ({ params, body }, req, res) => {
+    res.json(await results.publish(ctx, params.groupId, actor(req), params.resultId, params.version, body));
   }));
 
-  r.post('/groups/:groupId/results/:resultId/versions/:version/retract', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: retractSchema }, async ({ params, body }, _req, res) => {
-    res.json(await results.retract(ctx, params.groupId, params.resultId, params.version, body.reason));
+  r.post('/groups/:groupId/results/:resultId/versions/:version/retract', requireGroup(ctx, 'result.publish'), handle({ params: versionParams, body: retractSchema }, async ({ params, body }, req, res) => {
+    res.json(await results.retract(ctx, params.groupId, actor(req), params.resultId, params.version, body.reason));
   }));
 
   for (const format of ['csv', 'json'] as const) {

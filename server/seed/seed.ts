@@ -5,6 +5,7 @@ import type { Ctx } from '../context';
 import { groupSlug } from '../services/groups';
 import * as resultsService from '../services/results';
 import { DEMO_RESULTS } from './demo-results';
+import { seedDemoEnvelopes } from './seed-envelopes';
 import { seedDemoFigures } from './seed-figures';
 import { addMember, getRole, insertGroup, slugTaken } from '../../db/queries/groups';
 import { slugExists } from '../../db/queries/results';
@@ -49,8 +50,9 @@ export const DEMO_GROUPS: { name: string; description: string; members: [DemoKey
 export async function seedDemo(ctx: Ctx): Promise<{ created: boolean }> {
   const people = await seedDemoPeople(ctx);
   const results = await seedDemoResults(ctx);
+  const envelopes = await seedDemoEnvelopes(ctx);
   const figures = await seedDemoFigures(ctx);
-  return { created: people || results > 0 || figures > 0 };
+  return { created: people || results > 0 || envelopes > 0 || figures > 0 };
 }
 
 async function seedDemoPeople(ctx: Ctx): Promise<boolean> {
@@ -111,8 +113,8 @@ export async function seedDemoResults(ctx: Ctx): Promise<number> {
         : await resultsService.createResult(ctx, group.id, uploader, input, { slug: demo.slug });
       resultId = stored.resultId;
       if (v.then === 'draft') continue;
-      await resultsService.publish(ctx, group.id, resultId, stored.version, i === 0 ? { public: demo.isPublic } : {});
-      if (typeof v.then === 'object') await resultsService.retract(ctx, group.id, resultId, stored.version, v.then.retract);
+      await resultsService.publish(ctx, group.id, publisher, resultId, stored.version, i === 0 ? { public: demo.isPublic } : {});
+      if (typeof v.then === 'object') await resultsService.retract(ctx, group.id, publisher, resultId, stored.version, v.then.retract);
     }
     added += 1;
   }

@@ -1,6 +1,6 @@
 import { bestExpectedEnvelope } from '../../shared/combine/envelope';
-import type { CreateEnvelopeInput } from '../../shared/schemas/combine';
-import type { ResultVersion, VersionMeta } from '../../shared/schemas/results';
+import type { CreateEnvelopeInput, EnvelopePreview, EnvelopeVersion } from '../../shared/schemas/combine';
+import type { VersionMeta } from '../../shared/schemas/results';
 import { StatsInputError } from '../../shared/stats/errors';
 import { getLayerVersions } from '../../db/queries/figures';
 import { insertVersionInputs } from '../../db/queries/results';
@@ -16,14 +16,18 @@ import { addVersion, createResult, type Actor } from './results';
  * layers — and stored as a draft in the caller's group with its inputs recorded beside it.
  */
 
-/** The stored draft, and for every point of its curve which input (index into `inputs`) was chosen. */
-export type EnvelopeAnswer = ResultVersion & { choice: { chosen: number[]; crossing: boolean[]; segments: { input: number; from: number; to: number }[] } };
 
 const refuse = (details: ErrorDetail[]): never => {
   throw new AppError(400, 'validation_failed', `${details[0]!.field}: ${details[0]!.message}`, details);
 };
 
-export async function createEnvelope(ctx: Ctx, groupId: string, actor: Actor, body: Required<Pick<CreateEnvelopeInput, 'inputs'>> & Pick<CreateEnvelopeInput, 'title' | 'resultId'>): Promise<EnvelopeAnswer> {
+type EnvelopeBody = Required<Pick<CreateEnvelopeInput, 'inputs'>> & Pick<CreateEnvelopeInput, 'title'>;
+
+/**
+ * Everything an envelope is, computed and checked but not stored: the inputs the group may use
+ * (else 400 naming `inputs.N`), the curve, its provenance and the per-point choice.
+ */
+async function planEnvelope(ctx: Ctx, groupId: string, body: EnvelopeBody) {
   const pins = body.inputs.map((i) => ({ resultId: i.resultId, version: i.version }));
   const seen = new Set<string>();
   const dup = pins.findIndex((p) => (seen.has(`${p.resultId}@${p.version}`) ? true : (seen.add(`${p.resultId}@${p.version}`), false)));
@@ -66,10 +70,21 @@ export async function createEnvelope(ctx: Ctx, groupId: string, actor: Actor, bo
   // A theory curve only when every input carries the same one (else no single excluded range).
   const theory = inputs.every((r) => JSON.stringify(r.theory) === JSON.stringify(inputs[0]!.theory)) && env.converted.length === 0 ? (inputs[0]!.theory ?? null) : null;
   const recorded = inputs.map((r) => ({ resultId: r.resultId, version: r.version, title: r.title }));
-  const hooks = { after: (tx: Parameters<typeof insertVersionInputs>[0], w: { resultId: string; version: number }) => insertVersionInputs(tx, groupId, w.resultId, w.version, recorded) };
-  const input = { meta, curve: env.curve, theory, source: null };
+  return { meta, curve: env.curve, theory, recorded, groups: inputs.map((r) => r.groupName), choice: { chosen: env.chosen, crossing: env.crossing, segments: env.segments } };
+}
+
+/** The envelope as it would be stored, without storing anything (the builder's preview and check). */
+export async function previewEnvelope(ctx: Ctx, groupId: string, body: EnvelopeBody): Promise<EnvelopePreview> {
+  const plan = await planEnvelope(ctx, groupId, body);
+  return { meta: plan.meta, curve: plan.curve, theory: plan.theory, choice: plan.choice, inputs: plan.recorded.map((r, i) => ({ ...r, groupName: plan.groups[i]! })) };
+}
+
+export async function createEnvelope(ctx: Ctx, groupId: string, actor: Actor, body: EnvelopeBody & Pick<CreateEnvelopeInput, 'resultId'>): Promise<EnvelopeVersion> {
+  const plan = await planEnvelope(ctx, groupId, body);
+  const hooks = { after: (tx: Parameters<typeof insertVersionInputs>[0], w: { resultId: string; version: number }) => insertVersionInputs(tx, groupId, w.resultId, w.version, plan.recorded) };
+  const input = { meta: plan.meta, curve: plan.curve, theory: plan.theory, source: null };
   const version = body.resultId
-    ? await addVersion(ctx, groupId, actor, body.resultId, { ...input, changeNote: `Rebuilt from ${inputs.length} inputs` }, { hooks })
+    ? await addVersion(ctx, groupId, actor, body.resultId, { ...input, changeNote: `Rebuilt from ${plan.recorded.length} inputs` }, { hooks })
     : await createResult(ctx, groupId, actor, input, { hooks });
-  return { ...version, choice: { chosen: env.chosen, crossing: env.crossing, segments: env.segments } };
+  return { ...version, choice: plan.choice };
 }

@@ -15,6 +15,7 @@ import { versionSearchText } from '../../shared/search';
 import { exclusionRanges } from '../../shared/stats/exclusion';
 import { StatsInputError } from '../../shared/stats/errors';
 import * as q from '../../db/queries/results';
+import * as notices from './result-notices';
 import { scanOfVersion } from '../../db/queries/scans';
 import type { Ctx } from '../context';
 import type { Executor } from '../../db/client';
@@ -283,7 +284,9 @@ export async function createResult(
     await opts.hooks?.after?.(tx, { resultId: result.id, version: 1 });
     return result.id;
   });
-  return getVersion(ctx, groupId, resultId, 1);
+  const stored = await getVersion(ctx, groupId, resultId, 1);
+  await notices.draftAwaitsReview(ctx, actor, stored);
+  return stored;
 }
 
 /** A new draft version with the next number; concurrent calls queue on the result's row lock. */
@@ -314,7 +317,9 @@ export async function addVersion(
     await opts.hooks?.after?.(tx, { resultId, version: n });
     return n;
   });
-  return getVersion(ctx, groupId, resultId, version);
+  const stored = await getVersion(ctx, groupId, resultId, version);
+  await notices.draftAwaitsReview(ctx, actor, stored);
+  return stored;
 }
 
 /** Locks the result and reads one of its versions (404 when either is not in the group). */
@@ -389,7 +394,7 @@ export async function deleteResult(ctx: Ctx, groupId: string, actor: Actor, resu
  * transaction. A draft older than an already released version cannot be published (the newest
  * released version is the current one).
  */
-export async function publish(ctx: Ctx, groupId: string, resultId: string, version: number, opts: { public?: boolean }): Promise<ResultVersion> {
+export async function publish(ctx: Ctx, groupId: string, actor: Pick<Actor, 'id'>, resultId: string, version: number, opts: { public?: boolean }): Promise<ResultVersion> {
   await ctx.db.transaction(async (tx) => {
     const row = await lockedVersion(tx, groupId, resultId, version);
     if (row.state !== 'draft') throw conflict(`Version ${version} is ${row.state}; only drafts can be published`);
@@ -402,11 +407,13 @@ export async function publish(ctx: Ctx, groupId: string, resultId: string, versi
     if (opts.public !== undefined) await q.setResultPublic(tx, groupId, resultId, opts.public);
     else await q.touchResult(tx, groupId, resultId);
   });
-  return getVersion(ctx, groupId, resultId, version);
+  const done = await getVersion(ctx, groupId, resultId, version);
+  await notices.versionDecided(ctx, actor.id, done, { kind: 'published', isPublic: done.isPublic });
+  return done;
 }
 
 /** Retracts a published or superseded version; the reason is shown to everyone who opens it. */
-export async function retract(ctx: Ctx, groupId: string, resultId: string, version: number, reason: string): Promise<ResultVersion> {
+export async function retract(ctx: Ctx, groupId: string, actor: Pick<Actor, 'id'>, resultId: string, version: number, reason: string): Promise<ResultVersion> {
   await ctx.db.transaction(async (tx) => {
     const row = await lockedVersion(tx, groupId, resultId, version);
     if (row.state === 'draft') throw conflict(`Version ${version} is a draft and was never published; delete it instead`);
@@ -414,7 +421,9 @@ export async function retract(ctx: Ctx, groupId: string, resultId: string, versi
     await q.updateVersion(tx, groupId, resultId, version, { state: 'retracted', retractedAt: new Date(), retractionReason: reason });
     await q.touchResult(tx, groupId, resultId);
   });
-  return getVersion(ctx, groupId, resultId, version);
+  const done = await getVersion(ctx, groupId, resultId, version);
+  await notices.versionDecided(ctx, actor.id, done, { kind: 'retracted', reason });
+  return done;
 }
 
 export async function setVisibility(ctx: Ctx, groupId: string, resultId: string, isPublic: boolean): Promise<ResultDetail> {

@@ -4,6 +4,7 @@
 import { z } from 'zod';
 import { ENVELOPE_MAX_INPUTS, ENVELOPE_MIN_INPUTS } from '../combine/envelope';
 import { intField, uuidParam } from './common';
+import type { Curve, ResultVersion, Theory, VersionMeta } from './results';
 
 /** Build an envelope from 2–20 result versions; as a new result, or a new version of `resultId`. */
 export const createEnvelopeSchema = z.object({
@@ -16,3 +17,19 @@ export const createEnvelopeSchema = z.object({
   resultId: uuidParam.optional(),
 });
 export type CreateEnvelopeInput = z.input<typeof createEnvelopeSchema>;
+
+/** The answer to building an envelope: the stored version, and per curve point the input chosen (an index into `inputs`). */
+export type EnvelopeVersion = ResultVersion & { choice: EnvelopeChoice };
+
+/** Which input the envelope takes at every point of its curve, where it switches, and the stretches of each. */
+export type EnvelopeChoice = { chosen: number[]; crossing: boolean[]; segments: { input: number; from: number; to: number }[] };
+
+/** `POST /api/groups/:groupId/envelopes/preview`: the envelope as it would be stored (nothing is stored). */
+export const previewEnvelopeSchema = createEnvelopeSchema.omit({ resultId: true });
+export type EnvelopePreview = {
+  meta: VersionMeta;
+  curve: Curve;
+  theory: Theory | null;
+  choice: EnvelopeChoice;
+  inputs: { resultId: string; version: number; title: string; groupName: string }[];
+};

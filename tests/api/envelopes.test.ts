@@ -178,3 +178,25 @@ test('the envelope cannot be added as a version of another group\'s result', asy
   const list = await bob.agent.get(`/api/groups/${groupB}/results/${theirs.resultId}/versions/2`);
   expect(list.status).toBe(404);
 });
+
+test('the preview computes the same envelope as building it, and stores nothing; its refusals are the same', async () => {
+  const a = await upload(alice, groupA, curveOf(grid(1000, 500, 7), 40, 1500), { title: 'Preview input A' });
+  const b = await upload(alice, groupA, curveOf(grid(1000, 500, 7), 80, 1000), { title: 'Preview input B' });
+  const inputs = [{ resultId: a.resultId, version: 1 }, { resultId: b.resultId, version: 1 }];
+  const before = (await alice.agent.get(`/api/groups/${groupA}/results`)).body.total;
+  const preview = await alice.agent.post(`/api/groups/${groupA}/envelopes/preview`).send({ inputs });
+  expect(preview.status).toBe(200);
+  expect((await alice.agent.get(`/api/groups/${groupA}/results`)).body.total).toBe(before);
+  expect(preview.body.inputs.map((i: { title: string }) => i.title)).toEqual(['Preview input A', 'Preview input B']);
+  const built = await alice.agent.post(`/api/groups/${groupA}/envelopes`).send({ inputs });
+  expect(built.status).toBe(201);
+  expect(preview.body.curve).toEqual(built.body.curve);
+  expect(preview.body.choice).toEqual(built.body.choice);
+
+  const mu = await upload(alice, groupA, curveOf(grid(1000, 500, 5), 2, 1500), { quantity: 'mu', quantityUnit: '' });
+  const refused = await alice.agent.post(`/api/groups/${groupA}/envelopes/preview`).send({ inputs: [inputs[0], { resultId: mu.resultId, version: 1 }] });
+  expect(refused.status).toBe(400);
+  expect(refused.body.error.details[0].field).toMatch(/^inputs\.1/);
+  const tooFew = await alice.agent.post(`/api/groups/${groupA}/envelopes/preview`).send({ inputs: [inputs[0]] });
+  expect([tooFew.status, tooFew.body.error.details[0].field]).toEqual([400, 'inputs']);
+});

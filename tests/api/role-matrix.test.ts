@@ -232,6 +232,17 @@ const MATRIX: Entry[] = [
       };
     },
   },
+  {
+    method: 'post',
+    path: '/api/groups/:groupId/envelopes/preview',
+    access: 'analyst',
+    ok: 200,
+    mutates: false,
+    prepare: async (w, groupId) => {
+      const other = await makeResult(w.crew.analyst, groupId, { meta: { title: uniqueGroupName('Matrix Preview Input') } });
+      return { params: { groupId }, body: { inputs: [{ resultId: (await sharedResult(w, groupId)).resultId, version: 1 }, { resultId: other.resultId, version: 1 }] } };
+    },
+  },
   { method: 'get', path: '/api/groups/:groupId/results/:resultId', access: 'viewer', ok: 200, mutates: false, prepare: async (w, groupId) => ({ params: { groupId, resultId: (await sharedResult(w, groupId)).resultId } }) },
   {
     method: 'patch',

@@ -1,8 +1,9 @@
 import request from 'supertest';
 import { eq } from 'drizzle-orm';
+import { DEMO_ENVELOPES } from '@/server/seed/seed-envelopes';
 import { DEMO_RESULTS } from '@/server/seed/demo-results';
 import { DEMO_GROUPS, DEMO_PASSWORD, DEMO_USERS, seedDemo } from '@/server/seed/seed';
-import { devMail, figures, groups, results, user } from '@/db/schema';
+import { devMail, figures, groups, results, resultVersions, user } from '@/db/schema';
 import { startTestApp, TEST_ORIGIN, type TestApp } from '../helpers/app';
 import type { ResultPage, ResultVersion } from '@/shared/schemas/results';
 
@@ -35,7 +36,7 @@ const counts = async () => ({
 test('the seed adds the demo world once; a second run changes nothing', async () => {
   expect(firstRun).toEqual({ created: true });
   const first = await counts();
-  expect(first).toMatchObject({ users: DEMO_USERS.length, groups: DEMO_GROUPS.length, results: DEMO_RESULTS.length });
+  expect(first).toMatchObject({ users: DEMO_USERS.length, groups: DEMO_GROUPS.length, results: DEMO_RESULTS.length + DEMO_ENVELOPES.length });
   expect(await seedDemo(t.ctx)).toEqual({ created: false });
   expect(await counts()).toEqual(first);
 });
@@ -52,7 +53,8 @@ test('the demo people have verified addresses (they may accept invitations at on
 test('the demo results cover every state, with bands, theory and derived exclusions', async () => {
   const analyst = await signIn('anouk@lanternfish.example');
   const mine = (await analyst.get('/api/results?pageSize=50')).body as ResultPage;
-  expect(mine.items.map((i) => i.state).sort()).toEqual(['draft', 'published', 'published', 'published', 'published', 'retracted']);
+  // The envelope of the combination board is the second draft.
+  expect(mine.items.map((i) => i.state).sort()).toEqual(['draft', 'draft', 'published', 'published', 'published', 'published', 'retracted']);
 
   const vprime = mine.items.find((i) => i.title.startsWith('Search for a heavy vector boson'))!;
   const detail = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}`)).body;
@@ -97,8 +99,19 @@ test('a database seeded before the registry (users and groups, no results) gets 
   expect(before.results).toBe(0);
   expect(await seedDemo(t.ctx)).toEqual({ created: true });
   const after = await counts();
-  expect(after).toMatchObject({ users: before.users, groups: before.groups, results: DEMO_RESULTS.length });
+  expect(after).toMatchObject({ users: before.users, groups: before.groups, results: DEMO_RESULTS.length + DEMO_ENVELOPES.length });
   expect(after.storage.some((b) => b > 0)).toBe(true);
   expect(await seedDemo(t.ctx)).toEqual({ created: false });
   expect((await t.ctx.db.select().from(results).where(eq(results.slug, DEMO_RESULTS[0]!.slug))).length).toBe(1);
+});
+
+test('the combination board holds a best-expected envelope of the dijet search (another group\'s public result) and its own combination, with the inputs recorded', async () => {
+  const agent = await signIn('anouk@lanternfish.example');
+  const [row] = await t.ctx.db.select({ id: results.id, groupId: results.groupId }).from(results).innerJoin(resultVersions, eq(resultVersions.resultId, results.id)).where(eq(resultVersions.title, DEMO_ENVELOPES[0].title));
+  expect(row).toBeDefined();
+  const v = await agent.get(`/api/groups/${row!.groupId}/results/${row!.id}/versions/1`);
+  expect(v.status).toBe(200);
+  expect(v.body.state).toBe('draft');
+  expect(v.body.inputs.map((i: { slug: string }) => i.slug)).toEqual([...DEMO_ENVELOPES[0].inputs]);
+  expect(v.body.meta.notes).toMatch(/^Best expected of 2 inputs/);
 });

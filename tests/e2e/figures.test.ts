@@ -60,6 +60,9 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.getByRole('region', { name: 'No figures yet' }).waitFor();
     await page.getByRole('button', { name: 'New figure', exact: true }).click();
     await page.getByRole('heading', { name: 'New figure', exact: true }).waitFor();
+    await page.getByText('Not saved yet: the figure is stored when you first save it', { exact: true }).waitFor();
+    // Nothing is stored before the first save.
+    expect(await page.evaluate(`fetch('/api/groups/${groupId}/figures').then((r) => r.json()).then((b) => b.figures.length)`)).toBe(0);
     for (const title of [`Dijet V prime ${vp}`, `Lepton pair V prime ${vp}`, `Top pair V prime ${vp}`]) {
       await page.getByLabel('Find results to add').fill(title);
       await page.getByRole('button', { name: `Add ${title} as a layer`, exact: true }).click();
@@ -93,8 +96,15 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.getByRole('button', { name: 'Undo', exact: true }).click();
     await page.getByRole('button', { name: 'Size: Slide, 16:9 (25.4 cm)', exact: true }).waitFor();
     await offPage.waitFor({ state: 'detached' });
-    await page.getByRole('button', { name: 'Save as a new version', exact: true }).click();
-    await page.getByText('Saved as version 2.').waitFor();
+    // Leaving with unsaved edits asks first: refused, the composer stays.
+    page.once('dialog', (d) => void d.dismiss());
+    await page.getByRole('link', { name: 'Results', exact: true }).click();
+    await page.getByRole('button', { name: 'Save the new figure', exact: true }).waitFor();
+    expect(page.url()).toContain('/figures/new');
+    await page.getByRole('button', { name: 'Save the new figure', exact: true }).click();
+    await page.getByText(/^Version 1 · group only$/).waitFor();
+    expect(page.url()).not.toContain('/figures/new');
+    expect(await page.evaluate(`fetch('/api/groups/${groupId}/figures').then((r) => r.json()).then((b) => b.figures.length)`)).toBe(1);
     // The saved slide is drawn in the preview (labels as paths) before the picture is taken.
     await preview.waitFor();
     await page.waitForFunction(`(document.querySelector('[aria-label^="Preview of the figure"] svg')?.querySelectorAll('path').length ?? 0) > 50`);
@@ -137,6 +147,13 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.getByRole('checkbox', { name: 'Public: anyone can see and download this figure', exact: true }).click();
     await page.locator('[role="checkbox"][aria-label="Public: anyone can see and download this figure"][aria-checked="true"]').waitFor();
     await page.getByRole('status').filter({ hasText: 'Public copies leave it out and say so on the figure' }).waitFor();
+    // A copy can be deleted (asked first); the original stays.
+    await page.getByRole('button', { name: 'Duplicate', exact: true }).click();
+    await page.getByRole('heading', { name: `Copy of Vector overlay ${vp}`, exact: true }).waitFor();
+    await page.getByRole('button', { name: `Delete the figure Copy of Vector overlay ${vp}`, exact: true }).click();
+    await page.getByRole('button', { name: 'Delete figure', exact: true }).click();
+    await page.getByRole('link', { name: `Figure Vector overlay ${vp}` }).waitFor();
+    expect(await page.getByRole('link', { name: `Figure Copy of Vector overlay ${vp}` }).count()).toBe(0);
     expect(pageErrors(page)).toEqual([]);
     await context.close();
 

@@ -128,6 +128,9 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     // Publish as public; the permanent link appears.
     await o.getByRole('checkbox', { name: 'Make the result public' }).click();
     await o.getByRole('button', { name: 'Publish version 1', exact: true }).click();
+    // Publishing is permanent: it asks first.
+    await o.getByRole('alertdialog', { name: 'Publish version 1?' }).getByText(/This is permanent/).waitFor();
+    await o.getByRole('button', { name: 'Publish now', exact: true }).click();
     const linkText = o.getByLabel('Permanent link address');
     await linkText.waitFor();
     await o.getByLabel('State: Published').first().waitFor();
@@ -156,6 +159,7 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await o.getByRole('button', { name: 'Save the new version', exact: true }).click();
     await o.getByRole('button', { name: 'Version 2, draft, shown', exact: true }).waitFor();
     await o.getByRole('button', { name: 'Publish version 2', exact: true }).click();
+    await o.getByRole('button', { name: 'Publish now', exact: true }).click();
     await o.getByLabel('Permanent link address').waitFor();
     await o.getByRole('button', { name: 'Version 1, superseded', exact: true }).click();
     await o.getByText('A newer version of this result has been published', { exact: false }).waitFor();

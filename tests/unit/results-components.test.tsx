@@ -52,12 +52,17 @@ describe('actions on a result follow the role (the server still decides)', () =>
     expect(screen.getByRole('button', { name: 'Upload a new version' })).toBeTruthy();
     expect(screen.getByRole('button', { name: 'Delete draft version 1' })).toBeTruthy();
     expect(screen.queryByRole('button', { name: 'Publish version 1' })).toBeNull();
-    expect(screen.getByText('A curator or owner of the group publishes drafts.')).toBeTruthy();
+    expect(screen.getByText(/^A curator or owner of the group publishes drafts/)).toBeTruthy();
   });
   test('a curator may publish a draft, and retract or change the visibility of a published version', () => {
     wrap(<ResultActions detail={detail} version={version} role="curator" />);
-    expect(screen.getByRole('button', { name: 'Publish version 1' })).toBeTruthy();
     expect(screen.getByRole('checkbox', { name: 'Make the result public' })).toBeTruthy();
+    // Publishing asks first (it is permanent); "Not yet" goes back.
+    fireEvent.press(screen.getByRole('button', { name: 'Publish version 1' }));
+    expect(screen.getByText(/This is permanent/)).toBeTruthy();
+    expect(screen.getByRole('button', { name: 'Publish now' })).toBeTruthy();
+    fireEvent.press(screen.getByRole('button', { name: 'Not yet' }));
+    expect(screen.queryByRole('button', { name: 'Publish now' })).toBeNull();
     const published = { ...version, state: 'published' as const, publishedAt: '2026-12-01T00:00:00Z' };
     wrap(<ResultActions detail={{ ...detail, versions: [published] }} version={published} role="curator" />);
     fireEvent.press(screen.getByRole('button', { name: 'Retract version 1' }));

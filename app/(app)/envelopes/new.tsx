@@ -1,0 +1,2 @@
+import { NewEnvelopeScreen } from '@/components/screens/envelope-screen';
+export default NewEnvelopeScreen;

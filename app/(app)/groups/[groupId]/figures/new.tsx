@@ -1,0 +1,2 @@
+import { NewFigureScreen } from '@/components/screens/figure-composer-screen';
+export default NewFigureScreen;

@@ -1,0 +1,2 @@
+import { PublicFigureScreen } from '@/components/screens/public-figure-screen';
+export default PublicFigureScreen;

@@ -1,0 +1,2 @@
+import { CurrentPermalinkScreen } from '@/components/screens/permalink-screen';
+export default CurrentPermalinkScreen;
