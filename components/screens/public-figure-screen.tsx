@@ -115,7 +115,7 @@ function FigurePage({ figure: f }: { figure: PublicFigureDetail }) {
       <Text variant="title">Downloads</Text>
       <View style={styles.downloads}>
         <Anchor href={file('svg')} download label={`${f.title}: SVG`}>SVG</Anchor>
-        <Anchor href={file('svg', { text: 'editable' })} download label={`${f.title}: SVG with editable text`}>
+        <Anchor href={file('svg', { text: 'editable' })} download label={`${f.title}: editable text SVG, for vector editors`}>
           SVG, editable text
         </Anchor>
         <Anchor href={file('pdf')} download label={`${f.title}: PDF`}>PDF</Anchor>

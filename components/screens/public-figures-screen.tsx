@@ -101,7 +101,7 @@ function FigureCard({ figure: f }: { figure: PublicFigureSummary }) {
       </View>
       <View style={styles.downloads}>
         <Anchor download href={file('svg')} label={`${f.title}: SVG`}>SVG</Anchor>
-        <Anchor download href={file('svg', { text: 'editable' })} label={`${f.title}: SVG with editable text`}>
+        <Anchor download href={file('svg', { text: 'editable' })} label={`${f.title}: editable text SVG, for vector editors`}>
           SVG, editable text
         </Anchor>
         <Anchor download href={file('pdf')} label={`${f.title}: PDF`}>PDF</Anchor>
