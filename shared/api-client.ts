@@ -42,7 +42,7 @@ import type {
   TypesetRequest,
   TypesetResponse,
 } from './schemas/figure-views';
-import type { FigureSpecInput, HouseStyle, RenderFormat, SIZE_PRESETS } from './schemas/figures';
+import type { FigureSpecInput, HouseStyle, RenderFormat, SIZE_PRESETS, SVG_TEXT_MODES } from './schemas/figures';
 import type { CreateScanInput, RerunPointInput } from './schemas/scans';
 
 /** `?a=1&b=x` from the defined entries of a query object ('' when none). */
@@ -52,6 +52,10 @@ function qs(query: Record<string, string | number | boolean | undefined>): strin
     .map(([k, v]) => `${encodeURIComponent(k)}=${encodeURIComponent(String(v))}`);
   return parts.length ? `?${parts.join('&')}` : '';
 }
+
+/** Options of a render address (see `renderQuery` and `svgRenderQuery` in shared/schemas/figures.ts). */
+export type RenderUrlOptions = { version?: number; size?: keyof typeof SIZE_PRESETS; dpi?: number; text?: (typeof SVG_TEXT_MODES)[number]; download?: boolean };
+const renderQs = ({ download, ...rest }: RenderUrlOptions) => qs({ ...rest, download: download ? 1 : undefined });
 
 /** An error answered by the API, with its code, message and per-field details. */
 export class ApiError extends Error {
@@ -241,9 +245,11 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       layerData: (groupId: string, input: LayerDataRequest) => call<LayerDataResponse>('POST', `/api/groups/${enc(groupId)}/layer-data`, input),
       /** Labels typeset by the server (paths and metrics by labelKey), for the composer's preview. */
       typeset: (input: TypesetRequest) => call<TypesetResponse>('POST', '/api/typeset', input),
-      /** Render address (members of the figure's group, or anyone for a public figure); answers image bytes, not JSON. */
-      renderUrl: (figureId: string, format: RenderFormat, opts: { version?: number; size?: keyof typeof SIZE_PRESETS; dpi?: number } = {}) =>
-        `${base}/api/figures/${enc(figureId)}/render.${format}${qs(opts)}`,
+      /**
+       * Render address (members of the figure's group, or anyone for a public figure); answers image bytes, not JSON.
+       * `download`: answered as an attachment (saved, not shown); `text` (SVG): `editable` writes labels as text.
+       */
+      renderUrl: (figureId: string, format: RenderFormat, opts: RenderUrlOptions = {}) => `${base}/api/figures/${enc(figureId)}/render.${format}${renderQs(opts)}`,
       exportUrl: (figureId: string, kind: 'csv' | 'caption', version?: number) =>
         `${base}/api/figures/${enc(figureId)}/${kind === 'csv' ? 'export.csv' : 'caption.txt'}${qs({ version })}`,
       style: (groupId: string) => call<GroupStyleView>('GET', `/api/groups/${enc(groupId)}/style`),
@@ -254,8 +260,7 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       list: (query: PublicFigureListQuery = {}) => call<PublicFigurePage>('GET', `/api/public/figures${qs(query)}`),
       /** A public figure's page: title, group, caption, the pinned versions the public may see, hidden-layer count. */
       get: (figureId: string) => call<PublicFigureDetail>('GET', `/api/public/figures/${enc(figureId)}`),
-      renderUrl: (figureId: string, format: RenderFormat, opts: { version?: number; size?: keyof typeof SIZE_PRESETS; dpi?: number } = {}) =>
-        `${base}/api/public/figures/${enc(figureId)}/render.${format}${qs(opts)}`,
+      renderUrl: (figureId: string, format: RenderFormat, opts: RenderUrlOptions = {}) => `${base}/api/public/figures/${enc(figureId)}/render.${format}${renderQs(opts)}`,
     },
     tokens: {
       list: () => call<{ tokens: ApiTokenSummary[] }>('GET', '/api/tokens'),

@@ -162,11 +162,25 @@ function Composer({ groupId, figure: f }: { groupId: string; figure: FigureDetai
       <Card>
         <Text variant="title">Downloads (version {v})</Text>
         <View style={styles.links}>
-          <Anchor href={api.figures.renderUrl(f.id, 'svg', { version: v })}>SVG</Anchor>
-          <Anchor href={api.figures.renderUrl(f.id, 'pdf', { version: v })}>PDF</Anchor>
-          <Anchor href={api.figures.renderUrl(f.id, 'png', { version: v, dpi: 300 })}>PNG (300 dpi)</Anchor>
-          <Anchor href={api.figures.exportUrl(f.id, 'csv', v)}>Data (CSV)</Anchor>
-          <Anchor href={api.figures.exportUrl(f.id, 'caption', v)}>Caption draft</Anchor>
+          {/* Saved as files (download=1 and the download attribute): the editor stays in its tab. */}
+          <Anchor download href={api.figures.renderUrl(f.id, 'svg', { version: v, download: true })}>
+            SVG
+          </Anchor>
+          <Anchor download href={api.figures.renderUrl(f.id, 'svg', { version: v, text: 'editable', download: true })} label="SVG with editable text, for vector editors">
+            SVG, editable text
+          </Anchor>
+          <Anchor download href={api.figures.renderUrl(f.id, 'pdf', { version: v, download: true })}>
+            PDF
+          </Anchor>
+          <Anchor download href={api.figures.renderUrl(f.id, 'png', { version: v, dpi: 300, download: true })}>
+            PNG (300 dpi)
+          </Anchor>
+          <Anchor download href={api.figures.exportUrl(f.id, 'csv', v)}>
+            Data (CSV)
+          </Anchor>
+          <Anchor download href={api.figures.exportUrl(f.id, 'caption', v)}>
+            Caption draft
+          </Anchor>
         </View>
         {dirty ? <Text variant="caption">Downloads show the saved version; save to include your changes.</Text> : null}
       </Card>

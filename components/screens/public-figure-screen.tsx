@@ -64,6 +64,8 @@ export function PublicFigureScreen() {
 function FigurePage({ figure: f }: { figure: PublicFigureDetail }) {
   const wide = useIsWide();
   const render = (format: 'svg' | 'pdf' | 'png', dpi?: number) => api.publicFigures.renderUrl(f.id, format, { version: f.version, dpi });
+  // Downloads are saved as files (download=1 and the download attribute), not opened over this page.
+  const file = (format: 'svg' | 'pdf' | 'png', opts: { dpi?: number; text?: 'editable' } = {}) => api.publicFigures.renderUrl(f.id, format, { version: f.version, ...opts, download: true });
   const hidden =
     f.hiddenLayers > 0 ? (
       <Banner tone="info" message={`${f.hiddenLayers === 1 ? '1 layer is' : `${f.hiddenLayers} layers are`} not public and ${f.hiddenLayers === 1 ? 'is' : 'are'} not drawn.`} />
@@ -112,9 +114,12 @@ function FigurePage({ figure: f }: { figure: PublicFigureDetail }) {
     <Card>
       <Text variant="title">Downloads</Text>
       <View style={styles.downloads}>
-        <Anchor href={render('svg')} download label={`${f.title}: SVG`}>SVG</Anchor>
-        <Anchor href={render('pdf')} download label={`${f.title}: PDF`}>PDF</Anchor>
-        <Anchor href={render('png', 300)} download label={`${f.title}: PNG at 300 dpi`}>PNG (300 dpi)</Anchor>
+        <Anchor href={file('svg')} download label={`${f.title}: SVG`}>SVG</Anchor>
+        <Anchor href={file('svg', { text: 'editable' })} download label={`${f.title}: editable text SVG, for vector editors`}>
+          SVG, editable text
+        </Anchor>
+        <Anchor href={file('pdf')} download label={`${f.title}: PDF`}>PDF</Anchor>
+        <Anchor href={file('png', { dpi: 300 })} download label={`${f.title}: PNG at 300 dpi`}>PNG (300 dpi)</Anchor>
         <Anchor href={api.figures.exportUrl(f.id, 'csv', f.version)} download label={`${f.title}: the drawn data as CSV`}>Data (CSV)</Anchor>
       </View>
       <View style={styles.gapSm}>

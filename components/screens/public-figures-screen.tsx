@@ -84,6 +84,8 @@ export function PublicFiguresScreen() {
 
 function FigureCard({ figure: f }: { figure: PublicFigureSummary }) {
   const url = (format: 'svg' | 'pdf' | 'png', dpi?: number) => api.publicFigures.renderUrl(f.id, format, { version: f.version, dpi });
+  // Downloads are saved as files (download=1 and the download attribute), not opened over this page.
+  const file = (format: 'svg' | 'pdf' | 'png', opts: { dpi?: number; text?: 'editable' } = {}) => api.publicFigures.renderUrl(f.id, format, { version: f.version, ...opts, download: true });
   return (
     <Card style={styles.card}>
       <FigureThumb uri={url('svg')} title={f.title} />
@@ -98,9 +100,12 @@ function FigureCard({ figure: f }: { figure: PublicFigureSummary }) {
         </Text>
       </View>
       <View style={styles.downloads}>
-        <Anchor href={url('svg')} label={`${f.title}: SVG`}>SVG</Anchor>
-        <Anchor href={url('pdf')} label={`${f.title}: PDF`}>PDF</Anchor>
-        <Anchor href={url('png', 300)} label={`${f.title}: PNG at 300 dpi`}>PNG (300 dpi)</Anchor>
+        <Anchor download href={file('svg')} label={`${f.title}: SVG`}>SVG</Anchor>
+        <Anchor download href={file('svg', { text: 'editable' })} label={`${f.title}: editable text SVG, for vector editors`}>
+          SVG, editable text
+        </Anchor>
+        <Anchor download href={file('pdf')} label={`${f.title}: PDF`}>PDF</Anchor>
+        <Anchor download href={file('png', { dpi: 300 })} label={`${f.title}: PNG at 300 dpi`}>PNG (300 dpi)</Anchor>
       </View>
     </Card>
   );

@@ -26,7 +26,7 @@ import {
   publicFigureListQuery,
   typesetRequestSchema,
 } from '../../shared/schemas/figure-views';
-import { createFigureSchema, figureParams, RENDER_FORMATS, renderQuery, saveFigureSchema } from '../../shared/schemas/figures';
+import { createFigureSchema, figureParams, RENDER_FORMATS, renderQuery, saveFigureSchema, svgRenderQuery } from '../../shared/schemas/figures';
 import {
   changeRoleSchema,
   createGroupSchema,
@@ -168,7 +168,7 @@ const UPLOAD_ERRORS: Record<number, string> = {
 };
 const UPLOAD_400 = '`invalid_file` or `validation_failed`: every problem of the file, fields or body, by line and column (the first 100 listed).';
 const RENDER_DESC =
-  'Query: `version` (default the latest), `size` (a preset instead of the spec\'s), `dpi` (PNG only, default 300). Outside the figure\'s group only the figure\'s own size and PNGs at 72, 96, 150, 300 or 600 dpi are offered. Layers the caller may not see are left out and named in the `X-Figure-Notes` header.';
+  'Query: `version` (default the latest), `size` (a preset instead of the spec\'s), `dpi` (PNG only, default 300), `download=1` (answered as an attachment to save, `Content-Disposition: attachment`; else inline), `text` (SVG only: `outline`, the default, draws labels as glyph outlines; `editable` as SVG text in the shipped fonts, for vector editors). Outside the figure\'s group only the figure\'s own size and PNGs at 72, 96, 150, 300 or 600 dpi are offered. Layers the caller may not see are left out and named in the `X-Figure-Notes` header.';
 const RENDER_TYPES: Record<(typeof RENDER_FORMATS)[number], string> = { svg: 'image/svg+xml', pdf: 'application/pdf', png: 'image/png' };
 
 /** better-auth's verification link (its own route: no zod schema of ours checks it). */
@@ -330,7 +330,7 @@ export const OPERATIONS: ApiOperation[] = [
       description: RENDER_DESC,
       access: { kind: 'optional', note: 'Members of the figure\'s group; anyone for a public figure (the public variant). Otherwise 404, signed out too. Signed-out callers are rate-limited.' },
       params: figureIdParams,
-      query: renderQuery,
+      query: format === 'svg' ? svgRenderQuery : renderQuery,
       ok: { status: 200, description: `The drawing (\`X-Render-Cache\`: hit, miss or uncached).`, contentType: RENDER_TYPES[format] },
       errors: { 429: '`rate_limited` (signed out).', 500: '`render_failed`.' },
     }),
@@ -348,7 +348,7 @@ export const OPERATIONS: ApiOperation[] = [
       description: RENDER_DESC,
       access: { kind: 'anyone' },
       params: figureIdParams,
-      query: renderQuery,
+      query: format === 'svg' ? svgRenderQuery : renderQuery,
       ok: { status: 200, description: 'The drawing; may be cached by others for 60 s.', contentType: RENDER_TYPES[format] },
       errors: { 404: '`not_found`: no such public figure.', 429: '`rate_limited` (signed out).', 500: '`render_failed`.' },
     }),

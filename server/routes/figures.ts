@@ -14,7 +14,7 @@ import {
   typesetRequestSchema,
   type TypesetResponse,
 } from '../../shared/schemas/figure-views';
-import { createFigureSchema, figureParams, RENDER_FORMATS, renderQuery, saveFigureSchema } from '../../shared/schemas/figures';
+import { createFigureSchema, figureParams, RENDER_FORMATS, renderQuery, saveFigureSchema, svgRenderQuery } from '../../shared/schemas/figures';
 import { groupParams } from '../../shared/schemas/groups';
 import { optionalUser, requireGroup, requireUser } from '../access';
 import type { Ctx } from '../context';
@@ -30,9 +30,10 @@ function asciiJson(v: unknown): string {
   return JSON.stringify(v).replace(/[\u007f-\uffff]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
 }
 
-function sendRender(res: Response, out: renders.RenderOutput, cacheControl: string) {
+/** `download`: `?download=1`, saved as a file (attachment) instead of shown (inline). */
+function sendRender(res: Response, out: renders.RenderOutput, cacheControl: string, download: boolean) {
   res.setHeader('Content-Type', out.contentType);
-  res.setHeader('Content-Disposition', `inline; filename="${out.fileName}"`);
+  res.setHeader('Content-Disposition', `${download ? 'attachment' : 'inline'}; filename="${out.fileName}"`);
   res.setHeader('X-Render-Cache', out.cache);
   // Our own ETag (from the cache key) spares Express hashing the body, and lets a browser that
   // has the figure get a 304.
@@ -125,11 +126,14 @@ export function figuresRouter(ctx: Ctx) {
 
   // --- By figure id: members of its group, or anyone when it is public ------------------------
 
+  // SVG routes take `text` (outline or editable) besides the render query.
+  const queryOf = (format: (typeof RENDER_FORMATS)[number]) => (format === 'svg' ? svgRenderQuery : renderQuery);
+
   for (const format of RENDER_FORMATS) {
-    r.get(`/figures/:figureId/render.${format}`, optionalUser(ctx), anonymousRenders, handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, req, res) => {
+    r.get(`/figures/:figureId/render.${format}`, optionalUser(ctx), anonymousRenders, handle({ params: figureIdParams, query: queryOf(format) }, async ({ params, query }, req, res) => {
       const out = await renders.renderForCaller(ctx, params.figureId, req.user?.id ?? null, { format, ...query });
       // What is drawn depends on who asks: no shared cache may keep it.
-      sendRender(res, out, 'private, no-cache');
+      sendRender(res, out, 'private, no-cache', query.download === '1');
     }));
   }
 
@@ -152,8 +156,8 @@ export function figuresRouter(ctx: Ctx) {
   }));
 
   for (const format of RENDER_FORMATS) {
-    r.get(`/public/figures/:figureId/render.${format}`, anonymousRenders, handle({ params: figureIdParams, query: renderQuery }, async ({ params, query }, _req, res) => {
-      sendRender(res, await renders.renderPublic(ctx, params.figureId, { format, ...query }), 'public, max-age=60');
+    r.get(`/public/figures/:figureId/render.${format}`, anonymousRenders, handle({ params: figureIdParams, query: queryOf(format) }, async ({ params, query }, _req, res) => {
+      sendRender(res, await renders.renderPublic(ctx, params.figureId, { format, ...query }), 'public, max-age=60', query.download === '1');
     }));
   }
 

@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { LRUCache } from 'lru-cache';
 import type { FigureLayerData } from '../../shared/figure/types';
 import { clipText } from '../../shared/figure/outreach';
-import { figureSizeCm, OFFERED_DPIS, type FigureSpec, type HouseStyle, type RenderFormat, type SIZE_PRESETS } from '../../shared/schemas/figures';
+import { figureSizeCm, OFFERED_DPIS, type FigureSpec, type HouseStyle, type RenderFormat, type SIZE_PRESETS, type SVG_TEXT_MODES } from '../../shared/schemas/figures';
 import { safeFileName } from '../../shared/slug';
 import { MB } from '../../shared/bytes';
 import * as q from '../../db/queries/figures';
@@ -28,11 +28,12 @@ import { hueOf, layerVisible, metaOf, oversizeError, pinKey, type Audience } fro
 // Rendering
 
 /** Bumped when the renderers change what they draw, so cached renders of the old look are not served. */
-const RENDER_REVISION = 'r6';
+const RENDER_REVISION = 'r7';
 /** PNG resolutions whose renders are kept (the ones offered to the public); others are made on request and not stored. */
 const CACHED_DPIS = new Set<number>(OFFERED_DPIS);
 
-export type RenderRequest = { format: RenderFormat; version?: number; size?: keyof typeof SIZE_PRESETS; dpi: number };
+/** `text` (SVG only): labels as glyph outlines (default) or as editable text; other formats ignore it. */
+export type RenderRequest = { format: RenderFormat; version?: number; size?: keyof typeof SIZE_PRESETS; dpi: number; text?: (typeof SVG_TEXT_MODES)[number] };
 export type RenderOutput = {
   body: Buffer;
   contentType: string;
@@ -151,8 +152,8 @@ export async function dropOlderRenders(tx: Executor, groupId: string, figureId: 
 }
 
 /** Builds the scene and writes the format (no cache involved). */
-async function renderPrepared(ctx: Ctx, p: Prepared, format: RenderFormat, dpi: number): Promise<{ body: Buffer; notes: string[] }> {
-  const built = buildFigure(p.spec, await loadData(ctx, p), p.style);
+async function renderPrepared(ctx: Ctx, p: Prepared, format: RenderFormat, dpi: number, editableText: boolean): Promise<{ body: Buffer; notes: string[] }> {
+  const built = buildFigure(p.spec, await loadData(ctx, p), p.style, { svgText: format === 'svg' && editableText ? 'editable' : 'outline' });
   const { scene, glyphs } = built;
   // Saving refuses such labels; a figure stored before that check, or drawn at another size or
   // in a changed house style, is refused here, before any renderer sees it.
@@ -223,13 +224,17 @@ async function renderWithCache(ctx: Ctx, figureId: string, userId: string | null
     if (problem) throw new AppError(400, 'validation_failed', `Invalid query: dpi ${problem}`, [{ field: 'query.dpi', message: problem }]);
   }
   const contentType = CONTENT_TYPES[req.format];
-  const fileName = safeFileName(p.spec.title, req.format, { version: p.version, fallback: 'figure' });
+  // Editable text is an SVG of its own: its own cache row (in the size key, so neither drawing
+  // counts as the other's stale twin), ETag and file name.
+  const editable = req.format === 'svg' && req.text === 'editable';
+  const plainName = safeFileName(p.spec.title, req.format, { version: p.version, fallback: 'figure' });
+  const fileName = editable ? plainName.replace(/\.svg$/, '-editable.svg') : plainName;
   const cacheable = req.format !== 'png' || CACHED_DPIS.has(req.dpi);
   const key: rq.RenderKey = {
     figureId: p.figure.id,
     figureVersion: p.version,
     format: req.format,
-    sizeKey: req.format === 'png' ? `${p.sizeKey}@${req.dpi}dpi` : p.sizeKey,
+    sizeKey: req.format === 'png' ? `${p.sizeKey}@${req.dpi}dpi` : editable ? `${p.sizeKey}@text` : p.sizeKey,
     dataKey: p.dataKey,
     variant: p.audience,
   };
@@ -248,7 +253,7 @@ async function renderWithCache(ctx: Ctx, figureId: string, userId: string | null
   let flight = inFlight.get(flightKey);
   if (!flight) {
     flight = (async () => {
-      const out = await renderPrepared(ctx, p, req.format, req.dpi);
+      const out = await renderPrepared(ctx, p, req.format, req.dpi, editable);
       const cache = cacheable ? await cacheRender(ctx, key, p.figure.groupId, { ...out, contentType }) : 'uncached';
       return { ...out, cache };
     })().finally(() => inFlight.delete(flightKey));

@@ -50,7 +50,7 @@ export function figureCsv(spec: FigureSpec, layers: FigureLayerData[]): string {
     for (const [quantity, xs, ys] of plottedColumns(l)) {
       if (!ys) continue;
       for (let i = 0; i < Math.min(xs.length, ys.length); i++) {
-        rows.push([cell(labelPlainText(l.name)), quantity, cell(xs[i]!), cell(ys[i]!), cell(meta.parameterUnit), cell(valueUnit)].join(','));
+        rows.push([cell(labelPlainText(l.name)), quantity, cell(xs[i]!), cell(ys[i]!), cell(labelPlainText(meta.parameterUnit)), cell(labelPlainText(valueUnit))].join(','));
       }
     }
   }
@@ -77,7 +77,7 @@ export function captionDraft(spec: FigureSpec, layers: FigureLayerData[]): strin
   } else {
     const first = drawn[0]!.data.meta;
     const cls = [...new Set(drawn.map((l) => shortNumber(l.data.meta.cl * 100)))].join('/');
-    const quantity = first.quantity === 'xsec' ? `the cross-section times branching ratio σ×B${first.quantityUnit ? ` (${first.quantityUnit})` : ''}` : 'the signal strength μ';
+    const quantity = first.quantity === 'xsec' ? `the cross-section times branching ratio σ×B${first.quantityUnit ? ` (${labelPlainText(first.quantityUnit)})` : ''}` : 'the signal strength μ';
     const param = `${first.parameterName}${first.parameterUnit ? ` (${first.parameterUnit})` : ''}`;
     const results = drawn.map((l) => {
       const ref = l.data.meta.reference.trim();

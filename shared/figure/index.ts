@@ -8,9 +8,9 @@
  */
 export { resolveFigureTheme, layerColor, type ResolvedTheme } from './theme';
 export { collectLabels, buildScene, labelsOffPage } from './scene';
-export { sceneToSvg, escapeXml } from './svg';
+export { sceneToSvg, escapeXml, SVG_FONT_FAMILIES, type SvgTextMode } from './svg';
 export { figureCsv, captionDraft } from './export';
-export { splitLabel, labelPlainText, type LabelSegment } from './labels';
+export { splitLabel, labelPlainText, labelTextRuns, type LabelSegment, type LabelRun } from './labels';
 export { outreachSpec } from './outreach';
 export { sizePt } from './plan';
 export { annotationPlace } from './place';

@@ -1,11 +1,14 @@
 /**
- * A scene as a standalone SVG 1.1 document. Text is drawn only as outline paths from the
- * typeset glyphs (never as <text>), so the file looks the same everywhere and no label can inject
- * markup: every attribute value is escaped and the writer has no way to emit script or
- * foreignObject.
+ * A scene as a standalone SVG 1.1 document. By default text is drawn only as outline paths from
+ * the typeset glyphs (never as <text>), so the file looks the same everywhere. With
+ * `text: 'editable'` each label is one <text> element of its readable text (`labelTextRuns`) in
+ * the shipped font's family, so a vector editor can change it. Either way no label can inject
+ * markup: every attribute value and every piece of character data is escaped, and the writer has
+ * no way to emit script or foreignObject.
  */
+import { labelTextRuns } from './labels';
 import { n } from './legend';
-import { labelKey, type Glyphs, type Primitive, type Scene } from './types';
+import { labelKey, type FontRole, type Glyphs, type Primitive, type Scene } from './types';
 
 /** Escapes text for XML attribute values and character data. */
 export function escapeXml(s: string): string {
@@ -80,13 +83,49 @@ function glyphPath(d: string, reuse: GlyphReuse | null): string {
   return id ? `<use${attrs({ href: `#${id}`, x: m![1], y: m![2] })}/>` : `<path${attrs({ d })}/>`;
 }
 
-function primitive(p: Primitive, glyphs: Glyphs, clipId: string, reuse: GlyphReuse | null): string {
+/**
+ * The families of the shipped fonts (Inter, Source Serif 4), as an editor or browser would name
+ * them, with generic fallbacks for a machine that has neither.
+ */
+export const SVG_FONT_FAMILIES: Record<FontRole, string> = {
+  sans: 'Inter, Helvetica, Arial, sans-serif',
+  serif: "'Source Serif 4', 'Source Serif Pro', Georgia, serif",
+};
+
+/** How the SVG writer draws labels: glyph outlines (the default) or editable <text>. */
+export type SvgTextMode = 'outline' | 'editable';
+
+/**
+ * A label as editable text: one <text> at the anchor point (text-anchor for start/middle/end, a
+ * rotation about the anchor for a vertical title), its readable text escaped, and the scripts
+ * that have no Unicode form as <tspan>s raised or lowered at 70 % size, as the typesetter sets them.
+ */
+function editableText(p: Extract<Primitive, { kind: 'text' }>): string {
+  const runs = labelTextRuns(p.label);
+  if (!runs.length) return '';
+  const body = runs
+    .map((r) => (r.script === 'base' ? escapeXml(r.text) : `<tspan${attrs({ 'baseline-shift': r.script === 'super' ? 'super' : 'sub', 'font-size': '70%' })}>${escapeXml(r.text)}</tspan>`))
+    .join('');
+  const a: Attrs = {
+    x: p.x,
+    y: p.y,
+    'font-family': SVG_FONT_FAMILIES[p.font],
+    'font-size': p.size,
+    'text-anchor': p.anchor === 'start' ? null : p.anchor,
+    fill: p.color,
+    transform: p.rotate ? `rotate(${p.rotate} ${n(p.x)} ${n(p.y)})` : null,
+  };
+  return `<text${attrs(a)}>${body}</text>`;
+}
+
+function primitive(p: Primitive, glyphs: Glyphs, clipId: string, reuse: GlyphReuse | null, text: SvgTextMode): string {
   switch (p.kind) {
     case 'rect':
       return `<rect${attrs({ x: p.x, y: p.y, width: p.width, height: p.height, ...paint(p.fill, p.stroke, p.strokeWidth, null, p.opacity) })}/>`;
     case 'path':
       return `<path${attrs({ d: p.d, ...paint(p.fill, p.stroke, p.strokeWidth, p.dash, p.opacity), 'clip-path': p.clip ? `url(#${clipId})` : null })}/>`;
     case 'text': {
+      if (text === 'editable') return editableText(p);
       const g = glyphs.get(labelKey({ label: p.label, size: p.size, font: p.font }));
       // A label that was not typeset is left out: raw text would bypass the typesetter.
       if (!g || g.paths.length === 0) return '';
@@ -104,8 +143,10 @@ function primitive(p: Primitive, glyphs: Glyphs, clipId: string, reuse: GlyphReu
  * `opts.title`, curves clipped to the plot, labels as paths from `glyphs` (keyed by `labelKey`;
  * a label missing there is not drawn). `opts.reuseGlyphs` draws each repeated glyph outline once
  * and uses it again (see `GlyphReuse`): smaller files and faster PDFs, the same picture.
+ * `opts.text: 'editable'` writes labels as <text> instead (see `editableText`; no outlines, so no
+ * glyph reuse): for editing in a vector editor, looking right where the shipped fonts are installed.
  */
-export function sceneToSvg(scene: Scene, glyphs: Glyphs, opts?: { title?: string; reuseGlyphs?: boolean }): string {
+export function sceneToSvg(scene: Scene, glyphs: Glyphs, opts?: { title?: string; reuseGlyphs?: boolean; text?: SvgTextMode }): string {
   const { plot } = scene;
   const clipId = `bw-plot-${hash([scene.widthPt, scene.heightPt, plot.x, plot.y, plot.width, plot.height].map(n).join(','))}`;
   const out: string[] = [
@@ -113,13 +154,14 @@ export function sceneToSvg(scene: Scene, glyphs: Glyphs, opts?: { title?: string
     `<svg${attrs({ xmlns: 'http://www.w3.org/2000/svg', version: '1.1', width: `${n(scene.widthPt)}pt`, height: `${n(scene.heightPt)}pt`, viewBox: `0 0 ${n(scene.widthPt)} ${n(scene.heightPt)}` })}>`,
   ];
   if (opts?.title) out.push(`<title>${escapeXml(opts.title)}</title>`);
-  const reuse = opts?.reuseGlyphs ? glyphReuse(scene.items, glyphs) : null;
+  const text: SvgTextMode = opts?.text ?? 'outline';
+  const reuse = opts?.reuseGlyphs && text === 'outline' ? glyphReuse(scene.items, glyphs) : null;
   const glyphDefs = reuse && reuse.defs.length ? reuse.defs.join('') : '';
   out.push(`<defs>${glyphDefs}<clipPath${attrs({ id: clipId })}><rect${attrs({ x: plot.x, y: plot.y, width: plot.width, height: plot.height })}/></clipPath></defs>`);
   out.push(`<rect${attrs({ x: 0, y: 0, width: scene.widthPt, height: scene.heightPt, fill: scene.background })}/>`);
   for (const p of scene.items) {
     if (p.kind === 'rect' && p.role === 'background') continue;
-    const s = primitive(p, glyphs, clipId, reuse && reuse.defs.length ? reuse : null);
+    const s = primitive(p, glyphs, clipId, reuse && reuse.defs.length ? reuse : null, text);
     if (s) out.push(s);
   }
   out.push('</svg>', '');

@@ -180,9 +180,20 @@ export const OFFERED_DPIS = [72, 96, 150, 300, 600] as const;
 
 export const RENDER_FORMATS = ['svg', 'pdf', 'png'] as const;
 export type RenderFormat = (typeof RENDER_FORMATS)[number];
-/** Query of the render routes: version (default: latest), size preset override, PNG resolution. */
+/**
+ * Query of the render routes: version (default: latest), size preset override, PNG resolution,
+ * and `download=1` to have the file saved (Content-Disposition: attachment) rather than shown.
+ */
 export const renderQuery = z.object({
   version: intParam({ min: 1 }).optional(),
   size: z.enum(SIZE_PRESET_IDS).exclude(['custom']).optional(),
   dpi: intParam({ min: FIGURE_LIMITS.minDpi, max: FIGURE_LIMITS.maxDpi }).default(300),
+  download: z.enum(['0', '1']).optional().meta({ description: '1: answer as an attachment to save (Content-Disposition: attachment), not to show.' }),
+});
+
+/** How an SVG render draws its labels: glyph outlines (looks the same everywhere) or editable text. */
+export const SVG_TEXT_MODES = ['outline', 'editable'] as const;
+/** Query of the SVG render routes: the render query and `text` (default outline). */
+export const svgRenderQuery = renderQuery.extend({
+  text: z.enum(SVG_TEXT_MODES).default('outline').meta({ description: '`outline` (default): labels as glyph outlines; `editable`: labels as SVG text in the shipped fonts (Inter, Source Serif 4), to edit in a vector editor.' }),
 });

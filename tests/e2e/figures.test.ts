@@ -136,6 +136,16 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     const svgText = await svg.text();
     expect(svgText).toContain('<svg');
     expect(svgText).not.toContain('<text');
+    // Downloads are saved as files, never opened over the editor: the link has the download
+    // attribute and the server answers an attachment. The editable-text SVG is the second choice.
+    expect(await page.getByRole('link', { name: 'SVG', exact: true }).getAttribute('download')).not.toBeNull();
+    expect(svg.headers()['content-disposition']).toMatch(/^attachment; filename=".+\.svg"$/);
+    const editableLink = page.getByRole('link', { name: 'SVG with editable text, for vector editors', exact: true });
+    expect(await editableLink.getAttribute('download')).not.toBeNull();
+    const editable = await context.request.get(`${e.base}${await editableLink.getAttribute('href')}`);
+    expect(editable.status()).toBe(200);
+    expect(editable.headers()['content-disposition']).toMatch(/^attachment; filename=".+-editable\.svg"$/);
+    expect(await editable.text()).toContain('<text');
     const pdf = await context.request.get(`${e.base}${pdfHref}`);
     expect(pdf.status()).toBe(200);
     expect((await pdf.body()).subarray(0, 5).toString()).toBe('%PDF-');

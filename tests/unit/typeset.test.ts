@@ -25,7 +25,7 @@ describe('label syntax', () => {
   test('plain reading of TeX for the PDF text layer', () => {
     expect(labelPlainText('$\\sigma \\times B$ [fb]')).toBe('σ × B [fb]');
     expect(labelPlainText('$\\sqrt{s} = 18$ TeV, 140 fb$^{-1}$')).toBe('√s = 18 TeV, 140 fb⁻¹');
-    expect(labelPlainText("$m_{V'}$ [TeV]")).toBe("mV' [TeV]");
+    expect(labelPlainText("$m_{V'}$ [TeV]")).toBe('mV′ [TeV]');
   });
 });
 
