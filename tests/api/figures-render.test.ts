@@ -4,14 +4,14 @@ import os from 'node:os';
 import path from 'node:path';
 import { and, eq, sql } from 'drizzle-orm';
 import { PDFDict, PDFDocument, PDFName } from 'pdf-lib';
-import request, { type Response } from 'supertest';
+import request from 'supertest';
 import { figureRenders, groups } from '@/db/schema';
 import { layerColor, resolveFigureTheme } from '@/shared/figure';
 import type { FigureDetail } from '@/shared/schemas/figure-views';
 import type { FigureSpecInput } from '@/shared/schemas/figures';
 import type { Curve } from '@/shared/schemas/results';
 import { startTestApp, type TestApp } from '../helpers/app';
-import { figureSpec, makeFigure as makeFigureAs } from '../helpers/figures';
+import { binary, buffer, figureSpec, makeFigure as makeFigureAs, svgGet } from '../helpers/figures';
 import { makeGroup, makeGroupWithRoles, makePerson, makeResult, publishVersion, registryProbe, type Crew, type Person } from '../helpers/factories';
 
 /**
@@ -39,22 +39,6 @@ const spec = (layers: FigureSpecInput['layers'], over: Partial<FigureSpecInput> 
 
 const makeFigure = (s: FigureSpecInput, isPublic = false) => makeFigureAs(crew.editor, groupId, s, isPublic);
 
-/** Supertest gives text bodies as text; binary ones need a buffer parser. */
-function binary(res: Response & { body: unknown }): Buffer {
-  return Buffer.isBuffer(res.body) ? res.body : Buffer.from(res.text ?? '', 'utf8');
-}
-const buffer = (req: request.Test) =>
-  req.buffer(true).parse((res, cb) => {
-    const chunks: Buffer[] = [];
-    res.on('data', (c: Buffer) => chunks.push(c));
-    res.on('end', () => cb(null, Buffer.concat(chunks)));
-  });
-
-/** An SVG answer with its text (supertest does not read image/svg+xml as text by itself). */
-async function svgGet(req: request.Test): Promise<Response & { svg: string }> {
-  const res = await buffer(req);
-  return Object.assign(res, { svg: binary(res).toString('utf8') });
-}
 
 const storage = () => registryProbe.storageBytes(t, groupId);
 async function renderRows(figureId: string) {

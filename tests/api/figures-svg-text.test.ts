@@ -1,11 +1,11 @@
 import { eq } from 'drizzle-orm';
 import { JSDOM } from 'jsdom';
-import request, { type Response } from 'supertest';
+import request from 'supertest';
 import { figureRenders } from '@/db/schema';
 import { SVG_FONT_FAMILIES } from '@/shared/figure';
 import type { FigureSpecInput } from '@/shared/schemas/figures';
 import { startTestApp, type TestApp } from '../helpers/app';
-import { figureSpec, makeFigure as makeFigureAs } from '../helpers/figures';
+import { buffer, figureSpec, makeFigure as makeFigureAs, svgGet } from '../helpers/figures';
 import { makeGroupWithRoles, makeResult, publishVersion, type Crew } from '../helpers/factories';
 
 /**
@@ -22,16 +22,6 @@ let resultId: string;
 const spec = (over: Partial<FigureSpecInput> = {}) => figureSpec([{ resultId, version: 1 }], { title: 'Editable text figure', ...over });
 const makeFigure = (s: FigureSpecInput, isPublic = false) => makeFigureAs(crew.editor, groupId, s, isPublic);
 
-const buffer = (req: request.Test) =>
-  req.buffer(true).parse((res, cb) => {
-    const chunks: Buffer[] = [];
-    res.on('data', (c: Buffer) => chunks.push(c));
-    res.on('end', () => cb(null, Buffer.concat(chunks)));
-  });
-async function svgGet(req: request.Test): Promise<Response & { svg: string }> {
-  const res = await buffer(req);
-  return Object.assign(res, { svg: Buffer.isBuffer(res.body) ? (res.body as Buffer).toString('utf8') : String(res.text ?? '') });
-}
 const texts = (svg: string) => [...new JSDOM(svg, { contentType: 'image/svg+xml' }).window.document.querySelectorAll('text')];
 
 beforeAll(async () => {
