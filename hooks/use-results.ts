@@ -1,6 +1,6 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { PublicResultListQuery, ResultListQuery } from '@/shared/schemas/results';
-import type { CreateEnvelopeInput } from '@/shared/schemas/combine';
+import type { CreateCombinationInput, CreateEnvelopeInput } from '@/shared/schemas/combine';
 import { api, keys } from './api';
 
 /** A page of results visible to the caller (their groups' and everyone's public ones). */
@@ -77,6 +77,25 @@ export function useEnvelopePreview(groupId: string, inputs: { resultId: string; 
     queryFn: () => api.results.previewEnvelope(groupId, { inputs }),
     enabled: !!groupId && inputs.length >= 2,
     retry: false,
+  });
+}
+
+/** A joint combination's plan for the picked inputs (a dry run: nothing is started or stored). */
+export function useCombinationPlan(groupId: string, inputs: { resultId: string; version: number }[], unlinked: string[]) {
+  return useQuery({
+    queryKey: ['results', 'combination-plan', groupId, inputs, unlinked],
+    queryFn: () => api.results.createCombination(groupId, { inputs, unlinked, dryRun: true }),
+    enabled: !!groupId && inputs.length >= 2,
+    retry: false,
+  });
+}
+
+/** Starts a joint combination (a scan of the group); the answer is the started scan. */
+export function useStartCombination(groupId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (input: CreateCombinationInput) => api.results.createCombination(groupId, { ...input, dryRun: false }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: ['groups', groupId, 'scans'] }),
   });
 }
 

@@ -10,6 +10,7 @@ import { useIsWide } from '@/hooks/use-layout';
 import { colors, radii, space } from '@/themes/tokens';
 import { QuickPlot } from '../plot/quick-plot';
 import { axisLabels } from '../results/format';
+import { inputRefusals } from '../results/input-refusals';
 import { ResultPicker } from '../results/result-picker';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
@@ -22,19 +23,6 @@ import { Text } from '../ui/text';
 import { TextField } from '../ui/text-field';
 
 type Pick = { resultId: string; version: number };
-
-/** The server's refusals by field: `inputs.N…` per input, the rest (title, the list) by name. */
-function refusals(error: unknown): { byInput: Map<number, string>; other: string[] } {
-  const byInput = new Map<number, string>();
-  const other: string[] = [];
-  if (!(error instanceof ApiError)) return { byInput, other };
-  for (const d of error.details) {
-    const m = /^inputs\.(\d+)/.exec(d.field);
-    if (m) byInput.set(Number(m[1]), d.message);
-    else other.push(`${d.field}: ${d.message}`);
-  }
-  return { byInput, other };
-}
 
 /**
  * `/envelopes/new`: the best-expected envelope of several results, built in the group the user
@@ -68,7 +56,7 @@ export function NewEnvelopeScreen() {
 
   const key = (p: Pick) => `${p.resultId}@${p.version}`;
   // What the preview refused (before anything is stored), or what building refused.
-  const { byInput, other } = refusals(create.error ?? preview.error);
+  const { byInput, other } = inputRefusals(create.error ?? preview.error);
   const p = preview.data && !preview.error ? preview.data : null;
   const labels = p ? axisLabels(p.meta) : null;
   const tooFew = picks.length < ENVELOPE_MIN_INPUTS;

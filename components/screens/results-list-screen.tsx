@@ -71,6 +71,7 @@ export function ResultsListScreen() {
           <View style={styles.actions}>
             <Button label="Upload a result" onPress={() => router.push('/results/new')} />
             <Button variant="secondary" label="Best-expected envelope" accessibilityHint="Builds one result from several: at each point the one expected to limit best" onPress={() => router.push('/envelopes/new')} />
+            <Button variant="secondary" label="Joint combination" accessibilityHint="Combines results computed by scans as independent channels in one likelihood" onPress={() => router.push('/combinations/new')} />
           </View>
         ) : undefined
       }

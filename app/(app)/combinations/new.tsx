@@ -1,0 +1,2 @@
+import { NewCombinationScreen } from '@/components/screens/combination-screen';
+export default NewCombinationScreen;
