@@ -122,6 +122,14 @@ export function LayersPanel({
               ))}
             </View>
             <Checkbox label={`Layer ${i + 1} carries the ±1σ/±2σ bands`} checked={bands.includes(i)} onChange={(v) => onChange(setLayerBands(spec, i, v))} />
+            {d && d.available && d.sources?.segments.length ? (
+              <Checkbox
+                label={`Colour the observed line of layer ${i + 1} by the input the envelope takes there`}
+                hint="One legend row per input (“from …”); off: the layer's own colour."
+                checked={layer.observedColors === 'input'}
+                onChange={(v) => onChange(updateLayer(spec, i, { observedColors: v ? 'input' : 'layer' }))}
+              />
+            ) : null}
             <LayerColor layer={layer} index={i} palette={swatches} onChange={(patch, key) => onChange(updateLayer(spec, i, patch), key)} />
             <Text variant="label">Observed line of layer {i + 1}</Text>
             <ChoiceGroup

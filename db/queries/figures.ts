@@ -196,6 +196,7 @@ export async function getLayerVersions(db: Executor, viewer: Viewer, pins: { res
       notes: resultVersions.notes,
       curve: resultVersions.curve,
       theory: resultVersions.theory,
+      envelope: resultVersions.envelope,
     })
     .from(resultVersions)
     .innerJoin(results, eq(results.id, resultVersions.resultId))

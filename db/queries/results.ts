@@ -1,4 +1,5 @@
 import { and, asc, count, desc, eq, getTableColumns, gt, ilike, inArray, isNull, like, max, or, sql, type SQL } from 'drizzle-orm';
+import type { EnvelopeSources } from '../../shared/schemas/combine';
 import type { ResultListQuery } from '../../shared/schemas/results';
 import { normaliseSearchText } from '../../shared/search';
 import type { Executor } from '../client';
@@ -342,6 +343,14 @@ export async function insertVersionInputs(db: Executor, groupId: string, resultI
   const [own] = await resultOfGroup(db, groupId, resultId);
   if (!own || !inputs.length) return;
   await db.insert(resultInputs).values(inputs.map((i, position) => ({ resultId, version, position, inputResultId: i.resultId, inputVersion: i.version, inputTitle: i.title })));
+}
+
+/** Stores which input an envelope version takes where (in the writing transaction). */
+export async function setVersionEnvelope(db: Executor, groupId: string, resultId: string, version: number, envelope: EnvelopeSources) {
+  await db
+    .update(resultVersions)
+    .set({ envelope })
+    .where(and(inArray(resultVersions.resultId, resultOfGroup(db, groupId, resultId)), eq(resultVersions.version, version)));
 }
 
 /**

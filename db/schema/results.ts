@@ -1,6 +1,7 @@
 import { sql } from 'drizzle-orm';
 import { bigint, boolean, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import { QUANTITIES, RESULT_METHODS, RESULT_STATES, type Curve, type Theory } from '../../shared/schemas/results';
+import type { EnvelopeSources } from '../../shared/schemas/combine';
 import { user } from './auth';
 import { groups } from './groups';
 
@@ -66,6 +67,8 @@ export const resultVersions = pgTable(
     searchText: text(),
     curve: jsonb().$type<Curve>().notNull(),
     theory: jsonb().$type<Theory>(),
+    /** For a best-expected envelope: the inputs' titles and which input it takes where (null for other versions). */
+    envelope: jsonb().$type<EnvelopeSources>(),
     changeNote: text().notNull().default(''),
     /** The uploaded file as received (kept for audit), with its name; null for JSON bodies. */
     sourceName: text(),

@@ -6,7 +6,7 @@ import type { VersionMeta } from '../../shared/schemas/results';
 import type { ScanInputPoint } from '../../shared/schemas/scans';
 import { StatsInputError } from '../../shared/stats/errors';
 import { getLayerVersions } from '../../db/queries/figures';
-import { insertVersionInputs } from '../../db/queries/results';
+import { insertVersionInputs, setVersionEnvelope } from '../../db/queries/results';
 import { listScanInputsOfVersions } from '../../db/queries/scans';
 import type { Ctx } from '../context';
 import { AppError, type ErrorDetail } from '../lib/errors';
@@ -100,7 +100,13 @@ export async function previewEnvelope(ctx: Ctx, groupId: string, body: EnvelopeB
 
 export async function createEnvelope(ctx: Ctx, groupId: string, actor: Actor, body: EnvelopeBody & Pick<CreateEnvelopeInput, 'resultId'>): Promise<EnvelopeVersion> {
   const plan = await planEnvelope(ctx, groupId, body);
-  const hooks = { after: (tx: Parameters<typeof insertVersionInputs>[0], w: { resultId: string; version: number }) => insertVersionInputs(tx, groupId, w.resultId, w.version, plan.recorded) };
+  const sources = { titles: plan.recorded.map((r) => r.title), segments: plan.choice.segments };
+  const hooks = {
+    after: async (tx: Parameters<typeof insertVersionInputs>[0], w: { resultId: string; version: number }) => {
+      await insertVersionInputs(tx, groupId, w.resultId, w.version, plan.recorded);
+      await setVersionEnvelope(tx, groupId, w.resultId, w.version, sources);
+    },
+  };
   const input = { meta: plan.meta, curve: plan.curve, theory: plan.theory, source: null };
   const version = body.resultId
     ? await addVersion(ctx, groupId, actor, body.resultId, { ...input, changeNote: `Rebuilt from ${plan.recorded.length} inputs` }, { hooks })

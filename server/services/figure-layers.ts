@@ -142,8 +142,15 @@ export async function groupLayerData(db: Executor, groupId: string, layers: { re
     const row = visible[i];
     if (!row) return { available: false, resultId: l.resultId, version: l.version };
     const hue = l.hue ?? allHues.get(l.resultId) ?? i % HUE_COUNT;
-    return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue };
+    return availableLayer(row, hue);
   });
+}
+
+type LayerRow = Awaited<ReturnType<typeof q.getLayerVersions>>[number];
+
+/** A loaded layer version as the scene builder takes it. */
+export function availableLayer(row: LayerRow, hue: number): FigureLayerData {
+  return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue, sources: row.envelope ?? null };
 }
 
 /** The error for labels whose typeset box no text could have (a saved figure's field, or a stored one's at render time). */

@@ -15,7 +15,7 @@ import { pngProblem } from '../figures/render';
 import { buildFigure, captionOf, csvOf } from '../figures/scene';
 import { AppError, notFound } from '../lib/errors';
 import { reserveRenderCache, trimRenderCache } from './storage';
-import { hueOf, layerVisible, metaOf, oversizeError, pinKey, type Audience } from './figure-layers';
+import { availableLayer, hueOf, layerVisible, oversizeError, pinKey, type Audience } from './figure-layers';
 
 /**
  * Figure renders: SVG, PDF and PNG of a figure version for a caller (members see it as the group
@@ -127,7 +127,7 @@ async function loadData(ctx: Ctx, p: Prepared): Promise<FigureLayerData[]> {
     const row = rows.get(pinKey(l.resultId, l.version));
     const drawn = p.layers[i];
     if (!drawn || !layerVisible(row, p.figure.groupId, p.audience)) return { available: false, resultId: l.resultId, version: l.version };
-    return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue: drawn.hue };
+    return availableLayer(row, drawn.hue);
   });
 }
 

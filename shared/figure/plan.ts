@@ -4,6 +4,7 @@
  * typesetting; `buildScene` lays them out with the measured sizes.
  */
 import { bandsLayersOf, figureSizeCm, type FigureSpec, type LayerSpec } from '../schemas/figures';
+import type { EnvelopeSources } from '../schemas/combine';
 import type { Curve, Theory, VersionMeta } from '../schemas/results';
 import { tint } from './color';
 import { layerColor, type ResolvedTheme } from './theme';
@@ -32,6 +33,11 @@ export type DrawnLayer = {
   band1: boolean;
   band2: boolean;
   theory: Theory | null;
+  /**
+   * An envelope layer drawn by input: each stretch of x where the envelope takes one input, with
+   * that input's title and colour (null: the observed line in the layer's colour).
+   */
+  sources: { input: number; title: string; color: string; from: number; to: number }[] | null;
 };
 
 /** A distinct theory curve (layers sharing the same prediction draw it once). */
@@ -133,6 +139,7 @@ export function drawnLayers(
       return;
     }
     const name = ls.label.trim() || data.title;
+    let xFactor = 1;
     const units: LimitUnits = { parameterUnit: data.meta.parameterUnit, quantity: data.meta.quantity, quantityUnit: data.meta.quantityUnit };
     if (!axisUnits) axisUnits = units;
     else {
@@ -142,6 +149,7 @@ export function drawnLayers(
         return;
       }
       if (!isIdentity(c)) {
+        xFactor = c.x;
         unitNotes.push({ index: i, name, text: fill(theme.words.unitsConverted, { layer: name, change: describeConversion(units, axisUnits) }) });
         data = {
           ...data,
@@ -153,17 +161,19 @@ export function drawnLayers(
     }
     const isBands = bandLayers.has(i);
     const style = ls.lineStyle ?? 'solid';
+    const color = ls.color ? ls.color.toLowerCase() : layerColor(theme, ls.hue ?? data.hue);
     drawn.push({
       index: i,
       spec: ls,
       data,
       name,
       heading: name,
-      color: ls.color ? ls.color.toLowerCase() : layerColor(theme, ls.hue ?? data.hue),
+      color,
       dash: style === 'solid' ? null : (theme.dash.observed[style] ?? null),
       band1: isBands && ls.show.band1,
       band2: isBands && ls.show.band2 && theme.maxBands >= 2,
       theory: ls.show.theory && data.theory ? data.theory : null,
+      sources: ls.observedColors === 'input' && data.sources?.segments.length ? sourceStretches(data.sources, color, theme, xFactor) : null,
     });
   });
   // Layers of one energy with different luminosities: each names its own in the legend.
@@ -293,6 +303,17 @@ export function canCompare(l: DrawnLayer): boolean {
   return !!l.data.curve.observed && !!l.data.theory;
 }
 
+/**
+ * The stretches of an envelope layer, each in the colour of its input: the theme's palette in
+ * order, skipping the layer's own colour (so the first input does not look like the layer), with
+ * x in the axis units.
+ */
+function sourceStretches(sources: EnvelopeSources, layerColour: string, theme: ResolvedTheme, xFactor: number): NonNullable<DrawnLayer['sources']> {
+  const palette = theme.palette.filter((c) => c !== layerColour);
+  const colours = palette.length ? palette : theme.palette;
+  return sources.segments.map((s) => ({ input: s.input, title: sources.titles[s.input] ?? `input ${s.input + 1}`, color: colours[s.input % colours.length]!, from: s.from * xFactor, to: s.to * xFactor }));
+}
+
 function legendEntries(spec: FigureSpec, plan: Pick<FigurePlan, 'theme' | 'layers' | 'theories' | 'shadingLayer'>): LegendEntry[] {
   if (spec.legend.position === 'none') return [];
   const { theme } = plan;
@@ -305,7 +326,13 @@ function legendEntries(spec: FigureSpec, plan: Pick<FigurePlan, 'theme' | 'layer
     // Each part in three wordings: alone (one unnamed layer), after the layer's name (the first
     // part of a named layer), or short beneath that row (the name is written once per layer).
     const parts: { plain: string; of: string; part: string; key: LegendKey }[] = [];
-    if (l.spec.show.observed && c.observed) parts.push({ plain: w.observed, of: w.observedOf, part: w.observedPart, key: { kind: 'line', color: l.color, width: theme.lines.observed, dash: l.dash } });
+    if (l.spec.show.observed && c.observed && l.sources) {
+      // One row per input the envelope takes somewhere: "observed, from <input>".
+      for (const src of [...new Map(l.sources.map((x) => [x.input, x])).values()].sort((a, b) => a.input - b.input)) {
+        const from = fill(w.fromInput, { input: src.title });
+        parts.push({ plain: `${w.observed}, ${from}`, of: `${fill(w.observedOf, { layer: l.heading })}, ${from}`, part: `${w.observedPart}, ${from}`, key: { kind: 'line', color: src.color, width: theme.lines.observed, dash: l.dash } });
+      }
+    } else if (l.spec.show.observed && c.observed) parts.push({ plain: w.observed, of: w.observedOf, part: w.observedPart, key: { kind: 'line', color: l.color, width: theme.lines.observed, dash: l.dash } });
     if (l.spec.show.expected && c.expected?.['0']) parts.push({ plain: w.expected, of: w.expectedOf, part: w.expectedPart, key: { kind: 'line', color: l.color, width: theme.lines.expected, dash: theme.dash.expected } });
     const bands = bandColors(l, theme);
     if (l.band1 && c.expected?.['-1'] && c.expected['1']) parts.push({ plain: w.band1, of: w.band1Of, part: w.band1Part, key: { kind: 'fill', color: bands.band1 } });

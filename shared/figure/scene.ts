@@ -242,7 +242,23 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
 
   for (const th of plan.theories) curve(linePath(th.theory.x, th.theory.central), 'theory', th.layer, { stroke: theme.colors.theory, width: theme.lines.theory, dash: th.dash.length ? th.dash : null });
   for (const l of plan.layers) if (l.spec.show.expected) curve(linePath(l.data.curve.x, l.data.curve.expected?.['0']), 'expected', l.index, { stroke: l.color, width: theme.lines.expected, dash: theme.dash.expected });
-  for (const l of plan.layers) if (l.spec.show.observed) curve(linePath(l.data.curve.x, l.data.curve.observed), 'observed', l.index, { stroke: l.color, width: theme.lines.observed, dash: l.dash });
+  for (const l of plan.layers) {
+    if (!l.spec.show.observed) continue;
+    if (!l.sources) {
+      curve(linePath(l.data.curve.x, l.data.curve.observed), 'observed', l.index, { stroke: l.color, width: theme.lines.observed, dash: l.dash });
+      continue;
+    }
+    // An envelope drawn by input: each stretch in its input's colour. The switches are points of
+    // the envelope's own grid, so neighbouring stretches share their end point.
+    const xs = l.data.curve.x;
+    const obs = l.data.curve.observed;
+    for (const st of l.sources) {
+      const tol = 1e-9 * Math.max(1, Math.abs(st.from), Math.abs(st.to));
+      const idx = xs.flatMap((x, i) => (x >= st.from - tol && x <= st.to + tol ? [i] : []));
+      if (idx.length < 2 || !obs) continue;
+      curve(linePath(idx.map((i) => xs[i]!), idx.map((i) => obs[i]!)), 'observed', l.index, { stroke: st.color, width: theme.lines.observed, dash: l.dash });
+    }
+  }
 
   for (const l of plan.layers) items.push(...crossingMarkers(l, theme, X, Y, okX, okY));
 

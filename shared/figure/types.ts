@@ -5,6 +5,7 @@
  *
  * Units are points (1/72 inch); the origin is the top-left corner and y grows downwards.
  */
+import type { EnvelopeSources } from '../schemas/combine';
 import type { Curve, Theory, VersionMeta } from '../schemas/results';
 
 import type { FontRole } from '../../themes/figure/types';
@@ -94,5 +95,16 @@ export type OversizeLabel = { field: string; label: string; message: string };
  * result version (or it is gone): the scene leaves it out and says so in `notes`, never leaking it.
  */
 export type FigureLayerData =
-  | { available: true; resultId: string; version: number; title: string; meta: VersionMeta; curve: Curve; theory: Theory | null; hue: number }
+  | {
+      available: true;
+      resultId: string;
+      version: number;
+      title: string;
+      meta: VersionMeta;
+      curve: Curve;
+      theory: Theory | null;
+      hue: number;
+      /** For a best-expected envelope: its inputs' titles and which one it takes where. */
+      sources?: EnvelopeSources | null;
+    }
   | { available: false; resultId: string; version: number };

@@ -26,6 +26,9 @@ export type CreateEnvelopeInput = z.input<typeof createEnvelopeSchema>;
 /** The answer to building an envelope: the stored version, and per curve point the input chosen (an index into `inputs`). */
 export type EnvelopeVersion = ResultVersion & { choice: EnvelopeChoice };
 
+/** Stored with an envelope version: its inputs' titles and the stretch of x where each is the envelope (figures colour the observed line by them). */
+export type EnvelopeSources = { titles: string[]; segments: { input: number; from: number; to: number }[] };
+
 /** Which input the envelope takes at every point of its curve, where it switches, and the stretches of each. */
 export type EnvelopeChoice = { chosen: number[]; crossing: boolean[]; segments: { input: number; from: number; to: number }[] };
 

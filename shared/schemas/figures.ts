@@ -81,6 +81,11 @@ export const layerSchema = z.object({
   lineStyle: z.enum(LINE_STYLES, { error: `must be one of ${LINE_STYLES.join(', ')}` }).default('solid'),
   /** Name of this layer's theory curve in the legend; empty = the result's own name for it. */
   theoryLabel: label.default(''),
+  /**
+   * For a best-expected envelope: draw the observed line in the layer's colour (`layer`) or in
+   * stretches coloured by the input the envelope takes there (`input`, a legend row per input).
+   */
+  observedColors: z.enum(['layer', 'input'], { error: 'must be "layer" or "input"' }).default('layer'),
 });
 export type LayerSpec = z.output<typeof layerSchema>;
 

@@ -200,3 +200,25 @@ test('the preview computes the same envelope as building it, and stores nothing;
   const tooFew = await alice.agent.post(`/api/groups/${groupA}/envelopes/preview`).send({ inputs: [inputs[0]] });
   expect([tooFew.status, tooFew.body.error.details[0].field]).toEqual([400, 'inputs']);
 });
+
+test('the envelope keeps which input it takes where; a figure layer draws its observed line by input (SVG and PNG render)', async () => {
+  const a = await upload(alice, groupA, curveOf(grid(1000, 500, 7), 40, 1500), { title: 'Slow input for the figure' });
+  const b = await upload(alice, groupA, curveOf(grid(1000, 500, 7), 80, 1000), { title: 'Steep input for the figure' });
+  const env = await alice.agent.post(`/api/groups/${groupA}/envelopes`).send({ inputs: [{ resultId: a.resultId, version: 1 }, { resultId: b.resultId, version: 1 }] });
+  expect(env.status).toBe(201);
+  const data = await alice.agent.post(`/api/groups/${groupA}/layer-data`).send({ layers: [{ resultId: env.body.resultId, version: 1, hue: null }] });
+  expect(data.status).toBe(200);
+  expect(data.body.layers[0].sources).toEqual({ titles: ['Slow input for the figure', 'Steep input for the figure'], segments: env.body.choice.segments });
+  const fig = await alice.agent.post(`/api/groups/${groupA}/figures`).send({
+    spec: { title: 'Envelope by input', theme: 'publication', size: { preset: 'one-column' }, layers: [{ resultId: env.body.resultId, version: 1, observedColors: 'input' }] },
+  });
+  expect(fig.status).toBe(201);
+  expect(fig.body.latest.spec.layers[0].observedColors).toBe('input');
+  for (const format of ['svg', 'png']) {
+    const r = await alice.agent.get(`/api/figures/${fig.body.id}/render.${format}`).buffer(true);
+    expect([format, r.status]).toEqual([format, 200]);
+  }
+  const bad = await alice.agent.post(`/api/groups/${groupA}/figures`).send({ spec: { title: 'x', theme: 'publication', size: { preset: 'one-column' }, layers: [{ resultId: env.body.resultId, version: 1, observedColors: 'rainbow' }] } });
+  expect(bad.status).toBe(400);
+  expect(bad.body.error.details.map((d: { field: string }) => d.field)).toEqual(['spec.layers.0.observedColors']);
+});

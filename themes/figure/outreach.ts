@@ -30,6 +30,7 @@ export const outreachTheme: FigureThemeTokens = {
     band1Of: '{layer}: expected range',
     band2Of: '{layer}: wider expected range',
     observedPart: 'observed limit',
+    fromInput: 'from the search “{input}”',
     expectedPart: 'expected limit',
     band1Part: 'expected range',
     band2Part: 'wider expected range',

@@ -12,6 +12,7 @@ export const TECHNICAL_WORDS: FigureWords = {
   band1Of: '{layer}, expected $\\pm 1\\sigma$',
   band2Of: '{layer}, expected $\\pm 2\\sigma$',
   observedPart: 'observed',
+  fromInput: 'from {input}',
   expectedPart: 'expected',
   band1Part: '$\\pm 1\\sigma$',
   band2Part: '$\\pm 2\\sigma$',

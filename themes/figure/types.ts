@@ -31,6 +31,8 @@ export type FigureWords = {
   expectedPart: string;
   band1Part: string;
   band2Part: string;
+  /** After "observed" on an envelope layer drawn by input (`{input}`: the input's title). */
+  fromInput: string;
   /** A layer's name with its own luminosity (`{layer}`, `{lumi}`), when the layers' luminosities differ. */
   layerLumi: string;
   theory: string;

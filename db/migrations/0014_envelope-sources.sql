@@ -1,0 +1,1 @@
+ALTER TABLE "result_versions" ADD COLUMN "envelope" jsonb;
