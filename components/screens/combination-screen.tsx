@@ -1,7 +1,6 @@
 import { useRouter, type Href } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import { can } from '@/shared/access';
 import { ApiError } from '@/shared/api-client';
 import { JOINT_MAX_INPUTS, JOINT_MIN_INPUTS } from '@/shared/combine/joint';
 import { useCurrentGroup } from '@/hooks/use-current-group';
@@ -9,12 +8,12 @@ import { useCombinationPlan, useStartCombination } from '@/hooks/use-results';
 import { colors, radii, space } from '@/themes/tokens';
 import { inputRefusals } from '../results/input-refusals';
 import { ResultPicker } from '../results/result-picker';
+import { writerGate } from '../results/writer-gate';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
 import { Checkbox } from '../ui/checkbox';
 import { ChoiceGroup } from '../ui/choice-group';
-import { EmptyState } from '../ui/empty-state';
 import { errorMessage } from '../ui/form';
 import { Loading } from '../ui/loading';
 import { Screen } from '../ui/screen';
@@ -41,20 +40,8 @@ export function NewCombinationScreen() {
   const plan = useCombinationPlan(group?.id ?? '', picks, unlinked);
   const start = useStartCombination(group?.id ?? '');
 
-  if (!group) {
-    return (
-      <Screen title="Joint combination">
-        <EmptyState title="No group yet" message="A combination is stored as a result of a group. Create one first." action={<Button label="Create a group" onPress={() => router.push('/groups/new')} />} />
-      </Screen>
-    );
-  }
-  if (!can(group.role, 'result.write')) {
-    return (
-      <Screen title="Joint combination" subtitle={group.name}>
-        <Banner tone="info" message={`As ${group.role} of ${group.name} you can read results but not start combinations; analysts, curators and owners can.`} />
-      </Screen>
-    );
-  }
+  const gate = writerGate(group, router, { title: 'Joint combination', what: 'A combination', verb: 'start combinations' });
+  if (gate || !group) return gate;
 
   const key = (p: Pick) => `${p.resultId}@${p.version}`;
   const { byInput, other } = inputRefusals(start.error ?? plan.error);

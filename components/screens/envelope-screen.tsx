@@ -1,7 +1,6 @@
 import { useRouter, type Href } from 'expo-router';
 import { useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import { can } from '@/shared/access';
 import { ApiError } from '@/shared/api-client';
 import { ENVELOPE_MAX_INPUTS, ENVELOPE_MIN_INPUTS } from '@/shared/combine/envelope';
 import { useCurrentGroup } from '@/hooks/use-current-group';
@@ -12,10 +11,10 @@ import { QuickPlot } from '../plot/quick-plot';
 import { axisLabels } from '../results/format';
 import { inputRefusals } from '../results/input-refusals';
 import { ResultPicker } from '../results/result-picker';
+import { writerGate } from '../results/writer-gate';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
 import { Card } from '../ui/card';
-import { EmptyState } from '../ui/empty-state';
 import { errorMessage } from '../ui/form';
 import { Loading } from '../ui/loading';
 import { Screen } from '../ui/screen';
@@ -39,20 +38,8 @@ export function NewEnvelopeScreen() {
   const wide = useIsWide();
   const [names, setNames] = useState<Record<string, string>>({});
 
-  if (!group) {
-    return (
-      <Screen title="Best-expected envelope">
-        <EmptyState title="No group yet" message="An envelope is stored as a result of a group. Create one first." action={<Button label="Create a group" onPress={() => router.push('/groups/new')} />} />
-      </Screen>
-    );
-  }
-  if (!can(group.role, 'result.write')) {
-    return (
-      <Screen title="Best-expected envelope" subtitle={group.name}>
-        <Banner tone="info" message={`As ${group.role} of ${group.name} you can read results but not build new ones; analysts, curators and owners can.`} />
-      </Screen>
-    );
-  }
+  const gate = writerGate(group, router, { title: 'Best-expected envelope', what: 'An envelope', verb: 'build new ones' });
+  if (gate || !group) return gate;
 
   const key = (p: Pick) => `${p.resultId}@${p.version}`;
   // What the preview refused (before anything is stored), or what building refused.

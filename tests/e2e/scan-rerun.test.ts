@@ -1,5 +1,4 @@
-import type { Page } from 'playwright-core';
-import { fullShot, newPage, pageErrors, signUpInBrowser, startE2E, VIEWPORTS, type E2E, type ViewportName } from '../helpers/browser';
+import { apiFromPage, fullShot, newPage, pageErrors, signUpInBrowser, startE2E, VIEWPORTS, type E2E, type ViewportName } from '../helpers/browser';
 
 jest.setTimeout(240_000);
 
@@ -9,12 +8,7 @@ beforeAll(async () => {
 });
 afterAll(async () => e?.close());
 
-async function ok<T = Record<string, unknown>>(page: Page, method: string, url: string, body?: unknown): Promise<T> {
-  const init = body === undefined ? `{ method: ${JSON.stringify(method)} }` : `{ method: ${JSON.stringify(method)}, headers: { 'Content-Type': 'application/json' }, body: ${JSON.stringify(JSON.stringify(body))} }`;
-  const [status, answer] = (await page.evaluate(`fetch(${JSON.stringify(url)}, ${init}).then((r) => r.json().then((j) => [r.status, j]))`)) as [number, T];
-  if (status >= 300) throw new Error(`${method} ${url}: ${status} ${JSON.stringify(answer)}`);
-  return answer;
-}
+const ok = apiFromPage;
 
 /** A small invented one-bin model per grid point. */
 const model = (k: number) => ({ observed: [8 + k], signal: [3], backgrounds: [{ name: 'continuum', yields: [7.5 + k] }], systematics: [{ name: 'luminosity', effects: { signal: 0.03, continuum: 0.03 } }] });

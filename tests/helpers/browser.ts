@@ -141,3 +141,14 @@ export async function signUpInBrowser(page: Page, name: string, email: string, p
   await page.getByRole('button', { name: 'Create account', exact: true }).click();
   await page.getByRole('region', { name: 'You are not in a group yet' }).waitFor();
 }
+
+/**
+ * Calls the API from the page (its session cookie and origin) and returns the answer; throws
+ * with the status and body on anything but 2xx. Code as text: it runs in the page as written.
+ */
+export async function apiFromPage<T = Record<string, unknown>>(page: Page, method: string, url: string, body?: unknown): Promise<T> {
+  const init = body === undefined ? `{ method: ${JSON.stringify(method)} }` : `{ method: ${JSON.stringify(method)}, headers: { 'Content-Type': 'application/json' }, body: ${JSON.stringify(JSON.stringify(body))} }`;
+  const [status, answer] = (await page.evaluate(`fetch(${JSON.stringify(url)}, ${init}).then((r) => r.json().then((j) => [r.status, j]))`)) as [number, T];
+  if (status >= 300) throw new Error(`${method} ${url}: ${status} ${JSON.stringify(answer)}`);
+  return answer;
+}
