@@ -43,6 +43,18 @@ export function SceneView({ scene, glyphs, accessibilityLabel, maxWidth, placing
             down.current = true;
             const p = at(e);
             if (p) placing.onMove(p);
+            // Let go anywhere (also off the figure, or after the preview was redrawn) ends the placing.
+            if (typeof window !== 'undefined') {
+              window.addEventListener(
+                'pointerup',
+                () => {
+                  if (!down.current) return;
+                  down.current = false;
+                  placing.onEnd();
+                },
+                { once: true },
+              );
+            }
           },
           onPointerMove: (e: { nativeEvent: { clientX?: number; clientY?: number } }) => {
             if (!down.current) return;
