@@ -44,6 +44,15 @@ export function conversionTo(from: LimitUnits, to: LimitUnits): UnitConversion {
   return { ok: true, x, y };
 }
 
+/**
+ * The conversion of the parameter alone (y factor 1): for figures whose other axis is not the
+ * limit (a summary of excluded ranges compares each result with its own theory, so μ and σ×B
+ * results, or σ×B in different units, share its parameter axis).
+ */
+export function parameterConversionTo(from: LimitUnits, to: LimitUnits): UnitConversion {
+  return conversionTo({ ...from, quantity: to.quantity, quantityUnit: to.quantityUnit }, to);
+}
+
 /** True when the conversion changes nothing. */
 export const isIdentity = (c: UnitConversion) => c.ok && c.x === 1 && c.y === 1;
 

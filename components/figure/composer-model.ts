@@ -35,7 +35,7 @@ const DEFAULT_PARTS: LayerParts = { observed: true, expected: true, band1: true,
 /** Adds a result version as the last layer (at most 12; the same version twice is refused). */
 export function addLayer(spec: FigureSpec, resultId: string, version: number): FigureSpec {
   if (spec.layers.length >= 12 || spec.layers.some((l) => l.resultId === resultId && l.version === version)) return spec;
-  const layer: LayerSpec = { resultId, version, label: '', show: { ...DEFAULT_PARTS }, hue: null, color: null, lineStyle: 'solid', theoryLabel: '', observedColors: 'layer' };
+  const layer: LayerSpec = { resultId, version, label: '', show: { ...DEFAULT_PARTS }, hue: null, color: null, lineStyle: 'solid', theoryLabel: '', observedColors: 'layer', note: '' };
   const next = { ...spec, layers: [...spec.layers, layer] };
   return spec.layers.length === 0 ? withBands(next, [0]) : next;
 }

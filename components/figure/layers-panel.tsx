@@ -97,6 +97,9 @@ export function LayersPanel({
 }) {
   const swatches = palette ?? resolveFigureTheme(spec.theme).palette;
   const bands = bandsLayersOf(spec);
+  // A summary of excluded ranges draws one bar per layer: its observed and expected ranges only.
+  const ranges = spec.kind === 'ranges';
+  const parts = ranges ? PART_LABELS.filter(([k]) => k === 'observed' || k === 'expected') : PART_LABELS;
   return (
     <View style={styles.col}>
       {spec.layers.length === 0 ? <Text variant="muted">No layers yet: add results below.</Text> : null}
@@ -111,18 +114,35 @@ export function LayersPanel({
             </Text>
             {d && !d.available ? <Banner tone="warning" message="This result is not visible to your group any more; it is left out of the figure." /> : null}
             <TextField
-              label={`Legend label of layer ${i + 1}`}
+              label={ranges ? `Bar label of layer ${i + 1}` : `Legend label of layer ${i + 1}`}
               value={layer.label}
               placeholder="Empty: the result's title; $…$ for TeX"
               onChangeText={(t) => onChange(updateLayer(spec, i, { label: t }), `label-${i}`)}
             />
             <View style={styles.parts}>
-              {PART_LABELS.map(([k, label]) => (
-                <Checkbox key={k} label={`${label} (layer ${i + 1})`} checked={layer.show[k]} onChange={(v) => onChange(updateLayer(spec, i, { show: { ...layer.show, [k]: v } }))} />
+              {parts.map(([k, label]) => (
+                <Checkbox
+                  key={k}
+                  label={`${ranges ? `${label} excluded range` : label} (layer ${i + 1})`}
+                  checked={layer.show[k]}
+                  onChange={(v) => onChange(updateLayer(spec, i, { show: { ...layer.show, [k]: v } }))}
+                />
               ))}
             </View>
-            <Checkbox label={`Layer ${i + 1} carries the ±1σ/±2σ bands`} checked={bands.includes(i)} onChange={(v) => onChange(setLayerBands(spec, i, v))} />
-            {d && d.available && d.sources?.segments.length ? (
+            {ranges ? (
+              <>
+                {d && d.available && !d.theory ? <Text variant="muted">No theory curve is stored with this result: its bar says “no theory curve, no range”.</Text> : null}
+                <TextField
+                  label={`Note beside the bar of layer ${i + 1}`}
+                  value={layer.note}
+                  placeholder="Empty: its luminosity; $…$ for TeX"
+                  onChangeText={(t) => onChange(updateLayer(spec, i, { note: t }), `note-${i}`)}
+                />
+              </>
+            ) : (
+              <Checkbox label={`Layer ${i + 1} carries the ±1σ/±2σ bands`} checked={bands.includes(i)} onChange={(v) => onChange(setLayerBands(spec, i, v))} />
+            )}
+            {!ranges && d && d.available && d.sources?.segments.length ? (
               <Checkbox
                 label={`Colour the observed line of layer ${i + 1} by the input the envelope takes there`}
                 hint="One legend row per input (“from …”); off: the layer's own colour."
@@ -131,19 +151,23 @@ export function LayersPanel({
               />
             ) : null}
             <LayerColor layer={layer} index={i} palette={swatches} onChange={(patch, key) => onChange(updateLayer(spec, i, patch), key)} />
-            <Text variant="label">Observed line of layer {i + 1}</Text>
-            <ChoiceGroup
-              label={`Observed line style of layer ${i + 1}`}
-              value={layer.lineStyle}
-              choices={LINE_STYLES.map((s) => ({ value: s, label: LINE_STYLE_LABELS[s] }))}
-              onChange={(v) => onChange(updateLayer(spec, i, { lineStyle: v }))}
-            />
-            <TextField
-              label={`Theory curve name of layer ${i + 1}`}
-              value={layer.theoryLabel}
-              placeholder="Empty: the name given at upload; $…$ for TeX"
-              onChangeText={(t) => onChange(updateLayer(spec, i, { theoryLabel: t }), `theory-${i}`)}
-            />
+            {ranges ? null : (
+              <>
+                <Text variant="label">Observed line of layer {i + 1}</Text>
+                <ChoiceGroup
+                  label={`Observed line style of layer ${i + 1}`}
+                  value={layer.lineStyle}
+                  choices={LINE_STYLES.map((s) => ({ value: s, label: LINE_STYLE_LABELS[s] }))}
+                  onChange={(v) => onChange(updateLayer(spec, i, { lineStyle: v }))}
+                />
+                <TextField
+                  label={`Theory curve name of layer ${i + 1}`}
+                  value={layer.theoryLabel}
+                  placeholder="Empty: the name given at upload; $…$ for TeX"
+                  onChangeText={(t) => onChange(updateLayer(spec, i, { theoryLabel: t }), `theory-${i}`)}
+                />
+              </>
+            )}
             <View style={styles.row}>
               <Button compact variant="secondary" label="Up" accessibilityLabel={`Move layer ${i + 1} up`} disabled={i === 0} onPress={() => onChange(moveLayer(spec, i, -1))} />
               <Button compact variant="secondary" label="Down" accessibilityLabel={`Move layer ${i + 1} down`} disabled={i === spec.layers.length - 1} onPress={() => onChange(moveLayer(spec, i, 1))} />

@@ -1,5 +1,19 @@
 import { StyleSheet, View } from 'react-native';
-import { FIGURE_THEMES, LEGEND_POSITIONS, SIZE_PRESETS, type AxisSpec, type FigureSpec, type FigureTheme } from '@/shared/schemas/figures';
+import {
+  FIGURE_KIND_LABELS,
+  FIGURE_KINDS,
+  FIGURE_THEMES,
+  LEGEND_POSITIONS,
+  RANGE_SORT_LABELS,
+  RANGE_SORTS,
+  SIZE_PRESETS,
+  type AxisSpec,
+  type FigureKind,
+  type FigureSpec,
+  type FigureTheme,
+  type RangeSort,
+  type RangesOptions,
+} from '@/shared/schemas/figures';
 import { space } from '@/themes/tokens';
 import { withTheme } from './composer-model';
 import { Button } from '../ui/button';
@@ -19,8 +33,28 @@ function num(s: string): number | null {
   return Number.isFinite(v) ? v : null;
 }
 
-function AxisControls({ name, axis, onChange }: { name: 'x' | 'y'; axis: AxisSpec; onChange: (a: AxisSpec, mergeKey?: string) => void }) {
-  const label = name === 'x' ? 'Horizontal axis' : 'Vertical axis';
+const EXPECTED_STYLE_LABELS: Record<RangesOptions['expected'], string> = { outline: 'Outline', marker: 'End markers', none: 'Not shown' };
+
+/** The options of a summary of excluded ranges: order, grouping, the expected range, notes. */
+function RangesControls({ options, onChange }: { options: RangesOptions; onChange: (o: RangesOptions) => void }) {
+  return (
+    <View style={styles.col}>
+      <Text variant="label">Bars</Text>
+      <Select<RangeSort> label="Order of the bars" value={options.sort} onChange={(sort) => onChange({ ...options, sort })} options={RANGE_SORTS.map((v) => ({ value: v, label: RANGE_SORT_LABELS[v] }))} />
+      <Checkbox label="Group the bars by model" checked={options.groupByModel} onChange={(v) => onChange({ ...options, groupByModel: v })} />
+      <ChoiceGroup<RangesOptions['expected']>
+        label="Expected excluded range"
+        value={options.expected}
+        onChange={(expected) => onChange({ ...options, expected })}
+        choices={(Object.keys(EXPECTED_STYLE_LABELS) as RangesOptions['expected'][]).map((v) => ({ value: v, label: EXPECTED_STYLE_LABELS[v] }))}
+      />
+      <Checkbox label="A note beside each bar (its luminosity unless the layer has its own)" checked={options.notes} onChange={(v) => onChange({ ...options, notes: v })} />
+    </View>
+  );
+}
+
+function AxisControls({ name, axis, onChange, title }: { name: 'x' | 'y'; axis: AxisSpec; onChange: (a: AxisSpec, mergeKey?: string) => void; title?: string }) {
+  const label = title ?? (name === 'x' ? 'Horizontal axis' : 'Vertical axis');
   return (
     <View style={styles.col}>
       <Text variant="label">{label}</Text>
@@ -53,24 +87,39 @@ export function StylePanel({
   onPlace?: (index: number | null) => void;
 }) {
   const preset = (spec.size.preset === 'custom' ? 'web' : spec.size.preset) as Preset;
+  const ranges = spec.kind === 'ranges';
   return (
     <View style={styles.col}>
       <TextField label="Figure name" value={spec.title} onChangeText={(t) => onChange({ ...spec, title: t }, 'title')} hint="Not drawn: names the figure in lists and downloads" />
+      <Text variant="label">Kind of figure</Text>
+      <ChoiceGroup<FigureKind> label="Kind of figure" value={spec.kind} onChange={(kind) => onChange({ ...spec, kind })} choices={FIGURE_KINDS.map((k) => ({ value: k, label: FIGURE_KIND_LABELS[k] }))} />
       <Text variant="label">Theme</Text>
       <ChoiceGroup<FigureTheme> label="Theme" value={spec.theme} onChange={(theme) => onChange(withTheme(spec, theme))} choices={FIGURE_THEMES.map((t) => ({ value: t, label: THEME_LABELS[t] }))} />
       <Select<Preset> label="Size" value={preset} onChange={(p) => onChange({ ...spec, size: { preset: p } })} options={(Object.keys(SIZE_PRESETS) as Preset[]).map((p) => ({ value: p, label: SIZE_PRESETS[p].label }))} />
-      <AxisControls name="x" axis={spec.x} onChange={(x, k) => onChange({ ...spec, x }, k)} />
-      <AxisControls name="y" axis={spec.y} onChange={(y, k) => onChange({ ...spec, y }, k)} />
-      <Select<(typeof LEGEND_POSITIONS)[number]>
-        label="Legend"
-        value={spec.legend.position}
-        onChange={(position) => onChange({ ...spec, legend: { ...spec.legend, position } })}
-        options={LEGEND_POSITIONS.map((p) => ({ value: p, label: p === 'auto' ? 'Emptiest corner' : p === 'none' ? 'No legend' : p.replace('-', ' ') }))}
-      />
-      <Checkbox label="Legend in two columns" checked={spec.legend.columns === 2} onChange={(v) => onChange({ ...spec, legend: { ...spec.legend, columns: v ? 2 : 1 } })} />
-      <Checkbox label="Energy and luminosity line" checked={spec.energyLabel} onChange={(v) => onChange({ ...spec, energyLabel: v })} />
-      <Checkbox label="Confidence level line (e.g. 95% CL)" checked={spec.clLabel} onChange={(v) => onChange({ ...spec, clLabel: v })} />
-      <Checkbox label="Shade the excluded region" checked={spec.excludedShading} onChange={(v) => onChange({ ...spec, excludedShading: v })} />
+      {ranges ? (
+        <>
+          <AxisControls name="x" title="Parameter axis" axis={spec.x} onChange={(x, k) => onChange({ ...spec, x }, k)} />
+          <RangesControls options={spec.ranges} onChange={(r) => onChange({ ...spec, ranges: r })} />
+          <Checkbox label="Legend row (what filled and outlined bars mean)" checked={spec.legend.position !== 'none'} onChange={(v) => onChange({ ...spec, legend: { ...spec.legend, position: v ? 'auto' : 'none' } })} />
+          <Checkbox label="Energy line" checked={spec.energyLabel} onChange={(v) => onChange({ ...spec, energyLabel: v })} />
+          <Checkbox label="Confidence level line (e.g. 95% CL)" checked={spec.clLabel} onChange={(v) => onChange({ ...spec, clLabel: v })} />
+        </>
+      ) : (
+        <>
+          <AxisControls name="x" axis={spec.x} onChange={(x, k) => onChange({ ...spec, x }, k)} />
+          <AxisControls name="y" axis={spec.y} onChange={(y, k) => onChange({ ...spec, y }, k)} />
+          <Select<(typeof LEGEND_POSITIONS)[number]>
+            label="Legend"
+            value={spec.legend.position}
+            onChange={(position) => onChange({ ...spec, legend: { ...spec.legend, position } })}
+            options={LEGEND_POSITIONS.map((p) => ({ value: p, label: p === 'auto' ? 'Emptiest corner' : p === 'none' ? 'No legend' : p.replace('-', ' ') }))}
+          />
+          <Checkbox label="Legend in two columns" checked={spec.legend.columns === 2} onChange={(v) => onChange({ ...spec, legend: { ...spec.legend, columns: v ? 2 : 1 } })} />
+          <Checkbox label="Energy and luminosity line" checked={spec.energyLabel} onChange={(v) => onChange({ ...spec, energyLabel: v })} />
+          <Checkbox label="Confidence level line (e.g. 95% CL)" checked={spec.clLabel} onChange={(v) => onChange({ ...spec, clLabel: v })} />
+          <Checkbox label="Shade the excluded region" checked={spec.excludedShading} onChange={(v) => onChange({ ...spec, excludedShading: v })} />
+        </>
+      )}
       <Text variant="label">Annotations</Text>
       {spec.annotations.map((a, i) => (
         <View key={i} style={styles.col}>

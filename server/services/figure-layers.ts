@@ -5,7 +5,8 @@ import { HUE_COUNT } from '../../themes/figure/palette';
 import * as q from '../../db/queries/figures';
 import { audienceViewer, versionVisibleTo, type Audience, type VersionFacts } from '../../db/queries/visibility';
 import type { Executor } from '../../db/client';
-import { conversionTo, type LimitUnits } from '../../shared/units';
+import { layerConversion } from '../../shared/figure/plan';
+import type { LimitUnits } from '../../shared/units';
 import { AppError, type ErrorDetail } from '../lib/errors';
 
 /**
@@ -60,7 +61,7 @@ export async function assertLayersUsable(db: Executor, groupId: string, spec: Fi
       axis = units;
       return;
     }
-    const c = conversionTo(units, axis);
+    const c = layerConversion(spec.kind, units, axis);
     if (!c.ok) details.push({ field: `spec.layers.${i}`, message: `“${row.title}” (version ${l.version}) cannot share this figure's axes: ${c.reason}` });
   });
   if (details.length) throw new AppError(400, 'validation_failed', `Layer ${details[0]!.field.split('.')[2]}: ${details[0]!.message}`, details);

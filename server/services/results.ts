@@ -12,8 +12,7 @@ import type {
   VersionMeta,
 } from '../../shared/schemas/results';
 import { versionSearchText } from '../../shared/search';
-import { exclusionRanges } from '../../shared/stats/exclusion';
-import { StatsInputError } from '../../shared/stats/errors';
+import { exclusionOrProblem } from '../../shared/stats/exclusion';
 import * as q from '../../db/queries/results';
 import * as notices from './result-notices';
 import { scanOfVersion } from '../../db/queries/scans';
@@ -62,13 +61,7 @@ const metaOf = (row: q.VersionRow): VersionMeta => canonicalMeta({ ...row, quant
  * there are none.
  */
 export function exclusionOf(curve: NormalizedVersion['curve'], theory: Theory | null): ResultVersion['exclusion'] {
-  if (!theory) return { ranges: null, problem: 'No theory curve is stored with this version, so no excluded range can be derived' };
-  try {
-    return { ranges: exclusionRanges(curve, theory), problem: null };
-  } catch (e) {
-    if (e instanceof StatsInputError) return { ranges: null, problem: `The limit cannot be compared with the theory curve: ${e.message}` };
-    throw e;
-  }
+  return exclusionOrProblem(curve, theory);
 }
 
 function toVersion(ctx: Ctx, row: q.VersionRow): ResultVersion {

@@ -5,6 +5,7 @@
 import type { FigureSpec } from '../schemas/figures';
 import { labelPlainText } from './labels';
 import { canCompare, drawnLayers, shortNumber, type DrawnLayer } from './plan';
+import { planRanges, type RangeBar } from './ranges';
 import { resolveFigureTheme } from './theme';
 import type { FigureLayerData } from './types';
 
@@ -42,6 +43,7 @@ function plottedColumns(l: DrawnLayer): [string, readonly number[], readonly num
  * viewer may not see are left out.
  */
 export function figureCsv(spec: FigureSpec, layers: FigureLayerData[]): string {
+  if (spec.kind === 'ranges') return rangesCsv(spec, layers);
   const theme = resolveFigureTheme(spec.theme);
   const rows = ['layer,quantity,x,value,x_unit,value_unit'];
   for (const l of drawnLayers(spec, layers, theme).drawn) {
@@ -68,6 +70,7 @@ function listing(items: string[]): string {
  * for the outreach theme. Results the viewer may not see are counted, never named.
  */
 export function captionDraft(spec: FigureSpec, layers: FigureLayerData[]): string {
+  if (spec.kind === 'ranges') return rangesCaption(spec, layers);
   const theme = resolveFigureTheme(spec.theme);
   const outreach = theme.name === 'outreach';
   const { drawn, hidden } = drawnLayers(spec, layers, theme);
@@ -103,6 +106,64 @@ export function captionDraft(spec: FigureSpec, layers: FigureLayerData[]): strin
     if (shading) parts.push(outreach ? `The shaded area is ruled out by ${labelPlainText(shading.name)}.` : `The shaded region is excluded by the observed limit of ${labelPlainText(shading.name)}.`);
     const energies = [...new Set(drawn.map((l) => `√s = ${shortNumber(l.data.meta.sqrtS)} TeV, ${shortNumber(l.data.meta.luminosity)} fb⁻¹`))];
     parts.push(outreach ? `Collision energy: ${[...new Set(drawn.map((l) => `${shortNumber(l.data.meta.sqrtS)} TeV`))].join(', ')}.` : `${listing(energies)}.`);
+  }
+  if (hidden > 0) parts.push(hidden === 1 ? 'One further result is not shown.' : `${hidden} further results are not shown.`);
+  return parts.join(' ');
+}
+
+/**
+ * A summary of excluded ranges as CSV: `analysis,model,range,from,to,open_low,open_high,x_unit,note`,
+ * one row per excluded range (`range` observed or expected), bars in drawing order; a bar with no
+ * range has one row whose `range` says why ("no theory curve", "nothing excluded") and empty ends.
+ * `open_low`/`open_high`: the range runs into the edge of what was computed.
+ */
+function rangesCsv(spec: FigureSpec, layers: FigureLayerData[]): string {
+  const plan = planRanges(spec, layers, resolveFigureTheme(spec.theme));
+  const rows = ['analysis,model,range,from,to,open_low,open_high,x_unit,note'];
+  for (const row of plan.rows) {
+    if (row.kind !== 'bar') continue;
+    const b = row.bar;
+    const head = [cell(labelPlainText(b.layer.name)), cell(labelPlainText(b.model))];
+    const tail = [cell(labelPlainText(b.layer.data.meta.parameterUnit)), cell(labelPlainText(b.note))];
+    const ranges = [...(b.observed ?? []).map((r) => ['observed', r] as const), ...(b.expected ?? []).map((r) => ['expected', r] as const)];
+    if (ranges.length === 0) rows.push([...head, b.status === 'no-theory' ? 'no theory curve' : 'nothing excluded', '', '', '', '', ...tail].join(','));
+    for (const [what, r] of ranges) rows.push([...head, what, cell(r.from), cell(r.to), r.fromOpen ? 'yes' : 'no', r.toOpen ? 'yes' : 'no', ...tail].join(','));
+  }
+  return `${rows.join('\r\n')}\r\n`;
+}
+
+/** "from 1.2 to 3.4 TeV" for the caption, open ends said in words. */
+function rangeWords(b: RangeBar): string {
+  const unit = labelPlainText(b.layer.data.meta.parameterUnit);
+  const one = (r: { from: number; to: number; fromOpen?: boolean; toOpen?: boolean }) =>
+    `${r.fromOpen ? 'below ' : 'from '}${shortNumber(r.fromOpen ? r.to : r.from)}${r.fromOpen ? '' : ` to ${shortNumber(r.to)}`}${r.toOpen && !r.fromOpen ? ' or more' : ''}${unit ? ` ${unit}` : ''}`;
+  return listing((b.observed ?? []).map(one));
+}
+
+/** The caption draft of a summary of excluded ranges. */
+function rangesCaption(spec: FigureSpec, layers: FigureLayerData[]): string {
+  const theme = resolveFigureTheme(spec.theme);
+  const outreach = theme.name === 'outreach';
+  const plan = planRanges(spec, layers, theme);
+  const { hidden } = drawnLayers(spec, layers, theme);
+  const parts: string[] = [];
+  const bars = plan.bars;
+  if (bars.length === 0) parts.push(outreach ? 'No searches are shown.' : 'No results are shown in this figure.');
+  else {
+    const first = bars[0]!.layer.data.meta;
+    const param = labelPlainText(`${first.parameterName}${first.parameterUnit ? ` (${first.parameterUnit})` : ''}`);
+    const cls = [...new Set(bars.map((b) => shortNumber(b.layer.data.meta.cl * 100)))].join('/');
+    parts.push(
+      outreach
+        ? `The ranges of ${param} that ${bars.length === 1 ? 'one search has' : `${bars.length} searches have`} ruled out, each compared with its theory prediction.`
+        : `Ranges of ${param} excluded at ${cls}% CL by ${bars.length === 1 ? 'one analysis' : `${bars.length} analyses`}, each against its own theory prediction: filled bars observed${spec.ranges.expected === 'none' ? '' : spec.ranges.expected === 'marker' ? ', markers the expected (median) range' : ', outlines the expected (median) range'}.`,
+    );
+    for (const b of bars) {
+      const name = `${labelPlainText(b.layer.name)}${outreach ? '' : ` (version ${b.layer.data.version})`}`;
+      if (b.status === 'no-theory') parts.push(`${name}: no theory curve, so no range.`);
+      else if (!b.observed || b.observed.length === 0) parts.push(`${name}: ${outreach ? 'nothing ruled out' : 'nothing excluded (observed)'}.`);
+      else parts.push(`${name}: ${outreach ? 'ruled out' : 'excluded'} ${rangeWords(b)}.`);
+    }
   }
   if (hidden > 0) parts.push(hidden === 1 ? 'One further result is not shown.' : `${hidden} further results are not shown.`);
   return parts.join(' ');

@@ -12,7 +12,7 @@ export { sceneToSvg, escapeXml, SVG_FONT_FAMILIES, type SvgTextMode } from './sv
 export { figureCsv, captionDraft } from './export';
 export { splitLabel, labelPlainText, labelTextRuns, type LabelSegment, type LabelRun } from './labels';
 export { outreachSpec } from './outreach';
-export { sizePt } from './plan';
+export { sizePt, layerConversion } from './plan';
 export { annotationPlace } from './place';
 export { hueColor, paletteProblems, PALETTE_THRESHOLDS } from './color';
 export * from './types';

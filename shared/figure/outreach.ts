@@ -25,6 +25,7 @@ export function outreachSpec(spec: FigureSpec, size: 'web' | 'slide', title?: st
     layers: spec.layers.map((l, i) => ({
       ...l,
       label: clipText(labelPlainText(l.label)),
+      note: clipText(labelPlainText(l.note)),
       show: { ...l.show, band1: i === bandsLayer, band2: false, crossings: false },
     })),
     bandsLayer,

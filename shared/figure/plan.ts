@@ -3,7 +3,7 @@
  * the axis ranges and ticks, and every label's text. `collectLabels` lists these labels for batch
  * typesetting; `buildScene` lays them out with the measured sizes.
  */
-import { bandsLayersOf, figureSizeCm, type FigureSpec, type LayerSpec } from '../schemas/figures';
+import { bandsLayersOf, figureSizeCm, type FigureKind, type FigureSpec, type LayerSpec } from '../schemas/figures';
 import type { EnvelopeSources } from '../schemas/combine';
 import type { Curve, Theory, VersionMeta } from '../schemas/results';
 import { tint } from './color';
@@ -11,7 +11,7 @@ import { layerColor, type ResolvedTheme } from './theme';
 import { LEGEND_CORNERS, type Corner } from './legend';
 import { roomForBoxes, roughInfoSize, roughLegendSize, roughWidth } from './room';
 import { axisDomain, axisUnit, planAxisTicks, type AxisPlan } from './ticks';
-import { conversionTo, convertCurve, convertTheory, describeConversion, isIdentity, type LimitUnits } from '../units';
+import { conversionTo, convertCurve, convertTheory, describeConversion, isIdentity, parameterConversionTo, type LimitUnits, type UnitConversion } from '../units';
 import type { FigureLayerData, LabelRequest } from './types';
 
 /** Layer data the viewer may see. */
@@ -111,6 +111,15 @@ export function shortNumber(v: number): string {
   return String(Number(v.toPrecision(4)));
 }
 
+/**
+ * How a layer's units go onto the axes the first layer sets: a limit plot converts both axes
+ * (and refuses μ with σ×B); a summary of excluded ranges shares only the parameter axis, each bar
+ * comparing its result with its own theory. The one rule for the scene and for saving a figure.
+ */
+export function layerConversion(kind: FigureKind, from: LimitUnits, to: LimitUnits): UnitConversion {
+  return kind === 'ranges' ? parameterConversionTo(from, to) : conversionTo(from, to);
+}
+
 /** A layer left out because its units cannot go on the figure's axes, or drawn after converting them. */
 export type UnitNote = { index: number; name: string; text: string };
 
@@ -143,19 +152,20 @@ export function drawnLayers(
     const units: LimitUnits = { parameterUnit: data.meta.parameterUnit, quantity: data.meta.quantity, quantityUnit: data.meta.quantityUnit };
     if (!axisUnits) axisUnits = units;
     else {
-      const c = conversionTo(units, axisUnits);
+      const c = layerConversion(spec.kind, units, axisUnits);
       if (!c.ok) {
         refused.push({ index: i, name, text: fill(theme.words.unitsRefused, { layer: name, reason: c.reason }) });
         return;
       }
       if (!isIdentity(c)) {
         xFactor = c.x;
-        unitNotes.push({ index: i, name, text: fill(theme.words.unitsConverted, { layer: name, change: describeConversion(units, axisUnits) }) });
+        const target = spec.kind === 'ranges' ? { ...axisUnits, quantity: units.quantity, quantityUnit: units.quantityUnit } : axisUnits;
+        unitNotes.push({ index: i, name, text: fill(theme.words.unitsConverted, { layer: name, change: describeConversion(units, target) }) });
         data = {
           ...data,
           curve: convertCurve(data.curve, c),
           theory: data.theory ? convertTheory(data.theory, c) : data.theory,
-          meta: { ...data.meta, parameterUnit: axisUnits.parameterUnit, quantityUnit: axisUnits.quantityUnit as typeof data.meta.quantityUnit },
+          meta: { ...data.meta, parameterUnit: target.parameterUnit, quantityUnit: target.quantityUnit as typeof data.meta.quantityUnit },
         };
       }
     }

@@ -62,7 +62,7 @@ export type Primitive =
       color: string;
       /** Degrees, counter-clockwise (−90 for a vertical axis title reads bottom to top). */
       rotate: 0 | -90;
-      role: 'tick' | 'axis-title' | 'legend' | 'annotation' | 'energy' | 'cl' | 'explain' | 'note';
+      role: 'tick' | 'axis-title' | 'legend' | 'annotation' | 'energy' | 'cl' | 'explain' | 'note' | 'bar-label' | 'bar-note' | 'bar-status' | 'group';
     };
 
 export type Scene = {

@@ -86,8 +86,40 @@ export const layerSchema = z.object({
    * stretches coloured by the input the envelope takes there (`input`, a legend row per input).
    */
   observedColors: z.enum(['layer', 'input'], { error: 'must be "layer" or "input"' }).default('layer'),
+  /**
+   * The note beside this layer's bar in a summary of excluded ranges (e.g. "140 fb$^{-1}$, 2031
+   * data"); empty = its luminosity. Limit plots do not draw it.
+   */
+  note: label.default(''),
 });
 export type LayerSpec = z.output<typeof layerSchema>;
+
+/**
+ * What a figure draws: `limits`, the limit curves against the parameter (the default), or
+ * `ranges`, a summary of excluded ranges: one horizontal bar per layer over the parameter axis,
+ * its observed excluded range(s) against its theory filled and the expected one outlined.
+ */
+export const FIGURE_KINDS = ['limits', 'ranges'] as const;
+export type FigureKind = (typeof FIGURE_KINDS)[number];
+export const FIGURE_KIND_LABELS: Record<FigureKind, string> = { limits: 'Limit plot', ranges: 'Summary of excluded ranges' };
+
+/** How bars of a summary of excluded ranges are ordered (within each model when grouped). */
+export const RANGE_SORTS = ['listed', 'reach', 'title'] as const;
+export type RangeSort = (typeof RANGE_SORTS)[number];
+export const RANGE_SORT_LABELS: Record<RangeSort, string> = { listed: 'As listed', reach: 'Furthest observed reach first', title: 'By title (A–Z)' };
+/** How the expected excluded range is drawn: an outline around the bar, end markers, or not at all. */
+export const RANGE_EXPECTED_STYLES = ['outline', 'marker', 'none'] as const;
+
+export const rangesOptionsSchema = z.object({
+  sort: z.enum(RANGE_SORTS, { error: `must be one of ${RANGE_SORTS.join(', ')}` }).default('listed'),
+  /** Bars under a heading per model (the results' `model`), models in order of first appearance. */
+  groupByModel: z.boolean().default(true),
+  expected: z.enum(RANGE_EXPECTED_STYLES, { error: `must be one of ${RANGE_EXPECTED_STYLES.join(', ')}` }).default('outline'),
+  /** A note beside each bar (the layer's `note`, else its luminosity). */
+  notes: z.boolean().default(true),
+});
+export type RangesOptions = z.output<typeof rangesOptionsSchema>;
+export const DEFAULT_RANGES_OPTIONS: RangesOptions = { sort: 'listed', groupByModel: true, expected: 'outline', notes: true };
 
 export const LEGEND_POSITIONS = ['auto', 'top-left', 'top-right', 'bottom-left', 'bottom-right', 'none'] as const;
 
@@ -113,6 +145,9 @@ export type HouseStyle = z.output<typeof houseStyleSchema>;
 export const figureSpecSchema = z
   .object({
     title: storableText(z.string().trim().min(1, 'must not be empty').max(200, 'must be at most 200 characters')),
+    kind: z.enum(FIGURE_KINDS, { error: `must be one of ${FIGURE_KINDS.join(', ')}` }).default('limits'),
+    /** Options of the `ranges` kind (kept, unused, on a limit plot). */
+    ranges: rangesOptionsSchema.default(DEFAULT_RANGES_OPTIONS),
     theme: z.enum(FIGURE_THEMES, { error: `must be one of ${FIGURE_THEMES.join(', ')}` }),
     size: z.object({
       preset: z.enum(SIZE_PRESET_IDS, { error: `must be one of ${SIZE_PRESET_IDS.join(', ')}` }),

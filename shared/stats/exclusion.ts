@@ -173,3 +173,21 @@ export function exclusionRanges(curve: LimitCurve, theory: TheoryCurve): Exclusi
   }
   return out;
 }
+
+/** The excluded ranges of a stored version, or in plain words why there are none. */
+export type Exclusion = { ranges: ExclusionRanges | null; problem: string | null };
+
+/**
+ * The registry's excluded ranges of a version (its curve against its stored theory, both in the
+ * version's own units), or why there are none: no theory curve, or curves that cannot be compared.
+ * The one derivation the result pages, the API and the summary figures show.
+ */
+export function exclusionOrProblem(curve: LimitCurve, theory: TheoryCurve | null | undefined): Exclusion {
+  if (!theory) return { ranges: null, problem: 'No theory curve is stored with this version, so no excluded range can be derived' };
+  try {
+    return { ranges: exclusionRanges(curve, theory), problem: null };
+  } catch (e) {
+    if (e instanceof StatsInputError) return { ranges: null, problem: `The limit cannot be compared with the theory curve: ${e.message}` };
+    throw e;
+  }
+}

@@ -32,6 +32,15 @@ export const TECHNICAL_WORDS: FigureWords = {
   hiddenMany: '{n} layers are not shown: you may not see their results',
   unitsConverted: '{layer}: converted to the axis units ({change})',
   unitsRefused: '{layer} is not shown: {reason}',
+  rangesObserved: 'Observed exclusion',
+  rangesExpected: 'Expected exclusion',
+  rangesOpen: 'Beyond the computed range',
+  rangesNoTheory: 'no theory curve, no range',
+  rangesNothing: 'nothing excluded',
+  rangesNote: '{lumi} fb$^{-1}$',
+  rangesNoModel: 'No model given',
+  rangesCrowded: '{n} bars are tighter than their labels at this size: choose a taller size',
+  rangesExplain: null,
 };
 
 /**

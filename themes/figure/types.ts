@@ -59,6 +59,21 @@ export type FigureWords = {
   unitsConverted: string;
   /** A layer whose units cannot be put on the axis (`{layer}`, `{reason}`). */
   unitsRefused: string;
+  /** Summary of excluded ranges: the legend rows of the filled bar, the expected outline and an open end. */
+  rangesObserved: string;
+  rangesExpected: string;
+  rangesOpen: string;
+  /** A bar with no theory curve to compare with, or with nothing excluded. */
+  rangesNoTheory: string;
+  rangesNothing: string;
+  /** A bar's automatic note (`{lumi}` in fb⁻¹, `{sqrtS}` in TeV). */
+  rangesNote: string;
+  /** The heading of bars whose results name no model. */
+  rangesNoModel: string;
+  /** More bars than the page has room for (`{n}`). */
+  rangesCrowded: string;
+  /** One line saying what the bars mean (plain-language themes), or null for none. */
+  rangesExplain: string | null;
 };
 
 /** One figure theme's tokens. */
