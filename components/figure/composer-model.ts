@@ -2,7 +2,7 @@
  * The composer's editing rules as pure functions over a figure spec, with an undo history.
  * Tested in tests/unit/composer-model.test.ts.
  */
-import { bandsLayersOf, type FigureSpec, type FigureTheme, type LayerParts, type LayerSpec } from '@/shared/schemas/figures';
+import { bandsLayersOf, layerLimit, type FigureSpec, type FigureTheme, type LayerParts, type LayerSpec } from '@/shared/schemas/figures';
 
 export type History = { past: FigureSpec[]; present: FigureSpec; future: FigureSpec[] };
 export const UNDO_DEPTH = 30;
@@ -32,9 +32,9 @@ export function redo(h: History): History {
 
 const DEFAULT_PARTS: LayerParts = { observed: true, expected: true, band1: true, band2: true, theory: true, theoryBand: true, crossings: false };
 
-/** Adds a result version as the last layer (at most 12; the same version twice is refused). */
+/** Adds a result version as the last layer (at most `layerLimit` of the kind; the same version twice is refused). */
 export function addLayer(spec: FigureSpec, resultId: string, version: number): FigureSpec {
-  if (spec.layers.length >= 12 || spec.layers.some((l) => l.resultId === resultId && l.version === version)) return spec;
+  if (spec.layers.length >= layerLimit(spec.kind) || spec.layers.some((l) => l.resultId === resultId && l.version === version)) return spec;
   const layer: LayerSpec = { resultId, version, label: '', show: { ...DEFAULT_PARTS }, hue: null, color: null, lineStyle: 'solid', theoryLabel: '', observedColors: 'layer', note: '' };
   const next = { ...spec, layers: [...spec.layers, layer] };
   return spec.layers.length === 0 ? withBands(next, [0]) : next;

@@ -39,7 +39,7 @@ export type TypesetResponse = { glyphs: Record<string, TypesetLabel> };
  * the group may draw it, with the hue it would get.
  */
 export const layerDataRequestSchema = z.object({
-  layers: z.array(layerSchema.pick({ resultId: true, version: true, hue: true })).max(FIGURE_LIMITS.maxLayers, `at most ${FIGURE_LIMITS.maxLayers} layers`),
+  layers: z.array(layerSchema.pick({ resultId: true, version: true, hue: true })).max(FIGURE_LIMITS.maxBars, `at most ${FIGURE_LIMITS.maxBars} layers`),
 });
 export type LayerDataRequest = z.input<typeof layerDataRequestSchema>;
 export type LayerDataResponse = { layers: FigureLayerData[] };

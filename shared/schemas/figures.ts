@@ -27,7 +27,10 @@ export type SizePreset = keyof typeof SIZE_PRESETS | 'custom';
 export const SIZE_PRESET_IDS = [...(Object.keys(SIZE_PRESETS) as (keyof typeof SIZE_PRESETS)[]), 'custom'] as const;
 
 /** Limits that keep renders sane (absurd sizes and DPIs are refused). */
-export const FIGURE_LIMITS = { minCm: 3, maxCm: 60, maxLayers: 12, maxAnnotations: 10, maxLabel: 200, minDpi: 36, maxDpi: 1200 } as const;
+/**
+ * `maxLayers`: curves on one limit plot; `maxBars`: bars (layers) of a summary of excluded ranges.
+ */
+export const FIGURE_LIMITS = { minCm: 3, maxCm: 60, maxLayers: 12, maxBars: 60, maxAnnotations: 10, maxLabel: 200, minDpi: 36, maxDpi: 1200 } as const;
 
 /**
  * Text that can be stored and drawn: no control characters but tab and line breaks (PostgreSQL
@@ -156,7 +159,7 @@ export const figureSpecSchema = z
     }),
     x: axisSchema.default({ scale: 'linear', min: null, max: null, label: '' }),
     y: axisSchema.default({ scale: 'log', min: null, max: null, label: '' }),
-    layers: z.array(layerSchema).max(FIGURE_LIMITS.maxLayers, `at most ${FIGURE_LIMITS.maxLayers} layers`),
+    layers: z.array(layerSchema).max(FIGURE_LIMITS.maxBars, `at most ${FIGURE_LIMITS.maxBars} layers (bars of a summary of excluded ranges; ${FIGURE_LIMITS.maxLayers} on a limit plot)`),
     /**
      * Older specs: the one layer that carries the ±1σ/±2σ bands; null = none. Read only when
      * `bandsLayers` is absent (see `bandsLayersOf`); writers keep it at the first of `bandsLayers`.
@@ -176,6 +179,7 @@ export const figureSpecSchema = z
     excludedShading: z.boolean().default(false),
   })
   .superRefine((s, ctx) => {
+    if (s.layers.length > layerLimit(s.kind)) ctx.addIssue({ code: 'custom', path: ['layers'], message: `a limit plot has at most ${FIGURE_LIMITS.maxLayers} layers (a summary of excluded ranges up to ${FIGURE_LIMITS.maxBars})` });
     if (s.size.preset === 'custom' && (s.size.widthCm === undefined || s.size.heightCm === undefined)) {
       ctx.addIssue({ code: 'custom', path: ['size'], message: 'a custom size needs widthCm and heightCm' });
     }
@@ -194,6 +198,11 @@ export const figureSpecSchema = z
   });
 export type FigureSpec = z.output<typeof figureSpecSchema>;
 export type FigureSpecInput = z.input<typeof figureSpecSchema>;
+
+/** How many layers a figure of this kind may have. */
+export function layerLimit(kind: FigureKind): number {
+  return kind === 'ranges' ? FIGURE_LIMITS.maxBars : FIGURE_LIMITS.maxLayers;
+}
 
 /** The layers that carry the expected bands: `bandsLayers`, or for older specs the one `bandsLayer`. */
 export function bandsLayersOf(spec: Pick<FigureSpec, 'bandsLayer' | 'bandsLayers'>): number[] {

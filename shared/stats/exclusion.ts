@@ -88,6 +88,26 @@ function logInterpolate(xs: number[], logs: Float64Array, x: number): number {
  */
 const TOUCH = 1e-12;
 
+/** start, the values of both increasing grids strictly between start and end (merged, each once), end. */
+function mergedGrid(a: number[], b: number[], start: number, end: number): number[] {
+  const out = [start];
+  let i = 0;
+  let j = 0;
+  while (i < a.length && (a[i] as number) <= start) i++;
+  while (j < b.length && (b[j] as number) <= start) j++;
+  for (;;) {
+    const va = i < a.length ? (a[i] as number) : Infinity;
+    const vb = j < b.length ? (b[j] as number) : Infinity;
+    const v = Math.min(va, vb);
+    if (!(v < end)) break;
+    if (v > (out[out.length - 1] as number)) out.push(v);
+    if (va === v) i++;
+    if (vb === v) j++;
+  }
+  out.push(end);
+  return out;
+}
+
 /**
  * Ranges of x where the limit (xl, yl) is below the theory (xt, yt). Inputs already checked.
  *
@@ -99,7 +119,7 @@ export function rangesBelow(xl: number[], yl: number[], xt: number[], yt: number
   const start = Math.max(xl[0] as number, xt[0] as number);
   const end = Math.min(xl[xl.length - 1] as number, xt[xt.length - 1] as number);
   if (!(end > start)) return [];
-  const grid = [...new Set([start, end, ...xl.filter((v) => v > start && v < end), ...xt.filter((v) => v > start && v < end)])].sort((a, b) => a - b);
+  const grid = mergedGrid(xl, xt, start, end);
   const ll = Float64Array.from(yl, Math.log);
   const lt = Float64Array.from(yt, Math.log);
   const d = grid.map((x) => {
