@@ -24,6 +24,7 @@ type DemoFigure = {
 const VPRIME = 'vprime-dijet-18tev-lf7q2';
 const COMBINED = 'combined-vprime-18tev-lfc01';
 const SCALAR = 'scalar-bb-18tev-lf3k8';
+const PORTAL = 'portal-scalar-summary-lfc02';
 
 export const DEMO_FIGURES: DemoFigure[] = [
   {
@@ -82,6 +83,27 @@ export const DEMO_FIGURES: DemoFigure[] = [
       bandsLayer: 0,
       clLabel: false,
       excludedShading: true,
+    },
+  },
+  {
+    // The combination board's summary of excluded masses: one bar per analysis, grouped by model
+    // (the portal scalar's summary has no theory curve and says so), on a log mass axis that
+    // takes the GeV result and the TeV ones alike.
+    group: 'Lanternfish Combination Board',
+    author: 'cyrus@lanternfish.example',
+    isPublic: true,
+    spec: {
+      title: 'Excluded masses of the Lanternfish searches, 2031 data',
+      kind: 'ranges',
+      theme: 'publication',
+      size: { preset: 'two-column', heightCm: 6 },
+      x: { scale: 'log', min: null, max: null, label: 'Mass [TeV]' },
+      layers: [
+        { slug: COMBINED, version: 1, label: 'Dijet + dilepton combination' },
+        { slug: VPRIME, version: 2, label: 'Dijet search', note: '96.5 fb$^{-1}$, LFN 31.04' },
+        { slug: PORTAL, version: 1, label: 'Portal scalar, best channel' },
+      ],
+      ranges: { sort: 'reach', groupByModel: true, expected: 'outline', notes: true },
     },
   },
   {

@@ -7,7 +7,8 @@
  * listed with "no theory curve, no range", never left out.
  *
  * Layout, top to bottom: notes, the legend row (left) beside the energy / CL block (right), the
- * bars (labels in a column left of the plot, notes right of it), the parameter axis.
+ * bars (labels in a column left of the plot, notes right of it; a model's heading in a row of its
+ * own inside the frame), the parameter axis.
  */
 import { scaleLinear, scaleLog } from 'd3-scale';
 import type { FigureSpec, RangesOptions } from '../schemas/figures';
@@ -271,7 +272,6 @@ export function buildRangesScene(spec: FigureSpec, plan: RangesPlan, measure: Me
   const xLabelAscent = Math.max(0, ...xLabels.map((x) => x.ascent));
   const lastOverhang = xLabels.length ? xLabels[xLabels.length - 1]!.width / 2 : 0;
   const [left, right] = fitMargins(s.edge + Math.max(labelW + s.tickLabel, 0), s.edge + Math.max(noteW ? noteW + s.tickLabel : 0, lastOverhang, theme.lines.frame), W);
-  // Headings start at the page edge, in a row of their own (a wide one runs over the empty row).
   const [, bottom] = fitMargins(top, s.edge + (xTitle ? height(xTitle) + s.title : 0) + xLabelH + s.tickLabel + tickOut, H);
   const plot: Rect = { x: left, y: Math.min(top, H - bottom - 1), width: Math.max(1, W - left - right), height: Math.max(1, H - Math.min(top, H - bottom - 1) - bottom) };
   const plotRight = plot.x + plot.width;
@@ -282,12 +282,13 @@ export function buildRangesScene(spec: FigureSpec, plan: RangesPlan, measure: Me
   const far = 3 * side;
   const X = (v: number) => Math.max(plot.x - far, Math.min(plotRight + far, xScale(v)));
 
-  // Rows share the plot's height, up to two and a bit lines each (few bars stay slim).
+  // Rows share the plot's height (up to four lines each, centred beyond that); bars keep the
+  // thickness of about a line of type however roomy their rows are.
   const nRows = Math.max(1, plan.rows.length);
-  const rowH = Math.min(plot.height / nRows, 2.2 * t.legend);
+  const rowH = Math.min(plot.height / nRows, 4 * t.legend);
   const rowsTop = plot.y + (plot.height - rowH * plan.rows.length) / 2;
-  const barH = 0.45 * rowH;
-  const outlineH = 0.75 * rowH;
+  const barH = Math.min(0.45 * rowH, 0.8 * t.legend);
+  const outlineH = Math.min(0.75 * rowH, 1.35 * t.legend);
 
   if (theme.grid) {
     const d = plan.x.major.filter((tk) => okX(tk.value)).map((tk) => `M${n(X(tk.value))},${n(plot.y)}V${n(plotBottom)}`).join('');
@@ -302,7 +303,8 @@ export function buildRangesScene(spec: FigureSpec, plan: RangesPlan, measure: Me
     const cy = rowsTop + (k + 0.5) * rowH;
     if (row.kind === 'heading') {
       const hm = m(row.label, t.legend);
-      text(s.edge, cy + (hm.ascent - hm.descent) / 2, row.label, t.legend, 'start', theme.colors.text, 'group');
+      // Inside the frame, where the heading's row has no bar (a long model name would cross the frame from the label column).
+      text(plot.x + s.tickLabel, cy + (hm.ascent - hm.descent) / 2, row.label, t.legend, 'start', theme.colors.text, 'group');
       // A rule across the plot above each group but the first.
       if (k > 0) path(`M${n(plot.x)},${n(rowsTop + k * rowH)}H${n(plotRight)}`, { stroke: theme.colors.grid, width: theme.lines.grid }, 'group-rule');
       return;
