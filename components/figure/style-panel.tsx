@@ -42,6 +42,7 @@ function RangesControls({ options, onChange }: { options: RangesOptions; onChang
       <Text variant="label">Bars</Text>
       <Select<RangeSort> label="Order of the bars" value={options.sort} onChange={(sort) => onChange({ ...options, sort })} options={RANGE_SORTS.map((v) => ({ value: v, label: RANGE_SORT_LABELS[v] }))} />
       <Checkbox label="Group the bars by model" checked={options.groupByModel} onChange={(v) => onChange({ ...options, groupByModel: v })} />
+      <Text variant="label">Expected excluded range</Text>
       <ChoiceGroup<RangesOptions['expected']>
         label="Expected excluded range"
         value={options.expected}
