@@ -20,8 +20,9 @@ test('the seed adds the demo figures once: public ones in every theme, and a gro
   expect(rows.filter((f) => !f.isPublic).map((f) => f.title)).toEqual(['Scalar S → bb̄: signal-strength limit (internal)']);
 
   const page = (await request(t.app).get('/api/public/figures')).body as PublicFigurePage;
-  expect(page.items.map((i) => i.theme).sort()).toEqual(['outreach', 'publication', 'slides']);
-  expect(page.items.map((i) => i.groupName).sort()).toEqual(['Lanternfish Combination Board', 'Lanternfish Dijet Resonances', 'Lanternfish Outreach Office']);
+  // The publication theme twice: the combination board's limit plot and its summary of excluded ranges.
+  expect(page.items.map((i) => i.theme).sort()).toEqual(['outreach', 'publication', 'publication', 'slides']);
+  expect(page.items.map((i) => i.groupName).sort()).toEqual(['Lanternfish Combination Board', 'Lanternfish Combination Board', 'Lanternfish Dijet Resonances', 'Lanternfish Outreach Office']);
 
   await seedDemo(t.ctx);
   expect(await t.ctx.db.select().from(figures)).toHaveLength(DEMO_FIGURES.length);
@@ -32,8 +33,16 @@ test('the public demo figures render whole for anyone; the group-only one is not
   for (const item of page.items) {
     const res = await request(t.app).get(`/api/public/figures/${item.id}/render.svg`).buffer(true);
     expect(res.status).toBe(200);
-    expect(res.headers['x-figure-notes']).toBeUndefined();
+    // Whole: no layer left out (a unit conversion is said on the figure, and is all a note may say).
+    const notes = JSON.parse((res.headers['x-figure-notes'] as string | undefined) ?? '[]') as string[];
+    expect(notes.filter((n) => !n.includes('converted to the axis units'))).toEqual([]);
   }
+  // The summary of excluded ranges lists the result without theory rather than leaving it out.
+  const summary = page.items.find((i) => i.title === 'Excluded masses of the Lanternfish searches, 2031 data')!;
+  const csv = await request(t.app).get(`/api/figures/${summary.id}/export.csv`);
+  expect(csv.status).toBe(200);
+  expect(csv.text).toContain('"Portal scalar, best channel","Heron portal scalar, mixing angle sin θ = 0.1",no theory curve,');
+  expect(csv.text).toMatch(/\r\nDijet search,Sequential V\S* benchmark[^,]*,observed,/);
   const internal = (await t.ctx.db.select().from(figures)).find((f) => !f.isPublic)!;
   expect((await request(t.app).get(`/api/public/figures/${internal.id}/render.svg`)).status).toBe(404);
   expect((await request(t.app).get(`/api/figures/${internal.id}/render.svg`)).status).toBe(404);
