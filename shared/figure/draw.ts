@@ -6,7 +6,8 @@
 import { n } from './legend';
 import type { ResolvedTheme } from './theme';
 import type { AxisPlan } from './ticks';
-import type { OversizeLabel, Primitive, Rect, TextMetrics } from './types';
+import type { FontRole, Measure, OversizeLabel, Primitive, Rect, TextMetrics } from './types';
+import { labelKey } from './types';
 
 /** Metrics with anything non-finite or negative turned into 0 (a broken measure must not break the layout). */
 export function safeMetrics(m: TextMetrics | undefined): TextMetrics {
@@ -151,3 +152,28 @@ export function axisPrimitives(plan: { x: AxisPlan; y: AxisPlan }, theme: Resolv
   return out;
 }
 
+
+/**
+ * The measures a scene builder lays out with: `raw`, each label measured once (safe metrics);
+ * `bounded`, the same with every box bounded by the page — TeX can typeset a box of any size
+ * (\rule{1em}{100em}, \hspace{1000000em}), and an unbounded one would push the plot off the page;
+ * `height`, ascent plus descent.
+ */
+export function pageMeasures(measure: Measure, font: FontRole, W: number, H: number) {
+  const cache = new Map<string, TextMetrics>();
+  const raw = (label: string, size: number): TextMetrics => {
+    const key = labelKey({ label, size, font });
+    let r = cache.get(key);
+    if (!r) {
+      r = safeMetrics(measure(label, size, font));
+      cache.set(key, r);
+    }
+    return r;
+  };
+  const side = Math.max(W, H);
+  const bounded = (label: string, size: number): TextMetrics => {
+    const r = raw(label, size);
+    return { width: Math.min(r.width, side), ascent: Math.min(r.ascent, side), descent: Math.min(r.descent, side) };
+  };
+  return { raw, bounded, height: (x: TextMetrics) => x.ascent + x.descent, side };
+}

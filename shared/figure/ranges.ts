@@ -13,13 +13,13 @@
 import { scaleLinear, scaleLog } from 'd3-scale';
 import type { FigureSpec, RangesOptions } from '../schemas/figures';
 import { exclusionOrProblem, type ExcludedRange } from '../stats/exclusion';
-import { axisPrimitives, fitMargins, oversizeCheck, safeMetrics, touches, pathBounds } from './draw';
+import { axisPrimitives, fitMargins, oversizeCheck, pageMeasures, pathBounds, touches } from './draw';
 import { n, rectPath } from './legend';
 import { drawnLayers, fill, noteHalves, shortNumber, sizePt, type DrawnLayer } from './plan';
 import { roughWidth } from './room';
 import type { ResolvedTheme } from './theme';
 import { axisDomain, planAxisTicks, thinLabels, type AxisPlan } from './ticks';
-import type { FigureLayerData, LabelRequest, Measure, Primitive, Rect, Scene, TextMetrics } from './types';
+import type { FigureLayerData, LabelRequest, Measure, Primitive, Rect, Scene } from './types';
 import { labelKey } from './types';
 
 /** One bar: a drawn layer with its excluded ranges in the axis units, or why it has none. */
@@ -201,22 +201,7 @@ export function buildRangesScene(spec: FigureSpec, plan: RangesPlan, measure: Me
   const t = theme.type;
   const s = theme.spacing;
   const font = theme.font;
-  const side = Math.max(W, H);
-  const cache = new Map<string, TextMetrics>();
-  const raw = (label: string, size: number): TextMetrics => {
-    const key = labelKey({ label, size, font });
-    let r = cache.get(key);
-    if (!r) {
-      r = safeMetrics(measure(label, size, font));
-      cache.set(key, r);
-    }
-    return r;
-  };
-  const m = (label: string, size: number): TextMetrics => {
-    const r = raw(label, size);
-    return { width: Math.min(r.width, side), ascent: Math.min(r.ascent, side), descent: Math.min(r.descent, side) };
-  };
-  const height = (x: TextMetrics) => x.ascent + x.descent;
+  const { raw, bounded: m, height, side } = pageMeasures(measure, font, W, H);
   const oversize = oversizeCheck(W, H, raw);
   const items: Primitive[] = [{ kind: 'rect', x: 0, y: 0, width: W, height: H, fill: theme.colors.background, stroke: null, strokeWidth: 0, role: 'background' }];
   const text = (x: number, y: number, label: string, size: number, anchor: 'start' | 'middle' | 'end', color: string, role: Extract<Primitive, { kind: 'text' }>['role']) =>

@@ -9,14 +9,13 @@ import type { FigureSpec } from '../schemas/figures';
 import { rangesBelow, type ExcludedRange } from '../stats/exclusion';
 import { cornerBox, densify, layoutLegend, n, overlaps, placeBoxes, type Corner } from './legend';
 import { bandColors, noteHalves, planFigure, planLabels, type DrawnLayer } from './plan';
-import { axisPrimitives, fitMargins, oversizeCheck, pathBounds, safeMetrics, touches } from './draw';
+import { axisPrimitives, fitMargins, oversizeCheck, pageMeasures, pathBounds, touches } from './draw';
 import { buildRangesScene, planRanges, rangesLabels } from './ranges';
 import type { ResolvedTheme } from './theme';
 import { thinLabels, type AxisPlan } from './ticks';
 import type { FigureLayerData, LabelRequest, Measure, Primitive, Rect, Scene, TextMetrics } from './types';
 
 export { pathBounds };
-import { labelKey } from './types';
 
 /**
  * Every label `buildScene` will measure for this spec and data (tick labels included), each once,
@@ -78,24 +77,7 @@ export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: R
   const t = theme.type;
   const s = theme.spacing;
   const font = theme.font;
-  const cache = new Map<string, TextMetrics>();
-  const raw = (label: string, size: number): TextMetrics => {
-    const key = labelKey({ label, size, font });
-    let r = cache.get(key);
-    if (!r) {
-      r = safeMetrics(measure(label, size, font));
-      cache.set(key, r);
-    }
-    return r;
-  };
-  // The layout sees every label's box bounded by the page: TeX can typeset a box of any size
-  // (\rule{1em}{100em}, \hspace{1000000em}), and an unbounded one would push the plot off the page.
-  const side = Math.max(W, H);
-  const m = (label: string, size: number): TextMetrics => {
-    const r = raw(label, size);
-    return { width: Math.min(r.width, side), ascent: Math.min(r.ascent, side), descent: Math.min(r.descent, side) };
-  };
-  const height = (x: TextMetrics) => x.ascent + x.descent;
+  const { raw, bounded: m, height, side } = pageMeasures(measure, font, W, H);
   const oversize = oversizeCheck(W, H, raw);
 
   // Margins from the measured labels.
