@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import { planeContours, ratioContours, type ContourLine } from '@/shared/plane/contours';
 import { planeGrid } from '@/shared/plane/grid';
 import type { Plane } from '@/shared/schemas/plane';
@@ -168,9 +169,55 @@ describe('missing cells break contours, never bridge them', () => {
     expect(along.lines).toHaveLength(2);
   });
 
+  test('a ratio of exactly 1 at grid points gives no repeated vertices', () => {
+    // ratio = exp(x + y − 2) is 1 on the grid points (0, 2), (1, 1), (2, 0) of an integer grid.
+    const { lines } = sample(range(0, 3, 4), range(0, 3, 4), (x, y) => Math.exp(x + y - 2));
+    expect(lines).toHaveLength(1);
+    const pts = lines[0]!.points;
+    for (let k = 1; k < pts.length; k++) expect(pts[k]).not.toEqual(pts[k - 1]);
+    for (const [x, y] of pts) expect(x + y).toBeCloseTo(2, 12);
+  });
+
   test('non-positive and non-finite ratios count as missing', () => {
     const bad = sample(range(0, 1, 11), range(0, 10, 11), (x, y) => (y === 5 && x === 0.5 ? -1 : y === 5 && x === 0.6 ? Infinity : Math.exp(x - 0.55)));
     expect(bad.lines).toHaveLength(2);
+  });
+});
+
+describe('random planes (no ring lost, none bridged)', () => {
+  test('segments found = the sign changes of cells with four valid corners / 2', () => {
+    // Marching squares (common practice): a cell with four valid corners holds one segment per two of
+    // its edges where ln(ratio) changes sign (≥ 0 counts as above, as in d3-contour).
+    fc.assert(
+      fc.property(fc.integer({ min: 2, max: 9 }), fc.integer({ min: 2, max: 9 }), fc.array(fc.double({ min: -2, max: 2, noNaN: true }), { minLength: 81, maxLength: 81 }), fc.array(fc.boolean(), { minLength: 81, maxLength: 81 }), (nx, ny, values, gone) => {
+        const xs = range(0, nx - 1, nx).map((v) => v * v + v);
+        const ys = range(0, ny - 1, ny);
+        // Kept off 0: a ratio of exactly 1 at a grid point gives zero-length segments, which are dropped
+        // (the test 'a ratio of exactly 1 at grid points …' covers that case).
+        const lnAt = (i: number, j: number) => (values[j * 9 + i]! >= 0 ? 0.01 + values[j * 9 + i]! : values[j * 9 + i]! - 0.01);
+        const missing = (i: number, j: number) => gone[j * 9 + i]! && (i + j) % 3 === 0;
+        const x: number[] = [];
+        const y: number[] = [];
+        const ratio: number[] = [];
+        for (let j = 0; j < ny; j++) for (let i = 0; i < nx; i++) {
+          x.push(xs[i]!);
+          y.push(ys[j]!);
+          ratio.push(missing(i, j) ? NaN : Math.exp(lnAt(i, j)));
+        }
+        const lines = ratioContours(planeGrid(x, y), ratio);
+        let expected = 0;
+        for (let j = 0; j + 1 < ny; j++) for (let i = 0; i + 1 < nx; i++) {
+          const corners: Array<[number, number]> = [[i, j], [i + 1, j], [i + 1, j + 1], [i, j + 1]];
+          if (corners.some(([a, b]) => missing(a, b))) continue;
+          const up = corners.map(([a, b]) => lnAt(a, b) >= 0);
+          expected += up.filter((u, k) => u !== up[(k + 1) % 4]).length / 2;
+        }
+        const found = lines.reduce((s, l) => s + segments(l).length, 0);
+        expect(found).toBe(expected);
+        for (const line of lines) expect(line.points.length).toBeGreaterThan(1);
+      }),
+      { numRuns: 300, seed: 15 },
+    );
   });
 });
 
