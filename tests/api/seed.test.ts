@@ -160,7 +160,7 @@ test('the combination board holds a joint combination of the two scan-computed A
 
   // Finite everywhere, and at every common point below each channel's own expected limit (common
   // practice: adding an independent channel strengthens the limit).
-  const median = (c: ResultVersion['curve'], x: number) => c.expected!['0'][c.x.indexOf(x)]!;
+  const median = (c: ResultVersion['curve'], x: number) => c.expected!['0']![c.x.indexOf(x)]!;
   for (const x of plan.common) {
     const combined = median(v.curve, x);
     expect(Number.isFinite(combined)).toBe(true);
