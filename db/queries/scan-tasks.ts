@@ -16,6 +16,30 @@ export async function insertTasks(db: Executor, tasks: NewTask[]) {
   for (let i = 0; i < tasks.length; i += 2000) await db.insert(scanTasks).values(tasks.slice(i, i + 2000));
 }
 
+type ClaimedRow = { id: string; scan_id: string; group_id: string; point_index: number; chunk: number; attempts: number; last_error: string | null };
+
+/**
+ * The claim of the task a preceding `pick` CTE chose (one row, locked): it turns running with a
+ * lease of `leaseSeconds`, counts an attempt and records its group's turn (scan_group_turns).
+ */
+const claimPicked = (leaseSeconds: number) => sql`claimed as (
+      update ${scanTasks} t
+      set state = 'running', attempts = t.attempts + 1, claimed_at = now(), heartbeat_at = now(), steps = 0,
+          lease_until = now() + make_interval(secs => ${leaseSeconds})
+      from pick
+      where t.id = pick.id
+      returning t.id, t.scan_id, t.group_id, t.point_index, t.chunk, t.attempts, t.last_error
+    ),
+    turn as (
+      insert into scan_group_turns (group_id, last_claimed_at)
+      select group_id, clock_timestamp() from claimed
+      on conflict (group_id) do update set last_claimed_at = excluded.last_claimed_at
+    )
+    select * from claimed`;
+
+const claimedTask = (row: ClaimedRow | undefined): ClaimedTask | undefined =>
+  row ? { id: Number(row.id), scanId: row.scan_id, groupId: row.group_id, pointIndex: row.point_index, chunk: row.chunk, attempts: row.attempts, lastError: row.last_error } : undefined;
+
 /**
  * Claims the next task in one statement. Claimable: queued and due (`run_after` passed), or
  * running with an expired lease (its worker died). Among them the task of the group with the
@@ -28,7 +52,7 @@ export async function insertTasks(db: Executor, tasks: NewTask[]) {
  * The claim counts an attempt and records the group's turn.
  */
 export async function claimNextTask(db: Executor, leaseSeconds: number, windowSeconds = 600): Promise<ClaimedTask | undefined> {
-  const r = await db.execute<{ id: string; scan_id: string; group_id: string; point_index: number; chunk: number; attempts: number; last_error: string | null }>(sql`
+  const r = await db.execute<ClaimedRow>(sql`
     with open as (
       select group_id,
              count(*) filter (where state = 'running' and lease_until > now()) as running,
@@ -67,24 +91,28 @@ export async function claimNextTask(db: Executor, leaseSeconds: number, windowSe
       limit 1
       for update of t skip locked
     ),
-    claimed as (
-      update ${scanTasks} t
-      set state = 'running', attempts = t.attempts + 1, claimed_at = now(), heartbeat_at = now(), steps = 0,
-          lease_until = now() + make_interval(secs => ${leaseSeconds})
-      from pick
-      where t.id = pick.id
-      returning t.id, t.scan_id, t.group_id, t.point_index, t.chunk, t.attempts, t.last_error
+    ${claimPicked(leaseSeconds)}`);
+  return claimedTask(r.rows[0]);
+}
+
+/**
+ * Claims the next due task of one scan (the oldest; due as for `claimNextTask`), whatever other
+ * groups wait: for running one scan here and now (`runScanHere` in server/jobs/scan-worker.ts).
+ * The claim itself is `claimNextTask`'s (attempt, lease, the group's turn).
+ */
+export async function claimTaskOfScan(db: Executor, scanId: string, leaseSeconds: number): Promise<ClaimedTask | undefined> {
+  const r = await db.execute<ClaimedRow>(sql`
+    with pick as (
+      select t.id
+      from ${scanTasks} t
+      where t.scan_id = ${scanId}
+        and ((t.state = 'queued' and t.run_after <= now()) or (t.state = 'running' and t.lease_until <= now()))
+      order by t.id
+      limit 1
+      for update of t skip locked
     ),
-    turn as (
-      insert into scan_group_turns (group_id, last_claimed_at)
-      select group_id, clock_timestamp() from claimed
-      on conflict (group_id) do update set last_claimed_at = excluded.last_claimed_at
-    )
-    select * from claimed`);
-  const row = r.rows[0];
-  return row
-    ? { id: Number(row.id), scanId: row.scan_id, groupId: row.group_id, pointIndex: row.point_index, chunk: row.chunk, attempts: row.attempts, lastError: row.last_error }
-    : undefined;
+    ${claimPicked(leaseSeconds)}`);
+  return claimedTask(r.rows[0]);
 }
 
 /**

@@ -35,6 +35,14 @@ export class ScanQueue {
     return tq.claimNextTask(this.db, this.env.JOB_EXPIRE_SECONDS, FAIR_SHARE_WINDOW_SECONDS);
   }
 
+  /**
+   * The next due task of one scan, ahead of any other group's (no fair share): for running that scan
+   * here and now (`runScanHere` in server/jobs/scan-worker.ts).
+   */
+  claimOfScan(scanId: string): Promise<tq.ClaimedTask | undefined> {
+    return tq.claimTaskOfScan(this.db, scanId, this.env.JOB_EXPIRE_SECONDS);
+  }
+
   /** Seconds a task waits before attempt `attempt + 1`. */
   retryDelaySeconds(attempt: number): number {
     return this.env.JOB_RETRY_SECONDS * 2 ** Math.max(0, attempt - 1);

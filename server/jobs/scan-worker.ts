@@ -214,6 +214,34 @@ export async function runNextTask(ctx: Ctx, queue: ScanQueue, opts: WorkerOption
 }
 
 /**
+ * Runs one scan to its end in this process, task after task, as a worker runs them (claimed from
+ * the queue, `runScanTask`, failures recorded the same way), so its points, tasks and draft are
+ * what the workers would have left: for a caller that needs the result at once and cannot wait
+ * for a worker (the demo seed, server/seed/seed-scans.ts). A task another worker holds is waited
+ * for; a task waiting for its retry is run when due. Answers the scan's row once it has ended
+ * (done, failed or cancelled); throws after `timeoutMs`.
+ */
+export async function runScanHere(ctx: Ctx, queue: ScanQueue, scanId: string, opts: WorkerOptions & { timeoutMs?: number } = {}): Promise<q.ScanRow> {
+  const until = Date.now() + (opts.timeoutMs ?? 120_000);
+  for (;;) {
+    const task = await queue.claimOfScan(scanId);
+    if (task) {
+      try {
+        await runScanTask(ctx, queue, task, opts);
+      } catch (e) {
+        await recordTaskFailure(ctx, queue, task, e);
+      }
+      continue;
+    }
+    const scan = await q.getScanById(ctx.db, scanId);
+    if (!scan) throw new Error(`scan ${scanId} does not exist`);
+    if (scan.state !== 'queued' && scan.state !== 'running') return scan;
+    if (Date.now() > until) throw new Error(`scan ${scanId} did not end in time (${scan.donePoints + scan.failedPoints} of ${scan.totalPoints} points)`);
+    await new Promise((r) => setTimeout(r, 50));
+  }
+}
+
+/**
  * Saves drafts and merges points that a worker died before finishing (all their work done), and
  * deletes the tasks of scans that ended longer ago than the fair share looks back.
  */

@@ -66,7 +66,7 @@ export type DemoResult = {
  * The full 2031 run of the Halcyon Ring: 96.5 fb⁻¹ at 18 TeV, limits at 95 % CL. References follow
  * the experiment's own note series, "LFN <year>.<number>" (combinations "LFN-C …").
  */
-const RUN_2031 = { sqrtS: 18, luminosity: 96.5, cl: 0.95 } as const;
+export const RUN_2031 = { sqrtS: 18, luminosity: 96.5, cl: 0.95 } as const;
 
 const VPRIME = {
   title: 'Search for a heavy vector boson V′ → two jets',

@@ -7,6 +7,7 @@ import * as resultsService from '../services/results';
 import { DEMO_RESULTS } from './demo-results';
 import { seedDemoEnvelopes } from './seed-envelopes';
 import { seedDemoFigures } from './seed-figures';
+import { seedDemoCombinations, seedDemoScans } from './seed-scans';
 import { addMember, getRole, insertGroup, slugTaken } from '../../db/queries/groups';
 import { slugExists } from '../../db/queries/results';
 import { groups, user } from '../../db/schema';
@@ -16,7 +17,9 @@ import { groups, user } from '../../db/schema';
  * experiment on it, with an analysis team, a combination board and an outreach office.
  * Idempotent: a second run finds the demo users and results and changes nothing. The results have
  * their own marker (their fixed link names), so a database seeded before the registry existed
- * gets them added once; so do the demo figures (server/seed/seed-figures.ts, marked by their titles).
+ * gets them added once; so do the derived results (server/seed/seed-envelopes.ts), the scan-computed
+ * results and their joint combination (server/seed/seed-scans.ts) and the demo figures
+ * (server/seed/seed-figures.ts), all marked by their titles.
  */
 export const DEMO_PASSWORD = 'halcyon-demo-2026';
 
@@ -51,8 +54,10 @@ export async function seedDemo(ctx: Ctx): Promise<{ created: boolean }> {
   const people = await seedDemoPeople(ctx);
   const results = await seedDemoResults(ctx);
   const envelopes = await seedDemoEnvelopes(ctx);
+  const scanned = await seedDemoScans(ctx);
+  const combinations = await seedDemoCombinations(ctx);
   const figures = await seedDemoFigures(ctx);
-  return { created: people || results > 0 || envelopes > 0 || figures > 0 };
+  return { created: people || results > 0 || envelopes > 0 || scanned > 0 || combinations > 0 || figures > 0 };
 }
 
 async function seedDemoPeople(ctx: Ctx): Promise<boolean> {

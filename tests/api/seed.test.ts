@@ -2,8 +2,9 @@ import request from 'supertest';
 import { eq } from 'drizzle-orm';
 import { DEMO_ENVELOPES } from '@/server/seed/seed-envelopes';
 import { DEMO_RESULTS } from '@/server/seed/demo-results';
+import { DEMO_COMBINATIONS, DEMO_SCANS } from '@/server/seed/seed-scans';
 import { DEMO_GROUPS, DEMO_PASSWORD, DEMO_USERS, seedDemo } from '@/server/seed/seed';
-import { devMail, figures, groups, results, resultVersions, user } from '@/db/schema';
+import { devMail, figures, groups, results, resultVersions, scans, user } from '@/db/schema';
 import { startTestApp, TEST_ORIGIN, type TestApp } from '../helpers/app';
 import type { ResultPage, ResultVersion } from '@/shared/schemas/results';
 
@@ -11,6 +12,9 @@ import type { ResultPage, ResultVersion } from '@/shared/schemas/results';
  * The demo seed: invented results in every state for the demo groups, added once, also to a
  * database seeded before the registry existed (users and groups, no results).
  */
+
+/** Every result the seed adds: uploaded, envelopes, computed by scans, joint combinations. */
+const SEEDED_RESULTS = DEMO_RESULTS.length + DEMO_ENVELOPES.length + DEMO_SCANS.length + DEMO_COMBINATIONS.length;
 
 let t: TestApp;
 let firstRun: { created: boolean };
@@ -36,7 +40,7 @@ const counts = async () => ({
 test('the seed adds the demo world once; a second run changes nothing', async () => {
   expect(firstRun).toEqual({ created: true });
   const first = await counts();
-  expect(first).toMatchObject({ users: DEMO_USERS.length, groups: DEMO_GROUPS.length, results: DEMO_RESULTS.length + DEMO_ENVELOPES.length });
+  expect(first).toMatchObject({ users: DEMO_USERS.length, groups: DEMO_GROUPS.length, results: SEEDED_RESULTS });
   expect(await seedDemo(t.ctx)).toEqual({ created: false });
   expect(await counts()).toEqual(first);
 });
@@ -53,8 +57,9 @@ test('the demo people have verified addresses (they may accept invitations at on
 test('the demo results cover every state, with bands, theory and derived exclusions', async () => {
   const analyst = await signIn('anouk@lanternfish.example');
   const mine = (await analyst.get('/api/results?pageSize=50')).body as ResultPage;
-  // The envelope of the combination board is the second draft.
-  expect(mine.items.map((i) => i.state).sort()).toEqual(['draft', 'draft', 'published', 'published', 'published', 'published', 'retracted']);
+  // The envelope and the joint combination of the combination board are the second and third drafts;
+  // the two scan-computed channels are published.
+  expect(mine.items.map((i) => i.state).sort()).toEqual(['draft', 'draft', 'draft', 'published', 'published', 'published', 'published', 'published', 'published', 'retracted']);
 
   const vprime = mine.items.find((i) => i.title.startsWith('Search for a heavy vector boson'))!;
   const detail = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}`)).body;
@@ -81,6 +86,8 @@ test('the demo results cover every state, with bands, theory and derived exclusi
   const open = (await request(t.app).get('/api/public/results')).body as ResultPage;
   expect(open.items.map((i) => i.title).sort()).toEqual([
     'Combined limits on the V′ benchmark from dijet and dilepton searches',
+    'Search for a heavy axial boson A′ → bb̄, two b-tagged jets',
+    'Search for a heavy axial boson A′ → two light jets',
     'Search for a heavy charged boson W* → tb',
     'Search for a heavy vector boson V′ → two jets',
     'Summary of signal-strength limits on the Heron portal scalar',
@@ -99,7 +106,7 @@ test('a database seeded before the registry (users and groups, no results) gets 
   expect(before.results).toBe(0);
   expect(await seedDemo(t.ctx)).toEqual({ created: true });
   const after = await counts();
-  expect(after).toMatchObject({ users: before.users, groups: before.groups, results: DEMO_RESULTS.length + DEMO_ENVELOPES.length });
+  expect(after).toMatchObject({ users: before.users, groups: before.groups, results: SEEDED_RESULTS });
   expect(after.storage.some((b) => b > 0)).toBe(true);
   expect(await seedDemo(t.ctx)).toEqual({ created: false });
   expect((await t.ctx.db.select().from(results).where(eq(results.slug, DEMO_RESULTS[0]!.slug))).length).toBe(1);
@@ -114,4 +121,51 @@ test('the combination board holds a best-expected envelope of the dijet search (
   expect(v.body.state).toBe('draft');
   expect(v.body.inputs.map((i: { slug: string }) => i.slug)).toEqual([...DEMO_ENVELOPES[0].inputs]);
   expect(v.body.meta.notes).toMatch(/^Best expected of 2 inputs/);
+});
+
+test('the combination board holds a joint combination of the two scan-computed A′ channels: inputs and correlation choice recorded, stronger than either channel', async () => {
+  const demo = DEMO_COMBINATIONS[0];
+  const agent = await signIn(demo.author);
+  const [row] = await t.ctx.db.select({ id: results.id, groupId: results.groupId }).from(results).innerJoin(resultVersions, eq(resultVersions.resultId, results.id)).where(eq(resultVersions.title, demo.title));
+  expect(row).toBeDefined();
+  const v = (await agent.get(`/api/groups/${row!.groupId}/results/${row!.id}/versions/1`)).body as ResultVersion;
+  // Left a draft, as the board's envelope is.
+  expect(v.state).toBe('draft');
+  expect(v.meta).toMatchObject({ quantity: 'xsec', quantityUnit: 'fb', method: 'asymptotic', cl: 0.95 });
+  expect(v.meta.notes).toMatch(/^Joint combination of 2 inputs/);
+  expect(v.meta.notes).toMatch(/fully correlated\): luminosity, jet energy scale/);
+  expect(v.meta.notes).toMatch(/Unlinked \(one parameter per input\): multijet background/);
+
+  // Its inputs are the two demo scans' results (published, public, computed by their scans).
+  expect(v.inputs!.map((i) => i.title)).toEqual(DEMO_SCANS.map((s) => s.meta.title));
+  const inputs = await Promise.all(
+    v.inputs!.map(async (i) => {
+      const res = await request(t.app).get(`/api/public/results/${i.slug}/v${i.version}`);
+      expect(res.status).toBe(200);
+      return res.body as ResultVersion;
+    }),
+  );
+  const inputScans = await t.ctx.db.select({ resultId: scans.resultId, state: scans.state }).from(scans);
+  for (const [k, input] of v.inputs!.entries()) {
+    expect(inputs[k]!.state).toBe('published');
+    expect(inputScans).toContainEqual({ resultId: input.resultId, state: 'done' });
+  }
+  // The plan stored with its scan: inputs, the correlation choice, the common grid.
+  const plan = v.fromScan!.combination!;
+  expect(plan.inputs.map((i) => [i.resultId, i.version])).toEqual(v.inputs!.map((i) => [i.resultId, i.version]));
+  expect(plan.unlinked).toEqual([...demo.unlinked]);
+  expect(plan.shared).toEqual(expect.arrayContaining(['luminosity', 'jet energy scale']));
+  expect(plan.common).toEqual([2, 2.5, 3, 3.5, 4, 4.5]);
+  expect(v.curve.x).toEqual(plan.common);
+
+  // Finite everywhere, and at every common point below each channel's own expected limit (common
+  // practice: adding an independent channel strengthens the limit).
+  const median = (c: ResultVersion['curve'], x: number) => c.expected!['0']![c.x.indexOf(x)]!;
+  for (const x of plan.common) {
+    const combined = median(v.curve, x);
+    expect(Number.isFinite(combined)).toBe(true);
+    expect(combined).toBeGreaterThan(0);
+    for (const input of inputs) expect(combined).toBeLessThan(median(input.curve, x));
+  }
+  expect(v.curve.observed!.every(Number.isFinite)).toBe(true);
 });
