@@ -4,7 +4,7 @@ import type { Ctx } from '../context';
 import * as figuresService from '../services/figures';
 import { groupSlug } from '../services/groups';
 import { getRole } from '../../db/queries/groups';
-import { figures, groups, results, user } from '../../db/schema';
+import { figures, groups, results, resultVersions, user } from '../../db/schema';
 
 /**
  * Demo figures of the invented Lanternfish groups, made through the figure service (so versions,
@@ -17,8 +17,11 @@ type DemoFigure = {
   /** Who makes it (must hold a role that may write figures in the group). */
   author: string;
   isPublic: boolean;
-  /** The spec, with layers naming results by their link name. */
-  spec: Omit<FigureSpecInput, 'layers'> & { layers: Array<Omit<FigureSpecInput['layers'][number], 'resultId'> & { slug: string }> };
+  /**
+   * The spec, with layers naming results by their link name (`slug`), or by the title of the
+   * pinned version (`title`) for results whose link name is made when they are seeded (the scans').
+   */
+  spec: Omit<FigureSpecInput, 'layers'> & { layers: Array<Omit<FigureSpecInput['layers'][number], 'resultId'> & ({ slug: string } | { title: string })> };
 };
 
 const VPRIME = 'vprime-dijet-18tev-lf7q2';
@@ -96,11 +99,13 @@ export const DEMO_FIGURES: DemoFigure[] = [
       title: 'Excluded masses of the Lanternfish searches, 2031 data',
       kind: 'ranges',
       theme: 'publication',
-      size: { preset: 'two-column', heightCm: 6 },
+      size: { preset: 'two-column', heightCm: 8 },
       x: { scale: 'log', min: null, max: null, label: 'Mass [TeV]' },
       layers: [
         { slug: COMBINED, version: 1, label: 'Dijet + dilepton combination' },
         { slug: VPRIME, version: 2, label: 'Dijet search', note: '96.5 fb$^{-1}$, LFN 31.04' },
+        { title: 'Search for a heavy axial boson A′ → bb̄, two b-tagged jets', version: 1, label: 'A′ → bb̄ (scan)' },
+        { title: 'Search for a heavy axial boson A′ → two light jets', version: 1, label: 'A′ → two light jets (scan)' },
         { slug: PORTAL, version: 1, label: 'Portal scalar, best channel' },
       ],
       ranges: { sort: 'reach', groupByModel: true, expected: 'outline', notes: true },
@@ -135,8 +140,15 @@ export async function seedDemoFigures(ctx: Ctx): Promise<number> {
     if (!author || !(await getRole(ctx.db, group.id, author.id))) continue;
 
     const layers: FigureSpecInput['layers'] = [];
-    for (const { slug, ...layer } of demo.spec.layers) {
-      const [r] = await ctx.db.select({ id: results.id }).from(results).where(eq(results.slug, slug));
+    for (const entry of demo.spec.layers) {
+      const { slug, title, ...layer } = { slug: undefined, title: undefined, ...entry };
+      const [r] = slug
+        ? await ctx.db.select({ id: results.id }).from(results).where(eq(results.slug, slug))
+        : await ctx.db
+            .select({ id: results.id })
+            .from(results)
+            .innerJoin(resultVersions, eq(resultVersions.resultId, results.id))
+            .where(and(eq(resultVersions.title, title!), eq(resultVersions.version, layer.version)));
       if (!r) break;
       layers.push({ ...layer, resultId: r.id });
     }
