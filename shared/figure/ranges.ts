@@ -76,7 +76,7 @@ function barOf(l: DrawnLayer, spec: FigureSpec, theme: ResolvedTheme): RangeBar 
     observed,
     expected,
     status,
-    statusText: status === 'no-theory' ? w.rangesNoTheory : status === 'nothing' ? w.rangesNothing : '',
+    statusText: status === 'no-theory' ? (l.data.theory ? w.rangesIncomparable : w.rangesNoTheory) : status === 'nothing' ? w.rangesNothing : '',
     note,
     span,
   };

@@ -55,6 +55,7 @@ export const outreachTheme: FigureThemeTokens = {
     rangesOpen: 'May reach further',
     rangesNoTheory: 'no prediction to compare with',
     rangesNothing: 'nothing ruled out yet',
+    rangesIncomparable: 'cannot be compared with its prediction',
     rangesNote: '{lumi} fb⁻¹ of data',
     rangesNoModel: 'Other searches',
     rangesCrowded: 'Too many searches for this size: {n} rows are squeezed',

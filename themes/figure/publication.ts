@@ -37,6 +37,7 @@ export const TECHNICAL_WORDS: FigureWords = {
   rangesOpen: 'Beyond the computed range',
   rangesNoTheory: 'no theory curve, no range',
   rangesNothing: 'nothing excluded',
+  rangesIncomparable: 'theory curve not comparable, no range',
   rangesNote: '{lumi} fb$^{-1}$',
   rangesNoModel: 'No model given',
   rangesCrowded: '{n} bars are tighter than their labels at this size: choose a taller size',

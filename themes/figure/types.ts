@@ -66,6 +66,8 @@ export type FigureWords = {
   /** A bar with no theory curve to compare with, or with nothing excluded. */
   rangesNoTheory: string;
   rangesNothing: string;
+  /** A bar whose limit cannot be compared with its stored theory curve (grids that do not overlap, bad values). */
+  rangesIncomparable: string;
   /** A bar's automatic note (`{lumi}` in fb⁻¹, `{sqrtS}` in TeV). */
   rangesNote: string;
   /** The heading of bars whose results name no model. */

@@ -80,6 +80,18 @@ describe('summary of excluded ranges: the bars', () => {
     expect(paths(scene, 'bar-observed').filter((p) => p.layer === 1)).toHaveLength(0);
   });
 
+  test('a theory curve on a grid that does not overlap the limit\'s says it cannot be compared', () => {
+    const far = layer(0, 60, 0.55);
+    if (!far.available) throw new Error('fixture');
+    far.theory = { x: [10, 11, 12], central: [1, 0.5, 0.2] };
+    const scene = buildScene(spec([far]), [far], theme, stubMeasure);
+    expect(texts(scene, 'bar-status').map((t) => t.label)).toEqual(['nothing excluded']);
+    const bad = layer(0, 60, 0.55);
+    if (!bad.available) throw new Error('fixture');
+    bad.theory = { x: [1, 1, 2], central: [1, 0.5, 0.2] };
+    expect(texts(buildScene(spec([bad]), [bad], theme, stubMeasure), 'bar-status').map((t) => t.label)).toEqual(['theory curve not comparable, no range']);
+  });
+
   test('grouped by model in order of first appearance, results without a model last; sorted by reach or title within groups', () => {
     const data = [layer(0, 60, 0.55, { model: 'Vee-prime A', title: 'Beta' }), layer(1, 30, 0.5, { model: 'Scalar S', title: 'Gamma' }), layer(2, 5, 0.5, { model: 'Vee-prime A', title: 'Alpha' }), layer(3, 10, 0.5, { title: 'Delta' })];
     const rowsOf = (s: FigureSpec) => planRanges(s, data, theme).rows.map((r) => (r.kind === 'heading' ? `# ${r.label}` : r.bar.layer.name));
