@@ -143,11 +143,14 @@ const ROLE_KEYS: [ColumnRole, string][] = [
   ['theoryUpper', 'theory.upper'],
 ];
 
-/** "m_chi [GeV]" → name "m_chi", unit "GeV" (also with round brackets); else the header as name. */
+/**
+ * "m_chi [GeV]" → name "m_chi", unit "GeV" (also "m_chi (GeV)" with a space before the bracket);
+ * "m(χ)" stays a name. Else the header as name.
+ */
 export function nameAndUnit(header: string): { name: string; unit: string } {
-  const m = /^(.*?)\s*[[(]\s*([^\])]{1,20})\s*[\])]\s*$/.exec(header.trim());
+  const m = /^(.*?)(?:\s*\[\s*([^\]]{1,20}?)\s*\]|\s+\(\s*([^)]{1,20}?)\s*\))\s*$/.exec(header.trim());
   const name = (m ? m[1]! : header).trim().slice(0, 60);
-  return { name: name || 'y', unit: m ? m[2]!.trim() : '' };
+  return { name: name || 'y', unit: m ? (m[2] ?? m[3] ?? '').trim() : '' };
 }
 
 /**

@@ -1,5 +1,6 @@
 import request from 'supertest';
 import { startTestApp, type TestApp } from '../helpers/app';
+import { figureSpec } from '../helpers/figures';
 import { makeCrew, makeGroupWithRoles, makePlaneResult, makeResult, publishVersion, registryProbe, sampleMeta, samplePlane, samplePlaneCsv, type Crew, type Person } from '../helpers/factories';
 import type { Plane } from '@/shared/schemas/plane';
 import type { ResultVersion } from '@/shared/schemas/results';
@@ -127,7 +128,7 @@ describe('storing and reading a plane', () => {
 
     const lines = await anon().get(`/api/public/results/${v1.slug}/v2/contours.csv`);
     expect(lines.status).toBe(200);
-    expect(lines.headers['content-disposition']).toMatch(/attachment; filename=".*contours.*\.csv"/);
+    expect(lines.headers['content-disposition']).toMatch(/^attachment; filename="?[^"]*-contours-v2\.csv"?$/);
     const lineRows = lines.text.trim().split('\n');
     expect(lineRows[0]).toBe('line,which,closed,vertex,m_X [GeV],m_chi [GeV]');
     const contours = (link.body as ResultVersion).planeContours!;
@@ -178,6 +179,9 @@ describe('storing and reading a plane', () => {
     const env = await crew.analyst.agent.post(`/api/groups/${groupId}/envelopes`).send({ inputs: [{ resultId: c.resultId, version: 1 }, { resultId: p.resultId, version: 1 }] });
     expect(env.status).toBe(400);
     expect(details(env.body)).toEqual([expect.objectContaining({ field: 'inputs.1', message: expect.stringMatching(/two parameters/) })]);
+    const fig = await crew.editor.agent.post(`/api/groups/${groupId}/figures`).send({ spec: figureSpec([{ resultId: c.resultId, version: 1 }, { resultId: p.resultId, version: 1 }]) });
+    expect(fig.status).toBe(400);
+    expect(details(fig.body)).toEqual([expect.objectContaining({ field: 'spec.layers.1', message: expect.stringMatching(/two parameters/) })]);
   });
 });
 
