@@ -34,10 +34,16 @@ const LABELS: Record<string, string> = {
   'theory.upper': 'theory upper edge',
 };
 
-/** The point a `planeGrid` refusal names (its field holds the point's number), if any. */
-function pointOf(field: string): number | undefined {
-  const m = /(\d+)/.exec(field);
-  return m ? Number(m[1]) : undefined;
+/**
+ * A `planeGrid` refusal as a plane problem: its field (`x[17]`, `y`) gives the column and the point;
+ * its reason reads after the field ("x[17] and y[17] are off the grid…"), so the field leads it.
+ */
+function gridProblem(p: { field: string; reason: string }, n: number): PlaneProblem {
+  const m = /^([xy])(?:\[(\d+)\])?/.exec(p.field);
+  const key = m?.[1] ?? '';
+  const index = m?.[2] !== undefined ? Number(m[2]) : undefined;
+  const reason = `${p.field} ${p.reason}`;
+  return index !== undefined && index < n ? { key, index, reason } : { key, reason };
 }
 
 /**
@@ -119,11 +125,7 @@ export function checkPlane(plane: Plane, quantity: Quantity, into = new ProblemC
       planeGrid(plane.x, plane.y);
     } catch (e) {
       if (!(e instanceof StatsInputError)) throw e;
-      for (const p of e.problems) {
-        const index = pointOf(p.field);
-        const key = /^y\b|\.y\b|\by\[/.test(p.field) ? 'y' : 'x';
-        add(index !== undefined && index < n ? { key, index, reason: p.reason } : { key: '', reason: p.reason });
-      }
+      for (const p of e.problems) add(gridProblem(p, n));
     }
   }
   return into.list;
@@ -188,8 +190,14 @@ export function tableToPlane(table: CsvTable, mapping: ColumnMapping, quantity: 
   const found = new ProblemCollector<PlaneProblem>();
   const list = checkPlane(plane, quantity, found);
   if (list.length) {
+    const lineOf = (k: number) => table.lines[k] ?? k + 1;
+    // The grid's reasons speak of points (x[17], point 12); a file's reader knows lines and headers.
+    const inFileWords = (reason: string) =>
+      reason
+        .replace(/\b([xy])\[(\d+)\]/g, (_, axis: string, k: string) => `${headerOfKey.get(axis) ?? axis} (line ${lineOf(Number(k))})`)
+        .replace(/\bpoint (\d+)/g, (_, k: string) => `line ${lineOf(Number(k))}`);
     throw new CsvFileError(
-      list.map((p): CurveProblem => ({ ...(p.index !== undefined ? { row: table.lines[p.index] ?? p.index + 1 } : {}), column: headerOfKey.get(p.key) ?? (p.key ? LABELS[p.key] ?? p.key : 'file'), reason: p.reason })),
+      list.map((p): CurveProblem => ({ ...(p.index !== undefined ? { row: lineOf(p.index) } : {}), column: headerOfKey.get(p.key) ?? (p.key ? LABELS[p.key] ?? p.key : 'file'), reason: inFileWords(p.reason) })),
       found.total,
     );
   }

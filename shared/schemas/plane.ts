@@ -32,23 +32,9 @@ export const planeSchema = z.object({
 });
 export type Plane = z.infer<typeof planeSchema>;
 
-/** One contour line in the plane: its vertices (x, y) in order, closed when it returns to its start. */
-export type PlaneContourLine = { points: [number, number][]; closed: boolean };
-
-/** Which lines a two-parameter version has (the keys of `PlaneContours` that hold lines). */
-export const PLANE_CONTOUR_KINDS = ['observed', 'expected-1', 'expected0', 'expected1', 'observedTheoryLower', 'observedTheoryUpper'] as const;
-export type PlaneContourKind = (typeof PLANE_CONTOUR_KINDS)[number];
 
 /**
- * The excluded-region boundaries of a plane (shared/plane/contours.ts `planeContours`), stored
- * with the version when it is written: where the limit crosses 1 (μ) or the theory (σ×B), for
- * the observed limit, the expected median and its ±1σ edges, and the observed limit against the
- * theory's lower and upper edges. `problem` says why there are none (e.g. no theory for σ×B).
+ * The contour lines of a plane as stored with its version (`plane_contours`): the type of
+ * shared/plane/contours.ts `planeContours`, named here beside the plane it is derived from.
  */
-export type PlaneContours = {
-  observed?: PlaneContourLine[];
-  expected: { '-1'?: PlaneContourLine[]; '0'?: PlaneContourLine[]; '1'?: PlaneContourLine[] };
-  observedTheoryLower?: PlaneContourLine[];
-  observedTheoryUpper?: PlaneContourLine[];
-  problem: string | null;
-};
+export type { ContourLine as PlaneContourLine, PlaneContours } from '../plane/contours';

@@ -195,9 +195,10 @@ describe('bad planes are refused naming the field, storing nothing', () => {
     ['columns of different lengths', () => ({ ...base(), observed: base().observed!.slice(1) }), /^plane\.observed$/],
     ['theory with limits on μ', () => base(), /^plane\.theory$/],
     ['a duplicate point', () => ({ ...base(), x: base().x.map((v, i) => (i === 4 ? base().x[3]! : v)), y: base().y.map((v, i) => (i === 4 ? base().y[3]! : v)) }), /^plane\.[xy]\.4$/],
-    ['a point off the grid', () => ({ ...base(), y: base().y.map((v, i) => (i === 8 ? v + 17 : v)) }), /^plane(\.[xy]\.\d+)?$/],
-    ['a one-row grid (every y the same)', () => ({ ...base(), y: base().y.map(() => 100) }), /^plane(\.[xy](\.\d+)?)?$/],
-    ['an axis with one value', () => ({ ...base(), x: base().x.map(() => 1000), y: base().y.map((_, i) => 100 + i) }), /^plane(\.[xy](\.\d+)?)?$/],
+    ['a point off the grid (alone on its x and its y)', () => ({ ...base(), x: base().x.map((v, i) => (i === 8 ? v + 13 : v)), y: base().y.map((v, i) => (i === 8 ? v + 17 : v)) }), /^plane\.x\.8$/],
+    ['points that do not form a grid (under half its cells)', () => ({ ...base(), x: base().x.map((v, i) => (i >= 3 ? 1000 + 100 * i : v)) }), /^plane\.x$/],
+    ['a one-row grid (every y the same)', () => ({ ...base(), x: base().x.map((_, i) => 1000 + 10 * i), y: base().y.map(() => 100) }), /^plane\.y$/],
+    ['an axis with one value', () => ({ ...base(), x: base().x.map(() => 1000), y: base().y.map((_, i) => 100 + i) }), /^plane\.x$/],
   ];
   test.each(cases)('%s', async (what, make, field) => {
     const { groupId } = await makeGroupWithRoles(t, { crew });
@@ -277,9 +278,11 @@ describe('bad plane files are refused by line and column, storing nothing', () =
     const res = await uploadFile(crew.analyst, groupId, duplicate, 'dup.csv');
     expect(res.status).toBe(400);
     expect(details(res.body)[0]!.field).toMatch(/^line 6, m_(X|chi) \[GeV\]$/);
-    const off = await uploadFile(crew.analyst, groupId, edit(lines(), 10, 1, '333'), 'off.csv');
+    expect(details(res.body)[0]!.message).toMatch(/line 5/);
+    // Line 10 (point 8) moved off both its grid lines.
+    const off = await uploadFile(crew.analyst, groupId, edit(lines(), 10, 0, '2013', [[1, '517']]), 'off.csv');
     expect(off.status).toBe(400);
-    expect(details(off.body)[0]!.field).toMatch(/^line \d+, m_(X|chi) \[GeV\]$|^file$/);
+    expect(details(off.body)[0]).toEqual({ field: 'line 10, m_X [GeV]', message: expect.stringMatching(/^m_X \[GeV\] \(line 10\) and m_chi \[GeV\] \(line 10\) are off the grid/) });
     expect(await stateOf(groupId)).toEqual(before);
   });
 
