@@ -89,7 +89,9 @@ export function ratioContours(grid: PlaneGrid, ratio: ArrayLike<number>): Contou
       const kept: boolean[] = [];
       for (let s = 0; s < m; s++) kept.push(keep(ring[s]!, ring[s + 1]!));
       if (kept.every(Boolean)) {
-        out.push({ points: ring.slice(0, m).map(place), closed: true });
+        const pts = distinct(ring.slice(0, m).map(place));
+        if (pts.length > 1 && same(pts[0]!, pts[pts.length - 1]!)) pts.pop();
+        if (pts.length > 2) out.push({ points: pts, closed: true });
         continue;
       }
       // Open stretches: each starts after a dropped segment.
@@ -97,10 +99,23 @@ export function ratioContours(grid: PlaneGrid, ratio: ArrayLike<number>): Contou
         if (!kept[s] || kept[(s - 1 + m) % m]) continue;
         const pts: [number, number][] = [place(ring[s]!)];
         for (let t = s; kept[t % m]; t++) pts.push(place(ring[(t % m) + 1]!));
-        out.push({ points: pts, closed: false });
+        const line = distinct(pts);
+        if (line.length > 1) out.push({ points: line, closed: false });
       }
     }
   }
+  return out;
+}
+
+const same = (a: [number, number], b: [number, number]) => a[0] === b[0] && a[1] === b[1];
+
+/**
+ * Drops a vertex equal to the one before it: where the ratio is exactly 1 at a grid point, the
+ * vertices of the edges meeting there all land on that point.
+ */
+function distinct(points: [number, number][]): [number, number][] {
+  const out: [number, number][] = [];
+  for (const p of points) if (out.length === 0 || !same(out[out.length - 1]!, p)) out.push(p);
   return out;
 }
 
