@@ -66,8 +66,8 @@ test('the demo results cover every state, with bands, theory and derived exclusi
   expect(detail.versions.map((v: { state: string }) => v.state)).toEqual(['published', 'superseded']);
   expect(detail.versions[0].changeNote).toMatch(/96\.5 fb⁻¹/);
   const v2 = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}/versions/2`)).body as ResultVersion;
-  expect(v2.curve.x).toHaveLength(30);
-  expect(Object.keys(v2.curve.expected!).sort()).toEqual(['-1', '-2', '0', '1', '2']);
+  expect(v2.curve!.x).toHaveLength(30);
+  expect(Object.keys(v2.curve!.expected!).sort()).toEqual(['-1', '-2', '0', '1', '2']);
   expect(v2.theory?.lower).toHaveLength(30);
   // More data, stronger exclusion: the observed range of v2 ends beyond that of v1.
   const v1 = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}/versions/1`)).body as ResultVersion;
@@ -156,16 +156,16 @@ test('the combination board holds a joint combination of the two scan-computed A
   expect(plan.unlinked).toEqual([...demo.unlinked]);
   expect(plan.shared).toEqual(expect.arrayContaining(['luminosity', 'jet energy scale']));
   expect(plan.common).toEqual([2, 2.5, 3, 3.5, 4, 4.5]);
-  expect(v.curve.x).toEqual(plan.common);
+  expect(v.curve!.x).toEqual(plan.common);
 
   // Finite everywhere, and at every common point below each channel's own expected limit (common
   // practice: adding an independent channel strengthens the limit).
-  const median = (c: ResultVersion['curve'], x: number) => c.expected!['0']![c.x.indexOf(x)]!;
+  const median = (c: ResultVersion['curve'], x: number) => c!.expected!['0']![c!.x.indexOf(x)]!;
   for (const x of plan.common) {
     const combined = median(v.curve, x);
     expect(Number.isFinite(combined)).toBe(true);
     expect(combined).toBeGreaterThan(0);
     for (const input of inputs) expect(combined).toBeLessThan(median(input.curve, x));
   }
-  expect(v.curve.observed!.every(Number.isFinite)).toBe(true);
+  expect(v.curve!.observed!.every(Number.isFinite)).toBe(true);
 });
