@@ -7,6 +7,7 @@ import * as resultsService from '../services/results';
 import { DEMO_RESULTS } from './demo-results';
 import { seedDemoEnvelopes } from './seed-envelopes';
 import { seedDemoFigures } from './seed-figures';
+import { seedDemoPlanes } from './seed-planes';
 import { seedDemoCombinations, seedDemoScans } from './seed-scans';
 import { addMember, getRole, insertGroup, slugTaken } from '../../db/queries/groups';
 import { slugExists } from '../../db/queries/results';
@@ -56,8 +57,9 @@ export async function seedDemo(ctx: Ctx): Promise<{ created: boolean }> {
   const envelopes = await seedDemoEnvelopes(ctx);
   const scanned = await seedDemoScans(ctx);
   const combinations = await seedDemoCombinations(ctx);
+  const planes = await seedDemoPlanes(ctx);
   const figures = await seedDemoFigures(ctx);
-  return { created: people || results > 0 || envelopes > 0 || scanned > 0 || combinations > 0 || figures > 0 };
+  return { created: people || results > 0 || envelopes > 0 || scanned > 0 || combinations > 0 || planes > 0 || figures > 0 };
 }
 
 async function seedDemoPeople(ctx: Ctx): Promise<boolean> {

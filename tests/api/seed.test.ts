@@ -1,6 +1,7 @@
 import request from 'supertest';
 import { eq } from 'drizzle-orm';
 import { DEMO_ENVELOPES } from '@/server/seed/seed-envelopes';
+import { DEMO_PLANE } from '@/server/seed/seed-planes';
 import { DEMO_RESULTS } from '@/server/seed/demo-results';
 import { DEMO_COMBINATIONS, DEMO_SCANS } from '@/server/seed/seed-scans';
 import { DEMO_GROUPS, DEMO_PASSWORD, DEMO_USERS, seedDemo } from '@/server/seed/seed';
@@ -14,7 +15,8 @@ import type { ResultPage, ResultVersion } from '@/shared/schemas/results';
  */
 
 /** Every result the seed adds: uploaded, envelopes, computed by scans, joint combinations. */
-const SEEDED_RESULTS = DEMO_RESULTS.length + DEMO_ENVELOPES.length + DEMO_SCANS.length + DEMO_COMBINATIONS.length;
+// The demo results, the envelope, the scans, the combination and the two-parameter search.
+const SEEDED_RESULTS = DEMO_RESULTS.length + DEMO_ENVELOPES.length + DEMO_SCANS.length + DEMO_COMBINATIONS.length + 1;
 
 let t: TestApp;
 let firstRun: { created: boolean };
@@ -54,12 +56,25 @@ test('the demo people have verified addresses (they may accept invitations at on
   expect(me.body.user).toMatchObject({ email: DEMO_USERS[0].email, emailVerified: true });
 });
 
+test('the demo holds a public two-parameter search with its forbidden triangle left out and its contours derived', async () => {
+  const version = (await request(t.app).get(`/api/public/results/${DEMO_PLANE.slug}/v1`)).body as ResultVersion;
+  expect(version.plane).not.toBeNull();
+  const plane = version.plane!;
+  // No point in the triangle m(χ) > m(Z̃) − 0.1 TeV; a 21 × 21 grid with holes.
+  expect(plane.x.every((x, i) => plane.y[i]! <= x - 0.1 + 1e-9)).toBe(true);
+  expect(new Set(plane.x).size).toBe(21);
+  expect(new Set(plane.y).size).toBe(21);
+  // The observed and expected contours where the limit meets the theory exist.
+  expect(version.planeContours!.observed!.length).toBeGreaterThan(0);
+  expect(version.planeContours!.expected['0']!.length).toBeGreaterThan(0);
+});
+
 test('the demo results cover every state, with bands, theory and derived exclusions', async () => {
   const analyst = await signIn('anouk@lanternfish.example');
   const mine = (await analyst.get('/api/results?pageSize=50')).body as ResultPage;
   // The envelope and the joint combination of the combination board are the second and third drafts;
-  // the two scan-computed channels are published.
-  expect(mine.items.map((i) => i.state).sort()).toEqual(['draft', 'draft', 'draft', 'published', 'published', 'published', 'published', 'published', 'published', 'retracted']);
+  // the two scan-computed channels and the two-parameter search are published.
+  expect(mine.items.map((i) => i.state).sort()).toEqual(['draft', 'draft', 'draft', 'published', 'published', 'published', 'published', 'published', 'published', 'published', 'retracted']);
 
   const vprime = mine.items.find((i) => i.title.startsWith('Search for a heavy vector boson'))!;
   const detail = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}`)).body;
@@ -89,6 +104,7 @@ test('the demo results cover every state, with bands, theory and derived exclusi
     'Search for a heavy axial boson A′ → bb̄, two b-tagged jets',
     'Search for a heavy axial boson A′ → two light jets',
     'Search for a heavy charged boson W* → tb',
+    'Search for a heavy partner Z̃ → jets + invisible χ, over the two masses',
     'Search for a heavy vector boson V′ → two jets',
     'Summary of signal-strength limits on the Heron portal scalar',
   ]);
