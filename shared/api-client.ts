@@ -203,12 +203,16 @@ export function createApiClient(opts: ApiClientOptions = {}) {
       latestByLink: (slug: string) => call<ResultVersion>('GET', `/api/results/${enc(slug)}/latest`),
       exportUrl: (groupId: string, resultId: string, version: number, format: 'csv' | 'json') =>
         `${base}/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/export.${format}`,
+      /** The contour lines of a two-parameter version (404 for one parameter). */
+      contoursUrl: (groupId: string, resultId: string, version: number, format: 'csv' | 'json') =>
+        `${base}/api/groups/${enc(groupId)}/results/${enc(resultId)}/versions/${version}/contours.${format}`,
     },
     publicResults: {
       list: (query: PublicResultListQuery = {}) => call<ResultPage>('GET', `/api/public/results${qs(query)}`),
       get: (slug: string, version: number) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/v${version}`),
       latest: (slug: string) => call<ResultVersion>('GET', `/api/public/results/${enc(slug)}/latest`),
       exportUrl: (slug: string, version: number, format: 'csv' | 'json') => `${base}/api/public/results/${enc(slug)}/v${version}/export.${format}`,
+      contoursUrl: (slug: string, version: number, format: 'csv' | 'json') => `${base}/api/public/results/${enc(slug)}/v${version}/contours.${format}`,
     },
     scans: {
       list: (groupId: string) => call<{ scans: ScanSummary[] }>('GET', `/api/groups/${enc(groupId)}/scans`),

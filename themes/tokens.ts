@@ -74,3 +74,9 @@ export const plotColors = {
   axis: '#5a6270',
   background: '#ffffff',
 } as const;
+
+/**
+ * The quick plane preview's colours for a point's limit, lowest (strongest) to highest, on a log
+ * scale: light to dark in one hue, so it reads in greyscale too.
+ */
+export const planeRamp = ['#f3e7c9', '#e3b877', '#c2571a', '#7d2f12', '#3b1606'] as const;

@@ -12,6 +12,7 @@ import { Text } from '../ui/text';
 import { axisLabels, parameterLabel, permalinkPath } from './format';
 import { ExclusionSummary } from './exclusion-summary';
 import { NewerVersionNotice } from './newer-version-notice';
+import { PlaneContoursList, PlanePointsTable, PlanePreview } from './plane-view';
 import { PointsTable } from './points-table';
 import { Provenance } from './provenance';
 import { PublicBadge, StateBadge } from './state-badge';
@@ -51,20 +52,35 @@ export function Downloads({ csv, json, version }: { csv: string; json: string; v
   );
 }
 
+/** Links of a version's downloads: its points, and a two-parameter version's contour lines. */
+export type VersionDownloads = { csv: string; json: string; contours?: { csv: string; json: string } };
+
 /**
  * One version, read-only: state, retraction notice, quick plot, derived numbers, provenance, the
- * points and the downloads. The result page adds its versions and actions through `side`.
+ * points and the downloads. The result page adds its versions and actions through `side`. A
+ * version over two parameters shows a plane preview, its contour lines and its points by page.
  */
-export function ResultView({ version, downloads, side, top }: { version: ResultVersion; downloads: { csv: string; json: string }; side?: ReactNode; top?: ReactNode }) {
+export function ResultView({ version, downloads, side, top }: { version: ResultVersion; downloads: VersionDownloads; side?: ReactNode; top?: ReactNode }) {
   const wide = useIsWide();
   const labels = axisLabels(version.meta);
-  const plot = (
+  const plane = version.plane;
+  const plot = plane ? (
+    <Card>
+      <Text variant="title">Plane</Text>
+      <PlanePreview plane={plane} contours={version.planeContours} xLabel={parameterLabel(version.meta)} height={wide ? 380 : 300} />
+    </Card>
+  ) : version.curve ? (
     <Card>
       <Text variant="title">Limit curve</Text>
       <QuickPlot curve={version.curve} theory={version.theory} xLabel={labels.x} yLabel={labels.y} height={wide ? 340 : 280} />
     </Card>
-  );
-  const derived = (
+  ) : null;
+  const derived = plane ? (
+    <Card>
+      <Text variant="title">Contour lines</Text>
+      <PlaneContoursList contours={version.planeContours} downloads={downloads.contours} />
+    </Card>
+  ) : (
     <Card>
       <Text variant="title">Excluded ranges</Text>
       <ExclusionSummary version={version} />
@@ -79,7 +95,11 @@ export function ResultView({ version, downloads, side, top }: { version: ResultV
   const points = (
     <Card>
       <Text variant="title">Points</Text>
-      <PointsTable curve={version.curve} theory={version.theory} xTitle={parameterLabel(version.meta)} />
+      {plane ? (
+        <PlanePointsTable plane={plane} xTitle={parameterLabel(version.meta)} />
+      ) : version.curve ? (
+        <PointsTable curve={version.curve} theory={version.theory} xTitle={parameterLabel(version.meta)} />
+      ) : null}
     </Card>
   );
   const files = (

@@ -87,8 +87,16 @@ function PermalinkPage({ path, query, invalid = false, current = false }: { path
   } else {
     // Public versions download through the public routes, so the links work for anyone they are shared with.
     const downloads = v.isPublic
-      ? { csv: api.publicResults.exportUrl(v.slug, v.version, 'csv'), json: api.publicResults.exportUrl(v.slug, v.version, 'json') }
-      : { csv: api.results.exportUrl(v.groupId, v.resultId, v.version, 'csv'), json: api.results.exportUrl(v.groupId, v.resultId, v.version, 'json') };
+      ? {
+          csv: api.publicResults.exportUrl(v.slug, v.version, 'csv'),
+          json: api.publicResults.exportUrl(v.slug, v.version, 'json'),
+          ...(v.plane ? { contours: { csv: api.publicResults.contoursUrl(v.slug, v.version, 'csv'), json: api.publicResults.contoursUrl(v.slug, v.version, 'json') } } : {}),
+        }
+      : {
+          csv: api.results.exportUrl(v.groupId, v.resultId, v.version, 'csv'),
+          json: api.results.exportUrl(v.groupId, v.resultId, v.version, 'json'),
+          ...(v.plane ? { contours: { csv: api.results.contoursUrl(v.groupId, v.resultId, v.version, 'csv'), json: api.results.contoursUrl(v.groupId, v.resultId, v.version, 'json') } } : {}),
+        };
     const versionPath = permalinkPath(v.slug, v.version);
     body = (
       <Screen title={v.meta.title} subtitle={v.meta.model || undefined}>

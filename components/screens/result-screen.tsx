@@ -257,7 +257,11 @@ export function ResultScreen() {
       {detail.data && v ? (
         <ResultView
           version={v}
-          downloads={{ csv: api.results.exportUrl(groupId, resultId, v.version, 'csv'), json: api.results.exportUrl(groupId, resultId, v.version, 'json') }}
+          downloads={{
+            csv: api.results.exportUrl(groupId, resultId, v.version, 'csv'),
+            json: api.results.exportUrl(groupId, resultId, v.version, 'json'),
+            ...(v.plane ? { contours: { csv: api.results.contoursUrl(groupId, resultId, v.version, 'csv'), json: api.results.contoursUrl(groupId, resultId, v.version, 'json') } } : {}),
+          }}
           side={
             <>
               <ResultActions detail={detail.data} version={v} role={role} />

@@ -4,6 +4,7 @@ import { useEffect, useMemo, useState, type ReactNode } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { can } from '@/shared/access';
 import { unusedNumericColumns, type ColumnMapping } from '@/shared/curves/csv';
+import type { Plane } from '@/shared/schemas/plane';
 import { createVersionSchema, versionMetaSchema, type Curve, type Theory } from '@/shared/schemas/results';
 import { useCurrentGroup } from '@/hooks/use-current-group';
 import { useIsWide } from '@/hooks/use-layout';
@@ -14,6 +15,7 @@ import { colors, fonts, space } from '@/themes/tokens';
 import { QuickPlot } from '../plot/quick-plot';
 import { formatBytes } from '@/shared/bytes';
 import { axisLabels, parameterLabel } from '../results/format';
+import { PlanePointsTable, PlanePreview } from '../results/plane-view';
 import { PointsTable } from '../results/points-table';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
@@ -33,6 +35,7 @@ import {
   analyseFile,
   curveFromTable,
   draftFromMeta,
+  planeFromTable,
   EMPTY_META,
   guessMeta,
   isMappingProblem,
@@ -139,16 +142,18 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   };
 
   const analysed = picked?.analysed;
-  const converted = useMemo((): { curve?: Curve; theory?: Theory | null; problems: Problem[]; total?: number } => {
+  // A second parameter column (detected or mapped) makes the table a plane (two parameters).
+  const converted = useMemo((): { curve?: Curve; theory?: Theory | null; plane?: Plane; problems: Problem[]; total?: number } => {
     if (!analysed || analysed.kind === 'invalid') return { problems: analysed?.problems ?? [], total: analysed?.total };
-    if (analysed.kind === 'json') return { curve: analysed.curve, theory: analysed.theory, problems: analysed.problems, total: analysed.total };
+    if (analysed.kind === 'json') return { curve: analysed.curve, theory: analysed.theory, plane: analysed.plane, problems: analysed.problems, total: analysed.total };
+    if (mapping.y !== undefined) return planeFromTable(analysed.table, mapping, meta.quantity);
     return curveFromTable(analysed.table, mapping);
-  }, [analysed, mapping]);
-  const preview = useMemo(() => {
-    if (analysed?.kind === 'csv') return previewCurve(analysed.table, mapping);
-    if (analysed?.kind === 'json') return { curve: analysed.curve, theory: analysed.theory };
+  }, [analysed, mapping, meta.quantity]);
+  const preview = useMemo((): { curve: Curve; theory: Theory | null } | { plane: Plane | null; theory?: undefined } | null => {
+    if (analysed?.kind === 'csv') return mapping.y !== undefined ? { plane: converted.plane ?? null } : previewCurve(analysed.table, mapping);
+    if (analysed?.kind === 'json') return analysed.plane ? { plane: analysed.plane } : { curve: analysed.curve!, theory: analysed.theory };
     return null;
-  }, [analysed, mapping]);
+  }, [analysed, mapping, converted.plane]);
 
   // Numeric columns without a role: named in the preview (they would not be stored).
   const notUsed = useMemo(() => (analysed?.kind === 'csv' ? unusedNumericColumns(analysed.table, mapping) : []), [analysed, mapping]);
@@ -158,7 +163,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
   const allErrors: FieldErrors = { ...metaCheck.errors, ...noteCheck.errors };
   const shownErrors: FieldErrors = { ...serverFields, ...Object.fromEntries(Object.entries(allErrors).filter(([k]) => touched.has(k))) };
   const problems = converted.problems;
-  const fileOk = !!picked?.file && analysed?.kind !== 'invalid' && problems.length === 0 && !!converted.curve;
+  const fileOk = !!picked?.file && analysed?.kind !== 'invalid' && problems.length === 0 && (!!converted.curve || !!converted.plane);
   const ready = fileOk && !!metaCheck.data && Object.keys(noteCheck.errors).length === 0;
 
   const missing: string[] = [];
@@ -180,7 +185,7 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
       meta: metaCheck.data,
       mapping: analysed?.kind === 'csv' ? mapping : undefined,
       changeNote: isVersion ? changeNote.trim() : undefined,
-      theoryLabel: preview?.theory ? theoryLabel : undefined,
+      theoryLabel: preview && 'theory' in preview && preview.theory ? theoryLabel : undefined,
     });
     save.mutate(body, {
       onSuccess: (v) => router.replace(`/groups/${target.groupId}/results/${v.resultId}?v=${v.version}` as Href),
@@ -232,14 +237,22 @@ function UploadForm({ target, initialMeta }: { target: Target; initialMeta?: Met
           problems={problems}
           total={converted.total}
           rowWord={rowWord}
-          points={converted.curve?.x.length}
+          points={converted.curve?.x.length ?? converted.plane?.x.length}
           headers={analysed.kind === 'csv' ? analysed.table.headers : []}
           notUsed={notUsed}
         />
       ) : null}
-      <QuickPlot curve={preview.curve} theory={preview.theory} xLabel={labels.x} yLabel={labels.y} height={wide ? 300 : 240} />
+      {'curve' in preview ? <QuickPlot curve={preview.curve} theory={preview.theory} xLabel={labels.x} yLabel={labels.y} height={wide ? 300 : 240} /> : null}
+      {'plane' in preview ? (
+        preview.plane ? (
+          <PlanePreview plane={preview.plane} contours={null} xLabel={labels.x} height={wide ? 320 : 260} />
+        ) : (
+          <Text variant="muted">A result over two parameters: the plane is drawn once its points are readable.</Text>
+        )
+      ) : null}
       {analysed?.kind === 'csv' ? <PreviewTable table={analysed.table} mapping={mapping} problems={problems} /> : null}
-      {analysed?.kind === 'json' ? <PointsTable curve={analysed.curve} theory={analysed.theory} xTitle={parameterLabel({ parameterName: meta.parameterName || 'x', parameterUnit: meta.parameterUnit })} /> : null}
+      {analysed?.kind === 'json' && analysed.plane ? <PlanePointsTable plane={analysed.plane} xTitle={parameterLabel({ parameterName: meta.parameterName || 'x', parameterUnit: meta.parameterUnit })} /> : null}
+      {analysed?.kind === 'json' && analysed.curve ? <PointsTable curve={analysed.curve} theory={analysed.theory} xTitle={parameterLabel({ parameterName: meta.parameterName || 'x', parameterUnit: meta.parameterUnit })} /> : null}
     </Card>
   ) : null;
 

@@ -20,9 +20,12 @@ import {
   type ColumnRole,
   type CsvTable,
 } from '@/shared/curves/csv';
+import { checkPlane, tableToPlane, type PlaneProblem } from '@/shared/curves/plane';
+import type { Plane } from '@/shared/schemas/plane';
 import {
   LIMIT_FILE_FORMAT,
   limitFileSchema,
+  planeFileSchema,
   type Curve,
   type Quantity,
   type ResultMethod,
@@ -57,7 +60,8 @@ const problemsOf = (e: unknown): { problems: Problem[]; total: number } => {
  */
 export type Analysed =
   | { kind: 'csv'; table: CsvTable; mapping: ColumnMapping }
-  | { kind: 'json'; meta: VersionMeta; curve: Curve; theory: Theory | null; problems: Problem[]; total?: number }
+  | { kind: 'json'; meta: VersionMeta; curve: Curve; theory: Theory | null; plane?: undefined; problems: Problem[]; total?: number }
+  | { kind: 'json'; meta: VersionMeta; curve?: undefined; theory: null; plane: Plane; problems: Problem[]; total?: number }
   | { kind: 'invalid'; problems: Problem[]; total?: number };
 
 function looksLikeJson(name: string, text: string): boolean {
@@ -95,7 +99,8 @@ export function analyseJson(text: string): Analysed {
   if (format !== LIMIT_FILE_FORMAT) {
     return { kind: 'invalid', problems: [{ column: 'format', reason: `must be "${LIMIT_FILE_FORMAT}"; other JSON files are not limit results (use CSV for tables)` }] };
   }
-  const parsed = limitFileSchema.safeParse(data);
+  const isPlane = typeof data === 'object' && data !== null && 'plane' in data;
+  const parsed = isPlane ? planeFileSchema.safeParse(data) : limitFileSchema.safeParse(data);
   if (!parsed.success) {
     return {
       kind: 'invalid',
@@ -106,6 +111,12 @@ export function analyseJson(text: string): Analysed {
         return at !== undefined ? { row: at + 1, column, reason: i.message } : { column, reason: i.message };
       }),
     };
+  }
+  if ('plane' in parsed.data) {
+    const { meta, plane } = parsed.data;
+    const found = new ProblemCollector<PlaneProblem>();
+    const problems = checkPlane(plane, meta.quantity, found).map(planeProblem);
+    return { kind: 'json', meta, plane, theory: null, problems, total: found.total };
   }
   const { meta, curve, theory = null } = parsed.data;
   const found = new ProblemCollector();
@@ -121,6 +132,18 @@ export function curveFromTable(
   try {
     const { curve, theory } = tableToCurve(table, mapping);
     return { curve, theory, problems: [], total: 0 };
+  } catch (e) {
+    return problemsOf(e);
+  }
+}
+
+/** A plane problem as the preview lists it: the point (from 1) and the plane's column. */
+const planeProblem = (p: PlaneProblem): Problem => ({ ...(p.index !== undefined ? { row: p.index + 1 } : {}), column: p.key ? `plane.${p.key}` : 'plane', reason: p.reason });
+
+/** The plane of a table mapped with a second parameter (y), or every problem found (lines and columns as in the file). */
+export function planeFromTable(table: CsvTable, mapping: ColumnMapping, quantity: Quantity): { plane: Plane; problems: []; total: 0 } | { plane?: undefined; problems: Problem[]; total: number } {
+  try {
+    return { plane: tableToPlane(table, mapping, quantity), problems: [], total: 0 };
   } catch (e) {
     return problemsOf(e);
   }

@@ -207,7 +207,7 @@ export async function updateVersion(
   groupId: string,
   resultId: string,
   version: number,
-  patch: Partial<Pick<typeof resultVersions.$inferInsert, 'state' | 'publishedAt' | 'retractedAt' | 'retractionReason' | 'storedBytes' | 'curve' | 'theory' | 'changeNote' | 'title' | 'model' | 'parameterName' | 'parameterUnit' | 'quantity' | 'quantityUnit' | 'sqrtS' | 'luminosity' | 'cl' | 'method' | 'reference' | 'notes' | 'searchText'>>,
+  patch: Partial<Pick<typeof resultVersions.$inferInsert, 'state' | 'publishedAt' | 'retractedAt' | 'retractionReason' | 'storedBytes' | 'curve' | 'theory' | 'plane' | 'planeContours' | 'changeNote' | 'title' | 'model' | 'parameterName' | 'parameterUnit' | 'quantity' | 'quantityUnit' | 'sqrtS' | 'luminosity' | 'cl' | 'method' | 'reference' | 'notes' | 'searchText'>>,
 ) {
   await db
     .update(resultVersions)

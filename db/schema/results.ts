@@ -1,7 +1,8 @@
 import { sql } from 'drizzle-orm';
-import { bigint, boolean, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { bigint, boolean, check, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import { QUANTITIES, RESULT_METHODS, RESULT_STATES, type Curve, type Theory } from '../../shared/schemas/results';
 import type { EnvelopeSources } from '../../shared/schemas/combine';
+import type { Plane, PlaneContours } from '../../shared/schemas/plane';
 import { user } from './auth';
 import { groups } from './groups';
 
@@ -65,8 +66,16 @@ export const resultVersions = pgTable(
      * null until then (rows older than the column are filled at server start).
      */
     searchText: text(),
-    curve: jsonb().$type<Curve>().notNull(),
+    /** A one-parameter version's limit curve (null for a version over two parameters, which has `plane`). */
+    curve: jsonb().$type<Curve>(),
     theory: jsonb().$type<Theory>(),
+    /**
+     * A two-parameter version's points (shared/schemas/plane.ts; null for one-parameter versions) and
+     * the contour lines derived from them when it was written (shared/plane/contours.ts), kept so
+     * that reads and downloads never recompute them.
+     */
+    plane: jsonb().$type<Plane>(),
+    planeContours: jsonb().$type<PlaneContours>(),
     /** For a best-expected envelope: the inputs' titles and which input it takes where (null for other versions). */
     envelope: jsonb().$type<EnvelopeSources>(),
     changeNote: text().notNull().default(''),
@@ -88,6 +97,8 @@ export const resultVersions = pgTable(
     index().on(t.parameterName),
     index().on(t.sqrtS),
     index().on(t.method),
+    // A version holds exactly one of a curve (one parameter) and a plane (two).
+    check('result_versions_curve_or_plane', sql`(${t.curve} is null) <> (${t.plane} is null)`),
   ],
 );
 

@@ -140,10 +140,12 @@ export type ApiOperation = {
 const fileField = (description: string) => z.string().meta({ format: 'binary', description });
 
 const resultUploadForm = z.object({
-  file: fileField('The CSV file (comma, semicolon or tab; UTF-8; columns recognised by their names) or the project\'s JSON file ("format": "bandwright-limit-result/1").'),
+  file: fileField('The CSV file (comma, semicolon or tab; UTF-8; columns recognised by their names; a second parameter column makes it a result over two parameters) or the project\'s JSON file ("format": "bandwright-limit-result/1", with `curve` or `plane`).'),
   meta: versionMetaSchema.optional().meta({ description: 'The provenance, as JSON text. Required with a CSV file; with the project\'s JSON file it replaces the file\'s own.' }),
   mapping: mappingSchema.optional().meta({ description: 'JSON text: role → column number from 0 (e.g. {"x":0,"observed":2}), when the headers do not say.' }),
   theoryLabel: z.string().max(120).optional().meta({ description: 'The name of the file\'s theory curve (e.g. "V′ benchmark (NLO)"), shown in figure legends; replaces a name the file gives.' }),
+  yName: z.string().max(60).optional().meta({ description: 'For a CSV with two parameter columns: the second parameter\'s name (else read from its header, e.g. "m_chi" of "m_chi [GeV]").' }),
+  yUnit: z.string().max(20).optional().meta({ description: 'For a CSV with two parameter columns: the second parameter\'s unit (else read from its header\'s brackets).' }),
 });
 const versionUploadForm = resultUploadForm.extend({ changeNote: createVersionSchema.shape.changeNote });
 const uploadFormNote = 'Parts `meta` and `mapping` are JSON text. One file, at most 20 fields of up to 256 KB each.';
@@ -234,7 +236,7 @@ export const OPERATIONS: ApiOperation[] = [
     path: '/groups/{groupId}/results',
     tag: 'Results',
     summary: 'Upload a new result: version 1, a draft.',
-    description: 'A file with its provenance (multipart) or the curve as JSON. Nothing is stored unless all of it is valid. With `Idempotency-Key`, a retry of the same request gets the first answer (`Idempotent-Replayed: true`) and stores nothing new.',
+    description: 'A file with its provenance (multipart) or the numbers as JSON: `curve` (and `theory`) for one parameter, or, in place of them, `plane` for two (`createPlaneResultSchema` / `createPlaneVersionSchema` of shared/schemas/results.ts: `{ meta, plane: { yName, yUnit, x, y, observed, expected, theory } }`, points x[k], y[k] on a rectangular grid of at most 200 × 200, holes allowed; its contour lines are computed and stored with it; the schema below is the one-parameter body). Nothing is stored unless all of it is valid; problems name the field (`plane.x.17`) or the file\'s line and column. With `Idempotency-Key`, a retry of the same request gets the first answer (`Idempotent-Replayed: true`) and stores nothing new.',
     access: { kind: 'group', action: 'result.write' },
     params: groupParams,
     headers: uploadHeadersSchema,
@@ -250,7 +252,7 @@ export const OPERATIONS: ApiOperation[] = [
     path: '/groups/{groupId}/results/{resultId}/versions',
     tag: 'Results',
     summary: 'Upload a new version (a draft) of a result, saying what changed.',
-    description: 'As the first upload, plus `changeNote`.',
+    description: 'As the first upload (a curve or a plane), plus `changeNote`.',
     access: { kind: 'group', action: 'result.write' },
     params: resultParams,
     headers: uploadHeadersSchema,
@@ -258,13 +260,15 @@ export const OPERATIONS: ApiOperation[] = [
     ok: { ...json(201, 'The stored version with `warnings`.'), headers: { 'Idempotent-Replayed': '`true` on a replayed answer' } },
     errors: { 400: UPLOAD_400, ...UPLOAD_ERRORS },
   },
-  { method: 'get', path: '/groups/{groupId}/results/{resultId}/versions/{version}', tag: 'Results', summary: 'One version: provenance, curve, theory, excluded ranges.', access: { kind: 'group', action: 'group.read' }, params: versionParams, ok: json(200, 'The version.') },
+  { method: 'get', path: '/groups/{groupId}/results/{resultId}/versions/{version}', tag: 'Results', summary: 'One version: provenance, curve and theory with excluded ranges, or plane with its contour lines.', access: { kind: 'group', action: 'group.read' }, params: versionParams, ok: json(200, 'The version.') },
   { method: 'patch', path: '/groups/{groupId}/results/{resultId}/versions/{version}', tag: 'Results', summary: 'Edit a draft (published versions never change).', access: { kind: 'group', action: 'result.write' }, params: versionParams, body: { json: updateDraftSchema }, ok: json(200, 'The draft as changed.'), errors: { 409: '`immutable`: not a draft.', 413: '`quota_exceeded`.' } },
   { method: 'delete', path: '/groups/{groupId}/results/{resultId}/versions/{version}', tag: 'Results', summary: 'Delete a draft.', access: { kind: 'group', action: 'result.write' }, params: versionParams, ok: noContent('Deleted.'), errors: { 409: '`immutable` (not a draft) or `in_use` (pinned by a figure).' } },
   { method: 'post', path: '/groups/{groupId}/results/{resultId}/versions/{version}/publish', tag: 'Results', summary: 'Publish a draft; the previously published version is superseded.', access: { kind: 'group', action: 'result.publish' }, params: versionParams, body: { json: publishSchema }, ok: json(200, 'The published version.'), errors: { 409: '`conflict`: not a draft, or a newer version is already published.' } },
   { method: 'post', path: '/groups/{groupId}/results/{resultId}/versions/{version}/retract', tag: 'Results', summary: 'Retract a published version with a reason shown to every reader.', access: { kind: 'group', action: 'result.publish' }, params: versionParams, body: { json: retractSchema }, ok: json(200, 'The retracted version.'), errors: { 409: '`conflict`: a draft, or already retracted.' } },
   { method: 'get', path: '/groups/{groupId}/results/{resultId}/versions/{version}/export.csv', tag: 'Results', summary: 'Download a version as CSV.', access: { kind: 'group', action: 'group.read' }, params: versionParams, ok: file('text/csv', 'The curve as CSV with its provenance in `#` lines.') },
-  { method: 'get', path: '/groups/{groupId}/results/{resultId}/versions/{version}/export.json', tag: 'Results', summary: 'Download a version as the project\'s JSON file.', access: { kind: 'group', action: 'group.read' }, params: versionParams, ok: file('application/json', 'A `bandwright-limit-result/1` file.') },
+  { method: 'get', path: '/groups/{groupId}/results/{resultId}/versions/{version}/export.json', tag: 'Results', summary: 'Download a version as the project\'s JSON file.', access: { kind: 'group', action: 'group.read' }, params: versionParams, ok: file('application/json', 'A `bandwright-limit-result/1` file (with `plane` for two parameters).') },
+  { method: 'get', path: '/groups/{groupId}/results/{resultId}/versions/{version}/contours.csv', tag: 'Results', summary: 'Download the contour lines of a two-parameter version as CSV.', access: { kind: 'group', action: 'group.read' }, params: versionParams, ok: file('text/csv', 'One row per vertex: line, which (observed, expected, expected_minus_1sigma, …), closed, vertex, x, y.'), errors: { 404: 'Also for a version over one parameter (it has no contour lines).' } },
+  { method: 'get', path: '/groups/{groupId}/results/{resultId}/versions/{version}/contours.json', tag: 'Results', summary: 'Download the contour lines of a two-parameter version as JSON.', access: { kind: 'group', action: 'group.read' }, params: versionParams, ok: file('application/json', 'A `bandwright-plane-contours/1` file: both parameters, the quantity and the lines.'), errors: { 404: 'Also for a version over one parameter (it has no contour lines).' } },
 
   // --- Results: what the caller may see, and public ---
   { method: 'get', path: '/results', tag: 'Results', summary: 'Results you may see: your groups\' in any state and every public one.', access: { kind: 'optional', note: 'Signed out: public results only.' }, query: resultListQuery, ok: json(200, '`{ items, total, page, pageSize }`') },
@@ -274,7 +278,9 @@ export const OPERATIONS: ApiOperation[] = [
   { method: 'get', path: '/public/results/{slug}/latest', tag: 'Results', summary: 'The current version of a public result (its newest published version).', access: { kind: 'anyone' }, params: latestLinkParams, ok: json(200, 'The version.'), errors: { 404: '`not_found`, or `not_published`: the result is public but none of its versions is published.' } },
   { method: 'get', path: '/public/results/{slug}/v{version}', tag: 'Results', summary: 'A public version by its permanent link.', access: { kind: 'anyone' }, params: permalinkParams, ok: json(200, 'The version.') },
   { method: 'get', path: '/public/results/{slug}/v{version}/export.csv', tag: 'Results', summary: 'Download a public version as CSV.', access: { kind: 'anyone' }, params: permalinkParams, ok: file('text/csv', 'The curve as CSV.') },
-  { method: 'get', path: '/public/results/{slug}/v{version}/export.json', tag: 'Results', summary: 'Download a public version as the project\'s JSON file.', access: { kind: 'anyone' }, params: permalinkParams, ok: file('application/json', 'A `bandwright-limit-result/1` file.') },
+  { method: 'get', path: '/public/results/{slug}/v{version}/export.json', tag: 'Results', summary: 'Download a public version as the project\'s JSON file.', access: { kind: 'anyone' }, params: permalinkParams, ok: file('application/json', 'A `bandwright-limit-result/1` file (with `plane` for two parameters).') },
+  { method: 'get', path: '/public/results/{slug}/v{version}/contours.csv', tag: 'Results', summary: 'Download the contour lines of a public two-parameter version as CSV.', access: { kind: 'anyone' }, params: permalinkParams, ok: file('text/csv', 'One row per vertex, as the group route.'), errors: { 404: 'Also for a version over one parameter.' } },
+  { method: 'get', path: '/public/results/{slug}/v{version}/contours.json', tag: 'Results', summary: 'Download the contour lines of a public two-parameter version as JSON.', access: { kind: 'anyone' }, params: permalinkParams, ok: file('application/json', 'A `bandwright-plane-contours/1` file.'), errors: { 404: 'Also for a version over one parameter.' } },
 
   // --- Scans ---
   { method: 'get', path: '/groups/{groupId}/scans', tag: 'Scans', summary: 'The group\'s scans with their progress.', access: { kind: 'group', action: 'group.read' }, params: groupParams, ok: json(200, '`{ scans }`') },

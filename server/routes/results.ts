@@ -1,8 +1,6 @@
 import { Router, type Request, type Response } from 'express';
 import { groupParams } from '../../shared/schemas/groups';
 import {
-  createResultSchema,
-  createVersionSchema,
   latestLinkParams,
   permalinkParams,
   publicResultListQuery,
@@ -22,7 +20,7 @@ import type { Ctx } from '../context';
 import { AppError } from '../lib/errors';
 import { handle } from '../lib/validate';
 import { multipartUpload, rawJsonBody } from '../lib/upload';
-import { fromFileUpload, fromJsonBody, parseJsonUpload, type FileUpload } from '../services/result-upload';
+import { fromFileUpload, fromJsonUpload, type FileUpload } from '../services/result-upload';
 import { requestFingerprint, uploadOnce, type RequestContents, type UploadAnswer } from '../services/upload-idempotency';
 import * as results from '../services/results';
 import * as combine from '../services/combine';
@@ -109,7 +107,7 @@ export function resultsRouter(ctx: Ctx) {
       userId,
       idempotencyKeyOf(req),
       () => requestFingerprint(userId, { kind: 'result' }, contentsOf(req, file)),
-      async () => (file ? fromFileUpload(file, { changeNote: false }) : fromJsonBody(parseJsonUpload(createResultSchema, req.body))),
+      async () => (file ? fromFileUpload(file, { changeNote: false }) : fromJsonUpload(req.body, { changeNote: false })),
       (input, hooks) => results.createResult(ctx, params.groupId, actor(req), input, { hooks }),
     );
     sendUpload(res, answer);
@@ -138,12 +136,8 @@ export function resultsRouter(ctx: Ctx) {
       idempotencyKeyOf(req),
       () => requestFingerprint(userId, { kind: 'version', resultId: params.resultId }, contentsOf(req, file)),
       async (): Promise<Parameters<typeof results.addVersion>[4]> => {
-        if (file) {
-          const { changeNote = '', ...parsed } = await fromFileUpload(file, { changeNote: true });
-          return { ...parsed, changeNote };
-        }
-        const body = parseJsonUpload(createVersionSchema, req.body);
-        return { ...fromJsonBody(body), changeNote: body.changeNote };
+        const { changeNote = '', ...parsed } = file ? await fromFileUpload(file, { changeNote: true }) : fromJsonUpload(req.body, { changeNote: true });
+        return { ...parsed, changeNote };
       },
       (input, hooks) => results.addVersion(ctx, params.groupId, actor(req), params.resultId, input, { hooks }),
     );
@@ -171,9 +165,13 @@ export function resultsRouter(ctx: Ctx) {
     res.json(await results.retract(ctx, params.groupId, actor(req), params.resultId, params.version, body.reason));
   }));
 
+  // Downloads: the points (`export.*`, a curve or a plane's points) and a two-parameter version's contour lines (`contours.*`).
   for (const format of ['csv', 'json'] as const) {
     r.get(`/groups/:groupId/results/:resultId/versions/:version/export.${format}`, requireGroup(ctx, 'group.read'), handle({ params: versionParams }, async ({ params }, _req, res) => {
       sendExport(res, await results.exportVersion(ctx, params.groupId, params.resultId, params.version, format));
+    }));
+    r.get(`/groups/:groupId/results/:resultId/versions/:version/contours.${format}`, requireGroup(ctx, 'group.read'), handle({ params: versionParams }, async ({ params }, _req, res) => {
+      sendExport(res, await results.exportVersion(ctx, params.groupId, params.resultId, params.version, format, 'contours'));
     }));
   }
 
@@ -209,6 +207,9 @@ export function resultsRouter(ctx: Ctx) {
   for (const format of ['csv', 'json'] as const) {
     r.get(`/public/results/:slug/v:version/export.${format}`, handle({ params: permalinkParams }, async ({ params }, _req, res) => {
       sendExport(res, await results.exportByLink(ctx, { kind: 'public' }, params.slug, params.version, format));
+    }));
+    r.get(`/public/results/:slug/v:version/contours.${format}`, handle({ params: permalinkParams }, async ({ params }, _req, res) => {
+      sendExport(res, await results.exportByLink(ctx, { kind: 'public' }, params.slug, params.version, format, 'contours'));
     }));
   }
 

@@ -42,6 +42,8 @@ async function loadInputs(ctx: Ctx, groupId: string, pins: Pin[], what: string) 
   const missing = pins.flatMap((p, i) => (byPin.has(pinKey(p)) ? [] : [{ field: `inputs.${i}`, message: `version ${p.version} of result ${p.resultId} cannot be used by this group: an input must be one of the group's own results or a published version of a public result` }]));
   if (missing.length) refuse(missing);
   const inputs = pins.map((p) => byPin.get(pinKey(p))!);
+  const flat = inputs.findIndex((r) => !r.curve);
+  if (flat >= 0) refuse([{ field: `inputs.${flat}`, message: `(${inputName(inputs[flat]!)}) is a result over two parameters: ${what} combines limit curves over one parameter` }]);
   const cls = inputs.findIndex((r) => r.cl !== inputs[0]!.cl);
   if (cls >= 0) refuse([{ field: `inputs.${cls}`, message: `(${inputName(inputs[cls]!)}) is at ${inputs[cls]!.cl * 100}% CL, ${inputName(inputs[0]!)} at ${inputs[0]!.cl * 100}%: ${what} needs one confidence level` }]);
   return inputs;
@@ -62,7 +64,7 @@ async function planEnvelope(ctx: Ctx, groupId: string, body: EnvelopeBody) {
 
   let env: ReturnType<typeof bestExpectedEnvelope>;
   try {
-    env = bestExpectedEnvelope(inputs.map((r) => ({ name: name(r), units: { parameterUnit: r.parameterUnit, quantity: r.quantity, quantityUnit: r.quantityUnit }, curve: r.curve })));
+    env = bestExpectedEnvelope(inputs.map((r) => ({ name: name(r), units: { parameterUnit: r.parameterUnit, quantity: r.quantity, quantityUnit: r.quantityUnit }, curve: r.curve! })));
   } catch (e) {
     if (!(e instanceof StatsInputError)) throw e;
     return refuse([{ field: e.field, message: e.reason }]);

@@ -56,6 +56,10 @@ export async function assertLayersUsable(db: Executor, groupId: string, spec: Fi
       });
       return;
     }
+    if (!row.curve) {
+      details.push({ field: `spec.layers.${i}`, message: `“${row.title}” (version ${l.version}) is a result over two parameters: a figure of limit curves cannot draw it` });
+      return;
+    }
     const units: LimitUnits = { parameterUnit: row.parameterUnit, quantity: row.quantity as LimitUnits['quantity'], quantityUnit: row.quantityUnit };
     if (!axis) {
       axis = units;
@@ -149,8 +153,12 @@ export async function groupLayerData(db: Executor, groupId: string, layers: { re
 
 type LayerRow = Awaited<ReturnType<typeof q.getLayerVersions>>[number];
 
-/** A loaded layer version as the scene builder takes it. */
+/**
+ * A loaded layer version as the scene builder takes it; a version over two parameters (saved
+ * figures refuse it, see `assertLayersUsable`) is not drawn.
+ */
 export function availableLayer(row: LayerRow, hue: number): FigureLayerData {
+  if (!row.curve) return { available: false, resultId: row.resultId, version: row.version };
   return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue, sources: row.envelope ?? null };
 }
 

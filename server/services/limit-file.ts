@@ -1,7 +1,9 @@
 import { z } from 'zod';
 import { checkCurve, formatCount, MAX_PROBLEMS, ProblemCollector, type CurveProblem } from '../../shared/curves/check';
 import { CsvFileError, decodeText, detectRoles, parseCsv, tableToCurve, unusedNumericColumns, type ColumnMapping } from '../../shared/curves/csv';
-import { limitFileSchema, type Curve, type Theory, type VersionMeta } from '../../shared/schemas/results';
+import { checkPlane, planeField, tableToPlane, type PlaneProblem } from '../../shared/curves/plane';
+import type { Plane } from '../../shared/schemas/plane';
+import { limitFileSchema, planeFileSchema, type Curve, type Quantity, type Theory, type VersionMeta } from '../../shared/schemas/results';
 import type { ErrorDetail } from '../../shared/errors';
 
 /**
@@ -18,10 +20,15 @@ export type FileJob = {
   mapping?: ColumnMapping;
   /** A `meta` field came with the file (so a JSON file's own meta is not needed). */
   metaGiven: boolean;
+  /** The given meta's quantity (a plane's theory is for σ×B only); a JSON file's own when absent. */
+  quantity?: Quantity;
+  /** The second parameter's name and unit for a CSV plane (else from the y column's header). */
+  second?: { name?: string; unit?: string };
 };
 
+/** A file read: a curve (one parameter, `plane` null) or a plane (two, `curve` null). */
 export type FileReading =
-  | { ok: true; kind: 'csv' | 'json'; curve: Curve; theory: Theory | null; fileMeta?: VersionMeta; warnings: ErrorDetail[] }
+  | { ok: true; kind: 'csv' | 'json'; curve: Curve | null; theory: Theory | null; plane: Plane | null; fileMeta?: VersionMeta; warnings: ErrorDetail[] }
   | { ok: false; kind: 'csv' | 'json' | 'unknown'; details: ErrorDetail[]; total: number };
 
 /** A curve problem as an error detail: `line 7, obs` for files with lines, `point 3, observed` for JSON curves. */
@@ -67,6 +74,16 @@ export function readLimitFile(job: FileJob): FileReading {
       } catch (e) {
         return bad([{ column: 'file', reason: `is not valid JSON (${(e as Error).message})` }], 1, 'line');
       }
+      if (typeof json === 'object' && json !== null && 'plane' in json) {
+        const planeSchema = job.metaGiven ? planeFileSchema.extend({ meta: z.unknown().optional() }) : planeFileSchema;
+        const parsedPlane = planeSchema.safeParse(json);
+        if (!parsedPlane.success) return { ok: false, kind, ...boundedZodDetails(parsedPlane.error) };
+        const fileMeta = job.metaGiven ? undefined : (parsedPlane.data.meta as VersionMeta);
+        const found = new ProblemCollector<PlaneProblem>();
+        const problems = checkPlane(parsedPlane.data.plane, job.quantity ?? fileMeta?.quantity ?? 'xsec', found);
+        if (problems.length) return { ok: false, kind, details: problems.map((p) => ({ field: planeField(p), message: p.reason })), total: found.total };
+        return { ok: true, kind, curve: null, theory: null, plane: parsedPlane.data.plane, ...(fileMeta ? { fileMeta } : {}), warnings: [] };
+      }
       const schema = job.metaGiven ? limitFileSchema.extend({ meta: z.unknown().optional() }) : limitFileSchema;
       const parsed = schema.safeParse(json);
       if (!parsed.success) return { ok: false, kind, ...boundedZodDetails(parsed.error) };
@@ -74,13 +91,16 @@ export function readLimitFile(job: FileJob): FileReading {
       const found = new ProblemCollector();
       const problems = checkCurve(parsed.data.curve, theory, undefined, found);
       if (problems.length) return bad(problems, found.total, 'point');
-      return { ok: true, kind, curve: parsed.data.curve, theory, ...(job.metaGiven ? {} : { fileMeta: parsed.data.meta as VersionMeta }), warnings: [] };
+      return { ok: true, kind, curve: parsed.data.curve, theory, plane: null, ...(job.metaGiven ? {} : { fileMeta: parsed.data.meta as VersionMeta }), warnings: [] };
     }
     kind = 'csv';
     const table = parseCsv(text);
     const mapping = job.mapping ?? detectRoles(table.headers);
+    const warnings = unusedColumnWarnings(table.headers, unusedNumericColumns(table, mapping));
+    // A second parameter column (detected or mapped) makes the table a plane.
+    if (mapping.y !== undefined) return { ok: true, kind, curve: null, theory: null, plane: tableToPlane(table, mapping, job.quantity ?? 'xsec', job.second), warnings };
     const { curve, theory } = tableToCurve(table, mapping);
-    return { ok: true, kind, curve, theory, warnings: unusedColumnWarnings(table.headers, unusedNumericColumns(table, mapping)) };
+    return { ok: true, kind, curve, theory, plane: null, warnings };
   } catch (e) {
     if (!(e instanceof CsvFileError)) throw e;
     return bad(e.problems, e.total, 'line');

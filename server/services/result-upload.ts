@@ -3,14 +3,21 @@ import { z } from 'zod';
 import { KB } from '../../shared/bytes';
 import { checkCurve, formatCount, MAX_PROBLEMS, ProblemCollector } from '../../shared/curves/check';
 import { COLUMN_ROLES, type ColumnMapping } from '../../shared/curves/csv';
+import { checkPlane, planeField, type PlaneProblem } from '../../shared/curves/plane';
+import { planeContours } from '../../shared/plane/contours';
 import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
+import { PLANE_LIMITS, planeSchema, type Plane, type PlaneContours } from '../../shared/schemas/plane';
 import {
+  createPlaneResultSchema,
+  createPlaneVersionSchema,
+  createResultSchema,
   createVersionSchema,
   LIMIT_FILE_FORMAT,
   MAX_CURVE_POINTS,
   theorySchema,
   versionMetaSchema,
   type Curve,
+  type Quantity,
   type Theory,
   type VersionMeta,
 } from '../../shared/schemas/results';
@@ -27,14 +34,17 @@ export { canonicalTheory };
  * nothing is returned unless all is valid.
  */
 
-export type NormalizedVersion = {
+type VersionBase = {
   meta: VersionMeta;
-  curve: Curve;
-  theory: Theory | null;
   source: { name: string; data: Buffer } | null;
   /** What the upload left out without being wrong (numeric columns without a role): said in the answer. */
   warnings?: ErrorDetail[];
 };
+/** A version over one parameter: a limit curve, with an optional theory curve. */
+export type CurveVersion = VersionBase & { curve: Curve; theory: Theory | null; plane?: null };
+/** A version over two parameters: the points of a plane (its theory per point inside it). */
+export type PlaneVersion = VersionBase & { curve: null; theory: null; plane: Plane };
+export type NormalizedVersion = CurveVersion | PlaneVersion;
 
 /** A multipart upload as the route received it: the file and the text fields. */
 export type FileUpload = { file?: { name: string; data: Buffer }; fields: Record<string, unknown> };
@@ -129,14 +139,69 @@ export function canonicalMeta(m: VersionMeta): VersionMeta {
   };
 }
 
+/** The plane in a fixed key order (so that its stored size is the same however it was sent). */
+export function canonicalPlane(p: Plane): Plane {
+  const out: Plane = { yName: p.yName, yUnit: p.yUnit, x: p.x, y: p.y };
+  if (p.observed) out.observed = p.observed;
+  const expected: NonNullable<Plane['expected']> = {};
+  for (const k of EXPECTED_KEYS) if (p.expected?.[k]) expected[k] = p.expected[k];
+  if (Object.keys(expected).length) out.expected = expected;
+  if (p.theory) out.theory = { central: p.theory.central, ...(p.theory.lower ? { lower: p.theory.lower } : {}), ...(p.theory.upper ? { upper: p.theory.upper } : {}) };
+  return out;
+}
+
 /** The project's JSON file of a version: what downloads carry and what counts as its normalized data. */
 export function limitFileOf(meta: VersionMeta, curve: Curve, theory: Theory | null) {
   return { format: LIMIT_FILE_FORMAT, meta: canonicalMeta(meta), curve: canonicalCurve(curve), ...(theory ? { theory: canonicalTheory(theory)! } : {}) };
 }
 
-/** Bytes a version counts toward its group's storage: the file as uploaded plus its normalized JSON. */
-export function storedBytesOf(v: { meta: VersionMeta; curve: Curve; theory: Theory | null; sourceBytes: number }): number {
+/** The same file of a two-parameter version (`plane` in place of `curve` and `theory`). */
+export function planeFileOf(meta: VersionMeta, plane: Plane) {
+  return { format: LIMIT_FILE_FORMAT, meta: canonicalMeta(meta), plane: canonicalPlane(plane) };
+}
+
+/** The contour lines' JSON download of a two-parameter version (its bytes are counted as stored). */
+export const PLANE_CONTOURS_FORMAT = 'bandwright-plane-contours/1';
+export function contoursFileOf(meta: VersionMeta, plane: Plane, contours: PlaneContours) {
+  return {
+    format: PLANE_CONTOURS_FORMAT,
+    x: { name: meta.parameterName, unit: meta.parameterUnit },
+    y: { name: plane.yName, unit: plane.yUnit },
+    quantity: meta.quantity,
+    contours,
+  };
+}
+
+/**
+ * The contour lines of a plane, computed once when the version is written (shared/plane/contours.ts)
+ * and stored with it. A plane that passed `checkPlane` is a grid, so a refusal here is a bug.
+ */
+export function contoursOf(plane: Plane, quantity: Quantity): PlaneContours {
+  return planeContours(plane, quantity);
+}
+
+/**
+ * Bytes a version counts toward its group's storage: the file as uploaded plus its normalized JSON
+ * (the `export.json` download); a two-parameter version also its contour lines (the
+ * `contours.json` download), which are stored with it.
+ */
+export function storedBytesOf(v: { meta: VersionMeta; curve: Curve | null; theory: Theory | null; plane?: Plane | null; planeContours?: PlaneContours | null; sourceBytes: number }): number {
+  if (v.plane) {
+    const contours = v.planeContours ?? contoursOf(v.plane, v.meta.quantity);
+    return v.sourceBytes + Buffer.byteLength(JSON.stringify(planeFileOf(v.meta, v.plane))) + Buffer.byteLength(JSON.stringify(contoursFileOf(v.meta, v.plane, contours)));
+  }
+  if (!v.curve) throw new Error('a version has a curve or a plane');
   return v.sourceBytes + Buffer.byteLength(JSON.stringify(limitFileOf(v.meta, v.curve, v.theory)));
+}
+
+/** A plane's problems (after its schema) as error details naming the body field (`plane.x.17`); throws with every problem. */
+export function assertPlaneValid(plane: Plane, quantity: Quantity) {
+  const found = new ProblemCollector<PlaneProblem>();
+  const problems = checkPlane(plane, quantity, found);
+  if (!problems.length) return;
+  const details = new Details();
+  details.addAll(problems.map((p) => ({ field: planeField(p), message: p.reason })), found.total);
+  fail('validation_failed', details);
 }
 
 /** Curve checks of a JSON curve (points numbered from 1); throws with every problem. */
@@ -163,19 +228,23 @@ export function parseJsonUpload<S extends z.ZodType>(schema: S, body: unknown): 
   let tooLong = false;
   const b = isRecord(body) ? body : {};
   const curve = isRecord(b.curve) ? b.curve : {};
-  const groups: [string, unknown, readonly string[]][] = [
-    ['curve', curve, ['x', 'observed']],
-    ['curve.expected', curve.expected, EXPECTED_KEYS],
-    ['theory', b.theory, ['x', 'central', 'lower', 'upper']],
+  const plane = isRecord(b.plane) ? b.plane : {};
+  const groups: [string, unknown, readonly string[], number][] = [
+    ['curve', curve, ['x', 'observed'], MAX_CURVE_POINTS],
+    ['curve.expected', curve.expected, EXPECTED_KEYS, MAX_CURVE_POINTS],
+    ['theory', b.theory, ['x', 'central', 'lower', 'upper'], MAX_CURVE_POINTS],
+    ['plane', plane, ['x', 'y', 'observed'], PLANE_LIMITS.maxPoints],
+    ['plane.expected', plane.expected, EXPECTED_KEYS, PLANE_LIMITS.maxPoints],
+    ['plane.theory', plane.theory, ['central', 'lower', 'upper'], PLANE_LIMITS.maxPoints],
   ];
-  for (const [prefix, holder, keys] of groups) {
+  for (const [prefix, holder, keys, max] of groups) {
     if (!isRecord(holder)) continue;
     for (const k of keys) {
       const values = holder[k];
       if (!Array.isArray(values)) continue;
-      if (values.length > MAX_CURVE_POINTS) {
+      if (values.length > max) {
         tooLong = true;
-        details.add({ field: `${prefix}.${k}`, message: `must have at most ${formatCount(MAX_CURVE_POINTS)} points (has ${formatCount(values.length)})` });
+        details.add({ field: `${prefix}.${k}`, message: `must have at most ${formatCount(max)} points (has ${formatCount(values.length)})` });
         continue;
       }
       for (let i = 0; i < values.length; i++) if (typeof values[i] !== 'number') details.add({ field: `${prefix}.${k}.${i}`, message: 'must be a number' });
@@ -188,10 +257,43 @@ export function parseJsonUpload<S extends z.ZodType>(schema: S, body: unknown): 
 }
 
 /** A JSON body (already checked against its zod schema). */
-export function fromJsonBody(body: { meta: VersionMeta; curve: Curve; theory?: Theory }): NormalizedVersion {
+export function fromJsonBody(body: { meta: VersionMeta; curve: Curve; theory?: Theory }): CurveVersion {
   const theory = canonicalTheory(body.theory);
   assertCurveValid(body.curve, theory);
   return { meta: canonicalMeta(body.meta), curve: canonicalCurve(body.curve), theory, source: null };
+}
+
+/** A two-parameter JSON body (already checked against its zod schema): the plane's numbers and grid. */
+export function fromPlaneBody(body: { meta: VersionMeta; plane: Plane }): PlaneVersion {
+  assertPlaneValid(body.plane, body.meta.quantity);
+  return { meta: canonicalMeta(body.meta), curve: null, theory: null, plane: canonicalPlane(body.plane), source: null };
+}
+
+/**
+ * The JSON body of an upload route: one parameter (`curve`, optional `theory`) or two (`plane`),
+ * told apart by the `plane` key; `changeNote` for a new version. Both at once is refused naming
+ * `curve`, so nothing sent is dropped unsaid.
+ */
+export function fromJsonUpload(body: unknown, opts: { changeNote: boolean }): NormalizedVersion & { changeNote?: string } {
+  const b = isRecord(body) ? body : {};
+  if ('plane' in b) {
+    if ('curve' in b || 'theory' in b) {
+      const field = 'curve' in b ? 'curve' : 'theory';
+      throw new AppError(400, 'validation_failed', `Invalid body: ${field} cannot come with plane: send a curve (one parameter) or a plane (two parameters, its theory per point inside it)`, [
+        { field, message: 'cannot come with plane: send a curve (one parameter) or a plane (two parameters, its theory per point inside it)' },
+      ]);
+    }
+    if (opts.changeNote) {
+      const parsed = parseJsonUpload(createPlaneVersionSchema, body);
+      return { ...fromPlaneBody(parsed), changeNote: parsed.changeNote };
+    }
+    return fromPlaneBody(parseJsonUpload(createPlaneResultSchema, body));
+  }
+  if (opts.changeNote) {
+    const parsed = parseJsonUpload(createVersionSchema, body);
+    return { ...fromJsonBody(parsed), changeNote: parsed.changeNote };
+  }
+  return fromJsonBody(parseJsonUpload(createResultSchema, body));
 }
 
 /**
@@ -250,13 +352,23 @@ export async function fromFileUpload(upload: FileUpload, opts: { changeNote: boo
   const changeNote = opts.changeNote ? parseWith(changeNoteSchema, fields.changeNote ?? '', 'changeNote', details) : undefined;
   // The theory curve's name (the legend's "theory" entry), when the file's theory columns have none.
   const theoryLabel = fields.theoryLabel !== undefined ? parseWith(theorySchema.shape.label, fields.theoryLabel, 'theoryLabel', details) : undefined;
+  // The second parameter's name and unit for a CSV with two parameter columns (else read from its header).
+  const yName = fields.yName !== undefined ? parseWith(planeSchema.shape.yName, fields.yName, 'yName', details) : undefined;
+  const yUnit = fields.yUnit !== undefined ? parseWith(planeSchema.shape.yUnit, fields.yUnit, 'yUnit', details) : undefined;
 
   const file = upload.file;
   let reading: FileReading | undefined;
   if (!file) {
     details.add({ field: 'file', message: 'is missing: send the CSV or JSON file in the form field "file"' });
   } else {
-    reading = await readUploadedFile({ name: file.name, data: file.data, mapping, metaGiven: metaRaw !== undefined });
+    reading = await readUploadedFile({
+      name: file.name,
+      data: file.data,
+      mapping,
+      metaGiven: metaRaw !== undefined,
+      ...(meta ? { quantity: meta.quantity } : {}),
+      ...(yName !== undefined || yUnit !== undefined ? { second: { ...(yName !== undefined ? { name: yName } : {}), ...(yUnit !== undefined ? { unit: yUnit } : {}) } } : {}),
+    });
     if (reading.kind === 'csv' && metaRaw === undefined && !details.list.some((d) => d.field === 'meta')) {
       details.add({ field: 'meta', message: 'is required with a CSV file: JSON text with title, parameterName, quantity, sqrtS, luminosity and method' });
     }
@@ -269,12 +381,18 @@ export async function fromFileUpload(upload: FileUpload, opts: { changeNote: boo
     if (!details.total) details.add({ field: 'meta', message: 'is missing' });
     fail(fileProblem ? 'invalid_file' : 'validation_failed', details);
   }
-  return {
+  const common = {
     meta: canonicalMeta(meta),
-    curve: canonicalCurve(reading.curve),
-    theory: reading.theory && theoryLabel ? { ...reading.theory, label: theoryLabel } : reading.theory,
     source: { name: file!.name, data: file!.data },
     ...(reading.warnings.length ? { warnings: reading.warnings } : {}),
     ...(changeNote !== undefined ? { changeNote } : {}),
+  };
+  if (reading.plane) {
+    return { ...common, curve: null, theory: null, plane: canonicalPlane(reading.plane) };
+  }
+  return {
+    ...common,
+    curve: canonicalCurve(reading.curve!),
+    theory: reading.theory && theoryLabel ? { ...reading.theory, label: theoryLabel } : reading.theory,
   };
 }

@@ -1,6 +1,8 @@
 import { randomBytes } from 'node:crypto';
 import { can, type GroupRole } from '../../shared/access';
 import { curveToCsv } from '../../shared/curves/csv';
+import { contoursToCsv, planeToCsv } from '../../shared/curves/plane';
+import type { Plane } from '../../shared/schemas/plane';
 import type {
   ResultDetail,
   ResultListQuery,
@@ -21,7 +23,20 @@ import type { Executor } from '../../db/client';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
 import { safeFileName, slugify } from '../../shared/slug';
 import * as storage from './storage';
-import { assertCurveValid, canonicalCurve, canonicalMeta, canonicalTheory, limitFileOf, storedBytesOf, type NormalizedVersion } from './result-upload';
+import {
+  assertCurveValid,
+  assertPlaneValid,
+  canonicalCurve,
+  canonicalMeta,
+  canonicalPlane,
+  canonicalTheory,
+  contoursFileOf,
+  contoursOf,
+  limitFileOf,
+  planeFileOf,
+  storedBytesOf,
+  type NormalizedVersion,
+} from './result-upload';
 
 /**
  * The results registry's rules: versions are numbered under a lock on the result, only drafts
@@ -48,11 +63,25 @@ const immutable = (version: number, state: ResultState) =>
       : `Version ${version} is ${state} and cannot change; create a new version`,
   );
 
-/** The columns of a version from its provenance and numbers (the meta keys are column names). */
-function versionColumns(v: { meta: VersionMeta; curve: NormalizedVersion['curve']; theory: Theory | null }) {
+/**
+ * The columns of a version from its provenance and numbers (the meta keys are column names): a
+ * curve with its theory, or a plane with the contour lines derived from it now (stored, so reads
+ * and downloads never recompute them).
+ */
+function versionColumns(v: { meta: VersionMeta; curve: NormalizedVersion['curve']; theory: Theory | null; plane?: Plane | null }) {
   const meta = canonicalMeta(v.meta);
-  return { ...meta, searchText: versionSearchText(meta), curve: canonicalCurve(v.curve), theory: canonicalTheory(v.theory) };
+  const common = { ...meta, searchText: versionSearchText(meta) };
+  if (v.plane) {
+    const plane = canonicalPlane(v.plane);
+    return { ...common, curve: null, theory: null, plane, planeContours: contoursOf(plane, meta.quantity) };
+  }
+  if (!v.curve) throw new Error('a version has a curve or a plane');
+  return { ...common, curve: canonicalCurve(v.curve), theory: canonicalTheory(v.theory), plane: null, planeContours: null };
 }
+
+/** Bytes of a version's columns (as `versionColumns` made them) plus its uploaded file. */
+const bytesOfColumns = (meta: VersionMeta, c: ReturnType<typeof versionColumns>, sourceBytes: number) =>
+  storedBytesOf({ meta, curve: c.curve, theory: c.theory, plane: c.plane, planeContours: c.planeContours, sourceBytes });
 
 const metaOf = (row: q.VersionRow): VersionMeta => canonicalMeta({ ...row, quantityUnit: row.quantityUnit as VersionMeta['quantityUnit'] });
 
@@ -61,6 +90,7 @@ const metaOf = (row: q.VersionRow): VersionMeta => canonicalMeta({ ...row, quant
  * there are none.
  */
 export function exclusionOf(curve: NormalizedVersion['curve'], theory: Theory | null): ResultVersion['exclusion'] {
+  if (!curve) return { ranges: null, problem: 'This result is over two parameters: its excluded region is bounded by its contour lines' };
   return exclusionOrProblem(curve, theory);
 }
 
@@ -83,6 +113,8 @@ function toVersion(ctx: Ctx, row: q.VersionRow): ResultVersion {
     meta: metaOf(row),
     curve,
     theory,
+    plane: row.plane ?? null,
+    planeContours: row.planeContours ?? null,
     exclusion: exclusionOf(curve, theory),
     permalink: row.state === 'draft' ? null : `${ctx.env.PUBLIC_URL}/r/${row.slug}/v${row.version}`,
     sourceFile: row.sourceName !== null && row.sourceBytes !== null ? { name: row.sourceName, bytes: row.sourceBytes } : null,
@@ -209,26 +241,44 @@ export async function fillSearchText(ctx: Ctx, batch = 500): Promise<number> {
 
 export type ExportFile = { fileName: string; contentType: string; body: string };
 
-function exportOf(row: q.VersionRow, format: 'csv' | 'json'): ExportFile {
+/** A CSV header from a parameter's name and unit; the uploader's text, so kept from reading as a spreadsheet formula. */
+function csvHeader(name: string, unit: string): string {
+  const h = unit ? `${name} [${unit}]` : name;
+  return /^[=+\-@\t\r]/.test(h) ? `'${h}` : h;
+}
+
+/** What a download holds: the points (a curve, or a plane's points), or a plane's contour lines. */
+export type ExportWhat = 'points' | 'contours';
+
+function exportOf(row: q.VersionRow, format: 'csv' | 'json', what: ExportWhat = 'points'): ExportFile {
   const meta = metaOf(row);
-  const fileName = safeFileName(row.slug, format, { version: row.version, fallback: 'result' });
-  if (format === 'json') {
-    return { fileName, contentType: 'application/json; charset=utf-8', body: JSON.stringify(limitFileOf(meta, row.curve, row.theory ?? null)) };
+  const x = csvHeader(meta.parameterName, meta.parameterUnit);
+  if (what === 'contours') {
+    if (!row.plane || !row.planeContours) throw new AppError(404, 'not_found', `Version ${row.version} of this result is over one parameter: it has no contour lines (download its points)`);
+    const fileName = safeFileName(`${row.slug}-contours`, format, { version: row.version, fallback: 'result' });
+    if (format === 'json') return { fileName, contentType: 'application/json; charset=utf-8', body: JSON.stringify(contoursFileOf(meta, row.plane, row.planeContours)) };
+    return { fileName, contentType: 'text/csv; charset=utf-8', body: contoursToCsv(row.planeContours, { x, y: csvHeader(row.plane.yName, row.plane.yUnit) }) };
   }
-  const x = meta.parameterUnit ? `${meta.parameterName} [${meta.parameterUnit}]` : meta.parameterName;
-  // The header is the uploader's text: keep spreadsheets from reading it as a formula.
-  const header = /^[=+\-@\t\r]/.test(x) ? `'${x}` : x;
-  return { fileName, contentType: 'text/csv; charset=utf-8', body: curveToCsv(row.curve, row.theory ?? null, { x: header }) };
+  const fileName = safeFileName(row.slug, format, { version: row.version, fallback: 'result' });
+  if (row.plane) {
+    if (format === 'json') return { fileName, contentType: 'application/json; charset=utf-8', body: JSON.stringify(planeFileOf(meta, row.plane)) };
+    return { fileName, contentType: 'text/csv; charset=utf-8', body: planeToCsv(row.plane, { x, y: csvHeader(row.plane.yName, row.plane.yUnit) }) };
+  }
+  const curve = row.curve!;
+  if (format === 'json') {
+    return { fileName, contentType: 'application/json; charset=utf-8', body: JSON.stringify(limitFileOf(meta, curve, row.theory ?? null)) };
+  }
+  return { fileName, contentType: 'text/csv; charset=utf-8', body: curveToCsv(curve, row.theory ?? null, { x }) };
 }
 
-export async function exportVersion(ctx: Ctx, groupId: string, resultId: string, version: number, format: 'csv' | 'json'): Promise<ExportFile> {
-  return exportOf(await versionRow(ctx, groupId, resultId, version), format);
+export async function exportVersion(ctx: Ctx, groupId: string, resultId: string, version: number, format: 'csv' | 'json', what: ExportWhat = 'points'): Promise<ExportFile> {
+  return exportOf(await versionRow(ctx, groupId, resultId, version), format, what);
 }
 
-export async function exportByLink(ctx: Ctx, viewer: q.Viewer, slug: string, version: number, format: 'csv' | 'json'): Promise<ExportFile> {
+export async function exportByLink(ctx: Ctx, viewer: q.Viewer, slug: string, version: number, format: 'csv' | 'json', what: ExportWhat = 'points'): Promise<ExportFile> {
   const row = await q.getVersionByLink(ctx.db, viewer, slug, version);
   if (!row) throw notFound('Result');
-  return exportOf(row, format);
+  return exportOf(row, format, what);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -257,7 +307,8 @@ export async function createResult(
 ): Promise<ResultVersion> {
   const resultId = await ctx.db.transaction(async (tx) => {
     await opts.hooks?.before?.(tx);
-    const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
+    const columns = versionColumns(input);
+    const storedBytes = bytesOfColumns(input.meta, columns, input.source?.data.length ?? 0);
     await storage.reserve(tx, groupId, storedBytes, 'this upload', { admitted: opts.admitted });
     let result: Awaited<ReturnType<typeof q.insertResult>>;
     for (let attempt = 0; !result; attempt++) {
@@ -268,7 +319,7 @@ export async function createResult(
     await q.insertVersion(tx, {
       resultId: result.id,
       version: 1,
-      ...versionColumns(input),
+      ...columns,
       changeNote: '',
       sourceName: input.source?.name ?? null,
       sourceData: input.source?.data ?? null,
@@ -295,13 +346,14 @@ export async function addVersion(
   const version = await ctx.db.transaction(async (tx) => {
     await opts.hooks?.before?.(tx);
     if (!(await q.lockResult(tx, groupId, resultId))) throw notFound('Result');
-    const storedBytes = storedBytesOf({ ...input, sourceBytes: input.source?.data.length ?? 0 });
+    const columns = versionColumns(input);
+    const storedBytes = bytesOfColumns(input.meta, columns, input.source?.data.length ?? 0);
     await storage.reserve(tx, groupId, storedBytes, 'this upload', { admitted: opts.admitted });
     const n = await q.takeNextVersion(tx, groupId, resultId);
     await q.insertVersion(tx, {
       resultId,
       version: n,
-      ...versionColumns(input),
+      ...columns,
       changeNote: input.changeNote,
       sourceName: input.source?.name ?? null,
       sourceData: input.source?.data ?? null,
@@ -325,18 +377,31 @@ async function lockedVersion(tx: Parameters<Parameters<Ctx['db']['transaction']>
 }
 
 /** Changes a draft; any other state is immutable. */
-export async function updateDraft(ctx: Ctx, groupId: string, resultId: string, version: number, patch: UpdateDraftInput & { meta?: VersionMeta }): Promise<ResultVersion> {
+export async function updateDraft(ctx: Ctx, groupId: string, resultId: string, version: number, patch: UpdateDraftInput & { meta?: VersionMeta; plane?: Plane }): Promise<ResultVersion> {
   await ctx.db.transaction(async (tx) => {
     const row = await lockedVersion(tx, groupId, resultId, version);
     if (row.state !== 'draft') throw immutable(version, row.state);
     const meta = patch.meta ? canonicalMeta(patch.meta) : metaOf(row);
-    const curve = patch.curve ?? row.curve;
-    const theory = patch.theory === undefined ? (row.theory ?? null) : canonicalTheory(patch.theory);
-    if (patch.curve !== undefined || patch.theory !== undefined) assertCurveValid(curve, theory);
-    const storedBytes = storedBytesOf({ meta, curve, theory, sourceBytes: row.sourceBytes ?? 0 });
+    let columns: ReturnType<typeof versionColumns>;
+    if (row.plane) {
+      // A draft stays over the parameters it has: a plane takes a plane, a curve a curve.
+      const wrong = (['curve', 'theory'] as const).find((k) => patch[k] !== undefined);
+      if (wrong) throw new AppError(400, 'validation_failed', `Invalid body: ${wrong} does not apply: version ${version} is over two parameters (send plane)`, [{ field: wrong, message: `does not apply: version ${version} is over two parameters (send plane)` }]);
+      const plane = patch.plane ?? row.plane;
+      // A changed quantity changes the rules for the theory too (σ×B only).
+      if (patch.plane !== undefined || patch.meta !== undefined) assertPlaneValid(plane, meta.quantity);
+      columns = versionColumns({ meta, curve: null, theory: null, plane });
+    } else {
+      if (patch.plane !== undefined) throw new AppError(400, 'validation_failed', `Invalid body: plane does not apply: version ${version} is over one parameter (send curve)`, [{ field: 'plane', message: `does not apply: version ${version} is over one parameter (send curve)` }]);
+      const curve = patch.curve ?? row.curve!;
+      const theory = patch.theory === undefined ? (row.theory ?? null) : canonicalTheory(patch.theory);
+      if (patch.curve !== undefined || patch.theory !== undefined) assertCurveValid(curve, theory);
+      columns = versionColumns({ meta, curve, theory });
+    }
+    const storedBytes = bytesOfColumns(meta, columns, row.sourceBytes ?? 0);
     await storage.resize(tx, groupId, row.storedBytes, storedBytes, 'this change');
     await q.updateVersion(tx, groupId, resultId, version, {
-      ...versionColumns({ meta, curve, theory }),
+      ...columns,
       ...(patch.changeNote !== undefined ? { changeNote: patch.changeNote } : {}),
       storedBytes,
     });

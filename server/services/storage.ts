@@ -9,7 +9,8 @@ import { isReadOnly, lapseNotice, planOfGroup } from './plans';
  * Storage accounting, the one module that adds and frees a group's stored bytes (ESLint lets no
  * other file import db/queries/storage.ts). The group's counter (`groups.storage_bytes`) holds
  * the bytes of two kinds, each row carrying its own `stored_bytes`:
- * - **uploads**: result versions (uploaded file plus normalized JSON): createResult, addVersion,
+ * - **uploads**: result versions (uploaded file plus normalized JSON, and a two-parameter
+ *   version's contour lines; `storedBytesOf` in result-upload.ts): createResult, addVersion,
  *   updateDraft (`resize`), deleteDraft and deleteResult (`release`);
  * - **scan inputs**: a scan's file and points, reserved at startScan together with room for the
  *   scan's draft (`scanDraftAllowance`), which is then saved as an upload with `admitted`.

@@ -25,11 +25,11 @@ export const MAX_PROBLEMS = 100;
  * Problems as they are found: the first `limit` are kept, every one is counted. A file with a
  * million bad cells costs a counter, not a million objects (nor a spread of a million arguments).
  */
-export class ProblemCollector {
-  readonly list: CurveProblem[] = [];
+export class ProblemCollector<P = CurveProblem> {
+  readonly list: P[] = [];
   total = 0;
   constructor(readonly limit = MAX_PROBLEMS) {}
-  add(p: CurveProblem): void {
+  add(p: P): void {
     this.total++;
     if (this.list.length < this.limit) this.list.push(p);
   }

@@ -9,6 +9,8 @@ import { checkCurve, formatCount, ProblemCollector, type CurveProblem } from './
 
 export const COLUMN_ROLES = [
   'x',
+  /** The second parameter: a file with it holds a result over two parameters (a plane, shared/curves/plane.ts). */
+  'y',
   'observed',
   'expected',
   'expectedMinus2',
@@ -23,6 +25,7 @@ export type ColumnRole = (typeof COLUMN_ROLES)[number];
 
 export const ROLE_TITLES: Record<ColumnRole, string> = {
   x: 'Parameter (x)',
+  y: 'Second parameter (y)',
   observed: 'Observed limit',
   expected: 'Expected median',
   expectedMinus2: 'Expected −2σ',
@@ -230,15 +233,21 @@ export function headerRole(raw: string): ColumnRole | null {
     if (!band.side) return band.level ? null : 'expected';
     return EXPECTED_BANDS[band.side][band.level || 1];
   }
+  if (/^(y|param2|parameter2|secondparameter)$/.test(h)) return 'y';
   if (/^(x|m|mass|param|parameter)$/.test(h) || /^m[a-z]*$/.test(h) || h.startsWith('mass') || tokens[0] === 'm') return 'x';
   return null;
 }
 
-/** Guesses the role of each column from its header (the first column naming a role gets it); the user confirms or changes them. */
+/**
+ * Guesses the role of each column from its header (the first column naming a role gets it); the
+ * user confirms or changes them. A second column that reads as a parameter ("m_X", then "m_chi")
+ * is the second parameter (y): the file is then a result over two parameters.
+ */
 export function detectRoles(headers: string[]): ColumnMapping {
   const mapping: ColumnMapping = {};
   headers.forEach((raw, i) => {
-    const role = headerRole(raw);
+    let role = headerRole(raw);
+    if (role === 'x' && mapping.x !== undefined) role = 'y';
     if (role && mapping[role] === undefined) mapping[role] = i;
   });
   if (mapping.x === undefined) {
@@ -271,11 +280,11 @@ export function unusedNumericColumns(table: CsvTable, mapping: ColumnMapping): n
 }
 
 /**
- * Builds the curve (and the theory curve, on the same grid) from a table and a mapping. Every
- * problem is named by file line and column header; nothing is returned unless all is valid.
+ * The mapped columns of a table as numbers, checked first as a mapping (columns in range, none
+ * mapped twice, x and a limit column chosen), then cell by cell; every problem goes to `problems`
+ * (and the first mapping problems end the reading, as `CsvFileError`). Shared by curves and planes.
  */
-export function tableToCurve(table: CsvTable, mapping: ColumnMapping): { curve: Curve; theory: Theory | null } {
-  const problems = new ProblemCollector();
+export function readMappedColumns(table: CsvTable, mapping: ColumnMapping, problems: ProblemCollector, limit: { maxRows: number; what: string }): Map<ColumnRole, number[]> {
   const seen = new Map<number, ColumnRole>();
   for (const [role, idx] of Object.entries(mapping) as [ColumnRole, number][]) {
     if (idx < 0 || idx >= table.headers.length) problems.add({ column: ROLE_TITLES[role], reason: `points at column ${idx + 1}, but the file has ${table.headers.length}` });
@@ -287,8 +296,8 @@ export function tableToCurve(table: CsvTable, mapping: ColumnMapping): { curve: 
     problems.add({ column: 'mapping', reason: 'choose at least an observed or an expected median column' });
   }
   if (problems.total) throw CsvFileError.of(problems);
-  if (table.rows.length > MAX_CURVE_POINTS) {
-    problems.add({ column: 'file', reason: `has ${formatCount(table.rows.length)} data rows; a curve has at most ${formatCount(MAX_CURVE_POINTS)} points` });
+  if (table.rows.length > limit.maxRows) {
+    problems.add({ column: 'file', reason: `has ${formatCount(table.rows.length)} data rows; ${limit.what} ${formatCount(limit.maxRows)} points` });
   }
 
   // Row by row, the cells of a row in file order: a list cut at MAX_PROBLEMS then shows the
@@ -311,6 +320,16 @@ export function tableToCurve(table: CsvTable, mapping: ColumnMapping): { curve: 
       values.get(role)![r] = v ?? NaN;
     }
   }
+  return values;
+}
+
+/**
+ * Builds the curve (and the theory curve, on the same grid) from a table and a mapping. Every
+ * problem is named by file line and column header; nothing is returned unless all is valid.
+ */
+export function tableToCurve(table: CsvTable, mapping: ColumnMapping): { curve: Curve; theory: Theory | null } {
+  const problems = new ProblemCollector();
+  const values = readMappedColumns(table, mapping, problems, { maxRows: MAX_CURVE_POINTS, what: 'a curve has at most' });
   const col = (role: ColumnRole): number[] | undefined => values.get(role);
   const x = col('x')!;
   const expected = {

@@ -31,3 +31,10 @@ export const planeSchema = z.object({
   theory: z.object({ central: column, lower: column.optional(), upper: column.optional() }).optional(),
 });
 export type Plane = z.infer<typeof planeSchema>;
+
+
+/**
+ * The contour lines of a plane as stored with its version (`plane_contours`): the type of
+ * shared/plane/contours.ts `planeContours`, named here beside the plane it is derived from.
+ */
+export type { ContourLine as PlaneContourLine, PlaneContours } from '../plane/contours';

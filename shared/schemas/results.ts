@@ -5,6 +5,7 @@
 import { z } from 'zod';
 import { EXPECTED_KEYS } from './counting-model';
 import { pageParams, shortText, slugParam, uuidParam, versionParam } from './common';
+import { planeSchema, type Plane, type PlaneContours } from './plane';
 
 export const RESULT_STATES = ['draft', 'published', 'superseded', 'retracted'] as const;
 export type ResultState = (typeof RESULT_STATES)[number];
@@ -79,11 +80,21 @@ export const createResultSchema = z.object({
 });
 export type CreateResultInput = z.input<typeof createResultSchema>;
 
+/**
+ * Create a result over two parameters from JSON: `plane` (shared/schemas/plane.ts) in place of
+ * `curve` and `theory` (the plane carries its own theory per point). The upload routes take
+ * either body; a body with a `plane` key is read by this schema.
+ */
+export const createPlaneResultSchema = z.object({ meta: versionMetaSchema, plane: planeSchema });
+export type CreatePlaneResultInput = z.input<typeof createPlaneResultSchema>;
+
 /** A new draft version of an existing result; `changeNote` says what changed. */
 export const createVersionSchema = createResultSchema.extend({
   changeNote: z.string().trim().min(1, 'say what changed in this version').max(500, 'must be at most 500 characters'),
 });
 export type CreateVersionInput = z.input<typeof createVersionSchema>;
+export const createPlaneVersionSchema = createPlaneResultSchema.extend({ changeNote: createVersionSchema.shape.changeNote });
+export type CreatePlaneVersionInput = z.input<typeof createPlaneVersionSchema>;
 
 /**
  * Headers of an upload (`POST …/results`, `…/versions`). `Idempotency-Key` lets a pipeline retry
@@ -100,7 +111,15 @@ export const uploadHeadersSchema = z.object({
 
 /** Edit a draft (published versions never change). */
 export const updateDraftSchema = z
-  .object({ meta: versionMetaSchema.optional(), curve: curveSchema.optional(), theory: theorySchema.nullable().optional(), changeNote: z.string().trim().max(500).optional() })
+  .object({
+    meta: versionMetaSchema.optional(),
+    /** One-parameter drafts only. */
+    curve: curveSchema.optional(),
+    theory: theorySchema.nullable().optional(),
+    /** Two-parameter drafts only. */
+    plane: planeSchema.optional(),
+    changeNote: z.string().trim().max(500).optional(),
+  })
   .refine((v) => Object.keys(v).length > 0, 'give something to change');
 export type UpdateDraftInput = z.input<typeof updateDraftSchema>;
 
@@ -180,8 +199,12 @@ export type ResultVersion = VersionSummary & {
   groupName: string;
   isPublic: boolean;
   meta: VersionMeta;
-  curve: Curve;
+  /** The limit curve of a one-parameter version; null when the version is over two parameters (`plane`). */
+  curve: Curve | null;
   theory: Theory | null;
+  /** The points of a two-parameter version (null for one parameter), with its contour lines as stored. */
+  plane: Plane | null;
+  planeContours: PlaneContours | null;
   /** Excluded ranges against the theory curve (null without theory or when not computable, with the reason). */
   exclusion: { ranges: import('../stats/exclusion').ExclusionRanges | null; problem: string | null };
   permalink: string | null;
@@ -224,6 +247,13 @@ export const limitFileSchema = z.object({
   theory: theorySchema.optional(),
 });
 export type LimitFile = z.input<typeof limitFileSchema>;
+/** The same file format for a result over two parameters: `plane` in place of `curve` and `theory`. */
+export const planeFileSchema = z.object({
+  format: z.literal(LIMIT_FILE_FORMAT, { error: `must be "${LIMIT_FILE_FORMAT}"` }),
+  meta: versionMetaSchema,
+  plane: planeSchema,
+});
+export type PlaneFile = z.input<typeof planeFileSchema>;
 
 export const createTokenSchema = z.object({ name: shortText(80) });
 export const tokenParams = z.object({ tokenId: uuidParam });

@@ -62,19 +62,19 @@ test('two crossing inputs: each point names the input chosen, the switch sits at
   expect(v.meta.notes).toMatch(/Best expected of 2 inputs/);
   const cross = 3000 * Math.LN2;
   // (The inputs are rounded to 8 digits: the crossing moves by ~1e-8 · 3000 at most.)
-  const at = v.curve.x.findIndex((x) => Math.abs(x - cross) < 1e-3);
+  const at = v.curve!.x.findIndex((x) => Math.abs(x - cross) < 1e-3);
   expect(at).toBeGreaterThan(0);
   expect(v.choice.crossing[at]).toBe(true);
   // Below the crossing the slowly falling input is lower; above it the steep one.
-  v.curve.x.forEach((x, i) => {
+  v.curve!.x.forEach((x, i) => {
     if (x < cross - 1e-3) expect(v.choice.chosen[i]).toBe(0);
     if (x > cross + 1e-3) expect(v.choice.chosen[i]).toBe(1);
   });
   expect(v.choice.segments.map((s) => s.input)).toEqual([0, 1]);
   // At an input's own grid point, the envelope reports that input's observed limit and band.
-  const i3000 = v.curve.x.indexOf(3000);
-  expect(v.curve.observed![i3000]).toBeCloseTo(80 * Math.exp(-3) * 1.1, 6);
-  expect(v.curve.expected!['1']![i3000]).toBeCloseTo(80 * Math.exp(-3) * 1.4, 6);
+  const i3000 = v.curve!.x.indexOf(3000);
+  expect(v.curve!.observed![i3000]).toBeCloseTo(80 * Math.exp(-3) * 1.1, 6);
+  expect(v.curve!.expected!['1']![i3000]).toBeCloseTo(80 * Math.exp(-3) * 1.4, 6);
 
   const page = await alice.agent.get(`/api/groups/${groupA}/results/${v.resultId}/versions/1`);
   expect(page.status).toBe(200);

@@ -55,7 +55,7 @@ beforeAll(async () => {
   const secret = await makeResult(crew.analyst, groupId, { meta: { title: SECRET_TITLE, reference: SECRET_REFERENCE } });
   r.Q = secret.resultId;
   // Distinctive numbers: if they leaked, the CSV would show them and the y range would reach them.
-  const curve: Curve = { ...secret.curve, observed: secret.curve.observed!.map((v, i) => (i === 3 ? SECRET_VALUE : v)) };
+  const curve: Curve = { ...secret.curve!, observed: secret.curve!.observed!.map((v, i) => (i === 3 ? SECRET_VALUE : v)) };
   expect((await crew.analyst.agent.patch(`/api/groups/${groupId}/results/${r.Q}/versions/1`).send({ curve })).status).toBe(200);
   await publishVersion(crew.curator, groupId, r.Q, 1, false);
 }, 90_000);

@@ -18,6 +18,7 @@ import {
   makeGroupWithRoles,
   makeInvitation,
   makePerson,
+  makePlaneResult,
   makeResult,
   makeVersion,
   probe,
@@ -377,6 +378,16 @@ const MATRIX: Entry[] = [
       prepare: async (w, groupId) => ({ params: { groupId, resultId: (await sharedResult(w, groupId)).resultId, version: '1' } }),
     }),
   ),
+  ...(['csv', 'json'] as const).map(
+    (format): Entry => ({
+      method: 'get',
+      path: `/api/groups/:groupId/results/:resultId/versions/:version/contours.${format}`,
+      access: 'viewer',
+      ok: 200,
+      mutates: false,
+      prepare: async (w, groupId) => ({ params: { groupId, resultId: (await sharedPlane(w, groupId)).resultId, version: '1' } }),
+    }),
+  ),
   // Open to anyone: what they see depends on who they are (results-visibility.test.ts).
   { method: 'get', path: '/api/results', access: 'anonymous', ok: 200, mutates: false, prepare: async () => ({ params: {} }) },
   { method: 'get', path: '/api/results/:slug/v:version', access: 'anonymous', ok: 200, mutates: false, prepare: async (w) => ({ params: { slug: (await publicResult(w)).slug, version: '1' } }) },
@@ -392,6 +403,16 @@ const MATRIX: Entry[] = [
       ok: 200,
       mutates: false,
       prepare: async (w) => ({ params: { slug: (await publicResult(w)).slug, version: '1' } }),
+    }),
+  ),
+  ...(['/contours.csv', '/contours.json'] as const).map(
+    (suffix): Entry => ({
+      method: 'get',
+      path: `/api/public/results/:slug/v:version${suffix}`,
+      access: 'anonymous',
+      ok: 200,
+      mutates: false,
+      prepare: async (w) => ({ params: { slug: (await publicPlane(w)).slug, version: '1' } }),
     }),
   ),
 
@@ -770,6 +791,21 @@ const shared = new Map<string, Promise<{ resultId: string; slug: string }>>();
 function sharedResult(w: World, groupId: string) {
   if (!shared.has(groupId)) shared.set(groupId, makeResult(w.crew.analyst, groupId));
   return shared.get(groupId)!;
+}
+/** One two-parameter draft per group for the contour downloads, made on first use. */
+const sharedPlanes = new Map<string, Promise<{ resultId: string; slug: string }>>();
+function sharedPlane(w: World, groupId: string) {
+  if (!sharedPlanes.has(groupId)) sharedPlanes.set(groupId, makePlaneResult(w.crew.analyst, groupId));
+  return sharedPlanes.get(groupId)!;
+}
+let publicPlaneOne: Promise<{ slug: string }> | undefined;
+function publicPlane(w: World) {
+  publicPlaneOne ??= (async () => {
+    const groupId = await makeGroup(w.t, w.host);
+    const v = await makePlaneResult(w.host, groupId);
+    return publishVersion(w.host, groupId, v.resultId, 1, true);
+  })();
+  return publicPlaneOne;
 }
 /** One public published result (in a group of the host) for the anonymous routes. */
 let publicOne: Promise<{ slug: string }> | undefined;

@@ -61,8 +61,8 @@ test('the demo results cover every state, with bands, theory and derived exclusi
   expect(detail.versions.map((v: { state: string }) => v.state)).toEqual(['published', 'superseded']);
   expect(detail.versions[0].changeNote).toMatch(/96\.5 fb⁻¹/);
   const v2 = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}/versions/2`)).body as ResultVersion;
-  expect(v2.curve.x).toHaveLength(30);
-  expect(Object.keys(v2.curve.expected!).sort()).toEqual(['-1', '-2', '0', '1', '2']);
+  expect(v2.curve!.x).toHaveLength(30);
+  expect(Object.keys(v2.curve!.expected!).sort()).toEqual(['-1', '-2', '0', '1', '2']);
   expect(v2.theory?.lower).toHaveLength(30);
   // More data, stronger exclusion: the observed range of v2 ends beyond that of v1.
   const v1 = (await analyst.get(`/api/groups/${vprime.groupId}/results/${vprime.id}/versions/1`)).body as ResultVersion;

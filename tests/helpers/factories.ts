@@ -4,6 +4,7 @@ import { listMailTo } from '@/db/queries/mail';
 import { getStorage } from '@/db/queries/storage';
 import { invitations, results, resultVersions } from '@/db/schema';
 import { GROUP_ROLES, type GroupRole } from '@/shared/access';
+import type { Plane } from '@/shared/schemas/plane';
 import type { Curve, ResultVersion, Theory, VersionMetaInput } from '@/shared/schemas/results';
 import { signUp, uniqueEmail, type Agent, type TestApp } from './app';
 
@@ -137,6 +138,46 @@ export function sampleCurve(n = 8): { curve: Curve; theory: Theory } {
   };
   const central = x.map((m) => r(900 * Math.exp(-m / 600)));
   return { curve, theory: { x: [...x], central, lower: central.map((c) => r(c * 0.8)), upper: central.map((c) => r(c * 1.2)) } };
+}
+
+/**
+ * An invented plane of σ×B limits over two masses (m_X × m_chi, `nx` × `ny` grid values) with full
+ * bands and a theory per point falling faster than the limits, so the excluded region ends inside.
+ */
+export function samplePlane(nx = 5, ny = 4): Plane {
+  const r = (v: number) => Number(v.toPrecision(6));
+  const x: number[] = [];
+  const y: number[] = [];
+  for (let i = 0; i < nx; i++) for (let j = 0; j < ny; j++) {
+    x.push(1000 + 500 * i);
+    y.push(100 + 200 * j);
+  }
+  const exp = x.map((m, k) => r(5 * Math.exp(-m / 3000) * (1 + y[k]! / 2000)));
+  const central = x.map((m) => r(400 * Math.exp(-m / 450)));
+  return {
+    yName: 'm_chi',
+    yUnit: 'GeV',
+    x,
+    y,
+    observed: exp.map((e, k) => r(e * (1 + 0.1 * Math.sin(k)))),
+    expected: { '-2': exp.map((e) => r(e * 0.55)), '-1': exp.map((e) => r(e * 0.75)), '0': exp, '1': exp.map((e) => r(e * 1.4)), '2': exp.map((e) => r(e * 1.9)) },
+    theory: { central, lower: central.map((c) => r(c * 0.8)), upper: central.map((c) => r(c * 1.2)) },
+  };
+}
+
+/** A plane as CSV text (two parameter columns first), with the given headers. */
+export function samplePlaneCsv(plane: Plane = samplePlane(), headers = ['m_X [GeV]', 'm_chi [GeV]', 'obs', 'exp', 'exp_m2', 'exp_m1', 'exp_p1', 'exp_p2', 'theory', 'theory_low', 'theory_up']): string {
+  const e = plane.expected!;
+  const t = plane.theory!;
+  const cols = [plane.x, plane.y, plane.observed!, e['0']!, e['-2']!, e['-1']!, e['1']!, e['2']!, t.central, t.lower!, t.upper!];
+  return `${[headers.join(','), ...plane.x.map((_, i) => cols.map((c) => String(c[i])).join(','))].join('\n')}\n`;
+}
+
+/** Creates a two-parameter result (version 1, a draft) through the API as `person` from a JSON body. */
+export async function makePlaneResult(person: Person, groupId: string, opts: { meta?: Partial<VersionMetaInput>; plane?: Plane } = {}): Promise<ResultVersion> {
+  const res = await person.agent.post(`/api/groups/${groupId}/results`).send({ meta: sampleMeta({ parameterName: 'm_X', parameterUnit: 'GeV', ...opts.meta }), plane: opts.plane ?? samplePlane() });
+  if (res.status !== 201) throw new Error(`plane result creation failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return res.body as ResultVersion;
 }
 
 /** The curve (and theory on the same grid) as CSV text with the given delimiter and headers. */

@@ -31,6 +31,8 @@ const version: ResultVersion = {
   meta: { title: 'T', model: '', parameterName: 'm', parameterUnit: 'TeV', quantity: 'xsec', quantityUnit: 'fb', sqrtS: 18, luminosity: 140, cl: 0.95, method: 'asymptotic', reference: '', notes: '' },
   curve: { x: [1, 2, 3], observed: [3, 1, 0.5], expected: { '0': [2, 1, 0.4], '-1': [1.5, 0.8, 0.3], '1': [2.6, 1.3, 0.55] } },
   theory: { x: [1, 2, 3], central: [10, 2, 0.2] },
+  plane: null,
+  planeContours: null,
   exclusion: { ranges: { observed: [{ from: 1, to: 2.6, fromOpen: true }], expected: { '0': [{ from: 1.2, to: 2.75 }] } }, problem: null },
   permalink: null,
   sourceFile: null,
@@ -91,7 +93,7 @@ test('excluded ranges read as "excluded: …" with open ends; without theory the
 });
 
 test('the quick plot draws once it knows its width and describes itself to screen readers', () => {
-  render(<QuickPlot curve={version.curve} theory={version.theory} xLabel="m [TeV]" yLabel="Upper limit on σ×B [fb]" height={240} />);
+  render(<QuickPlot curve={version.curve!} theory={version.theory} xLabel="m [TeV]" yLabel="Upper limit on σ×B [fb]" height={240} />);
   const img = screen.getByLabelText(/^Plot of observed, expected median, ±1σ band, theory for Upper limit on σ×B \[fb\] against m \[TeV\]/);
   expect(img.props.role).toBe('img');
   expect(screen.queryByText('m [TeV]')).toBeNull();
