@@ -31,6 +31,9 @@ import { PLANE_FORBIDDEN_FILL, PLANE_SEQUENTIAL } from '../../themes/figure/pale
 /** Colours the map is quantised to (adjacent equal cells of a row are drawn as one rectangle). */
 export const PLANE_COLOR_LEVELS = 64;
 
+/** Roles of the paths made of grid cells. */
+const CELL_ROLES = new Set(['color-map', 'forbidden', 'excluded']);
+
 /** Which stored contour a drawn line is, in the CSV's words. */
 export type PlaneLineKind = 'observed' | 'expected' | 'expected_minus_1sigma' | 'expected_plus_1sigma' | 'observed_theory_lower' | 'observed_theory_upper';
 
@@ -358,8 +361,10 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
         let e = i + 1;
         while (e < nx && levelOf(j * nx + e) === level) e++;
         const d = rectPath(ex[i]!, ey[j + 1]!, ex[e]! - ex[i]!, ey[j]! - ey[j + 1]!);
-        if (level >= 0) levels[level] += d;
-        else if (level === -1) holes += d;
+        // Only cells that reach the plot (a fixed axis range may leave some wholly outside it).
+        const reaches = !(ex[e]! < plot.x || ex[i]! > plotRight || ey[j]! < plot.y || ey[j + 1]! > plotBottom);
+        if (reaches && level >= 0) levels[level] += d;
+        else if (reaches && level === -1) holes += d;
         i = e;
       }
     }
@@ -383,7 +388,7 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
           const k = g.index[j * g.xs.length + i]!;
           if (k < 0) continue;
           const ratio = xsec ? p.observed[k]! / (p.theory?.central[k] ?? NaN) : p.observed[k]!;
-          if (ratio < 1) d += rectPath(ex[i]!, ey[j + 1]!, ex[i + 1]! - ex[i]!, ey[j]! - ey[j + 1]!);
+          if (ratio < 1 && !(ex[i + 1]! < plot.x || ex[i]! > plotRight || ey[j]! < plot.y || ey[j + 1]! > plotBottom)) d += rectPath(ex[i]!, ey[j + 1]!, ex[i + 1]! - ex[i]!, ey[j]! - ey[j + 1]!);
         }
       }
       path(d, { fill: l.color, opacity: 0.18 }, 'excluded', l.index);
@@ -512,7 +517,8 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
     heightPt: H,
     background: theme.colors.background,
     plot,
-    items: items.filter((p) => p.kind !== 'path' || !p.clip || touches(pathBounds(p.d), plot, p.strokeWidth + hatchLen)),
+    // Cell paths lie within the grid's range on the axes, which the axes cover: not parsed again.
+    items: items.filter((p) => p.kind !== 'path' || !p.clip || CELL_ROLES.has(p.role) || touches(pathBounds(p.d), plot, p.strokeWidth + hatchLen)),
     legendCorner: plan.legend.length ? 'top-left' : 'none',
     notes: [...plan.notes],
     oversizeLabels: oversize.found,
