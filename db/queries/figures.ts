@@ -197,6 +197,8 @@ export async function getLayerVersions(db: Executor, viewer: Viewer, pins: { res
       curve: resultVersions.curve,
       theory: resultVersions.theory,
       envelope: resultVersions.envelope,
+      plane: resultVersions.plane,
+      planeContours: resultVersions.planeContours,
     })
     .from(resultVersions)
     .innerJoin(results, eq(results.id, resultVersions.resultId))

@@ -1,9 +1,15 @@
 /**
  * Benchmark of the two-parameter contours (`npm run bench:planes`): prints the median time of the
  * five derived lines of a 100 × 100 plane (grid check included) and whether it meets the target.
+ * Then a plane figure (colour map of that plane and 3 overlaid results): scene + SVG, PDF and PNG
+ * at 300 dpi, drawn in this process (the routes draw PDF/PNG in a renderer process, with the same code).
  * Not a timed test: machines differ, so CI does not fail on it. The plane is invented.
  */
+import { buildFigure } from '@/server/figures/scene';
+import { svgToPdf, svgToPng } from '@/server/figures/render';
+import type { FigureLayerData } from '@/shared/figure/types';
 import { planeContours } from '@/shared/plane/contours';
+import { figureSpecSchema } from '@/shared/schemas/figures';
 import { planeGrid } from '@/shared/plane/grid';
 import type { Plane } from '@/shared/schemas/plane';
 
@@ -55,3 +61,32 @@ const allMs = timeMs(() => {
 console.log(`Plane contours benchmark (medians, one core): ${plane.x.length} points of a 100 × 100 grid, ${lines} lines\n`);
 console.log(`grid check and index (planeGrid)                 ${gridMs.toFixed(2).padStart(7)} ms`);
 console.log(`all five lines (planeContours, grid included)    ${allMs.toFixed(2).padStart(7)} ms  target ≤ 20 ms ${allMs <= 20 ? 'met' : 'NOT MET'}`);
+
+// The figure: the plane as colour map and 3 results (the same plane scaled) with their contours.
+const IDS = ['11111111-1111-4111-8111-111111111111', '22222222-2222-4222-8222-222222222222', '33333333-3333-4333-8333-333333333333'];
+const scaled = (f: number): Plane => ({ ...plane, observed: plane.observed!.map((v) => v * f), expected: Object.fromEntries(Object.entries(plane.expected!).map(([k, v]) => [k, v!.map((x) => x * f)])) });
+const data: FigureLayerData[] = [1, 0.7, 1.4].map((f, i) => {
+  const p = scaled(f);
+  const title = `Invented search ${i + 1}`;
+  const meta = { title, model: '', parameterName: 'm(X)', parameterUnit: 'GeV', quantity: 'xsec' as const, quantityUnit: 'fb' as const, sqrtS: 18, luminosity: 140, cl: 0.95, method: 'asymptotic' as const, reference: '', notes: '' };
+  return { available: true, resultId: IDS[i]!, version: 1, title, meta, curve: { x: [] }, theory: null, hue: i, plane: { plane: p, contours: planeContours(p, 'xsec') } };
+});
+const spec = figureSpecSchema.parse({ title: 'Plane', kind: 'plane', theme: 'publication', size: { preset: 'two-column' }, y: { scale: 'linear' }, layers: IDS.map((resultId) => ({ resultId, version: 1 })) });
+
+async function figureRows() {
+  let built = buildFigure(spec, data, null);
+  const sceneMs = timeMs(() => void (built = buildFigure(spec, data, null)), 21);
+  const pdfTimes: number[] = [];
+  for (let i = 0; i < 9; i++) {
+    const t0 = performance.now();
+    await svgToPdf(built.svg, built.scene, built.glyphs, { title: spec.title, created: new Date(0) });
+    if (i >= 2) pdfTimes.push(performance.now() - t0);
+  }
+  const pngMs = timeMs(() => void svgToPng(built.svg, built.scene.widthPt, 300), 9);
+  const pdfMs = median(pdfTimes);
+  console.log(`\nPlane figure: colour map of ${plane.x.length} points, 3 results' contours, two columns (${(built.svg.length / 1024).toFixed(0)} KB SVG), in this process`);
+  console.log(`scene + SVG (typesetting warm)                   ${sceneMs.toFixed(2).padStart(7)} ms  target ≤ 60 ms ${sceneMs <= 60 ? 'met' : 'NOT MET'}`);
+  console.log(`PDF (svg2pdf + jsPDF)                            ${pdfMs.toFixed(2).padStart(7)} ms  target ≤ 400 ms ${pdfMs <= 400 ? 'met' : 'NOT MET'}`);
+  console.log(`PNG at 300 dpi (resvg)                           ${pngMs.toFixed(2).padStart(7)} ms  target ≤ 500 ms ${pngMs <= 500 ? 'met' : 'NOT MET'}`);
+}
+void figureRows();

@@ -5,7 +5,7 @@ import { HUE_COUNT } from '../../themes/figure/palette';
 import * as q from '../../db/queries/figures';
 import { audienceViewer, versionVisibleTo, type Audience, type VersionFacts } from '../../db/queries/visibility';
 import type { Executor } from '../../db/client';
-import { layerConversion } from '../../shared/figure/plan';
+import { layerConversion, layerKindProblem } from '../../shared/figure/plan';
 import type { LimitUnits } from '../../shared/units';
 import { AppError, type ErrorDetail } from '../lib/errors';
 
@@ -46,7 +46,7 @@ export async function layerRows(db: Executor, groupId: string, spec: FigureSpec)
 export async function assertLayersUsable(db: Executor, groupId: string, spec: FigureSpec) {
   const rows = await layerRows(db, groupId, spec);
   const details: ErrorDetail[] = [];
-  let axis: LimitUnits | null = null;
+  let axis: (LimitUnits & { yUnit?: string }) | null = null;
   spec.layers.forEach((l, i) => {
     const row = rows.get(pinKey(l.resultId, l.version));
     if (!layerVisible(row, groupId, 'group')) {
@@ -56,11 +56,12 @@ export async function assertLayersUsable(db: Executor, groupId: string, spec: Fi
       });
       return;
     }
-    if (!row.curve) {
-      details.push({ field: `spec.layers.${i}`, message: `“${row.title}” (version ${l.version}) is a result over two parameters: a figure of limit curves cannot draw it` });
+    const kindProblem = layerKindProblem(spec.kind, !row.curve);
+    if (kindProblem) {
+      details.push({ field: `spec.layers.${i}`, message: `“${row.title}” (version ${l.version}) cannot go on this figure: ${kindProblem}` });
       return;
     }
-    const units: LimitUnits = { parameterUnit: row.parameterUnit, quantity: row.quantity as LimitUnits['quantity'], quantityUnit: row.quantityUnit };
+    const units = { parameterUnit: row.parameterUnit, quantity: row.quantity as LimitUnits['quantity'], quantityUnit: row.quantityUnit, yUnit: row.plane?.yUnit };
     if (!axis) {
       axis = units;
       return;
@@ -154,11 +155,15 @@ export async function groupLayerData(db: Executor, groupId: string, layers: { re
 type LayerRow = Awaited<ReturnType<typeof q.getLayerVersions>>[number];
 
 /**
- * A loaded layer version as the scene builder takes it; a version over two parameters (saved
- * figures refuse it, see `assertLayersUsable`) is not drawn.
+ * A loaded layer version as the scene builder takes it: a curve, or a version over two parameters
+ * with its plane and stored contours (only a plane figure draws it: the scene leaves a layer of
+ * the other sort out with a note, `layerKindProblem`, and saving refuses it).
  */
 export function availableLayer(row: LayerRow, hue: number): FigureLayerData {
-  if (!row.curve) return { available: false, resultId: row.resultId, version: row.version };
+  if (!row.curve) {
+    if (!row.plane || !row.planeContours) return { available: false, resultId: row.resultId, version: row.version };
+    return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: { x: [] }, theory: null, hue, sources: null, plane: { plane: row.plane, contours: row.planeContours } };
+  }
   return { available: true, resultId: row.resultId, version: row.version, title: row.title, meta: metaOf(row), curve: row.curve, theory: row.theory ?? null, hue, sources: row.envelope ?? null };
 }
 

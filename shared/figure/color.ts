@@ -41,6 +41,20 @@ export function tint(hex: string, t: number): string {
   return toHex(parseHex(hex).map((c) => linearToSrgb(srgbToLinear(c) * (1 - k) + k)) as Rgb);
 }
 
+/**
+ * The colour at t (0…1) of a sequential ramp, interpolated in linear light between equally spaced
+ * stops: luminance is linear in linear light, so a ramp whose stops rise in lightness rises
+ * between them too.
+ */
+export function rampColor(stops: readonly string[], t: number): string {
+  const k = Math.min(1, Math.max(0, Number.isFinite(t) ? t : 0)) * (stops.length - 1);
+  const i = Math.min(stops.length - 2, Math.floor(k));
+  const f = k - i;
+  const a = parseHex(stops[i]!).map(srgbToLinear);
+  const b = parseHex(stops[i + 1]!).map(srgbToLinear);
+  return toHex(a.map((v, c) => linearToSrgb(v * (1 - f) + b[c]! * f)) as Rgb);
+}
+
 // D65 reference white (CIE 15:2004), and the sRGB → XYZ matrix (IEC 61966-2-1:1999).
 const WHITE: [number, number, number] = [0.95047, 1, 1.08883];
 

@@ -5,6 +5,7 @@
 import type { FigureSpec } from '../schemas/figures';
 import { labelPlainText } from './labels';
 import { canCompare, drawnLayers, shortNumber, type DrawnLayer } from './plan';
+import { planeLayers } from './plane';
 import { planRanges, type RangeBar } from './ranges';
 import { resolveFigureTheme } from './theme';
 import type { FigureLayerData } from './types';
@@ -44,6 +45,7 @@ function plottedColumns(l: DrawnLayer): [string, readonly number[], readonly num
  */
 export function figureCsv(spec: FigureSpec, layers: FigureLayerData[]): string {
   if (spec.kind === 'ranges') return rangesCsv(spec, layers);
+  if (spec.kind === 'plane') return planeCsv(spec, layers);
   const theme = resolveFigureTheme(spec.theme);
   const rows = ['layer,quantity,x,value,x_unit,value_unit'];
   for (const l of drawnLayers(spec, layers, theme).drawn) {
@@ -71,6 +73,7 @@ function listing(items: string[]): string {
  */
 export function captionDraft(spec: FigureSpec, layers: FigureLayerData[]): string {
   if (spec.kind === 'ranges') return rangesCaption(spec, layers);
+  if (spec.kind === 'plane') return planeCaption(spec, layers);
   const theme = resolveFigureTheme(spec.theme);
   const outreach = theme.name === 'outreach';
   const { drawn, hidden } = drawnLayers(spec, layers, theme);
@@ -164,6 +167,63 @@ function rangesCaption(spec: FigureSpec, layers: FigureLayerData[]): string {
       else if (!b.observed || b.observed.length === 0) parts.push(`${name}: ${outreach ? 'nothing ruled out' : 'nothing excluded (observed)'}.`);
       else parts.push(`${name}: ${outreach ? 'ruled out' : 'excluded'} ${rangeWords(b)}.`);
     }
+  }
+  if (hidden > 0) parts.push(hidden === 1 ? 'One further result is not shown.' : `${hidden} further results are not shown.`);
+  return parts.join(' ');
+}
+
+/**
+ * A plane figure's drawn contours as CSV: `layer,line,piece,x,y,x_unit,y_unit`, one row per vertex,
+ * layers in figure order; `line` is observed, expected, expected_minus/plus_1sigma or
+ * observed_theory_lower/upper, `piece` the line's number (from 1) among that layer's lines of that
+ * kind. A closed line's first vertex is not repeated. Only the lines the figure draws.
+ */
+function planeCsv(spec: FigureSpec, layers: FigureLayerData[]): string {
+  const rows = ['layer,line,piece,x,y,x_unit,y_unit'];
+  for (const l of planeLayers(spec, layers, resolveFigureTheme(spec.theme)).layers) {
+    const head = cell(labelPlainText(l.name));
+    const units = [cell(labelPlainText(l.data.meta.parameterUnit)), cell(labelPlainText(l.plane.plane.yUnit))].join(',');
+    for (const group of l.lines) {
+      group.lines.forEach((line, p) => {
+        for (const [x, y] of line.points) rows.push([head, group.kind, p + 1, cell(x), cell(y), units].join(','));
+      });
+    }
+  }
+  return `${rows.join('\r\n')}\r\n`;
+}
+
+/** The caption draft of a plane figure. */
+function planeCaption(spec: FigureSpec, layers: FigureLayerData[]): string {
+  const theme = resolveFigureTheme(spec.theme);
+  const outreach = theme.name === 'outreach';
+  const { layers: drawn, hidden } = planeLayers(spec, layers, theme);
+  const parts: string[] = [];
+  if (drawn.length === 0) parts.push(outreach ? 'No searches are shown.' : 'No results are shown in this figure.');
+  else {
+    const first = drawn[0]!;
+    const meta = first.data.meta;
+    const px = labelPlainText(`${meta.parameterName}${meta.parameterUnit ? ` (${meta.parameterUnit})` : ''}`);
+    const py = labelPlainText(`${first.plane.plane.yName}${first.plane.plane.yUnit ? ` (${first.plane.plane.yUnit})` : ''}`);
+    const cls = [...new Set(drawn.map((l) => shortNumber(l.data.meta.cl * 100)))].join('/');
+    const results = drawn.map((l) => {
+      const ref = l.data.meta.reference.trim();
+      return outreach ? labelPlainText(l.name) : `${labelPlainText(l.name)} (${ref ? `${ref}, ` : ''}version ${l.data.version})`;
+    });
+    if (outreach) {
+      parts.push(`Where new particles are ruled out, by their two masses or settings ${px} and ${py}, from ${listing(results)}.`);
+      parts.push('Solid lines: the edge of what the data rule out; dashed lines: the expected reach if there is no new particle.');
+    } else {
+      parts.push(`Observed (solid) and expected (dashed) ${cls}% CL exclusion contours in the plane of ${px} and ${py}, from ${listing(results)}.`);
+      if (drawn.some((l) => l.lines.some((k) => k.kind === 'expected_minus_1sigma' || k.kind === 'expected_plus_1sigma'))) parts.push('Thin dashed lines: the expected contours at ±1σ.');
+      if (drawn.some((l) => l.lines.some((k) => k.kind.startsWith('observed_theory')))) parts.push('Thin solid lines: the observed contour with the theory prediction at its ±1σ edges.');
+    }
+    if (spec.plane.colorMap && first.plane.plane.observed) {
+      const q = meta.quantity === 'xsec' ? `σ×B${meta.quantityUnit ? ` (${labelPlainText(meta.quantityUnit)})` : ''}` : 'the signal strength μ';
+      parts.push(outreach ? `Colours: the smallest signal ruled out at each point by ${labelPlainText(first.name)}.` : `Colours: the observed ${shortNumber(meta.cl * 100)}% CL upper limit on ${q} of ${labelPlainText(first.name)} (log scale).`);
+    }
+    if (spec.plane.excludedMark !== 'none') parts.push(outreach ? `The ${spec.plane.excludedMark === 'hatch' ? 'ticked' : 'shaded'} side of each solid line is ruled out.` : `The excluded side of each observed contour is ${spec.plane.excludedMark === 'hatch' ? 'hatched' : 'shaded'}.`);
+    const energies = [...new Set(drawn.map((l) => `√s = ${shortNumber(l.data.meta.sqrtS)} TeV, ${shortNumber(l.data.meta.luminosity)} fb⁻¹`))];
+    parts.push(outreach ? `Collision energy: ${[...new Set(drawn.map((l) => `${shortNumber(l.data.meta.sqrtS)} TeV`))].join(', ')}.` : `${listing(energies)}.`);
   }
   if (hidden > 0) parts.push(hidden === 1 ? 'One further result is not shown.' : `${hidden} further results are not shown.`);
   return parts.join(' ');

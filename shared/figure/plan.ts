@@ -12,7 +12,8 @@ import { LEGEND_CORNERS, type Corner } from './legend';
 import { roomForBoxes, roughInfoSize, roughLegendSize, roughWidth } from './room';
 import { axisDomain, axisUnit, planAxisTicks, type AxisPlan } from './ticks';
 import { conversionTo, convertCurve, convertTheory, describeConversion, isIdentity, parameterConversionTo, type LimitUnits, type UnitConversion } from '../units';
-import type { FigureLayerData, LabelRequest } from './types';
+import type { ContourLine } from '../plane/contours';
+import type { FigureLayerData, LabelRequest, PlaneLayerData } from './types';
 
 /** Layer data the viewer may see. */
 export type AvailableLayer = Extract<FigureLayerData, { available: true }>;
@@ -116,8 +117,26 @@ export function shortNumber(v: number): string {
  * (and refuses μ with σ×B); a summary of excluded ranges shares only the parameter axis, each bar
  * comparing its result with its own theory. The one rule for the scene and for saving a figure.
  */
-export function layerConversion(kind: FigureKind, from: LimitUnits, to: LimitUnits): UnitConversion {
+export function layerConversion(kind: FigureKind, from: LimitUnits & { yUnit?: string }, to: LimitUnits & { yUnit?: string }): UnitConversion {
+  if (kind === 'plane') {
+    // Contours are where a ratio is 1, in no unit: only the two parameter axes must agree (the
+    // colour map is the first layer's own). The second parameter's unit is free text: equal or refused.
+    const fy = (from.yUnit ?? '').trim();
+    const ty = (to.yUnit ?? '').trim();
+    if (fy !== ty) return { ok: false, reason: `its second parameter is in ${fy || 'no unit'}, the figure's in ${ty || 'no unit'}` };
+    return parameterConversionTo(from, to);
+  }
   return kind === 'ranges' ? parameterConversionTo(from, to) : conversionTo(from, to);
+}
+
+/**
+ * Why a layer cannot go on a figure of this kind, or null: a plane figure draws results over two
+ * parameters only, the other kinds one-parameter results only. The one rule for saving
+ * (`spec.layers.N`) and for drawing stored figures (the layer is left out with a note).
+ */
+export function layerKindProblem(kind: FigureKind, twoParameter: boolean): string | null {
+  if (kind === 'plane') return twoParameter ? null : 'it is a result over one parameter: a figure of a two-parameter plane draws results over two parameters only';
+  return twoParameter ? `it is a result over two parameters: a ${kind === 'ranges' ? 'summary of excluded ranges' : 'figure of limit curves'} cannot draw it` : null;
 }
 
 /** A layer left out because its units cannot go on the figure's axes, or drawn after converting them. */
@@ -138,7 +157,7 @@ export function drawnLayers(
   const unitNotes: UnitNote[] = [];
   const refused: UnitNote[] = [];
   let hidden = 0;
-  let axisUnits: LimitUnits | null = null;
+  let axisUnits: (LimitUnits & { yUnit?: string }) | null = null;
   const bandLayers = new Set(bandsLayersOf(spec));
   spec.layers.forEach((ls, i) => {
     const d = layers[i];
@@ -148,8 +167,13 @@ export function drawnLayers(
       return;
     }
     const name = ls.label.trim() || data.title;
+    const kindProblem = layerKindProblem(spec.kind, !!data.plane);
+    if (kindProblem) {
+      refused.push({ index: i, name, text: fill(theme.words.unitsRefused, { layer: name, reason: kindProblem }) });
+      return;
+    }
     let xFactor = 1;
-    const units: LimitUnits = { parameterUnit: data.meta.parameterUnit, quantity: data.meta.quantity, quantityUnit: data.meta.quantityUnit };
+    const units = { parameterUnit: data.meta.parameterUnit, quantity: data.meta.quantity, quantityUnit: data.meta.quantityUnit, yUnit: data.plane?.plane.yUnit };
     if (!axisUnits) axisUnits = units;
     else {
       const c = layerConversion(spec.kind, units, axisUnits);
@@ -165,6 +189,7 @@ export function drawnLayers(
           ...data,
           curve: convertCurve(data.curve, c),
           theory: data.theory ? convertTheory(data.theory, c) : data.theory,
+          plane: data.plane ? convertPlaneX(data.plane, c.x) : data.plane,
           meta: { ...data.meta, parameterUnit: target.parameterUnit, quantityUnit: target.quantityUnit as typeof data.meta.quantityUnit },
         };
       }
@@ -195,6 +220,23 @@ export function drawnLayers(
     if (ambiguous.has(shortNumber(l.data.meta.sqrtS)) && !says) l.heading = fill(theme.words.layerLumi, { layer: l.name, lumi });
   }
   return { drawn, hidden, unitNotes, refused };
+}
+
+/** A plane layer's points and contours with the first parameter multiplied by `f` (a unit change). */
+function convertPlaneX(p: PlaneLayerData, f: number): PlaneLayerData {
+  if (f === 1) return p;
+  const lines = (ls: ContourLine[] | undefined) => ls?.map((l) => ({ ...l, points: l.points.map(([x, y]) => [x * f, y] as [number, number]) }));
+  const c = p.contours;
+  return {
+    plane: { ...p.plane, x: p.plane.x.map((x) => x * f) },
+    contours: {
+      ...c,
+      observed: lines(c.observed),
+      expected: Object.fromEntries(Object.entries(c.expected).map(([k, v]) => [k, lines(v)])),
+      observedTheoryLower: lines(c.observedTheoryLower),
+      observedTheoryUpper: lines(c.observedTheoryUpper),
+    },
+  };
 }
 
 /** Energies (as written) whose layers differ in luminosity. */

@@ -11,6 +11,7 @@ import { cornerBox, densify, layoutLegend, n, overlaps, placeBoxes, type Corner 
 import { bandColors, noteHalves, planFigure, planLabels, type DrawnLayer } from './plan';
 import { axisPrimitives, fitMargins, oversizeCheck, pageMeasures, pathBounds, touches } from './draw';
 import { buildRangesScene, planRanges, rangesLabels } from './ranges';
+import { buildPlaneScene, planeLabels, planPlane } from './plane';
 import type { ResolvedTheme } from './theme';
 import { thinLabels, type AxisPlan } from './ticks';
 import type { FigureLayerData, LabelRequest, Measure, Primitive, Rect, Scene, TextMetrics } from './types';
@@ -23,6 +24,7 @@ export { pathBounds };
  */
 export function collectLabels(spec: FigureSpec, layers: FigureLayerData[], theme: ResolvedTheme): LabelRequest[] {
   if (spec.kind === 'ranges') return rangesLabels(spec, planRanges(spec, layers, theme));
+  if (spec.kind === 'plane') return planeLabels(spec, planPlane(spec, layers, theme));
   return planLabels(spec, planFigure(spec, layers, theme));
 }
 
@@ -71,6 +73,7 @@ function excludedRanges(limit: Pt[], theory: Pt[]): ExcludedRange[] {
  */
 export function buildScene(spec: FigureSpec, layers: FigureLayerData[], theme: ResolvedTheme, measure: Measure): Scene {
   if (spec.kind === 'ranges') return buildRangesScene(spec, planRanges(spec, layers, theme), measure);
+  if (spec.kind === 'plane') return buildPlaneScene(spec, planPlane(spec, layers, theme), measure);
   const plan = planFigure(spec, layers, theme);
   const W = plan.widthPt;
   const H = plan.heightPt;

@@ -6,6 +6,7 @@
  * Units are points (1/72 inch); the origin is the top-left corner and y grows downwards.
  */
 import type { EnvelopeSources } from '../schemas/combine';
+import type { Plane, PlaneContours } from '../schemas/plane';
 import type { Curve, Theory, VersionMeta } from '../schemas/results';
 
 import type { FontRole } from '../../themes/figure/types';
@@ -91,6 +92,12 @@ export type Scene = {
 export type OversizeLabel = { field: string; label: string; message: string };
 
 /**
+ * A two-parameter layer's points and the contour lines stored with its version (the registry
+ * derives them once, when the version is written; figures never recompute them).
+ */
+export type PlaneLayerData = { plane: Plane; contours: PlaneContours };
+
+/**
  * One layer's data as loaded for a viewer. `available: false` means the viewer may not see that
  * result version (or it is gone): the scene leaves it out and says so in `notes`, never leaking it.
  */
@@ -106,5 +113,10 @@ export type FigureLayerData =
       hue: number;
       /** For a best-expected envelope: its inputs' titles and which one it takes where. */
       sources?: EnvelopeSources | null;
+      /**
+       * A version over two parameters: its plane and stored contours (its `curve` is then empty,
+       * `{ x: [] }`, and `theory` null). Only a figure of kind `plane` draws it, and draws nothing else.
+       */
+      plane?: PlaneLayerData | null;
     }
   | { available: false; resultId: string; version: number };

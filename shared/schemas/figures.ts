@@ -98,13 +98,33 @@ export const layerSchema = z.object({
 export type LayerSpec = z.output<typeof layerSchema>;
 
 /**
- * What a figure draws: `limits`, the limit curves against the parameter (the default), or
+ * What a figure draws: `limits`, the limit curves against the parameter (the default),
  * `ranges`, a summary of excluded ranges: one horizontal bar per layer over the parameter axis,
- * its observed excluded range(s) against its theory filled and the expected one outlined.
+ * its observed excluded range(s) against its theory filled and the expected one outlined, or
+ * `plane`, results over two parameters: the first layer's observed limit as a colour map and
+ * every layer's contour lines (`spec.y` is then the second parameter's axis).
  */
-export const FIGURE_KINDS = ['limits', 'ranges'] as const;
+export const FIGURE_KINDS = ['limits', 'ranges', 'plane'] as const;
 export type FigureKind = (typeof FIGURE_KINDS)[number];
-export const FIGURE_KIND_LABELS: Record<FigureKind, string> = { limits: 'Limit plot', ranges: 'Summary of excluded ranges' };
+export const FIGURE_KIND_LABELS: Record<FigureKind, string> = { limits: 'Limit plot', ranges: 'Summary of excluded ranges', plane: 'Two-parameter plane' };
+
+/** Whether a kind draws results over two parameters (its layers pin such versions only). */
+export const isPlaneKind = (kind: FigureKind) => kind === 'plane';
+
+/** Cells of the plane with no point (e.g. a kinematically forbidden corner): left blank or drawn in grey. */
+export const PLANE_FORBIDDEN_STYLES = ['blank', 'drawn'] as const;
+/** How the excluded side of the observed contour is marked: short hatch ticks, a light shading, or not at all. */
+export const PLANE_EXCLUDED_MARKS = ['hatch', 'shade', 'none'] as const;
+export const PLANE_EXCLUDED_MARK_LABELS: Record<(typeof PLANE_EXCLUDED_MARKS)[number], string> = { hatch: 'Hatch ticks on the excluded side', shade: 'Light shading', none: 'Not marked' };
+
+export const planeOptionsSchema = z.object({
+  /** The first layer's observed limit as a colour map (log colour scale, with a colour bar). */
+  colorMap: z.boolean().default(true),
+  forbidden: z.enum(PLANE_FORBIDDEN_STYLES, { error: `must be one of ${PLANE_FORBIDDEN_STYLES.join(', ')}` }).default('blank'),
+  excludedMark: z.enum(PLANE_EXCLUDED_MARKS, { error: `must be one of ${PLANE_EXCLUDED_MARKS.join(', ')}` }).default('hatch'),
+});
+export type PlaneOptions = z.output<typeof planeOptionsSchema>;
+export const DEFAULT_PLANE_OPTIONS: PlaneOptions = { colorMap: true, forbidden: 'blank', excludedMark: 'hatch' };
 
 /** How bars of a summary of excluded ranges are ordered (within each model when grouped). */
 export const RANGE_SORTS = ['listed', 'reach', 'title'] as const;
@@ -151,6 +171,8 @@ export const figureSpecSchema = z
     kind: z.enum(FIGURE_KINDS, { error: `must be one of ${FIGURE_KINDS.join(', ')}` }).default('limits'),
     /** Options of the `ranges` kind (kept, unused, on a limit plot). */
     ranges: rangesOptionsSchema.default(DEFAULT_RANGES_OPTIONS),
+    /** Options of the `plane` kind (kept, unused, on the other kinds). */
+    plane: planeOptionsSchema.default(DEFAULT_PLANE_OPTIONS),
     theme: z.enum(FIGURE_THEMES, { error: `must be one of ${FIGURE_THEMES.join(', ')}` }),
     size: z.object({
       preset: z.enum(SIZE_PRESET_IDS, { error: `must be one of ${SIZE_PRESET_IDS.join(', ')}` }),

@@ -35,3 +35,15 @@ export const FIGURE_NEUTRALS = {
   legendFill: '#ffffff',
   grid: '#e4e6e9',
 } as const;
+
+/**
+ * The sequential colours of a two-parameter colour map (low to high on its log scale), our own:
+ * deep indigo through teal to pale straw. Lightness rises at every stop (L* ≈ 8 to 90, about 10
+ * a step) with normal vision, in greyscale and under simulated protanopia and deuteranopia, so
+ * the map reads in print and for colour-blind readers (tests/unit/figure/palette.test.ts). The
+ * figure interpolates between the stops in linear light (`rampColor` in shared/figure/color.ts).
+ */
+export const PLANE_SEQUENTIAL = ['#1a0f3d', '#2c1e6e', '#2f3f94', '#2a629f', '#25829f', '#2fa197', '#62bb85', '#a6d27a', '#eee69c'] as const;
+
+/** Cells of a plane with no point, when the figure draws them (`forbidden: 'drawn'`). */
+export const PLANE_FORBIDDEN_FILL = '#c9cbcf';

@@ -42,6 +42,16 @@ export const TECHNICAL_WORDS: FigureWords = {
   rangesNoModel: 'No model given',
   rangesCrowded: '{n} bars are tighter than their labels at this size: choose a taller size',
   rangesExplain: null,
+  planeObserved: 'Observed',
+  planeExpected: 'Expected',
+  planeBand: 'Expected $\\pm 1\\sigma$',
+  planeTheory: 'Observed, theory $\\pm 1\\sigma$',
+  planeOf: '{layer}, {part}',
+  planeExcludedSide: 'Excluded side',
+  planeForbidden: 'No points',
+  planeLimitXsec: '{cl}% CL limit on $\\sigma \\times B$ [{unit}]',
+  planeLimitMu: '{cl}% CL limit on $\\mu$',
+  planeExplain: null,
 };
 
 /**

@@ -76,6 +76,22 @@ export type FigureWords = {
   rangesCrowded: string;
   /** One line saying what the bars mean (plain-language themes), or null for none. */
   rangesExplain: string | null;
+  /**
+   * Two-parameter plane: the legend rows of a layer's contour lines (alone; with several layers
+   * `planeOf` puts the layer's name before the part, `{layer}` and `{part}`), the marked excluded
+   * side, cells with no point, the colour bar's title (`{cl}`, `{unit}`) and the second axis.
+   */
+  planeObserved: string;
+  planeExpected: string;
+  planeBand: string;
+  planeTheory: string;
+  planeOf: string;
+  planeExcludedSide: string;
+  planeForbidden: string;
+  planeLimitXsec: string;
+  planeLimitMu: string;
+  /** One line saying what the lines mean (plain-language themes), or null for none. */
+  planeExplain: string | null;
 };
 
 /** One figure theme's tokens. */
