@@ -99,7 +99,9 @@ export function LayersPanel({
   const bands = bandsLayersOf(spec);
   // A summary of excluded ranges draws one bar per layer: its observed and expected ranges only.
   const ranges = spec.kind === 'ranges';
-  const parts = ranges ? PART_LABELS.filter(([k]) => k === 'observed' || k === 'expected') : PART_LABELS;
+  // A plane draws contour lines per layer: observed, expected (with its ±1σ lines) and the theory variations.
+  const plane = spec.kind === 'plane';
+  const parts = ranges ? PART_LABELS.filter(([k]) => k === 'observed' || k === 'expected') : plane ? PART_LABELS.filter(([k]) => k === 'observed' || k === 'expected' || k === 'band1' || k === 'theoryBand') : PART_LABELS;
   return (
     <View style={styles.col}>
       {spec.layers.length === 0 ? <Text variant="muted">No layers yet: add results below.</Text> : null}
@@ -139,7 +141,7 @@ export function LayersPanel({
                   onChangeText={(t) => onChange(updateLayer(spec, i, { note: t }), `note-${i}`)}
                 />
               </>
-            ) : (
+            ) : plane ? null : (
               <Checkbox label={`Layer ${i + 1} carries the ±1σ/±2σ bands`} checked={bands.includes(i)} onChange={(v) => onChange(setLayerBands(spec, i, v))} />
             )}
             {!ranges && d && d.available && d.sources?.segments.length ? (
@@ -151,7 +153,7 @@ export function LayersPanel({
               />
             ) : null}
             <LayerColor layer={layer} index={i} palette={swatches} onChange={(patch, key) => onChange(updateLayer(spec, i, patch), key)} />
-            {ranges ? null : (
+            {ranges || plane ? null : (
               <>
                 <Text variant="label">Observed line of layer {i + 1}</Text>
                 <ChoiceGroup

@@ -4,6 +4,8 @@ import {
   FIGURE_KINDS,
   FIGURE_THEMES,
   LEGEND_POSITIONS,
+  PLANE_EXCLUDED_MARK_LABELS,
+  PLANE_EXCLUDED_MARKS,
   RANGE_SORT_LABELS,
   RANGE_SORTS,
   SIZE_PRESETS,
@@ -11,6 +13,7 @@ import {
   type FigureKind,
   type FigureSpec,
   type FigureTheme,
+  type PlaneOptions,
   type RangeSort,
   type RangesOptions,
 } from '@/shared/schemas/figures';
@@ -54,6 +57,34 @@ function RangesControls({ options, onChange }: { options: RangesOptions; onChang
   );
 }
 
+/** The options of a two-parameter plane: the colour map, empty cells, the excluded side. */
+function PlaneControls({ options, onChange }: { options: PlaneOptions; onChange: (o: PlaneOptions) => void }) {
+  return (
+    <View style={styles.col}>
+      <Text variant="label">Plane</Text>
+      <Checkbox label="Colour map of the first layer's observed limit (with a colour bar)" checked={options.colorMap} onChange={(v) => onChange({ ...options, colorMap: v })} />
+      <Checkbox label="Draw cells without a point (e.g. a forbidden corner) in grey" checked={options.forbidden === 'drawn'} onChange={(v) => onChange({ ...options, forbidden: v ? 'drawn' : 'blank' })} />
+      <Text variant="label">Excluded side of the observed line</Text>
+      <ChoiceGroup<PlaneOptions['excludedMark']>
+        label="Excluded side of the observed line"
+        value={options.excludedMark}
+        onChange={(excludedMark) => onChange({ ...options, excludedMark })}
+        choices={PLANE_EXCLUDED_MARKS.map((v) => ({ value: v, label: PLANE_EXCLUDED_MARK_LABELS[v] }))}
+      />
+    </View>
+  );
+}
+
+/**
+ * Another kind of figure. A plane's second axis is a parameter, linear unless chosen: a limit
+ * plot's log y axis (its default) is switched to linear on the way in, and back on the way out.
+ */
+function withKind(spec: FigureSpec, kind: FigureKind): FigureSpec {
+  if (kind === 'plane' && spec.kind !== 'plane' && spec.y.scale === 'log' && spec.y.min === null && spec.y.max === null) return { ...spec, kind, y: { ...spec.y, scale: 'linear' } };
+  if (kind !== 'plane' && spec.kind === 'plane' && spec.y.scale === 'linear' && spec.y.min === null && spec.y.max === null) return { ...spec, kind, y: { ...spec.y, scale: 'log' } };
+  return { ...spec, kind };
+}
+
 function AxisControls({ name, axis, onChange, title }: { name: 'x' | 'y'; axis: AxisSpec; onChange: (a: AxisSpec, mergeKey?: string) => void; title?: string }) {
   const label = title ?? (name === 'x' ? 'Horizontal axis' : 'Vertical axis');
   return (
@@ -93,11 +124,20 @@ export function StylePanel({
     <View style={styles.col}>
       <TextField label="Figure name" value={spec.title} onChangeText={(t) => onChange({ ...spec, title: t }, 'title')} hint="Not drawn: names the figure in lists and downloads" />
       <Text variant="label">Kind of figure</Text>
-      <ChoiceGroup<FigureKind> label="Kind of figure" value={spec.kind} onChange={(kind) => onChange({ ...spec, kind })} choices={FIGURE_KINDS.map((k) => ({ value: k, label: FIGURE_KIND_LABELS[k] }))} />
+      <ChoiceGroup<FigureKind> label="Kind of figure" value={spec.kind} onChange={(kind) => onChange(withKind(spec, kind))} choices={FIGURE_KINDS.map((k) => ({ value: k, label: FIGURE_KIND_LABELS[k] }))} />
       <Text variant="label">Theme</Text>
       <ChoiceGroup<FigureTheme> label="Theme" value={spec.theme} onChange={(theme) => onChange(withTheme(spec, theme))} choices={FIGURE_THEMES.map((t) => ({ value: t, label: THEME_LABELS[t] }))} />
       <Select<Preset> label="Size" value={preset} onChange={(p) => onChange({ ...spec, size: { preset: p } })} options={(Object.keys(SIZE_PRESETS) as Preset[]).map((p) => ({ value: p, label: SIZE_PRESETS[p].label }))} />
-      {ranges ? (
+      {spec.kind === 'plane' ? (
+        <>
+          <AxisControls name="x" title="First parameter (horizontal)" axis={spec.x} onChange={(x, k) => onChange({ ...spec, x }, k)} />
+          <AxisControls name="y" title="Second parameter (vertical)" axis={spec.y} onChange={(y, k) => onChange({ ...spec, y }, k)} />
+          <PlaneControls options={spec.plane} onChange={(p) => onChange({ ...spec, plane: p })} />
+          <Checkbox label="Legend row" checked={spec.legend.position !== 'none'} onChange={(v) => onChange({ ...spec, legend: { ...spec.legend, position: v ? 'auto' : 'none' } })} />
+          <Checkbox label="Energy and luminosity line" checked={spec.energyLabel} onChange={(v) => onChange({ ...spec, energyLabel: v })} />
+          <Checkbox label="Confidence level line (e.g. 95% CL)" checked={spec.clLabel} onChange={(v) => onChange({ ...spec, clLabel: v })} />
+        </>
+      ) : ranges ? (
         <>
           <AxisControls name="x" title="Parameter axis" axis={spec.x} onChange={(x, k) => onChange({ ...spec, x }, k)} />
           <RangesControls options={spec.ranges} onChange={(r) => onChange({ ...spec, ranges: r })} />
