@@ -112,6 +112,23 @@ export const DEMO_FIGURES: DemoFigure[] = [
     },
   },
   {
+    // The dijet team's two-parameter search as the paper shows it: the exclusion contours over
+    // the map of the observed σ×B limit, the forbidden corner drawn grey.
+    group: 'Lanternfish Dijet Resonances',
+    author: 'edda@lanternfish.example',
+    isPublic: true,
+    spec: {
+      title: 'Heavy partner Z̃ → jets + invisible χ: excluded masses',
+      kind: 'plane',
+      theme: 'publication',
+      size: { preset: 'two-column', heightCm: 11 },
+      x: { scale: 'linear', min: null, max: null, label: '$m_{\\tilde{Z}}$ [TeV]' },
+      y: { scale: 'linear', min: null, max: null, label: '$m_{\\chi}$ [TeV]' },
+      layers: [{ slug: 'heavy-partner-plane-18tev-lfp01', version: 1, label: 'Lanternfish, 96.5 fb$^{-1}$' }],
+      plane: { colorMap: true, forbidden: 'drawn', excludedMark: 'hatch' },
+    },
+  },
+  {
     // Group-only: the scalar search's signal-strength limit (its result is not public).
     group: 'Lanternfish Dijet Resonances',
     author: 'anouk@lanternfish.example',

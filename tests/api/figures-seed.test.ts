@@ -20,9 +20,10 @@ test('the seed adds the demo figures once: public ones in every theme, and a gro
   expect(rows.filter((f) => !f.isPublic).map((f) => f.title)).toEqual(['Scalar S → bb̄: signal-strength limit (internal)']);
 
   const page = (await request(t.app).get('/api/public/figures')).body as PublicFigurePage;
-  // The publication theme twice: the combination board's limit plot and its summary of excluded ranges.
-  expect(page.items.map((i) => i.theme).sort()).toEqual(['outreach', 'publication', 'publication', 'slides']);
-  expect(page.items.map((i) => i.groupName).sort()).toEqual(['Lanternfish Combination Board', 'Lanternfish Combination Board', 'Lanternfish Dijet Resonances', 'Lanternfish Outreach Office']);
+  // The publication theme three times: the combination board's limit plot and its summary of
+  // excluded ranges, and the dijet team's two-parameter plane.
+  expect(page.items.map((i) => i.theme).sort()).toEqual(['outreach', 'publication', 'publication', 'publication', 'slides']);
+  expect(page.items.map((i) => i.groupName).sort()).toEqual(['Lanternfish Combination Board', 'Lanternfish Combination Board', 'Lanternfish Dijet Resonances', 'Lanternfish Dijet Resonances', 'Lanternfish Outreach Office']);
 
   await seedDemo(t.ctx);
   expect(await t.ctx.db.select().from(figures)).toHaveLength(DEMO_FIGURES.length);
