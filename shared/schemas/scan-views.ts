@@ -65,8 +65,6 @@ export type ScanPointDetail = {
   x: number;
   /** The second parameter (scans over two parameters), else null. */
   y: number | null;
-  /** The second parameter (scans over two parameters), else null. */
-  y: number | null;
   sigmaNominal: number | null;
   state: ScanPointState;
   model: Record<string, unknown>;
