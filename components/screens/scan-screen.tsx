@@ -77,7 +77,7 @@ function Diagnostics({ groupId, scanId, index, unit, canRerun }: { groupId: stri
   const d = p.data!;
   return (
     <Card>
-      <Text variant="title">Grid point x = {fmt(d.x, 6)}</Text>
+      <Text variant="title">Grid point {d.y !== null ? `(x, y) = (${fmt(d.x, 6)}, ${fmt(d.y, 6)})` : `x = ${fmt(d.x, 6)}`}</Text>
       {d.error ? <Banner tone="error" message={`${d.error.field}: ${d.error.reason}`} /> : null}
       {d.result ? (
         <>
@@ -130,8 +130,8 @@ function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointS
         {points.map((p) => {
           const v = xsec && p.sigmaB ? p.sigmaB : p.observed !== null ? { observed: p.observed, expected: p.expected } : null;
           return (
-            <Pressable key={p.index} role="row" aria-label={`Show diagnostics of x = ${p.x}`} onPress={() => onPick(p.index)} style={[styles.tr, picked === p.index && styles.picked]}>
-              <Text style={td}>{fmt(p.x, 6)}</Text>
+            <Pressable key={p.index} role="row" aria-label={`Show diagnostics of ${p.y !== null ? `(x, y) = (${p.x}, ${p.y})` : `x = ${p.x}`}`} onPress={() => onPick(p.index)} style={[styles.tr, picked === p.index && styles.picked]}>
+              <Text style={td}>{p.y !== null ? `${fmt(p.x, 6)}, ${fmt(p.y, 6)}` : fmt(p.x, 6)}</Text>
               <Text style={[td, stateTd, p.state === 'failed' && styles.failed]}>{pointState(p)}</Text>
               <Text style={td}>{fmt(v?.observed)}</Text>
               {EXPECTED_KEYS.map((k) => (

@@ -64,6 +64,7 @@ export async function listPointSummaries(db: Executor, groupId: string, scanId: 
     .select({
       index: scanPoints.index,
       x: scanPoints.x,
+      y: scanPoints.y,
       sigmaNominal: scanPoints.sigmaNominal,
       state: scanPoints.state,
       observed: sql<number | null>`(${scanPoints.result}->>'observed')::float8`,
@@ -93,12 +94,12 @@ export async function listFinishedPoints(db: Executor, scanId: string) {
     .select()
     .from(scanPoints)
     .where(and(eq(scanPoints.scanId, scanId), eq(scanPoints.state, 'done')))
-    .orderBy(asc(scanPoints.x));
+    .orderBy(asc(scanPoints.x), asc(scanPoints.y));
 }
 
 export async function listPointInputs(db: Executor, groupId: string, scanId: string) {
   return db
-    .select({ x: scanPoints.x, sigmaNominal: scanPoints.sigmaNominal, sigmaNominalLow: scanPoints.sigmaNominalLow, sigmaNominalHigh: scanPoints.sigmaNominalHigh, model: scanPoints.model })
+    .select({ x: scanPoints.x, y: scanPoints.y, sigmaNominal: scanPoints.sigmaNominal, sigmaNominalLow: scanPoints.sigmaNominalLow, sigmaNominalHigh: scanPoints.sigmaNominalHigh, model: scanPoints.model })
     .from(scanPoints)
     .where(inArray(scanPoints.scanId, scanOfGroup(db, groupId, scanId)))
     .orderBy(asc(scanPoints.index));

@@ -1,8 +1,7 @@
 import { sql } from 'drizzle-orm';
 import { type AnyPgColumn, bigint, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import type { CombinationPlan } from '../../shared/schemas/combine';
-import type { ScanOptions } from '../../shared/schemas/scans';
-import type { VersionMeta } from '../../shared/schemas/results';
+import type { ScanMeta, ScanOptions } from '../../shared/schemas/scans';
 import { user } from './auth';
 import { groups } from './groups';
 import { results } from './results';
@@ -27,7 +26,7 @@ export const scans = pgTable(
       .references(() => groups.id, { onDelete: 'cascade' }),
     state: scanState().notNull().default('queued'),
     options: jsonb().$type<ScanOptions>().notNull(),
-    meta: jsonb().$type<VersionMeta>().notNull(),
+    meta: jsonb().$type<ScanMeta>().notNull(),
     /** Add the limits as a new version of this result (else a new result is created). */
     targetResultId: uuid().references(() => results.id, { onDelete: 'set null' }),
     totalPoints: integer().notNull(),
@@ -71,6 +70,8 @@ export const scanPoints = pgTable(
       .references(() => scans.id, { onDelete: 'cascade' }),
     index: integer().notNull(),
     x: doublePrecision().notNull(),
+    /** The second parameter of a scan over two parameters (null in one-parameter scans). */
+    y: doublePrecision(),
     sigmaNominal: doublePrecision(),
     /** The band of the nominal σ×B, when the inputs give one (both or neither). */
     sigmaNominalLow: doublePrecision(),

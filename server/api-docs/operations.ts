@@ -288,7 +288,8 @@ export const OPERATIONS: ApiOperation[] = [
     method: 'post',
     path: '/groups/{groupId}/scans',
     tag: 'Scans',
-    summary: 'Start a scan: a grid of counting models computed by the job queue into a draft result.',
+    summary:
+      'Start a scan: a grid of counting models computed by the job queue into a draft result. Over two parameters when the points give `y` (JSON) or the CSV has a `y` column, named by `meta.yName`/`meta.yUnit`: the grid is checked as a two-parameter result (duplicates, off-grid points, one row, at most 200 × 200, at least half the cells; 400 naming `points.N.x`, `points` or the CSV line) and the draft is a plane with its contour lines; failed points are holes.',
     access: { kind: 'group', action: 'result.write' },
     params: groupParams,
     body: { json: createScanSchema, multipart: scanUploadForm, multipartNote: 'Parts `meta` and `options` are JSON text.' },
@@ -306,7 +307,7 @@ export const OPERATIONS: ApiOperation[] = [
     access: { kind: 'group', action: 'result.write' },
     params: scanPointParams,
     body: { json: rerunPointSchema },
-    ok: json(201, 'The new scan, queued.'),
+    ok: json(201, 'The new scan, queued (a two-parameter scan keeps every point\'s y).'),
     errors: { 409: '`running`: the scan has not ended; `not_pseudo_experiments`: an asymptotic scan.', 413: '`quota_exceeded`.', 429: '`scan_queue_full`: it fits once the group\'s queue drains.' },
   },
   { method: 'get', path: '/groups/{groupId}/scans/{scanId}/inputs.json', tag: 'Scans', summary: 'Download a scan\'s inputs (points and options) as JSON.', access: { kind: 'group', action: 'group.read' }, params: scanParams, ok: file('application/json', 'A `bandwright-scan/1` file.') },

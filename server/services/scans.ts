@@ -2,8 +2,11 @@ import { z } from 'zod';
 import { CsvFileError, decodeText } from '../../shared/curves/csv';
 import { parseScanCsv } from '../../shared/scans/csv';
 import { EXPECTED_KEYS } from '../../shared/schemas/counting-model';
-import { createScanSchema, DEFAULT_SCAN_THEORY_LABEL, MAX_TOYS_PER_POINT, scanFileSchema, scanOptionsSchema, theoryLabelSchema, type RerunPointInput, type ScanInputPoint, type ScanOptions } from '../../shared/schemas/scans';
-import { versionMetaSchema, type Curve, type Theory, type VersionMeta } from '../../shared/schemas/results';
+import { createScanSchema, DEFAULT_SCAN_THEORY_LABEL, MAX_TOYS_PER_POINT, scanFileSchema, scanMetaSchema, scanOptionsSchema, theoryLabelSchema, type RerunPointInput, type ScanInputPoint, type ScanMeta, type ScanOptions } from '../../shared/schemas/scans';
+import type { Curve, Theory, VersionMeta } from '../../shared/schemas/results';
+import type { Plane } from '../../shared/schemas/plane';
+import { planeGrid } from '../../shared/plane/grid';
+import { StatsInputError } from '../../shared/stats/errors';
 import type { ScanDetail, ScanPointDetail, ScanSummary } from '../../shared/schemas/scan-views';
 import type { CombinationPlan } from '../../shared/schemas/combine';
 import { insertVersionInputs } from '../../db/queries/results';
@@ -25,7 +28,7 @@ import * as storage from './storage';
  */
 
 /** `combination`: the scan is a joint combination of other results (server/services/combine.ts), recorded with it. */
-export type ScanRequest = { points: ScanInputPoint[]; options: ScanOptions; meta: VersionMeta; resultId?: string; theoryLabel: string | null; sourceName: string | null; sourceBytes: number; combination?: CombinationPlan };
+export type ScanRequest = { points: ScanInputPoint[]; options: ScanOptions; meta: ScanMeta; resultId?: string; theoryLabel: string | null; sourceName: string | null; sourceBytes: number; combination?: CombinationPlan };
 
 function invalid(details: ErrorDetail[]): never {
   const first = details[0]!;
@@ -54,7 +57,7 @@ export function scanFromUpload(file: { name: string; data: Buffer } | undefined,
       return undefined;
     }
   };
-  const meta = versionMetaSchema.safeParse(json('meta') ?? {});
+  const meta = scanMetaSchema.safeParse(json('meta') ?? {});
   if (!meta.success) details.push(...meta.error.issues.map((i) => ({ field: ['meta', ...i.path].join('.'), message: i.message })));
   const options = scanOptionsSchema.safeParse(json('options'));
   if (!options.success) details.push(...options.error.issues.map((i) => ({ field: ['options', ...i.path].join('.'), message: i.message })));
@@ -109,19 +112,49 @@ async function maxRerunToys(ctx: Ctx, db: Executor, groupId: string, model: Reco
   return Math.min(MAX_TOYS_PER_POINT, Math.floor(ctx.env.SCAN_COST_LIMIT / scanCost([bins(model)], 1)), planToysPerPoint(plan, 1));
 }
 
+/** A scan over two parameters: its points carry y (all of them; checkScan refuses a mix). */
+export const isPlaneScan = (points: readonly { y?: number | null }[]) => points.some((p) => p.y !== undefined && p.y !== null);
+
+/**
+ * The grid of a scan over two parameters, checked as a two-parameter result's (`planeGrid`:
+ * duplicates, off-grid points, one-row grids, at most 200 × 200, at least half the cells), with the
+ * problem named as a scan field (`points.17.x`, `points`).
+ */
+function planeGridDetails(points: ScanInputPoint[]): ErrorDetail[] {
+  try {
+    planeGrid(points.map((p) => p.x), points.map((p) => p.y!));
+    return [];
+  } catch (e) {
+    if (!(e instanceof StatsInputError)) throw e;
+    const at = /^([xy])\[(\d+)\]$/.exec(e.field);
+    return [{ field: at ? `points.${at[2]}.${at[1]}` : 'points', message: at ? e.reason : `${e.field} ${e.reason}` }];
+  }
+}
+
 /** Checks that apply to the scan as a whole, before anything is queued. */
 function checkScan(ctx: Ctx, req: ScanRequest) {
   const details: ErrorDetail[] = [];
   const seen = new Map<number, number>();
+  const plane = isPlaneScan(req.points);
+  if (plane && !req.meta.yName) details.push({ field: 'meta.yName', message: 'is required: the points give y, a second parameter, which needs a name' });
+  if (!plane && req.meta.yName) details.push({ field: 'points.0.y', message: `is required: meta.yName names a second parameter (${req.meta.yName}), so every point needs a y` });
   req.points.forEach((p, i) => {
-    if (seen.has(p.x)) details.push({ field: `points.${i}.x`, message: `repeats x = ${p.x} of point ${seen.get(p.x)! + 1}` });
-    seen.set(p.x, i);
+    if (plane) {
+      if (p.y === undefined) details.push({ field: `points.${i}.y`, message: 'is required: the other points give y (a scan over two parameters needs it at every point)' });
+    } else {
+      if (seen.has(p.x)) details.push({ field: `points.${i}.x`, message: `repeats x = ${p.x} of point ${seen.get(p.x)! + 1}` });
+      seen.set(p.x, i);
+    }
     if (req.meta.quantity === 'xsec' && p.sigmaNominal === undefined) {
       details.push({ field: `points.${i}.sigmaNominal`, message: 'is needed for σ×B limits (or choose μ as the limited quantity)' });
     }
   });
   if (req.points.length < 2) details.push({ field: 'points', message: 'a scan needs at least two grid points' });
   if (details.length) invalid(details);
+  if (plane) {
+    const grid = planeGridDetails(req.points);
+    if (grid.length) invalid(grid);
+  }
   const perPoint = req.options.method === 'toys' ? req.options.toys : 1;
   const cost = scanCost(req.points.map((p) => bins(p.model as Record<string, unknown>)), perPoint);
   if (cost > ctx.env.SCAN_COST_LIMIT) {
@@ -178,6 +211,7 @@ export async function startScan(ctx: Ctx, groupId: string, userId: string, req: 
         scanId: scan.id,
         index,
         x: p.x,
+        y: p.y ?? null,
         sigmaNominal: p.sigmaNominal ?? null,
         sigmaNominalLow: p.sigmaNominalLow ?? null,
         sigmaNominalHigh: p.sigmaNominalHigh ?? null,
@@ -259,7 +293,7 @@ export async function getPointDetail(ctx: Ctx, groupId: string, scanId: string, 
   const p = await q.getPoint(ctx.db, groupId, scanId, index);
   if (!p) throw notFound('Grid point');
   const rerun = s.options.method === 'toys' ? { toys: p.toys ?? s.options.toys, maxToys: await maxRerunToys(ctx, ctx.db, groupId, p.model) } : null;
-  return { index: p.index, x: p.x, sigmaNominal: p.sigmaNominal, state: p.state, model: p.model, result: p.result as ScanPointDetail['result'], error: p.error, attempts: p.attempts, computeMs: p.computeMs, rerun };
+  return { index: p.index, x: p.x, y: p.y, sigmaNominal: p.sigmaNominal, state: p.state, model: p.model, result: p.result as ScanPointDetail['result'], error: p.error, attempts: p.attempts, computeMs: p.computeMs, rerun };
 }
 
 /**
@@ -290,7 +324,7 @@ export async function rerunPoint(ctx: Ctx, groupId: string, userId: string, scan
   const inputs = [...kept, target].sort((a, b) => a.index - b.index);
   const newId = await ctx.db.transaction(async (tx) => {
     const storedBytes = Buffer.byteLength(
-      JSON.stringify(inputs.map((p) => ({ x: p.x, sigmaNominal: p.sigmaNominal, sigmaNominalLow: p.sigmaNominalLow, sigmaNominalHigh: p.sigmaNominalHigh, model: p.model }))),
+      JSON.stringify(inputs.map((p) => ({ x: p.x, ...(p.y !== null ? { y: p.y } : {}), sigmaNominal: p.sigmaNominal, sigmaNominalLow: p.sigmaNominalLow, sigmaNominalHigh: p.sigmaNominalHigh, model: p.model }))),
     );
     await storage.reserve(tx, groupId, storedBytes, 'this scan', { headroom: storage.scanDraftAllowance(inputs.length) });
     await assertScanQueueRoom(tx, groupId, { points: 1, perPoint: body.toys, toys: true, field: 'toys' });
@@ -313,7 +347,7 @@ export async function rerunPoint(ctx: Ctx, groupId: string, userId: string, scan
       tx,
       inputs.map((p) =>
         p.index === index
-          ? { scanId: scan.id, index, x: p.x, sigmaNominal: p.sigmaNominal, sigmaNominalLow: p.sigmaNominalLow, sigmaNominalHigh: p.sigmaNominalHigh, model: p.model, chunks: costs.length, toys: body.toys }
+          ? { scanId: scan.id, index, x: p.x, y: p.y, sigmaNominal: p.sigmaNominal, sigmaNominalLow: p.sigmaNominalLow, sigmaNominalHigh: p.sigmaNominalHigh, model: p.model, chunks: costs.length, toys: body.toys }
           : { ...p, scanId: scan.id },
       ),
     );
@@ -333,7 +367,7 @@ export async function scanInputs(ctx: Ctx, groupId: string, scanId: string) {
     options: s.options,
     meta: s.meta,
     ...(s.theoryLabel ? { theoryLabel: s.theoryLabel } : {}),
-    points: points.map((p) => ({ x: p.x, ...some('sigmaNominal', p.sigmaNominal), ...some('sigmaNominalLow', p.sigmaNominalLow), ...some('sigmaNominalHigh', p.sigmaNominalHigh), model: p.model })),
+    points: points.map((p) => ({ x: p.x, ...some('y', p.y), ...some('sigmaNominal', p.sigmaNominal), ...some('sigmaNominalLow', p.sigmaNominalLow), ...some('sigmaNominalHigh', p.sigmaNominalHigh), model: p.model })),
   };
 }
 
@@ -388,10 +422,30 @@ export function theoryOfPoints(points: q.ScanPointRow[], quantity: VersionMeta['
   };
 }
 
+/**
+ * The finished points of a scan over two parameters as a plane (shared/schemas/plane.ts): limits
+ * on σ×B or μ as `curveOfPoints` picks them, and for σ×B the points' nominal σ×B as the theory
+ * per point (its band when every point gives one). Failed and cancelled points are holes. Throws
+ * StatsInputError (planeGrid's) when the finished points no longer form a grid.
+ */
+export function planeOfPoints(points: q.ScanPointRow[], meta: ScanMeta): Plane {
+  const done = points.filter((p) => p.state === 'done' && p.result && p.y !== null);
+  planeGrid(done.map((p) => p.x), done.map((p) => p.y!));
+  const curve = curveOfPoints(done, meta.quantity);
+  // curveOfPoints sorts by x (stable), so the rows follow: sort the same way for y and σ×B.
+  const rows = [...done].sort((a, b) => a.x - b.x);
+  const band = rows.every((p) => p.sigmaNominalLow !== null && p.sigmaNominalHigh !== null);
+  const theory =
+    meta.quantity === 'xsec' && rows.every((p) => p.sigmaNominal !== null)
+      ? { central: rows.map((p) => p.sigmaNominal!), ...(band ? { lower: rows.map((p) => p.sigmaNominalLow!), upper: rows.map((p) => p.sigmaNominalHigh!) } : {}) }
+      : undefined;
+  return { yName: meta.yName ?? 'y', yUnit: meta.yUnit ?? '', x: curve.x, y: rows.map((p) => p.y!), observed: curve.observed, expected: curve.expected, ...(theory ? { theory } : {}) };
+}
+
 /** The change note of a scan's new version: which point a rerun computed again, else the scan. */
 function changeNoteOf(scan: q.ScanRow, points: q.ScanPointRow[], combined: boolean): string {
   const point = scan.rerunPoint !== null ? points.find((p) => p.index === scan.rerunPoint) : undefined;
-  if (point?.toys) return `Point x = ${point.x} rerun with ${point.toys.toLocaleString('en')} pseudo-experiments`;
+  if (point?.toys) return `Point ${point.y !== null ? `(x, y) = (${point.x}, ${point.y})` : `x = ${point.x}`} rerun with ${point.toys.toLocaleString('en')} pseudo-experiments`;
   return `${combined ? 'Recombined' : 'Recomputed'} by scan ${scan.id.slice(0, 8)}`;
 }
 
@@ -411,17 +465,31 @@ export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancell
   }
   const role = scan.createdBy ? await getRole(ctx.db, scan.groupId, scan.createdBy) : undefined;
   const actor = { id: scan.createdBy ?? '', role: role ?? 'analyst' };
-  const curve = curveOfPoints(points, scan.meta.quantity);
+  const plane = isPlaneScan(points);
+  let planeDraft: Plane | null = null;
+  if (plane) {
+    try {
+      planeDraft = planeOfPoints(points, scan.meta);
+    } catch (e) {
+      if (!(e instanceof StatsInputError)) throw e;
+      await q.setScanOutcome(ctx.db, scan.groupId, scanId, { state: 'failed', error: `Only ${points.length} of ${scan.totalPoints} points could be computed and they do not form a grid (${e.field} ${e.reason}); no draft was made` });
+      return;
+    }
+  }
   const opts = scan.options;
   // Points rerun with more pseudo-experiments (here or in the scans this one was copied from).
   const own = points.filter((p) => p.toys !== null && p.toys !== opts.toys).map((p) => `x = ${p.x} with ${p.toys}`);
   const toys = `${opts.toys} per hypothesis${own.length ? ` (${own.join(', ')})` : ''}, seed ${opts.seed}`;
   const how = `Computed by Bandwright from event counts: ${opts.method === 'toys' ? `pseudo-experiment CLs (${toys})` : `asymptotic CLs (${opts.asimov} Asimov dataset)`}, ${Math.round(opts.cl * 100)}% CL, scan ${scan.id}.`;
-  const notes = [scan.meta.notes, how, failed ? `${failed} grid point(s) failed and are not in the curve.` : '', why === 'cancelled' ? `The scan was cancelled after ${points.length} of ${scan.totalPoints} points.` : '']
+  const notes = [scan.meta.notes, how, failed ? `${failed} grid point(s) failed and are not in the ${plane ? 'plane (holes)' : 'curve'}.` : '', why === 'cancelled' ? `The scan was cancelled after ${points.length} of ${scan.totalPoints} points.` : '']
     .filter(Boolean)
     .join('\n');
-  const meta: VersionMeta = { ...scan.meta, method: opts.method, cl: opts.cl, notes: notes.slice(0, 5000) };
-  const input = { meta, curve, theory: theoryOfPoints(points, scan.meta.quantity, scan.theoryLabel), source: null };
+  const { yName: _yName, yUnit: _yUnit, ...versionMeta } = scan.meta;
+  const meta: VersionMeta = { ...versionMeta, method: opts.method, cl: opts.cl, notes: notes.slice(0, 5000) };
+  // Two parameters: the plane, whose contour lines the registry derives when it stores the version.
+  const input = planeDraft
+    ? { meta, curve: null, theory: null, plane: planeDraft, source: null }
+    : { meta, curve: curveOfPoints(points, scan.meta.quantity), theory: theoryOfPoints(points, scan.meta.quantity, scan.theoryLabel), source: null };
   // A joint combination's draft lists the result versions it combines (as an envelope's does).
   const combined = scan.combination?.inputs.map((i) => ({ resultId: i.resultId, version: i.version, title: i.title }));
   const hooks = combined ? { after: (tx: Parameters<typeof insertVersionInputs>[0], w: { resultId: string; version: number }) => insertVersionInputs(tx, scan.groupId, w.resultId, w.version, combined) } : undefined;

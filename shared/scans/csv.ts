@@ -4,6 +4,8 @@
  *   x, sigma_nominal, bin, observed, signal, background:<name>…, systematic:<name>:<process>…
  *
  * - `x` is the parameter value of the grid point (rows with the same x form one point, in file order);
+ * - `y` (optional) the second parameter of a scan over two parameters: then rows with the same
+ *   (x, y) form one point, and every row needs a y;
  * - `sigma_nominal` (optional) the nominal σ×B of the point (same on all its rows), for σ×B limits;
  *   it becomes the draft's theory curve; `sigma_nominal_low` / `sigma_nominal_high` (optional,
  *   both or neither) its band;
@@ -20,7 +22,7 @@ import { CsvFileError, parseCsv, parseNumber } from '../curves/csv';
 import type { CurveProblem } from '../curves/check';
 
 type Column =
-  | { kind: 'x' | SigmaKind | 'bin' | 'observed' | 'signal'; index: number }
+  | { kind: 'x' | 'y' | SigmaKind | 'bin' | 'observed' | 'signal'; index: number }
   | { kind: 'background'; name: string; index: number }
   | { kind: 'systematic'; name: string; process: string; index: number };
 
@@ -31,6 +33,7 @@ const SIGMA_KINDS: readonly SigmaKind[] = ['sigmaNominal', 'sigmaNominalLow', 's
 // A Map, not an object literal: a header such as "constructor" must not find Object.prototype's.
 const FIXED = new Map<string, Column['kind']>([
   ['x', 'x'],
+  ['y', 'y'],
   ['sigma_nominal', 'sigmaNominal'],
   ['sigma_nominal_low', 'sigmaNominalLow'],
   ['sigma_nominal_high', 'sigmaNominalHigh'],
@@ -64,7 +67,7 @@ function classify(headers: string[]): { columns: Column[]; problems: CurveProble
       if (process === RESERVED_PROCESS_NAME) return void problems.push(reservedProblem(h));
       return void columns.push({ kind: 'systematic', name: sy[1]!.trim(), process, index });
     }
-    problems.push({ column: h || `column ${index + 1}`, reason: 'is not a column of the scan layout (x, sigma_nominal, sigma_nominal_low, sigma_nominal_high, bin, observed, signal, background:<name>, systematic:<name>:<process>)' });
+    problems.push({ column: h || `column ${index + 1}`, reason: 'is not a column of the scan layout (x, y, sigma_nominal, sigma_nominal_low, sigma_nominal_high, bin, observed, signal, background:<name>, systematic:<name>:<process>)' });
   });
   for (const k of ['x', 'observed', 'signal'] as const) {
     if (!columns.some((c) => c.kind === k)) problems.push({ column: k, reason: 'is a required column and is missing' });
@@ -81,9 +84,10 @@ export function parseScanCsv(text: string): ScanInputPoint[] {
   const { columns, problems } = classify(table.headers);
   if (problems.length) throw new CsvFileError(problems);
 
-  type Acc = { x: number; sigma: Partial<Record<SigmaKind, { value: number; line: number }>>; rows: number[]; model: Required<Pick<CountingModelInput, 'observed' | 'signal'>> & { backgrounds: { name: string; yields: number[] }[]; systematics: Map<string, Map<string, number[]>> } };
+  type Acc = { x: number; y?: number; sigma: Partial<Record<SigmaKind, { value: number; line: number }>>; rows: number[]; model: Required<Pick<CountingModelInput, 'observed' | 'signal'>> & { backgrounds: { name: string; yields: number[] }[]; systematics: Map<string, Map<string, number[]>> } };
   const points: Acc[] = [];
-  const byX = new Map<number, Acc>();
+  const byX = new Map<string, Acc>();
+  const yCol = columns.find((c) => c.kind === 'y');
   const bgNames = columns.filter((c): c is Extract<Column, { kind: 'background' }> => c.kind === 'background').map((c) => c.name);
 
   table.rows.forEach((row, r) => {
@@ -104,14 +108,17 @@ export function parseScanCsv(text: string): ScanInputPoint[] {
     }
     const xCol = columns.find((c) => c.kind === 'x')!;
     const x = num(xCol, true);
-    if (x === undefined) return;
-    let p = byX.get(x);
+    const y = yCol ? num(yCol, true) : undefined;
+    if (x === undefined || (yCol && y === undefined)) return;
+    const key = y === undefined ? String(x) : `${x},${y}`;
+    const at = y === undefined ? `x = ${x}` : `(x, y) = (${x}, ${y})`;
+    let p = byX.get(key);
     if (!p) {
-      p = { x, sigma: {}, rows: [], model: { observed: [], signal: [], backgrounds: bgNames.map((name) => ({ name, yields: [] })), systematics: new Map() } };
-      byX.set(x, p);
+      p = { x, ...(y === undefined ? {} : { y }), sigma: {}, rows: [], model: { observed: [], signal: [], backgrounds: bgNames.map((name) => ({ name, yields: [] })), systematics: new Map() } };
+      byX.set(key, p);
       points.push(p);
     } else if (points[points.length - 1] !== p) {
-      problems.push({ row: line, column: table.headers[xCol.index]!, reason: `x = ${x} appeared earlier and again here; keep the rows of one grid point together` });
+      problems.push({ row: line, column: table.headers[xCol.index]!, reason: `${at} appeared earlier and again here; keep the rows of one grid point together` });
     }
     const bin = p.rows.length;
     p.rows.push(line);
@@ -151,7 +158,7 @@ export function parseScanCsv(text: string): ScanInputPoint[] {
         effects: Object.fromEntries([...per.entries()].map(([proc, arr]) => [proc, Array.from({ length: bins }, (_, i) => arr[i] ?? 0)])),
       }));
     const model: CountingModelInput = { observed: p.model.observed, signal: p.model.signal, backgrounds: p.model.backgrounds, systematics };
-    const point: ScanInputPoint = { x: p.x, model };
+    const point: ScanInputPoint = { x: p.x, ...(p.y === undefined ? {} : { y: p.y }), model };
     for (const k of SIGMA_KINDS) if (p.sigma[k]) point[k] = p.sigma[k]!.value;
     return point;
   });
@@ -164,11 +171,12 @@ export function scanToCsv(points: ScanInputPoint[]): string {
   const bgNames = [...new Set(points.flatMap((p) => (p.model.backgrounds ?? []).map((b) => b.name)))];
   const systCols = [...new Set(points.flatMap((p) => (p.model.systematics ?? []).flatMap((s) => Object.keys(s.effects).map((proc) => `${s.name}:${proc}`))))];
   const band = points.some((p) => p.sigmaNominalLow !== undefined || p.sigmaNominalHigh !== undefined);
-  const header = ['x', 'sigma_nominal', ...(band ? ['sigma_nominal_low', 'sigma_nominal_high'] : []), 'bin', 'observed', 'signal', ...bgNames.map((n) => `background:${n}`), ...systCols.map((c) => `systematic:${c}`)];
+  const plane = points.some((p) => p.y !== undefined);
+  const header = ['x', ...(plane ? ['y'] : []), 'sigma_nominal', ...(band ? ['sigma_nominal_low', 'sigma_nominal_high'] : []), 'bin', 'observed', 'signal', ...bgNames.map((n) => `background:${n}`), ...systCols.map((c) => `systematic:${c}`)];
   const lines = [header.join(',')];
   for (const p of points) {
     p.model.observed.forEach((obs, i) => {
-      const cells: (string | number)[] = [p.x, p.sigmaNominal ?? '', ...(band ? [p.sigmaNominalLow ?? '', p.sigmaNominalHigh ?? ''] : []), i + 1, obs, p.model.signal[i] ?? ''];
+      const cells: (string | number)[] = [p.x, ...(plane ? [p.y ?? ''] : []), p.sigmaNominal ?? '', ...(band ? [p.sigmaNominalLow ?? '', p.sigmaNominalHigh ?? ''] : []), i + 1, obs, p.model.signal[i] ?? ''];
       for (const n of bgNames) cells.push((p.model.backgrounds ?? []).find((b) => b.name === n)?.yields[i] ?? 0);
       for (const c of systCols) {
         const [name, proc] = [c.slice(0, c.indexOf(':')), c.slice(c.indexOf(':') + 1)];

@@ -1,7 +1,6 @@
 /** What the scan routes answer (read models), shared by server and app. */
 import type { ClsSample, ExpectedLimits } from './counting-model';
-import type { VersionMeta } from './results';
-import type { ScanOptions } from './scans';
+import type { ScanMeta, ScanOptions } from './scans';
 
 export type ScanState = 'queued' | 'running' | 'done' | 'failed' | 'cancelled';
 export type ScanPointState = 'queued' | 'done' | 'failed' | 'cancelled';
@@ -23,6 +22,8 @@ export type ScanSummary = {
 export type ScanPointSummary = {
   index: number;
   x: number;
+  /** The second parameter (scans over two parameters), else null. */
+  y: number | null;
   sigmaNominal: number | null;
   state: ScanPointState;
   observed: number | null;
@@ -40,7 +41,8 @@ export type ScanPointSummary = {
 export type ScanDetail = Omit<ScanSummary, 'title'> & {
   groupId: string;
   title: string;
-  meta: VersionMeta;
+  /** With `yName`/`yUnit` when the scan is over two parameters. */
+  meta: ScanMeta;
   options: ScanOptions;
   elapsedSeconds: number;
   /**
@@ -61,6 +63,8 @@ export type ScanDetail = Omit<ScanSummary, 'title'> & {
 export type ScanPointDetail = {
   index: number;
   x: number;
+  /** The second parameter (scans over two parameters), else null. */
+  y: number | null;
   sigmaNominal: number | null;
   state: ScanPointState;
   model: Record<string, unknown>;

@@ -4,8 +4,8 @@
  */
 import { z } from 'zod';
 import { asimovChoiceSchema, type CountingModelInput } from './counting-model';
-import { versionMetaSchema } from './results';
-import { intField, intParam, uuidParam } from './common';
+import { versionMetaSchema, type VersionMeta } from './results';
+import { intField, intParam, shortText, uuidParam } from './common';
 
 const sigmaValue = z.number({ error: 'must be a number' }).positive('must be positive').refine(Number.isFinite, 'must be finite').optional();
 
@@ -19,6 +19,8 @@ const sigmaValue = z.number({ error: 'must be a number' }).positive('must be pos
 export const scanInputPointSchema = z
   .object({
     x: z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number'),
+    /** The second parameter (scans over two parameters: every point has one, named by meta.yName). */
+    y: z.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number').optional(),
     sigmaNominal: sigmaValue,
     sigmaNominalLow: sigmaValue,
     sigmaNominalHigh: sigmaValue,
@@ -35,7 +37,7 @@ export const scanInputPointSchema = z
     if (p.sigmaNominal === undefined) ctx.addIssue({ code: 'custom', path: ['sigmaNominal'], message: 'is required when the point gives a σ×B band' });
     else if (!(lo <= p.sigmaNominal && p.sigmaNominal <= hi)) ctx.addIssue({ code: 'custom', path: ['sigmaNominalLow'], message: `the band must hold sigmaNominal: ${lo} ≤ ${p.sigmaNominal} ≤ ${hi} does not hold` });
   });
-export type ScanInputPoint = { x: number; sigmaNominal?: number; sigmaNominalLow?: number; sigmaNominalHigh?: number; model: CountingModelInput };
+export type ScanInputPoint = { x: number; y?: number; sigmaNominal?: number; sigmaNominalLow?: number; sigmaNominalHigh?: number; model: CountingModelInput };
 
 export const SCAN_METHODS = ['asymptotic', 'toys'] as const;
 
@@ -67,11 +69,23 @@ export const scanFileSchema = z.object({
 });
 export type ScanFile = z.input<typeof scanFileSchema>;
 
+/**
+ * The second parameter of a scan over two parameters, given with the scan's meta under the names a
+ * two-parameter result uses (shared/schemas/plane.ts `yName`, `yUnit`); absent in one-parameter scans.
+ */
+export const scanSecondParameterSchema = z.object({
+  yName: shortText(60).optional(),
+  yUnit: z.string({ error: 'must be text' }).trim().max(20, 'must be at most 20 characters').optional(),
+});
+/** A scan's meta: the draft's provenance, plus the second parameter of a scan over two. */
+export const scanMetaSchema = z.intersection(versionMetaSchema, scanSecondParameterSchema);
+export type ScanMeta = VersionMeta & { yName?: string; yUnit?: string };
+
 /** Start a scan from JSON: the points, the options and the provenance of the draft it becomes. */
 export const createScanSchema = z.object({
   points: scanFileSchema.shape.points,
   options: scanOptionsSchema,
-  meta: versionMetaSchema,
+  meta: scanMetaSchema,
   /** Add the scan as a new draft version of this result instead of creating a result. */
   resultId: uuidParam.optional(),
   /** The name of the draft's theory curve (the points' nominal σ×B); TeX allowed. */

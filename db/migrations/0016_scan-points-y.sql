@@ -1,0 +1,1 @@
+ALTER TABLE "scan_points" ADD COLUMN "y" double precision;
