@@ -196,7 +196,14 @@ export function ScanScreen() {
         <View style={[styles.col, wide && styles.main]}>
           <Card>
             <Text variant="title">Limits so far</Text>
-            {curve.x.length >= 2 ? <QuickPlot curve={curve} xLabel={xLabel} yLabel={yLabel} /> : <Text variant="muted">The plot appears when two points have finished.</Text>}
+            {s.points.some((p) => p.y !== null) ? (
+              // Over two parameters a curve against x alone would stack points: the plane is drawn on the draft's page.
+              <Text variant="muted">This scan is over two parameters: the draft result's page draws its plane and contour lines when the scan ends. The table below lists each point as it finishes.</Text>
+            ) : curve.x.length >= 2 ? (
+              <QuickPlot curve={curve} xLabel={xLabel} yLabel={yLabel} />
+            ) : (
+              <Text variant="muted">The plot appears when two points have finished.</Text>
+            )}
           </Card>
           <Card>
             <Text variant="title">Grid points</Text>
