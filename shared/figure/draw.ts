@@ -177,3 +177,82 @@ export function pageMeasures(measure: Measure, font: FontRole, W: number, H: num
   };
   return { raw, bounded, height: (x: TextMetrics) => x.ascent + x.descent, side };
 }
+
+/** Header lines of a figure: the notes (muted), the energy / CL block, legend labels. */
+type HeaderInput = {
+  notes: readonly string[];
+  info: readonly { label: string; role: 'energy' | 'cl' | 'explain' }[];
+  legend: readonly string[];
+  /** Width of a legend key in points. */
+  keyWidth: number;
+};
+
+/**
+ * The header of the figures that keep their legend above the plot (the summary of excluded
+ * ranges, the plane): the notes at the top (a long one on two lines, see `noteHalves`), then the
+ * legend entries from the left, wrapping onto further rows, beside the energy / CL block on the
+ * right — or beneath it when the two do not fit side by side. Returns the text primitives (notes,
+ * block, legend labels), where each legend key goes (`keys`: its left end, the row's centre line
+ * and height), and `bottom`, where the plot may start.
+ */
+export function layoutHeader(h: HeaderInput, theme: ResolvedTheme, W: number, m: (label: string, size: number) => TextMetrics, halves: (note: string) => string[]) {
+  const t = theme.type;
+  const s = theme.spacing;
+  const font = theme.font;
+  const height = (x: TextMetrics) => x.ascent + x.descent;
+  const items: Primitive[] = [];
+  const text = (x: number, y: number, label: string, size: number, anchor: 'start' | 'end', color: string, role: Extract<Primitive, { kind: 'text' }>['role']) =>
+    items.push({ kind: 'text', x, y, label, size, font, anchor, color, rotate: 0, role });
+  const noteLines = h.notes.flatMap((note) => {
+    // Both halves are measured either way, so the labels measured are exactly those collected.
+    const parts = halves(note);
+    parts.forEach((p) => m(p, t.note));
+    return m(note, t.note).width <= W - 2 * s.edge || parts.length === 0 ? [note] : parts;
+  });
+  let top = s.edge;
+  for (const line of noteLines) {
+    const nm = m(line, t.note);
+    text(s.edge, top + nm.ascent, line, t.note, 'start', theme.colors.muted, 'note');
+    top += height(nm) + 0.2 * t.note;
+  }
+  const infoMetrics = h.info.map((i) => m(i.label, t.annotation));
+  const infoW = Math.max(0, ...infoMetrics.map((x) => x.width));
+  const infoGap = 0.25 * t.annotation;
+  const infoH = infoMetrics.reduce((a, x) => a + height(x), 0) + Math.max(0, infoMetrics.length - 1) * infoGap;
+  const keyGap = 0.4 * t.legend;
+  const legendMetrics = h.legend.map((label) => m(label, t.legend));
+  const rowH = Math.max(t.legend, ...legendMetrics.map(height));
+  const entryW = legendMetrics.map((x) => h.keyWidth + keyGap + x.width);
+  const besideW = W - 2 * s.edge - (infoW ? infoW + s.legendColumn : 0);
+  const beside = entryW.length === 0 || Math.max(0, ...entryW) <= besideW;
+  const legendWidth = beside ? besideW : W - 2 * s.edge;
+  const rows: number[][] = [];
+  entryW.forEach((ew, i) => {
+    const row = rows[rows.length - 1];
+    const used = row ? row.reduce((a, k) => a + entryW[k]! + s.legendColumn, 0) : 0;
+    if (row && used + ew <= legendWidth) row.push(i);
+    else rows.push([i]);
+  });
+  const legendH = rows.length ? rows.length * rowH + (rows.length - 1) * s.legendRow : 0;
+  const headerTop = top;
+  const legendTop = beside ? headerTop : headerTop + infoH + (infoH ? s.legendRow : 0);
+  const headerH = beside ? Math.max(infoH, legendH) : infoH + (infoH && legendH ? s.legendRow : 0) + legendH;
+  let iy = headerTop;
+  h.info.forEach((line, i) => {
+    const im = infoMetrics[i]!;
+    text(W - s.edge, iy + im.ascent, line.label, t.annotation, 'end', theme.colors.text, line.role);
+    iy += height(im) + infoGap;
+  });
+  const keys: { index: number; x: number; cy: number; rowH: number }[] = [];
+  rows.forEach((row, r) => {
+    let x = s.edge;
+    const cy = legendTop + r * (rowH + s.legendRow) + rowH / 2;
+    for (const i of row) {
+      const lm = legendMetrics[i]!;
+      keys.push({ index: i, x, cy, rowH });
+      text(x + h.keyWidth + keyGap, cy + (lm.ascent - lm.descent) / 2, h.legend[i]!, t.legend, 'start', theme.colors.text, 'legend');
+      x += entryW[i]! + s.legendColumn;
+    }
+  });
+  return { items, keys, bottom: headerTop + headerH + (headerH ? s.title : 0) };
+}

@@ -18,7 +18,7 @@ import type { FigureSpec, PlaneOptions } from '../schemas/figures';
 import { planeGrid, type PlaneGrid } from '../plane/grid';
 import type { ContourLine } from '../plane/contours';
 import { rampColor } from './color';
-import { axisPrimitives, fitMargins, oversizeCheck, pageMeasures, pathBounds, touches } from './draw';
+import { axisPrimitives, fitMargins, layoutHeader, oversizeCheck, pageMeasures, pathBounds, touches } from './draw';
 import { n, rectPath } from './legend';
 import { drawnLayers, fill, noteHalves, shortNumber, sizePt, type DrawnLayer } from './plan';
 import type { ResolvedTheme } from './theme';
@@ -265,44 +265,10 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
     items.push(p);
   };
 
-  // Notes at the top (a long one on two lines).
-  const noteLines = plan.notes.flatMap((note) => {
-    const halves = noteHalves(note);
-    halves.forEach((h) => m(h, t.note));
-    return m(note, t.note).width <= W - 2 * s.edge || halves.length === 0 ? [note] : halves;
-  });
-  let top = s.edge;
-  for (const line of noteLines) {
-    const nm = m(line, t.note);
-    text(s.edge, top + nm.ascent, line, t.note, 'start', theme.colors.muted, 'note');
-    top += height(nm) + 0.2 * t.note;
-  }
-
-  // The header: legend entries from the left (wrapping), the energy / CL block on the right.
-  const infoMetrics = plan.info.map((i) => m(i.label, t.annotation));
-  const infoW = Math.max(0, ...infoMetrics.map((x) => x.width));
-  const infoGap = 0.25 * t.annotation;
-  const infoH = infoMetrics.reduce((a, x) => a + height(x), 0) + Math.max(0, infoMetrics.length - 1) * infoGap;
+  // Notes, the legend row(s) and the energy / CL block above the plot.
   const keyW = 1.8 * t.legend;
-  const keyGap = 0.4 * t.legend;
-  const legendMetrics = plan.legend.map((e) => m(e.label, t.legend));
-  const legendRowH = Math.max(t.legend, ...legendMetrics.map(height));
-  const entryW = legendMetrics.map((x) => keyW + keyGap + x.width);
-  const besideW = W - 2 * s.edge - (infoW ? infoW + s.legendColumn : 0);
-  const beside = entryW.length === 0 || Math.max(0, ...entryW) <= besideW;
-  const legendWidth = beside ? besideW : W - 2 * s.edge;
-  const legendRows: number[][] = [];
-  entryW.forEach((ew, i) => {
-    const row = legendRows[legendRows.length - 1];
-    const used = row ? row.reduce((a, k) => a + entryW[k]! + s.legendColumn, 0) : 0;
-    if (row && used + ew <= legendWidth) row.push(i);
-    else legendRows.push([i]);
-  });
-  const legendH = legendRows.length ? legendRows.length * legendRowH + (legendRows.length - 1) * s.legendRow : 0;
-  const headerTop = top;
-  const legendTop = beside ? headerTop : headerTop + infoH + (infoH ? s.legendRow : 0);
-  const headerH = beside ? Math.max(infoH, legendH) : infoH + (infoH && legendH ? s.legendRow : 0) + legendH;
-  top = headerTop + headerH + (headerH ? s.title : 0);
+  const header = layoutHeader({ notes: plan.notes, info: plan.info, legend: plan.legend.map((e) => e.label), keyWidth: keyW }, theme, W, m, noteHalves);
+  const top = header.bottom;
 
   // Margins: y labels and title left, the colour bar right, x labels and title below.
   const tickOut = theme.ticks.direction === 'out' ? theme.ticks.major : 0;
@@ -475,36 +441,23 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
     text(x, yTop + am.ascent, a.text, t.annotation, 'start', theme.colors.text, 'annotation');
   }
 
-  // The energy / CL block, right-aligned at the top right.
-  let iy = headerTop;
-  plan.info.forEach((line, i) => {
-    const im = infoMetrics[i]!;
-    text(W - s.edge, iy + im.ascent, line.label, t.annotation, 'end', theme.colors.text, line.role);
-    iy += height(im) + infoGap;
-  });
-  // The legend row(s): a sample of each line in its layer's colour.
-  legendRows.forEach((row, r) => {
-    let x = s.edge;
-    const cy = legendTop + r * (legendRowH + s.legendRow) + legendRowH / 2;
-    for (const i of row) {
-      const e = plan.legend[i]!;
-      const lm = legendMetrics[i]!;
-      const kh = 0.6 * legendRowH;
-      const key = (d: string, st: { fill?: string | null; stroke?: string | null; width?: number; dash?: number[] | null; opacity?: number }) => path(d, st, 'legend-key', e.layer, false);
-      const lineD = `M${n(x)},${n(cy)}H${n(x + keyW)}`;
-      if (e.key === 'observed') key(lineD, style('observed', e.color));
-      else if (e.key === 'expected') key(lineD, style('expected', e.color));
-      else if (e.key === 'band') key(lineD, style('expected_minus_1sigma', e.color));
-      else if (e.key === 'theory') key(lineD, style('observed_theory_lower', e.color));
-      else if (e.key === 'excluded-hatch') {
-        key(lineD, { stroke: e.color, width: theme.lines.observed });
-        key(hatchTicks([[x + keyW, cy], [x, cy]], false, hatchGap / 2, kh / 2), { stroke: e.color, width: 0.6 * theme.lines.observed });
-      } else if (e.key === 'excluded-shade') key(rectPath(x, cy - kh / 2, keyW, kh), { fill: e.color, opacity: 0.18 });
-      else key(rectPath(x, cy - kh / 2, keyW, kh), { fill: e.color });
-      text(x + keyW + keyGap, cy + (lm.ascent - lm.descent) / 2, e.label, t.legend, 'start', theme.colors.text, 'legend');
-      x += entryW[i]! + s.legendColumn;
-    }
-  });
+  // The header's text, and the legend keys: a sample of each line in its layer's colour.
+  items.push(...header.items);
+  for (const { index, x, cy, rowH: legendRowH } of header.keys) {
+    const e = plan.legend[index]!;
+    const kh = 0.6 * legendRowH;
+    const key = (d: string, st: { fill?: string | null; stroke?: string | null; width?: number; dash?: number[] | null; opacity?: number }) => path(d, st, 'legend-key', e.layer, false);
+    const lineD = `M${n(x)},${n(cy)}H${n(x + keyW)}`;
+    if (e.key === 'observed') key(lineD, style('observed', e.color));
+    else if (e.key === 'expected') key(lineD, style('expected', e.color));
+    else if (e.key === 'band') key(lineD, style('expected_minus_1sigma', e.color));
+    else if (e.key === 'theory') key(lineD, style('observed_theory_lower', e.color));
+    else if (e.key === 'excluded-hatch') {
+      key(lineD, { stroke: e.color, width: theme.lines.observed });
+      key(hatchTicks([[x + keyW, cy], [x, cy]], false, hatchGap / 2, kh / 2), { stroke: e.color, width: 0.6 * theme.lines.observed });
+    } else if (e.key === 'excluded-shade') key(rectPath(x, cy - kh / 2, keyW, kh), { fill: e.color, opacity: 0.18 });
+    else key(rectPath(x, cy - kh / 2, keyW, kh), { fill: e.color });
+  }
 
   // Labels whose text the figure decides: a box no text could have is refused on saving.
   if (plan.xTitle) oversize.check(plan.xTitle, t.axisTitle, false, 'spec.x.label', spec.x.label.trim() ? 'The x-axis title' : "The automatic x-axis title (from the first layer's result)", 'write a shorter one or choose a larger size');

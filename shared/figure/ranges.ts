@@ -13,7 +13,7 @@
 import { scaleLinear, scaleLog } from 'd3-scale';
 import type { FigureSpec, RangesOptions } from '../schemas/figures';
 import { exclusionOrProblem, type ExcludedRange } from '../stats/exclusion';
-import { axisPrimitives, fitMargins, oversizeCheck, pageMeasures, pathBounds, touches } from './draw';
+import { axisPrimitives, fitMargins, layoutHeader, oversizeCheck, pageMeasures, pathBounds, touches } from './draw';
 import { n, rectPath } from './legend';
 import { drawnLayers, fill, noteHalves, shortNumber, sizePt, type DrawnLayer } from './plan';
 import { roughWidth } from './room';
@@ -207,45 +207,10 @@ export function buildRangesScene(spec: FigureSpec, plan: RangesPlan, measure: Me
   const text = (x: number, y: number, label: string, size: number, anchor: 'start' | 'middle' | 'end', color: string, role: Extract<Primitive, { kind: 'text' }>['role']) =>
     items.push({ kind: 'text', x, y, label, size, font, anchor, color, rotate: 0, role });
 
-  // Notes at the top, as on a limit plot (a long one on two lines).
-  const noteLines = plan.notes.flatMap((note) => {
-    const halves = noteHalves(note);
-    halves.forEach((h) => m(h, t.note));
-    return m(note, t.note).width <= W - 2 * s.edge || halves.length === 0 ? [note] : halves;
-  });
-  let top = s.edge;
-  for (const line of noteLines) {
-    const nm = m(line, t.note);
-    text(s.edge, top + nm.ascent, line, t.note, 'start', theme.colors.muted, 'note');
-    top += height(nm) + 0.2 * t.note;
-  }
-
-  // The header: legend entries from the left, the energy / CL block on the right; the legend
-  // wraps onto further lines, and goes beneath the block when the two do not fit side by side.
-  const infoMetrics = plan.info.map((i) => m(i.label, t.annotation));
-  const infoW = Math.max(0, ...infoMetrics.map((x) => x.width));
-  const infoGap = 0.25 * t.annotation;
-  const infoH = infoMetrics.reduce((a, x) => a + height(x), 0) + Math.max(0, infoMetrics.length - 1) * infoGap;
+  // Notes, the legend row(s) and the energy / CL block above the plot.
   const keyW = 1.6 * t.legend;
-  const keyGap = 0.4 * t.legend;
-  const legendMetrics = plan.legend.map((e) => m(e.label, t.legend));
-  const legendRowH = Math.max(t.legend, ...legendMetrics.map(height));
-  const entryW = legendMetrics.map((x) => keyW + keyGap + x.width);
-  const besideW = W - 2 * s.edge - (infoW ? infoW + s.legendColumn : 0);
-  const beside = entryW.length === 0 || Math.max(0, ...entryW) <= besideW;
-  const legendWidth = beside ? besideW : W - 2 * s.edge;
-  const legendRows: number[][] = [];
-  entryW.forEach((ew, i) => {
-    const row = legendRows[legendRows.length - 1];
-    const used = row ? row.reduce((a, k) => a + entryW[k]! + s.legendColumn, 0) : 0;
-    if (row && used + ew <= legendWidth) row.push(i);
-    else legendRows.push([i]);
-  });
-  const legendH = legendRows.length ? legendRows.length * legendRowH + (legendRows.length - 1) * s.legendRow : 0;
-  const headerTop = top;
-  const legendTop = beside ? headerTop : headerTop + infoH + (infoH ? s.legendRow : 0);
-  const headerH = beside ? Math.max(infoH, legendH) : infoH + (infoH && legendH ? s.legendRow : 0) + legendH;
-  top = headerTop + headerH + (headerH ? s.title : 0);
+  const header = layoutHeader({ notes: plan.notes, info: plan.info, legend: plan.legend.map((e) => e.label), keyWidth: keyW }, theme, W, m, noteHalves);
+  const top = header.bottom;
 
   // Columns: bar labels and group headings left of the plot, notes right of it.
   const tickOut = theme.ticks.direction === 'out' ? theme.ticks.major : 0;
@@ -351,32 +316,19 @@ export function buildRangesScene(spec: FigureSpec, plan: RangesPlan, measure: Me
     text(x, yTop + am.ascent, a.text, t.annotation, 'start', theme.colors.text, 'annotation');
   }
 
-  // The energy / CL block, right-aligned at the top right.
-  let iy = headerTop;
-  plan.info.forEach((line, i) => {
-    const im = infoMetrics[i]!;
-    text(W - s.edge, iy + im.ascent, line.label, t.annotation, 'end', theme.colors.text, line.role);
-    iy += height(im) + infoGap;
-  });
-  // The legend row(s): neutral keys (the bars carry their layers' colours).
+  // The header's text, and the legend keys: neutral (the bars carry their layers' colours).
+  items.push(...header.items);
   const keyColor = theme.colors.muted;
-  legendRows.forEach((row, r) => {
-    let x = s.edge;
-    const cy = legendTop + r * (legendRowH + s.legendRow) + legendRowH / 2;
-    for (const i of row) {
-      const e = plan.legend[i]!;
-      const lm = legendMetrics[i]!;
-      const kh = 0.45 * legendRowH;
-      const key = (d: string, style: { fill?: string | null; stroke?: string | null; width?: number; dash?: number[] | null }) =>
-        items.push({ kind: 'path', d, fill: style.fill ?? null, stroke: style.stroke ?? null, strokeWidth: style.width ?? 0, dash: style.dash ?? null, clip: false, role: 'legend-key' });
-      if (e.key === 'observed') key(rectPath(x, cy - kh / 2, keyW, kh), { fill: keyColor });
-      else if (e.key === 'expected-outline') key(rectPath(x, cy - 0.75 * legendRowH / 2, keyW, 0.75 * legendRowH), { stroke: keyColor, width: theme.lines.expected, dash: theme.dash.expected });
-      else if (e.key === 'expected-marker') key(`M${n(x)},${n(cy - 0.375 * legendRowH)}V${n(cy + 0.375 * legendRowH)}M${n(x + keyW)},${n(cy - 0.375 * legendRowH)}V${n(cy + 0.375 * legendRowH)}`, { stroke: keyColor, width: theme.lines.expected });
-      else key(`M${n(x + keyW - 0.5 * kh)},${n(cy - kh / 2)}L${n(x + keyW)},${n(cy)}L${n(x + keyW - 0.5 * kh)},${n(cy + kh / 2)}ZM${n(x)},${n(cy - kh / 2)}H${n(x + keyW - 0.5 * kh)}V${n(cy + kh / 2)}H${n(x)}Z`, { fill: keyColor });
-      text(x + keyW + keyGap, cy + (lm.ascent - lm.descent) / 2, e.label, t.legend, 'start', theme.colors.text, 'legend');
-      x += entryW[i]! + s.legendColumn;
-    }
-  });
+  for (const { index, x, cy, rowH: legendRowH } of header.keys) {
+    const e = plan.legend[index]!;
+    const kh = 0.45 * legendRowH;
+    const key = (d: string, style: { fill?: string | null; stroke?: string | null; width?: number; dash?: number[] | null }) =>
+      items.push({ kind: 'path', d, fill: style.fill ?? null, stroke: style.stroke ?? null, strokeWidth: style.width ?? 0, dash: style.dash ?? null, clip: false, role: 'legend-key' });
+    if (e.key === 'observed') key(rectPath(x, cy - kh / 2, keyW, kh), { fill: keyColor });
+    else if (e.key === 'expected-outline') key(rectPath(x, cy - (0.75 * legendRowH) / 2, keyW, 0.75 * legendRowH), { stroke: keyColor, width: theme.lines.expected, dash: theme.dash.expected });
+    else if (e.key === 'expected-marker') key(`M${n(x)},${n(cy - 0.375 * legendRowH)}V${n(cy + 0.375 * legendRowH)}M${n(x + keyW)},${n(cy - 0.375 * legendRowH)}V${n(cy + 0.375 * legendRowH)}`, { stroke: keyColor, width: theme.lines.expected });
+    else key(`M${n(x + keyW - 0.5 * kh)},${n(cy - kh / 2)}L${n(x + keyW)},${n(cy)}L${n(x + keyW - 0.5 * kh)},${n(cy + kh / 2)}ZM${n(x)},${n(cy - kh / 2)}H${n(x + keyW - 0.5 * kh)}V${n(cy + kh / 2)}H${n(x)}Z`, { fill: keyColor });
+  }
 
   // Labels whose text the figure decides: a box no text could have is refused on saving.
   if (plan.xTitle) oversize.check(plan.xTitle, t.axisTitle, false, 'spec.x.label', spec.x.label.trim() ? 'The x-axis title' : "The automatic x-axis title (from the first layer's result)", 'write a shorter one or choose a larger size');
