@@ -100,6 +100,10 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.getByRole('button', { name: 'Add an annotation', exact: true }).click();
     await page.getByRole('button', { name: 'Place annotation 1 on the preview', exact: true }).click();
     await page.getByText(/^Press or drag on the preview to place annotation 1/).waitFor();
+    // Press only once the preview is drawn again with the new annotation (its label is typeset by
+    // the server first): a press while it is being redrawn lands on nothing.
+    await page.waitForFunction(`(document.querySelector('[aria-label^="Preview of the figure"] svg')?.querySelectorAll('path').length ?? 0) > 50`);
+    await page.waitForTimeout(300);
     const box = (await preview.boundingBox())!;
     await page.mouse.move(box.x + box.width * 0.3, box.y + box.height * 0.3);
     await page.mouse.down();
