@@ -97,6 +97,23 @@ function gridOf(p: PlaneLayerData): PlaneGrid | null {
   }
 }
 
+/**
+ * The lowest and highest usable value of the columns (finite, and positive for a log axis), or
+ * nothing: all an axis range needs of 40,000 values, without copying them.
+ */
+function extent(columns: readonly (readonly number[])[], log: boolean): number[] {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const col of columns) {
+    for (const v of col) {
+      if (!Number.isFinite(v) || (log && !(v > 0))) continue;
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+  }
+  return lo <= hi ? [lo, hi] : [];
+}
+
 /** Everything about a plane figure that does not need measured text. */
 export function planPlane(spec: FigureSpec, layers: readonly FigureLayerData[], theme: ResolvedTheme): PlanePlan {
   const { layers: drawn, hidden, notes: layerNotes } = planeLayers(spec, layers, theme);
@@ -108,10 +125,8 @@ export function planPlane(spec: FigureSpec, layers: readonly FigureLayerData[], 
   const o = spec.plane;
 
   // Axis ranges: every layer's grid (the contours lie inside their grids).
-  const xs = drawn.flatMap((l) => l.plane.plane.x.filter((v) => Number.isFinite(v) && (spec.x.scale !== 'log' || v > 0)));
-  const ys = drawn.flatMap((l) => l.plane.plane.y.filter((v) => Number.isFinite(v) && (spec.y.scale !== 'log' || v > 0)));
-  const xDomain = axisDomain(spec.x, xs, { pad: 0, fromZero: false, tight: true });
-  const yDomain = axisDomain(spec.y, ys, { pad: 0, fromZero: false, tight: true });
+  const xDomain = axisDomain(spec.x, extent(drawn.map((l) => l.plane.plane.x), spec.x.scale === 'log'), { pad: 0, fromZero: false, tight: true });
+  const yDomain = axisDomain(spec.y, extent(drawn.map((l) => l.plane.plane.y), spec.y.scale === 'log'), { pad: 0, fromZero: false, tight: true });
   const roughPlotW = Math.max(1, widthPt * (o.colorMap ? 0.62 : 0.75));
   const roughPlotH = Math.max(1, heightPt * 0.65);
   const x = planAxisTicks(spec.x.scale, xDomain, roughPlotW, t.tick, true, theme.ticks.plainDecades);
@@ -120,7 +135,7 @@ export function planPlane(spec: FigureSpec, layers: readonly FigureLayerData[], 
   let map: PlanePlan['map'] = null;
   if (o.colorMap && first && grid && first.plane.plane.observed) {
     const values = first.plane.plane.observed;
-    const positive = values.filter((v) => Number.isFinite(v) && v > 0);
+    const positive = extent([values], true);
     if (positive.length) {
       const domain = axisDomain({ scale: 'log', min: null, max: null, label: '' }, positive, { pad: 0, fromZero: false, tight: true });
       const bar = planAxisTicks('log', domain, roughPlotH, t.tick, false, theme.ticks.plainDecades);

@@ -81,7 +81,7 @@ describe('SVG with editable text', () => {
     expect(svg).toContain('&amp;amp; &amp;#60;');
     const d = doc(svg);
     const names = new Set([...d.querySelectorAll('*')].map((e) => e.localName));
-    expect([...names].every((x) => ['svg', 'title', 'defs', 'clipPath', 'rect', 'path', 'text', 'tspan'].includes(x))).toBe(true);
+    expect([...names].every((x) => ['svg', 'title', 'defs', 'clipPath', 'rect', 'path', 'g', 'text', 'tspan'].includes(x))).toBe(true);
     const attributes = [...d.querySelectorAll('*')].flatMap((e) => e.getAttributeNames());
     expect(attributes.filter((a) => /^on/i.test(a))).toEqual([]);
     // The text reads back exactly as written.

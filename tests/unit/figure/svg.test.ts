@@ -16,7 +16,8 @@ function render(labels: string[], title: string, glyphsFor?: (g: Glyphs, request
   const theme = resolveFigureTheme('publication');
   const requests = collectLabels(s, layers, theme);
   const glyphs = stubGlyphs(requests);
-  return { svg: sceneToSvg(buildScene(s, layers, theme, stubMeasure), glyphsFor ? glyphsFor(glyphs, requests) : glyphs, { title, reuseGlyphs }), requests };
+  const scene = buildScene(s, layers, theme, stubMeasure);
+  return { svg: sceneToSvg(scene, glyphsFor ? glyphsFor(glyphs, requests) : glyphs, { title, reuseGlyphs }), requests, scene };
 }
 
 /** Element names of a well-formed SVG document (JSDOM throws on malformed XML). */
@@ -45,12 +46,18 @@ describe('SVG output', () => {
     expect(doc.querySelector('title')!.textContent).toBe(HOSTILE.join(' '));
   });
   test('standalone SVG 1.1: size in points with a matching viewBox, labels as paths, curves clipped', () => {
-    const { svg } = render(['$m$ [TeV]', '$\\sigma$ [fb]', 'Dijet'], 'A figure');
+    const { svg, scene } = render(['$m$ [TeV]', '$\\sigma$ [fb]', 'Dijet'], 'A figure');
     expect(svg.startsWith('<?xml version="1.0" encoding="UTF-8"?>\n<svg xmlns="http://www.w3.org/2000/svg" version="1.1" width="243.78pt" height="182.835pt" viewBox="0 0 243.78 182.835">')).toBe(true);
     expect(svg).toContain('<title>A figure</title>');
     const doc = new JSDOM(svg, { contentType: 'image/svg+xml' }).window.document;
     const clipId = doc.querySelector('clipPath')!.getAttribute('id')!;
-    expect(doc.querySelectorAll(`path[clip-path="url(#${clipId})"]`).length).toBeGreaterThan(5);
+    // Every clipped path of the scene, and only those, inside a group clipped to the plot (one
+    // group per run of clipped paths, not one clip per path: a rasteriser masks once per group).
+    const clippedPaths = scene.items.filter((p) => p.kind === 'path' && p.clip).length;
+    expect(clippedPaths).toBeGreaterThan(5);
+    expect(doc.querySelectorAll(`g[clip-path="url(#${clipId})"] > path`).length).toBe(clippedPaths);
+    expect(doc.querySelectorAll('path[clip-path], g[clip-path] g').length).toBe(0);
+    expect(doc.querySelectorAll('g[clip-path]').length).toBeLessThan(clippedPaths);
     // Each label is one group of outline paths.
     expect(doc.querySelectorAll('g[transform] > path').length).toBeGreaterThan(10);
     expect(svg).not.toContain('NaN');
