@@ -100,6 +100,7 @@ export function SceneView({ scene, glyphs, accessibilityLabel, maxWidth, placing
                   key={i}
                   d={p.d}
                   fill={p.fill ?? 'none'}
+                  fillRule={p.fillRule}
                   stroke={p.stroke ?? 'none'}
                   strokeWidth={p.strokeWidth}
                   strokeDasharray={p.dash ?? undefined}

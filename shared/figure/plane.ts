@@ -16,11 +16,11 @@
 import { scaleLinear, scaleLog } from 'd3-scale';
 import type { FigureSpec, PlaneOptions } from '../schemas/figures';
 import { planeGrid, type PlaneGrid } from '../plane/grid';
-import type { ContourLine } from '../plane/contours';
+import { bandRegionRings, type ContourLine } from '../plane/contours';
 import { rampColor } from './color';
 import { axisPrimitives, fitMargins, layoutHeader, oversizeCheck, pageMeasures, pathBounds, touches } from './draw';
 import { n, rectPath } from './legend';
-import { drawnLayers, fill, noteHalves, shortNumber, sizePt, type DrawnLayer } from './plan';
+import { bandColors, drawnLayers, fill, noteHalves, shortNumber, sizePt, type DrawnLayer } from './plan';
 import type { ResolvedTheme } from './theme';
 import { axisDomain, planAxisTicks, thinLabels, type AxisPlan } from './ticks';
 import type { FigureLayerData, LabelRequest, Measure, PlaneLayerData, Primitive, Rect, Scene } from './types';
@@ -31,14 +31,24 @@ import { PLANE_FORBIDDEN_FILL, PLANE_SEQUENTIAL } from '../../themes/figure/pale
 /** Colours the map is quantised to (adjacent equal cells of a row are drawn as one rectangle). */
 export const PLANE_COLOR_LEVELS = 64;
 
+/** How far (pt) a run of cells reaches into its drawn neighbours, hiding anti-aliasing seams. */
+const CELL_OVERLAP = 0.3;
+
 /** Roles of the paths made of grid cells. */
 const CELL_ROLES = new Set(['color-map', 'forbidden', 'excluded']);
 
 /** Which stored contour a drawn line is, in the CSV's words. */
 export type PlaneLineKind = 'observed' | 'expected' | 'expected_minus_1sigma' | 'expected_plus_1sigma' | 'observed_theory_lower' | 'observed_theory_upper';
 
-/** A layer with its plane, and the lines it draws. */
-export type PlaneLayer = DrawnLayer & { plane: PlaneLayerData; lines: { kind: PlaneLineKind; lines: ContourLine[] }[] };
+/**
+ * A layer with its plane, and the lines it draws. `band`: the bands layer's ±1σ expected band as a
+ * region to fill (even-odd rings in parameter values, and its colour), set by `planPlane`; its two
+ * edge lines are then drawn as the region's edges rather than as dashed lines.
+ */
+export type PlaneLayer = DrawnLayer & { plane: PlaneLayerData; lines: { kind: PlaneLineKind; lines: ContourLine[] }[]; band?: { rings: [number, number][][]; fill: string } | null };
+
+/** Opacity of a filled ±1σ band over the colour map (opaque without one), so the map shows through. */
+export const PLANE_BAND_OVER_MAP = 0.55;
 
 export type PlaneLegendKey = 'observed' | 'expected' | 'band' | 'theory' | 'excluded-hatch' | 'excluded-shade' | 'forbidden';
 
@@ -123,6 +133,13 @@ export function planPlane(spec: FigureSpec, layers: readonly FigureLayerData[], 
   const first = drawn[0] ?? null;
   const grid = first ? gridOf(first.plane) : null;
   const o = spec.plane;
+  // The bands layer(s) fill their ±1σ band (the region between the two contours), as limit plots do.
+  for (const l of drawn) {
+    if (!l.band1 || !l.lines.some((k) => k.kind === 'expected_minus_1sigma' || k.kind === 'expected_plus_1sigma')) continue;
+    const g = l === first ? grid : gridOf(l.plane);
+    const rings = g ? bandRegionRings(g, l.plane.plane, l.data.meta.quantity) : null;
+    l.band = rings && rings.length ? { rings, fill: bandColors(l, theme).band1 } : null;
+  }
 
   // Axis ranges: every layer's grid (the contours lie inside their grids).
   const xDomain = axisDomain(spec.x, extent(drawn.map((l) => l.plane.plane.x), spec.x.scale === 'log'), { pad: 0, fromZero: false, tight: true });
@@ -273,10 +290,11 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
   const items: Primitive[] = [{ kind: 'rect', x: 0, y: 0, width: W, height: H, fill: theme.colors.background, stroke: null, strokeWidth: 0, role: 'background' }];
   const text = (x: number, y: number, label: string, size: number, anchor: 'start' | 'middle' | 'end', color: string, role: Extract<Primitive, { kind: 'text' }>['role'], rotate: 0 | -90 = 0) =>
     items.push({ kind: 'text', x, y, label, size, font, anchor, color, rotate, role });
-  const path = (d: string, style: { fill?: string | null; stroke?: string | null; width?: number; dash?: number[] | null; opacity?: number }, role: string, layer?: number, clip = true) => {
+  const path = (d: string, style: { fill?: string | null; stroke?: string | null; width?: number; dash?: number[] | null; opacity?: number; fillRule?: 'evenodd' }, role: string, layer?: number, clip = true) => {
     if (!d) return;
     const p: Primitive = { kind: 'path', d, fill: style.fill ?? null, stroke: style.stroke ?? null, strokeWidth: style.width ?? 0, dash: style.dash ?? null, clip, role, layer };
     if (style.opacity !== undefined) p.opacity = style.opacity;
+    if (style.fillRule) p.fillRule = style.fillRule;
     items.push(p);
   };
 
@@ -341,7 +359,11 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
         const level = levelOf(j * nx + i);
         let e = i + 1;
         while (e < nx && levelOf(j * nx + e) === level) e++;
-        const d = rectPath(ex[i]!, ey[j + 1]!, ex[e]! - ex[i]!, ey[j]! - ey[j + 1]!);
+        // Runs reach a hair into a drawn neighbour on the right and above, so no seam of the page
+        // colour shows between abutting anti-aliased edges; never into a hole or past the grid.
+        const right = e < nx && grid.index[j * nx + e]! >= 0 ? CELL_OVERLAP : 0;
+        const up = j + 1 < grid.ys.length && grid.index[(j + 1) * nx + i]! >= 0 && grid.index[(j + 1) * nx + e - 1]! >= 0 ? CELL_OVERLAP : 0;
+        const d = rectPath(ex[i]!, ey[j + 1]! - up, ex[e]! - ex[i]! + right, ey[j]! - ey[j + 1]! + up);
         // Only cells that reach the plot (a fixed axis range may leave some wholly outside it).
         const reaches = !(ex[e]! < plot.x || ex[i]! > plotRight || ey[j]! < plot.y || ey[j + 1]! > plotBottom);
         if (reaches && level >= 0) levels[level] += d;
@@ -376,6 +398,14 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
     }
   }
 
+  // The bands layer's ±1σ band: one even-odd path of both edges' rings, in its band tint.
+  const bandOpacity = map ? PLANE_BAND_OVER_MAP : undefined;
+  for (const l of plan.layers) {
+    if (!l.band) continue;
+    const d = l.band.rings.map((ring) => `${ring.map(([x, y], i) => `${i ? 'L' : 'M'}${n(X(x))},${n(Y(y))}`).join('')}Z`).join('');
+    path(d, { fill: l.band.fill, opacity: bandOpacity, fillRule: 'evenodd' }, 'band1', l.index);
+  }
+
   if (theme.grid) {
     const d = [
       ...plan.x.major.filter((tk) => okX(tk.value)).map((tk) => `M${n(X(tk.value))},${n(plot.y)}V${n(plotBottom)}`),
@@ -395,6 +425,8 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
   const hatchGap = 0.8 * t.legend;
   for (const l of plan.layers) {
     for (const group of l.lines) {
+      // A filled band's edges are the fill's: not drawn again as dashed lines.
+      if (l.band && (group.kind === 'expected_minus_1sigma' || group.kind === 'expected_plus_1sigma')) continue;
       const st = style(group.kind, l.color);
       const d = group.lines.map((line) => linePath(line, X, Y)).join('');
       if (!d) continue;
@@ -465,7 +497,11 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
     const lineD = `M${n(x)},${n(cy)}H${n(x + keyW)}`;
     if (e.key === 'observed') key(lineD, style('observed', e.color));
     else if (e.key === 'expected') key(lineD, style('expected', e.color));
-    else if (e.key === 'band') key(lineD, style('expected_minus_1sigma', e.color));
+    else if (e.key === 'band') {
+      const filled = plan.layers.find((l) => l.index === e.layer)?.band;
+      if (filled) key(rectPath(x, cy - kh / 2, keyW, kh), { fill: filled.fill, opacity: bandOpacity });
+      else key(lineD, style('expected_minus_1sigma', e.color));
+    }
     else if (e.key === 'theory') key(lineD, style('observed_theory_lower', e.color));
     else if (e.key === 'excluded-hatch') {
       key(lineD, { stroke: e.color, width: theme.lines.observed });

@@ -123,7 +123,7 @@ function primitive(p: Primitive, glyphs: Glyphs, reuse: GlyphReuse | null, text:
     case 'rect':
       return `<rect${attrs({ x: p.x, y: p.y, width: p.width, height: p.height, ...paint(p.fill, p.stroke, p.strokeWidth, null, p.opacity) })}/>`;
     case 'path':
-      return `<path${attrs({ d: p.d, ...paint(p.fill, p.stroke, p.strokeWidth, p.dash, p.opacity) })}/>`;
+      return `<path${attrs({ d: p.d, ...paint(p.fill, p.stroke, p.strokeWidth, p.dash, p.opacity), 'fill-rule': p.fillRule ?? null })}/>`;
     case 'text': {
       if (text === 'editable') return editableText(p);
       const g = glyphs.get(labelKey({ label: p.label, size: p.size, font: p.font }));

@@ -44,6 +44,8 @@ export type Primitive =
       /** Dash pattern in points, or null for a solid line. */
       dash: number[] | null;
       opacity?: number;
+      /** How a fill treats overlapping rings: 'evenodd' fills what is covered an odd number of times (default: non-zero). */
+      fillRule?: 'evenodd';
       /** Clipped to the plot area. */
       clip: boolean;
       /** What it is ("band2", "band1", "expected", "observed", "theory", "theory-band", "excluded" (the region above the observed limit where it excludes the theory), "grid", "axis", "tick", "crossing", "legend-key"). */

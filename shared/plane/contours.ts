@@ -33,20 +33,27 @@ export type ContourLine = {
   closed: boolean;
 };
 
+/** ln(ratio) on the grid's cells, row by row (NaN where a point is missing or its ratio is not finite and > 0). */
+function lnOnGrid(grid: PlaneGrid, ratio: ArrayLike<number>): number[] {
+  const { xs, ys, index } = grid;
+  const ln: number[] = new Array(xs.length * ys.length);
+  for (let c = 0; c < ln.length; c++) {
+    const k = index[c]!;
+    const r = k >= 0 ? ratio[k]! : NaN;
+    ln[c] = r > 0 && Number.isFinite(r) ? Math.log(r) : NaN;
+  }
+  return ln;
+}
+
 /**
  * Lines where ratio = 1 on the grid; `ratio[k]` belongs to point k (the index of `grid.index`).
  * Points with a non-finite or non-positive ratio count as missing.
  */
 export function ratioContours(grid: PlaneGrid, ratio: ArrayLike<number>): ContourLine[] {
-  const { xs, ys, index } = grid;
+  const { xs, ys } = grid;
   const nx = xs.length;
   const ny = ys.length;
-  const ln: number[] = new Array(nx * ny);
-  for (let c = 0; c < nx * ny; c++) {
-    const k = index[c]!;
-    const r = k >= 0 ? ratio[k]! : NaN;
-    ln[c] = r > 0 && Number.isFinite(r) ? Math.log(r) : NaN;
-  }
+  const ln = lnOnGrid(grid, ratio);
   // Cell (i, j) between grid lines i, i+1 and j, j+1: usable when its four corners are.
   const cellOk = new Uint8Array(Math.max(0, (nx - 1) * (ny - 1)));
   for (let j = 0; j + 1 < ny; j++) {
@@ -110,6 +117,50 @@ export function ratioContours(grid: PlaneGrid, ratio: ArrayLike<number>): Contou
 const same = (a: [number, number], b: [number, number]) => a[0] === b[0] && a[1] === b[1];
 
 /**
+ * The boundary rings, in parameter values, of where the grid's points are NOT excluded (ratio ≥ 1),
+ * for filling: d3-contour's polygons of ln(ratio) ≥ 0, unsmoothed. A vertex between two points
+ * with a ratio is placed as `ratioContours` places it, so the filled edge lies exactly on that
+ * contour line; a vertex next to a missing point, or beyond the grid's outer edge, is placed on the
+ * point that has a value, so a region ends at the last points of the grid and never spans a hole.
+ * Ring direction is d3's and not meant for the non-zero rule: fill with the even-odd rule.
+ */
+export function ratioRegionRings(grid: PlaneGrid, ratio: ArrayLike<number>): [number, number][][] {
+  const { xs, ys } = grid;
+  const nx = xs.length;
+  const ny = ys.length;
+  const ln = lnOnGrid(grid, ratio);
+  const at = (i: number, j: number) => (i >= 0 && j >= 0 && i < nx && j < ny ? ln[j * nx + i]! : NaN);
+  // Between two values a and b at parameter values pa and pb: where ln crosses 0, or the one that has a value.
+  const between = (a: number, b: number, pa: number, pb: number) => {
+    if (Number.isNaN(b)) return pa;
+    if (Number.isNaN(a)) return pb;
+    const f = a / (a - b);
+    return (1 - f) * pa + f * pb;
+  };
+  const clampX = (i: number) => xs[Math.max(0, Math.min(nx - 1, i))]!;
+  const clampY = (j: number) => ys[Math.max(0, Math.min(ny - 1, j))]!;
+  const place = ([X, Y]: [number, number]): [number, number] => {
+    if (Number.isInteger(X)) {
+      const i = X - 1;
+      const j = Y - 0.5;
+      return [between(at(i, j), at(i + 1, j), clampX(i), clampX(i + 1)), ys[j]!];
+    }
+    const i = X - 0.5;
+    const j = Y - 1;
+    return [xs[i]!, between(at(i, j), at(i, j + 1), clampY(j), clampY(j + 1))];
+  };
+  const out: [number, number][][] = [];
+  for (const polygon of d3Contours().size([nx, ny]).smooth(false).contour(ln, 0).coordinates) {
+    for (const ring of polygon as [number, number][][]) {
+      const pts = distinct(ring.slice(0, -1).map(place));
+      if (pts.length > 1 && same(pts[0]!, pts[pts.length - 1]!)) pts.pop();
+      if (pts.length > 2) out.push(pts);
+    }
+  }
+  return out;
+}
+
+/**
  * Drops a vertex equal to the one before it: where the ratio is exactly 1 at a grid point, the
  * vertices of the edges meeting there all land on that point.
  */
@@ -120,6 +171,26 @@ function distinct(points: [number, number][]): [number, number][] {
 }
 
 export type PlaneQuantity = 'mu' | 'xsec';
+
+/** The ratio of σ×B limits to the theory σ×B, point by point. */
+const over = (limit: readonly number[], theory: readonly number[]) => limit.map((v, k) => v / theory[k]!);
+
+/**
+ * The region between the expected −1σ and +1σ contours, as rings to fill with the even-odd rule:
+ * the not-excluded regions of the two edges overlaid, so what is covered once lies between them
+ * (excluded by the −1σ edge, not by the +1σ edge). Null when an edge, or for σ×B the theory
+ * σ×B, is not stored; the ratio is the one `planeContours` uses.
+ */
+export function bandRegionRings(grid: PlaneGrid, plane: Plane, quantity: PlaneQuantity): [number, number][][] | null {
+  const lower = plane.expected?.['-1'];
+  const upper = plane.expected?.['1'];
+  if (!lower || !upper) return null;
+  const central = plane.theory?.central;
+  if (quantity === 'xsec' && !central) return null;
+  const ratio = (limit: readonly number[]) => (quantity === 'xsec' ? over(limit, central!) : limit);
+  return [...ratioRegionRings(grid, ratio(lower)), ...ratioRegionRings(grid, ratio(upper))];
+}
+
 type BandKey = '-1' | '0' | '1';
 const BAND_KEYS: readonly BandKey[] = ['-1', '0', '1'];
 
@@ -167,7 +238,6 @@ export function planeContours(plane: Plane, quantity: PlaneQuantity, opts: Plane
   }
   if (!plane.theory) return { ...result, problem: 'no theory σ×B is stored, so no contour can be derived' };
   const central = checkColumn(plane.theory.central, ['theory', 'central'], n);
-  const over = (limit: readonly number[], theory: readonly number[]) => limit.map((v, k) => v / theory[k]!);
   if (observed) {
     result.observed = ratioContours(grid, over(observed, central));
     if (plane.theory.lower) result.observedTheoryLower = ratioContours(grid, over(observed, checkColumn(plane.theory.lower, ['theory', 'lower'], n)));

@@ -4,7 +4,8 @@
  * one-parameter layers, the contour CSV, and the sequential palette.
  */
 import { buildScene, collectLabels, figureCsv, captionDraft, labelKey, resolveFigureTheme, type FigureLayerData, type Scene } from '@/shared/figure';
-import { hatchTicks, planPlane } from '@/shared/figure/plane';
+import { hatchTicks, planPlane, PLANE_BAND_OVER_MAP } from '@/shared/figure/plane';
+import { bandColors } from '@/shared/figure/plan';
 import { greyLightness, rampColor, simulateVision } from '@/shared/figure/color';
 import { planeContours } from '@/shared/plane/contours';
 import type { Plane } from '@/shared/schemas/plane';
@@ -79,7 +80,41 @@ describe('plane figure scene', () => {
     // The circle of radius 400 GeV around (1000, 500): within a grid spacing (60 × 40 GeV cells).
     for (const [x, y] of want) expect(Math.abs(Math.hypot(x - 1000, y - 500) - 400)).toBeLessThan(15);
     expect(paths(scene, 'expected')).toHaveLength(1);
-    expect(paths(scene, 'band1')).toHaveLength(2);
+    // The bands layer's ±1σ band is one filled region (even-odd), translucent over the colour map.
+    const band = paths(scene, 'band1');
+    expect(band).toHaveLength(1);
+    expect(band[0]).toMatchObject({ fillRule: 'evenodd', stroke: null, opacity: PLANE_BAND_OVER_MAP, clip: true });
+    expect(band[0]!.fill).toBe(bandColors(planPlane(s, data, theme).layers[0]!, theme).band1);
+  });
+
+  test('the ±1σ band fills the ring between its contours; other layers draw their band as thin dashed lines', () => {
+    const two = [planeLayer(0, circlePlane()), planeLayer(1, circlePlane(1.2))];
+    const plan = planPlane(spec(two, { plane: { colorMap: false } }), two, theme);
+    const sc = buildScene(spec(two, { plane: { colorMap: false } }), two, theme, stubMeasure);
+    const X = (v: number) => sc.plot.x + ((v - plan.x.domain[0]) / (plan.x.domain[1] - plan.x.domain[0])) * sc.plot.width;
+    const Y = (v: number) => sc.plot.y + sc.plot.height - ((v - plan.y.domain[0]) / (plan.y.domain[1] - plan.y.domain[0])) * sc.plot.height;
+    const band = paths(sc, 'band1');
+    // Layer 0 (the bands layer) fills, opaque without a colour map; layer 1 keeps its two dashed lines.
+    expect(band.filter((p) => p.layer === 0)).toHaveLength(1);
+    expect(band[0]).toMatchObject({ fillRule: 'evenodd', stroke: null });
+    expect(band[0]!.opacity).toBeUndefined();
+    const dashed = band.filter((p) => p.layer === 1);
+    expect(dashed).toHaveLength(2);
+    for (const p of dashed) expect(p.fill).toBeNull();
+    // The −1σ ring (μ·0.6 = 1, radius 400/√0.6 GeV) and the +1σ ring (radius 400/√1.1 GeV) of
+    // layer 0 are both in the fill: its vertices lie on one circle or the other or on the grid's edge.
+    const onCircle = (px: number, py: number, r: number) => Math.abs(Math.hypot(px - X(1000), ((py - Y(500)) * (X(1060) - X(1000))) / 60 * 40 / (Y(500) - Y(540))) - (X(1000 + r) - X(1000))) < 8;
+    const pts = pathPoints(band[0]!.d);
+    const edge = (px: number, py: number) => Math.abs(px - sc.plot.x) < 0.5 || Math.abs(px - (sc.plot.x + sc.plot.width)) < 0.5 || Math.abs(py - sc.plot.y) < 0.5 || Math.abs(py - (sc.plot.y + sc.plot.height)) < 0.5;
+    const inner = pts.filter(([px, py]) => onCircle(px, py, 400 / Math.sqrt(1.1))).length;
+    const outer = pts.filter(([px, py]) => onCircle(px, py, 400 / Math.sqrt(0.6))).length;
+    expect(inner).toBeGreaterThan(20);
+    expect(outer).toBeGreaterThan(20);
+    expect(pts.filter(([px, py]) => !edge(px, py) && !onCircle(px, py, 400 / Math.sqrt(1.1)) && !onCircle(px, py, 400 / Math.sqrt(0.6)))).toEqual([]);
+    // Its legend key is a filled swatch in the band's colour; layer 1's a dashed line.
+    const keys = paths(sc, 'legend-key');
+    expect(keys.some((k) => k.layer === 0 && k.fill === band[0]!.fill)).toBe(true);
+    expect(keys.some((k) => k.layer === 1 && k.dash !== null && k.fill === null)).toBe(true);
   });
 
   test('the colour bar spans the observed values on a log scale, in the sequential palette', () => {
