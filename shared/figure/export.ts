@@ -214,7 +214,9 @@ function planeCaption(spec: FigureSpec, layers: FigureLayerData[]): string {
       parts.push('Solid lines: the edge of what the data rule out; dashed lines: the expected reach if there is no new particle.');
     } else {
       parts.push(`Observed (solid) and expected (dashed) ${cls}% CL exclusion contours in the plane of ${px} and ${py}, from ${listing(results)}.`);
-      if (drawn.some((l) => l.lines.some((k) => k.kind === 'expected_minus_1sigma' || k.kind === 'expected_plus_1sigma'))) parts.push('Thin dashed lines: the expected contours at ±1σ.');
+      const withBand = drawn.filter((l) => l.lines.some((k) => k.kind === 'expected_minus_1sigma' || k.kind === 'expected_plus_1sigma'));
+      if (withBand.some((l) => l.band1)) parts.push(`Shaded band: the region between the expected contours at ±1σ${drawn.length > 1 ? ` of ${listing(withBand.filter((l) => l.band1).map((l) => labelPlainText(l.name)))}` : ''}.`);
+      if (withBand.some((l) => !l.band1)) parts.push('Thin dashed lines: the expected contours at ±1σ.');
       if (drawn.some((l) => l.lines.some((k) => k.kind.startsWith('observed_theory')))) parts.push('Thin solid lines: the observed contour with the theory prediction at its ±1σ edges.');
     }
     if (spec.plane.colorMap && first.plane.plane.observed) {

@@ -3,7 +3,9 @@
  * plane. The first layer's observed limit is a colour map (cells centred on its grid points,
  * coloured on a LOG scale from the sequential ramp PLANE_SEQUENTIAL, with a colour bar); every
  * layer adds its stored contour lines (the registry's `planeContours`, never recomputed here) in
- * its colour: observed solid, expected median dashed, the expected ±1σ contours thin and dashed,
+ * its colour: observed solid, expected median dashed, the expected ±1σ band filled between its two
+ * contours for the bands layer (the one region the plane recomputes, from the same grid and with
+ * the same vertex placement as the stored lines) and thin dashed ±1σ contours for the others,
  * the observed lines against the theory band's edges thin and solid. The excluded side of each
  * observed line is marked with short hatch ticks (the contours keep it on the LEFT of their
  * direction of travel) or with a light shading of the excluded cells. Cells with no point are left

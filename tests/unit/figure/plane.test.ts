@@ -115,6 +115,10 @@ describe('plane figure scene', () => {
     const keys = paths(sc, 'legend-key');
     expect(keys.some((k) => k.layer === 0 && k.fill === band[0]!.fill)).toBe(true);
     expect(keys.some((k) => k.layer === 1 && k.dash !== null && k.fill === null)).toBe(true);
+    // The caption says which is which.
+    const caption = captionDraft(spec(two, { plane: { colorMap: false } }), two);
+    expect(caption).toContain('Shaded band: the region between the expected contours at ±1σ of Plane 1.');
+    expect(caption).toContain('Thin dashed lines: the expected contours at ±1σ.');
   });
 
   test('the colour bar spans the observed values on a log scale, in the sequential palette', () => {
