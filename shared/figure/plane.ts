@@ -37,7 +37,7 @@ export const PLANE_COLOR_LEVELS = 64;
 const CELL_OVERLAP = 0.3;
 
 /** Roles of the paths made of grid cells. */
-const CELL_ROLES = new Set(['color-map', 'forbidden', 'excluded']);
+const CELL_ROLES = new Set(['color-map', 'forbidden', 'hole-cover', 'excluded']);
 
 /** Which stored contour a drawn line is, in the CSV's words. */
 export type PlaneLineKind = 'observed' | 'expected' | 'expected_minus_1sigma' | 'expected_plus_1sigma' | 'observed_theory_lower' | 'observed_theory_upper';
@@ -339,12 +339,12 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
   // The colour map and the cells with no point, one path per colour: each row's run of equal
   // cells is one rectangle.
   const grid = plan.grid;
+  let holes = '';
   if (grid && grid.xs.every(okX) && grid.ys.every(okY)) {
     const ex = cellEdges(grid.xs, plan.x.scale === 'log').map(X);
     const ey = cellEdges(grid.ys, plan.y.scale === 'log').map(Y);
     const nx = grid.xs.length;
     const levels: string[] = new Array(PLANE_COLOR_LEVELS).fill('');
-    let holes = '';
     const lo = map ? Math.log(map.domain[0]) : 0;
     const span = map ? Math.log(map.domain[1]) - lo || 1 : 1;
     const levelOf = (c: number): number => {
@@ -374,7 +374,6 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
       }
     }
     levels.forEach((d, k) => path(d, { fill: rampColor(PLANE_SEQUENTIAL, k / (PLANE_COLOR_LEVELS - 1)) }, 'color-map', plan.layers[0]!.index));
-    if (plan.options.forbidden === 'drawn') path(holes, { fill: PLANE_FORBIDDEN_FILL }, 'forbidden');
   }
 
   // A light shading of each layer's excluded cells (observed ratio below 1 at the grid point).
@@ -407,6 +406,10 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
     const d = l.band.rings.map((ring) => `${ring.map(([x, y], i) => `${i ? 'L' : 'M'}${n(X(x))},${n(Y(y))}`).join('')}Z`).join('');
     path(d, { fill: l.band.fill, opacity: bandOpacity, fillRule: 'evenodd' }, 'band1', l.index);
   }
+  // The cells with no point, over the band: where its edge runs diagonally past a missing corner
+  // (marching squares do) the cell's rectangle covers it, in grey or in the page colour.
+  if (plan.options.forbidden === 'drawn') path(holes, { fill: PLANE_FORBIDDEN_FILL }, 'forbidden');
+  else if (plan.layers.some((l) => l.band)) path(holes, { fill: theme.colors.background }, 'hole-cover');
 
   if (theme.grid) {
     const d = [

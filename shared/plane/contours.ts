@@ -120,8 +120,9 @@ const same = (a: [number, number], b: [number, number]) => a[0] === b[0] && a[1]
  * The boundary rings, in parameter values, of where the grid's points are NOT excluded (ratio ≥ 1),
  * for filling: d3-contour's polygons of ln(ratio) ≥ 0, unsmoothed. A vertex between two points
  * with a ratio is placed as `ratioContours` places it, so the filled edge lies exactly on that
- * contour line; a vertex next to a missing point, or beyond the grid's outer edge, is placed on the
- * point that has a value, so a region ends at the last points of the grid and never spans a hole.
+ * contour line; a vertex next to a missing point is placed halfway to it, and one beyond the grid's
+ * outer edge on the grid's last line, so a region ends where the cells drawn round its points end
+ * and never spans a hole.
  * Ring direction is d3's and not meant for the non-zero rule: fill with the even-odd rule.
  */
 export function ratioRegionRings(grid: PlaneGrid, ratio: ArrayLike<number>): [number, number][][] {
@@ -130,10 +131,11 @@ export function ratioRegionRings(grid: PlaneGrid, ratio: ArrayLike<number>): [nu
   const ny = ys.length;
   const ln = lnOnGrid(grid, ratio);
   const at = (i: number, j: number) => (i >= 0 && j >= 0 && i < nx && j < ny ? ln[j * nx + i]! : NaN);
-  // Between two values a and b at parameter values pa and pb: where ln crosses 0, or the one that has a value.
+  // Between values a and b at parameter values pa and pb: where ln crosses 0; next to a missing
+  // point halfway (where a cell drawn round each point ends); beyond the grid on its last line.
   const between = (a: number, b: number, pa: number, pb: number) => {
-    if (Number.isNaN(b)) return pa;
-    if (Number.isNaN(a)) return pb;
+    if (pa === pb) return pa;
+    if (Number.isNaN(a) || Number.isNaN(b)) return (pa + pb) / 2;
     const f = a / (a - b);
     return (1 - f) * pa + f * pb;
   };

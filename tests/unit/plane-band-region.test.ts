@@ -105,6 +105,11 @@ describe('the ±1σ band as a region (bandRegionRings)', () => {
     // Inside the annulus, but where there are no points (away from the quarter's edges).
     for (const p of [[0.8, 0.8], [0.3, 1.0], [1.0, 0.3]] as Pt[]) expect(insideEvenOdd(rings, p)).toBe(false);
     for (const p of [[-0.8, -0.8], [-1.0, 0.3], [0.3, -1.0]] as Pt[]) expect(insideEvenOdd(rings, p)).toBe(true);
+    // Next to the hole the region ends halfway between the last point (0) and the first missing
+    // one (0.1), where the colour map's cell round the last point ends: no vertex reaches further.
+    const vertices = rings.flat();
+    expect(vertices.filter(([x, y]) => x > 0.05 + 1e-9 && y > 0.05 + 1e-9)).toEqual([]);
+    expect(vertices.filter(([x, y]) => (Math.abs(x - 0.05) < 1e-9 && y > 0.3) || (Math.abs(y - 0.05) < 1e-9 && x > 0.3)).length).toBeGreaterThan(4);
   });
 
   test('a grid two points wide and an empty band give rings or none, never a crash', () => {
