@@ -6,6 +6,7 @@ import { CsvFileError, decodeText } from '@/shared/curves/csv';
 import { parseScanCsv } from '@/shared/scans/csv';
 import { versionMetaSchema } from '@/shared/schemas/results';
 import { scanFileSchema, type ScanInputPoint } from '@/shared/schemas/scans';
+import { MIN_TAIL_TOYS, toysForBands } from '@/shared/stats/toys';
 import { ApiError } from '@/shared/api-client';
 import { useStartScan } from '@/hooks/use-scans';
 import { useUploadLimit } from '@/hooks/use-limits';
@@ -57,7 +58,8 @@ export function ScanStart({ groupId }: { groupId: string }) {
   const [touched, setTouched] = useState<Set<string>>(new Set());
   const [method, setMethod] = useState<'asymptotic' | 'toys'>('asymptotic');
   const [asimov, setAsimov] = useState<'profiled' | 'nominal'>('profiled');
-  const [toys, setToys] = useState('5000');
+  // Untouched, the count follows the CL: enough for the −2σ band edge (toysForBands).
+  const [toysTyped, setToys] = useState<string | null>(null);
   const [seed, setSeed] = useState('1');
   const [theoryLabel, setTheoryLabel] = useState('');
   const [serverProblems, setServerProblems] = useState<Problem[]>([]);
@@ -65,7 +67,15 @@ export function ScanStart({ groupId }: { groupId: string }) {
   const metaCheck = useMemo(() => checkForm(versionMetaSchema, metaInput({ ...meta, method })), [meta, method]);
   const shownMetaErrors: FieldErrors = Object.fromEntries(Object.entries(metaCheck.errors).filter(([k]) => touched.has(k)));
   const optionErrors: FieldErrors = {};
+  const typedCl = readNumber(meta.cl);
+  const cl = typedCl !== undefined && typedCl > 0 && typedCl < 1 ? typedCl : 0.95;
+  const enough = toysForBands(1 - cl);
+  const toys = toysTyped ?? String(enough);
   const toysN = readNumber(toys);
+  const toysHint =
+    toysN !== undefined && toysN < enough
+      ? `Fewer than ${enough.toLocaleString('en')}: at ${+(cl * 100).toFixed(2)}% CL the −2σ band edge would rest on fewer than ${MIN_TAIL_TOYS} pseudo-experiments in its tail`
+      : `Enough for the −2σ band edge at ${+(cl * 100).toFixed(2)}% CL (at least ${enough.toLocaleString('en')})`;
   if (method === 'toys' && (toysN === undefined || !Number.isInteger(toysN) || toysN < 100 || toysN > 1_000_000)) optionErrors.toys = 'A whole number from 100 to 1,000,000';
   const seedN = readNumber(seed);
   if (theoryLabel.trim().length > 120) optionErrors.theoryLabel = 'At most 120 characters';
@@ -144,7 +154,7 @@ export function ScanStart({ groupId }: { groupId: string }) {
         <View style={styles.row}>
           {method === 'toys' ? (
             <View style={styles.grow}>
-              <TextField label="Pseudo-experiments per hypothesis" value={toys} onChangeText={setToys} inputMode="numeric" error={optionErrors.toys} />
+              <TextField label="Pseudo-experiments per hypothesis" value={toys} onChangeText={setToys} inputMode="numeric" error={optionErrors.toys} hint={toysHint} />
             </View>
           ) : null}
           {method === 'toys' ? (
