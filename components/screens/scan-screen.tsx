@@ -13,6 +13,7 @@ import { ClsPlot } from '../compute/cls-plot';
 import { fmt, fmtFitted, LimitSummary } from '../compute/limit-summary';
 import { PullsTable } from '../compute/pulls-table';
 import { RerunPoint } from '../scans/rerun-point';
+import { ScanPlane } from '../scans/scan-plane';
 import { QuickPlot } from '../plot/quick-plot';
 import { Anchor } from '../ui/anchor';
 import { Hatted } from '../ui/hatted';
@@ -55,12 +56,13 @@ function pointState(p: ScanPointSummary): string {
 }
 
 /** The rerun control of a point, wired to the API: on success the new scan's progress page opens. */
-function RerunControl({ groupId, scanId, index, x, current, max }: { groupId: string; scanId: string; index: number; x: string; current: number; max: number }) {
+function RerunControl({ groupId, scanId, index, x, y, current, max }: { groupId: string; scanId: string; index: number; x: string; y?: string; current: number; max: number }) {
   const rerun = useRerunPoint(groupId, scanId, index);
   const router = useRouter();
   return (
     <RerunPoint
       x={x}
+      y={y}
       current={current}
       max={max}
       pending={rerun.isPending}
@@ -103,7 +105,7 @@ function Diagnostics({ groupId, scanId, index, unit, canRerun }: { groupId: stri
         {d.computeMs !== null ? ` · computed in ${fmt(d.computeMs, 3)} ms` : ''}
         {d.rerun ? ` · ${d.rerun.toys.toLocaleString('en')} pseudo-experiments per hypothesis` : ''}
       </Text>
-      {canRerun && d.rerun ? <RerunControl key={`${scanId}-${index}`} groupId={groupId} scanId={scanId} index={index} x={fmt(d.x, 6)} current={d.rerun.toys} max={d.rerun.maxToys} /> : null}
+      {canRerun && d.rerun ? <RerunControl key={`${scanId}-${index}`} groupId={groupId} scanId={scanId} index={index} x={fmt(d.x, 6)} y={d.y !== null ? fmt(d.y, 6) : undefined} current={d.rerun.toys} max={d.rerun.maxToys} /> : null}
     </Card>
   );
 }
@@ -197,8 +199,8 @@ export function ScanScreen() {
           <Card>
             <Text variant="title">Limits so far</Text>
             {s.points.some((p) => p.y !== null) ? (
-              // Over two parameters a curve against x alone would stack points: the plane is drawn on the draft's page.
-              <Text variant="muted">This scan is over two parameters: the draft result's page draws its plane and contour lines when the scan ends. The table below lists each point as it finishes.</Text>
+              // Over two parameters a curve against x alone would stack points: the grid fills in instead.
+              <ScanPlane points={s.points} xsec={xsec} xLabel={xLabel} yLabel={`${s.meta.yName ?? 'y'}${s.meta.yUnit ? ` [${s.meta.yUnit}]` : ''}`} />
             ) : curve.x.length >= 2 ? (
               <QuickPlot curve={curve} xLabel={xLabel} yLabel={yLabel} />
             ) : (
