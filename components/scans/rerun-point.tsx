@@ -40,7 +40,7 @@ export function RerunPoint({ x, y, current, max, pending, error, onRerun }: { x:
   const fromServer = serverFieldErrors(error).toys;
   const other = error && !fromServer ? errorMessage(error) : undefined;
   if (max <= current) {
-    return <Text variant="caption">The point {at} already has {n(current)} pseudo-experiments per hypothesis, the most this scan and plan allow.</Text>;
+    return <Text variant="caption">{`The point ${at} already has ${n(current)} pseudo-experiments per hypothesis, the most this scan and plan allow.`}</Text>;
   }
   const submit = () => {
     const p = rerunToysProblem(text, current, max);
@@ -51,8 +51,7 @@ export function RerunPoint({ x, y, current, max, pending, error, onRerun }: { x:
     <View role="group" aria-label={`Rerun the point ${at} with more pseudo-experiments`} style={styles.box}>
       <Text variant="label">Rerun this point with more pseudo-experiments</Text>
       <Text variant="caption">
-        A new scan of the same inputs: the other points are copied as computed, only {at} is computed again. Its draft becomes a new version of the same result; the
-        current version stays.
+        {`A new scan of the same inputs: the other points are copied as computed, only ${at} is computed again. Its draft becomes a new version of the same result; the current version stays.`}
       </Text>
       <TextField
         label="Pseudo-experiments per hypothesis"
