@@ -55,6 +55,14 @@ function Swatch({ state }: { state: PlanePointState }) {
   );
 }
 
+/** What the colours mean so far: nothing yet, one value, or a range on the log ramp. */
+export function colourNote(range: [number, number] | null | undefined, xsec: boolean): string {
+  const on = xsec ? 'σ×B' : 'μ';
+  if (!range) return `Cells fill in with their observed limit on ${on} as points finish.`;
+  if (range[0] === range[1]) return `Colour: observed limit on ${on}, ${formatValue(range[0])} so far; the scale spreads as more points finish.`;
+  return `Colour: observed limit on ${on} from ${formatValue(range[0])} (light) to ${formatValue(range[1])} (dark), log scale, over the points done so far.`;
+}
+
 const KEY_LABEL: Record<PlanePointState, string> = { done: 'Done', running: 'Running', pending: 'Queued', failed: 'Failed', cancelled: 'Not computed (cancelled)' };
 
 /**
@@ -62,7 +70,7 @@ const KEY_LABEL: Record<PlanePointState, string> = { done: 'Done', running: 'Run
  * done points coloured by their observed limit on the result preview's log ramp, the others by
  * state, with a key of the states and their counts. Its accessible name gives the counts.
  */
-export function ScanPlane({ points, xsec, xLabel, yLabel, height = 300 }: { points: readonly ScanPointSummary[]; xsec: boolean; xLabel: string; yLabel: string; height?: number }) {
+export function ScanPlane({ points, xsec, xLabel, yLabel, active, height = 300 }: { points: readonly ScanPointSummary[]; xsec: boolean; xLabel: string; yLabel: string; active: boolean; height?: number }) {
   const [width, setWidth] = useState(0);
   const { plane, states } = useMemo(() => scanPlaneInput(points, xsec), [points, xsec]);
   const geom = useMemo(() => buildPlanePreview({ width, height, plane, contours: null, ramp: planeRamp, states }), [width, height, plane, states]);
@@ -73,8 +81,8 @@ export function ScanPlane({ points, xsec, xLabel, yLabel, height = 300 }: { poin
   };
   const range = geom?.colourRange;
   const label = `${describePlaneProgress(counts)}. Plane of ${yLabel} against ${xLabel}${range ? `; done points coloured by their observed limit from ${formatValue(range[0])} to ${formatValue(range[1])}` : ''}.`;
-  // Always the three states a running scan has; failed and cancelled once a point is.
-  const keyStates = PLANE_POINT_STATES.filter((s) => s === 'done' || s === 'running' || s === 'pending' || counts[s] > 0);
+  // Done always; running and queued while the scan runs (so the key does not jump), any state once a point is in it.
+  const keyStates = PLANE_POINT_STATES.filter((s) => s === 'done' || counts[s] > 0 || (active && (s === 'running' || s === 'pending')));
   return (
     <View style={styles.wrap}>
       <View role="img" aria-label={label} onLayout={onLayout} style={{ height }}>
@@ -89,9 +97,7 @@ export function ScanPlane({ points, xsec, xLabel, yLabel, height = 300 }: { poin
         ))}
       </View>
       <Text variant="caption">
-        {range
-          ? `Colour: observed limit${xsec ? ' on σ×B' : ' on μ'} from ${formatValue(range[0])} (light) to ${formatValue(range[1])} (dark), log scale, over the points done so far; the contour lines are drawn on the draft result's page.${geom && geom.stride > 1 ? ` Every ${geom.stride}th value per axis is drawn; the table has all points.` : ''}`
-          : 'Cells fill in with their observed limit as points finish.'}
+        {`${colourNote(range, xsec)} The contour lines are drawn on the draft result's page.${geom && geom.stride > 1 ? ` Every ${geom.stride}th value per axis is drawn; the table has all points.` : ''}`}
       </Text>
     </View>
   );

@@ -200,7 +200,7 @@ export function ScanScreen() {
             <Text variant="title">Limits so far</Text>
             {s.points.some((p) => p.y !== null) ? (
               // Over two parameters a curve against x alone would stack points: the grid fills in instead.
-              <ScanPlane points={s.points} xsec={xsec} xLabel={xLabel} yLabel={`${s.meta.yName ?? 'y'}${s.meta.yUnit ? ` [${s.meta.yUnit}]` : ''}`} />
+              <ScanPlane points={s.points} xsec={xsec} active={running} xLabel={xLabel} yLabel={`${s.meta.yName ?? 'y'}${s.meta.yUnit ? ` [${s.meta.yUnit}]` : ''}`} />
             ) : curve.x.length >= 2 ? (
               <QuickPlot curve={curve} xLabel={xLabel} yLabel={yLabel} />
             ) : (

@@ -48,6 +48,8 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await page.goto(`/groups/${group.id}/scans/${scan.id}`);
     const plane = page.getByRole('img', { name: /^(\d+ of 25 points done|All 25 points done)\b.*Plane of m\(χ\) \[GeV\] against m\(V\) \[GeV\]/ });
     await plane.waitFor();
+    // A few points in (or all of them, on a fast machine) for the picture of the plane filling in.
+    await page.getByRole('img', { name: /^((?:[4-9]|1\d|2[0-4]) of 25 points done|All 25 points done)\b/ }).waitFor({ timeout: 60_000 });
     await fullShot(page, vp, 'plane-scan-running');
     await page.getByRole('img', { name: /^All 25 points done\. Plane of m\(χ\) \[GeV\] against m\(V\) \[GeV\]; done points coloured by their observed limit from / }).waitFor({ timeout: 90_000 });
     await page.getByText(/stored as draft version 1/).waitFor({ timeout: 30_000 });

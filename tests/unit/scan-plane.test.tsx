@@ -1,5 +1,5 @@
 import { render, screen } from '@testing-library/react-native';
-import { planePointState, ScanPlane, scanPlaneInput } from '@/components/scans/scan-plane';
+import { colourNote, planePointState, ScanPlane, scanPlaneInput } from '@/components/scans/scan-plane';
 import type { ScanPointSummary } from '@/shared/schemas/scan-views';
 
 /** A two-parameter scan's plane on its progress page: point states, the limits drawn, the counts named. */
@@ -38,7 +38,7 @@ test('the input takes σ×B limits of a σ×B scan, μ otherwise, and no limit o
 });
 
 test('the drawing is an image named by the counts and the axes; the key shows each state with its count; names are text', () => {
-  render(<ScanPlane points={POINTS} xsec xLabel="<b>m(V)</b> [GeV]" yLabel="m(χ) [GeV]" />);
+  render(<ScanPlane points={POINTS} xsec active xLabel="<b>m(V)</b> [GeV]" yLabel="m(χ) [GeV]" />);
   expect(screen.getByLabelText('2 of 6 points done, 1 failed, 1 running, 2 queued. Plane of m(χ) [GeV] against <b>m(V)</b> [GeV].').props.role).toBe('img');
   for (const k of ['Done 2', 'Running 1', 'Queued 2', 'Failed 1']) expect(screen.getByText(k, { includeHiddenElements: true })).toBeTruthy();
   expect(screen.queryByText(/^Not computed/, { includeHiddenElements: true })).toBeNull();
@@ -46,6 +46,15 @@ test('the drawing is an image named by the counts and the axes; the key shows ea
 
 test('every point done: the label says so', () => {
   const all = POINTS.map((p, i) => point(i, p.x, p.y!, 'done'));
-  render(<ScanPlane points={all} xsec={false} xLabel="m(V) [GeV]" yLabel="m(χ) [GeV]" />);
+  render(<ScanPlane points={all} xsec={false} active={false} xLabel="m(V) [GeV]" yLabel="m(χ) [GeV]" />);
   expect(screen.getByLabelText(/^All 6 points done\. Plane of m\(χ\) \[GeV\] against m\(V\) \[GeV\]/).props.role).toBe('img');
+  // A finished scan's key leaves out the states no point is in.
+  expect(screen.getByText('Done 6', { includeHiddenElements: true })).toBeTruthy();
+  expect(screen.queryByText(/^(Running|Queued|Failed)/, { includeHiddenElements: true })).toBeNull();
+});
+
+test('the colour note: nothing yet, one value, a range', () => {
+  expect(colourNote(null, true)).toBe('Cells fill in with their observed limit on σ×B as points finish.');
+  expect(colourNote([3.48, 3.48], false)).toBe('Colour: observed limit on μ, 3.48 so far; the scale spreads as more points finish.');
+  expect(colourNote([1.2, 24], false)).toBe('Colour: observed limit on μ from 1.2 (light) to 24 (dark), log scale, over the points done so far.');
 });
