@@ -12,12 +12,15 @@ const LINE_STYLE: Record<string, { stroke: string; dash?: string; width: number 
   expected_plus_1sigma: { stroke: plotColors.expected, dash: '2 3', width: 1.2 },
 };
 
+const SEAM = 0.5;
+
 /** Below this size (px) a cell is filled only (in its outline's colour): an outline would cover it. */
 const OUTLINE_MIN = 5;
 
 /** A cell drawn by its state: done in its ramp colour, the others as the scan page's key shows them. */
 function Cell({ c }: { c: PlaneCell }) {
-  if (c.state === 'done') return <Rect x={c.x} y={c.y} width={c.w} height={c.h} fill={c.fill} />;
+  // Half a pixel over the neighbour to the right and above: abutting anti-aliased edges would leave light seams (the frame covers the outer half pixel).
+  if (c.state === 'done') return <Rect x={c.x} y={c.y - SEAM} width={c.w + SEAM} height={c.h + SEAM} fill={c.fill} />;
   const outline = Math.min(c.w, c.h) >= OUTLINE_MIN;
   const style =
     c.state === 'running'

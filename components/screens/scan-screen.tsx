@@ -115,7 +115,10 @@ function Diagnostics({ groupId, scanId, index, unit, canRerun }: { groupId: stri
  * hidden horizontal scroll); on a phone the table scrolls sideways.
  */
 function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointSummary[]; onPick: (i: number) => void; picked: number | null; xsec: boolean; fit: boolean }) {
-  const cols = ['x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${Number(k) > 0 ? '+' : '−'}${Math.abs(Number(k))}σ`))];
+  // A two-parameter scan's points are (x, y): the column says so and is wide enough for both.
+  const plane = points.some((p) => p.y !== null);
+  const cols = [plane ? 'x, y' : 'x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${Number(k) > 0 ? '+' : '−'}${Math.abs(Number(k))}σ`))];
+  const atTd = plane ? [td, fit ? styles.atFit : styles.atTd] : td;
   const Wrap = fit ? View : ScrollView;
   const td = fit ? [styles.td, styles.tdFit] : styles.td;
   const stateTd = fit ? styles.stateFit : styles.stateTd;
@@ -123,8 +126,8 @@ function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointS
     <Wrap {...(fit ? {} : { horizontal: true })}>
       <View role="table" aria-label="Grid points" style={fit ? styles.tableFit : undefined}>
         <View role="row" style={[styles.tr, styles.th]}>
-          {cols.map((c) => (
-            <Text key={c} variant="label" style={[td, fit && styles.thFit, c === 'state' && stateTd]}>
+          {cols.map((c, i) => (
+            <Text key={c} variant="label" style={[td, fit && styles.thFit, c === 'state' && stateTd, i === 0 && atTd]}>
               {c}
             </Text>
           ))}
@@ -133,7 +136,7 @@ function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointS
           const v = xsec && p.sigmaB ? p.sigmaB : p.observed !== null ? { observed: p.observed, expected: p.expected } : null;
           return (
             <Pressable key={p.index} role="row" aria-label={`Show diagnostics of ${p.y !== null ? `(x, y) = (${p.x}, ${p.y})` : `x = ${p.x}`}`} onPress={() => onPick(p.index)} style={[styles.tr, picked === p.index && styles.picked]}>
-              <Text style={td}>{p.y !== null ? `${fmt(p.x, 6)}, ${fmt(p.y, 6)}` : fmt(p.x, 6)}</Text>
+              <Text style={atTd}>{p.y !== null ? `${fmt(p.x, 6)}, ${fmt(p.y, 6)}` : fmt(p.x, 6)}</Text>
               <Text style={[td, stateTd, p.state === 'failed' && styles.failed]}>{pointState(p)}</Text>
               <Text style={td}>{fmt(v?.observed)}</Text>
               {EXPECTED_KEYS.map((k) => (
@@ -238,6 +241,8 @@ const styles = StyleSheet.create({
   tableFit: { width: '100%' },
   tdFit: { width: undefined, flex: 1, minWidth: 0 },
   stateFit: { flex: 1.2 },
+  atTd: { width: 110 },
+  atFit: { flex: 1.6 },
   thFit: { fontSize: 13 },
   picked: { backgroundColor: colors.primarySoft },
   failed: { color: colors.danger },
