@@ -118,10 +118,10 @@ function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointS
   // A two-parameter scan's points are (x, y): the column says so and is wide enough for both.
   const plane = points.some((p) => p.y !== null);
   const cols = [plane ? 'x, y' : 'x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${Number(k) > 0 ? '+' : '−'}${Math.abs(Number(k))}σ`))];
-  const atTd = plane ? [td, fit ? styles.atFit : styles.atTd] : td;
   const Wrap = fit ? View : ScrollView;
   const td = fit ? [styles.td, styles.tdFit] : styles.td;
   const stateTd = fit ? styles.stateFit : styles.stateTd;
+  const atTd = plane ? [td, fit ? styles.atFit : styles.atTd] : td;
   return (
     <Wrap {...(fit ? {} : { horizontal: true })}>
       <View role="table" aria-label="Grid points" style={fit ? styles.tableFit : undefined}>

@@ -34,7 +34,7 @@ test('a queued point a worker holds is running; one waiting for a retry is still
 
 test('the input takes σ×B limits of a σ×B scan, μ otherwise, and no limit of a point not done', () => {
   expect(scanPlaneInput(POINTS, true).plane).toEqual({ x: [1000, 1000, 1100, 1100, 1200, 1200], y: [100, 200, 100, 200, 100, 200], observed: [10, 11, NaN, NaN, NaN, NaN] });
-  expect(scanPlaneInput(POINTS, false).plane.observed.slice(0, 2)).toEqual([0.5, 1.5]);
+  expect(scanPlaneInput(POINTS, false).plane.observed!.slice(0, 2)).toEqual([0.5, 1.5]);
 });
 
 test('the drawing is an image named by the counts and the axes; the key shows each state with its count; names are text', () => {
