@@ -242,7 +242,7 @@ const styles = StyleSheet.create({
   tdFit: { width: undefined, flex: 1, minWidth: 0 },
   stateFit: { flex: 1.2 },
   atTd: { width: 110 },
-  atFit: { flex: 1.6 },
+  atFit: { flex: 1.3 },
   thFit: { fontSize: 13 },
   picked: { backgroundColor: colors.primarySoft },
   failed: { color: colors.danger },
