@@ -115,13 +115,14 @@ function Diagnostics({ groupId, scanId, index, unit, canRerun }: { groupId: stri
  * hidden horizontal scroll); on a phone the table scrolls sideways.
  */
 function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointSummary[]; onPick: (i: number) => void; picked: number | null; xsec: boolean; fit: boolean }) {
-  // A two-parameter scan's points are (x, y): the column says so and is wide enough for both.
+  // A two-parameter scan's points are (x, y): the column says so and, scrolling sideways on a phone, is wide enough for both
+  // (sharing a wide card's width it stays as wide as the others, which "observed" and "expected" need).
   const plane = points.some((p) => p.y !== null);
   const cols = [plane ? 'x, y' : 'x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${Number(k) > 0 ? '+' : '−'}${Math.abs(Number(k))}σ`))];
   const Wrap = fit ? View : ScrollView;
   const td = fit ? [styles.td, styles.tdFit] : styles.td;
   const stateTd = fit ? styles.stateFit : styles.stateTd;
-  const atTd = plane ? [td, fit ? styles.atFit : styles.atTd] : td;
+  const atTd = plane && !fit ? [td, styles.atTd] : td;
   return (
     <Wrap {...(fit ? {} : { horizontal: true })}>
       <View role="table" aria-label="Grid points" style={fit ? styles.tableFit : undefined}>
@@ -242,7 +243,6 @@ const styles = StyleSheet.create({
   tdFit: { width: undefined, flex: 1, minWidth: 0 },
   stateFit: { flex: 1.2 },
   atTd: { width: 110 },
-  atFit: { flex: 1.3 },
   thFit: { fontSize: 13 },
   picked: { backgroundColor: colors.primarySoft },
   failed: { color: colors.danger },
