@@ -80,3 +80,18 @@ export const plotColors = {
  * scale: light to dark in one hue, so it reads in greyscale too.
  */
 export const planeRamp = ['#f3e7c9', '#e3b877', '#c2571a', '#7d2f12', '#3b1606'] as const;
+
+/**
+ * The states of a scan's points in its plane drawing (done points take `planeRamp`): queued as
+ * light empty cells, running outlined in the app's blue (outside the ramp's hue), failed grey with
+ * a dark cross (reads without colour), never computed (cancelled) dashed.
+ */
+export const planeStateColors = {
+  pendingFill: '#ffffff',
+  pendingStroke: '#d5dae1',
+  runningFill: '#e4ebfa',
+  runningStroke: '#1f4fb4',
+  failedFill: '#c3c9d2',
+  failedMark: '#3d434c',
+  cancelledStroke: '#9aa3af',
+} as const;

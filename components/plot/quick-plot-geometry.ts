@@ -6,7 +6,7 @@
  */
 import { scaleLinear, scaleLog } from 'd3-scale';
 import { area, line } from 'd3-shape';
-import { decade, decadeRange, formatDecade, isPlainDecade, MINUS, roundMultiples } from '@/shared/figure/ticks';
+import { decade, decadeRange, formatDecade, isPlainDecade, MINUS, roundMultiples, thinLabels } from '@/shared/figure/ticks';
 import type { ExpectedKey } from '@/shared/schemas/counting-model';
 
 export type PlotCurve = {
@@ -17,7 +17,8 @@ export type PlotCurve = {
 export type PlotTheory = { x: number[]; central: number[]; lower?: number[]; upper?: number[] } | null | undefined;
 
 export type Margin = { top: number; right: number; bottom: number; left: number };
-export type Tick = { value: number; label: string; pos: number };
+/** A tick: its value, label ('' for an unlabelled mark), position and, when moved to stay inside the drawing, its label's. */
+export type Tick = { value: number; label: string; pos: number; labelPos?: number };
 
 export type PlotPaths = {
   band2?: string;
@@ -115,6 +116,48 @@ function xTickCount(width: number): number {
   return Math.max(2, Math.min(10, Math.floor(width / 80)));
 }
 
+/** Tick labels' type size (px) and tick mark length, shared by every quick plot's axes. */
+export const TICK_FONT_SIZE = 11;
+export const TICK_LENGTH = 4;
+
+/**
+ * A tick label's estimated width in px: Inter's digits and the minus sign are ≈ 0.6 em wide (the
+ * point and comma narrower, so this errs on the wide side). Estimated, not measured, so the
+ * geometry stays pure; it only decides which labels are left out and how wide a margin is.
+ */
+export const tickLabelWidth = (label: string, size = TICK_FONT_SIZE) => Math.ceil(label.length * size * 0.6);
+
+/**
+ * Round ticks of a linear axis over `domain`, drawn from pixel `from` (at domain[0]) to `to`:
+ * d3's `ticks()` — about one every 80 px across, 40 px up — labelled with `formatTick`. Labels
+ * that would overlap (estimated widths across, the type size up, with a gap) are left empty, every
+ * k-th kept so the kept ones stay round (`thinLabels`); the marks stay. Across, a label is kept
+ * inside `[bounds[0], bounds[1]]` (the drawing's edges) by moving its anchor (`labelPos`).
+ */
+export function linearAxisTicks(domain: [number, number], from: number, to: number, opts: { horizontal: boolean; bounds?: [number, number]; count?: number }): Tick[] {
+  const length = Math.abs(to - from);
+  const count = opts.count ?? Math.max(2, Math.min(10, Math.floor(length / (opts.horizontal ? 80 : 40))));
+  const s = scaleLinear().domain(domain).range([from, to]);
+  const values = s.ticks(count);
+  if (!values.length) return [];
+  const step = values.length > 1 ? values[1]! - values[0]! : 1;
+  const ticks: Tick[] = values.map((v) => {
+    const label = formatTick(Number(v.toPrecision(12)));
+    const pos = s(v);
+    if (!opts.horizontal || !opts.bounds) return { value: v, label, pos };
+    const half = tickLabelWidth(label) / 2;
+    const labelPos = Math.min(Math.max(pos, opts.bounds[0] + half), opts.bounds[1] - half);
+    return { value: v, label, pos, ...(labelPos !== pos ? { labelPos } : {}) };
+  });
+  const spans = ticks.map((t, index) => {
+    const c = t.labelPos ?? t.pos;
+    const half = opts.horizontal ? tickLabelWidth(t.label) / 2 : TICK_FONT_SIZE / 2;
+    return { index, ordinal: Math.round(t.value / step), from: c - half, to: c + half };
+  });
+  const kept = new Set(thinLabels(spans, opts.horizontal ? 8 : 4));
+  return ticks.map((t, i) => (kept.has(i) ? t : { ...t, label: '' }));
+}
+
 /** [x, y] pairs of two parallel arrays; points where either is missing stay undefined-free. */
 function pairs(xs: number[], ys: number[]): [number, number][] {
   const n = Math.min(xs.length, ys.length);
@@ -205,7 +248,7 @@ export function buildQuickPlot(opts: { width: number; height: number; curve: Plo
     logY,
     xDomain,
     yDomain,
-    xTicks: x.ticks(xTickCount(plotArea.width)).map((v) => ({ value: v, label: formatTick(v), pos: x(v) })),
+    xTicks: linearAxisTicks(xDomain, plotArea.x, plotArea.x + plotArea.width, { horizontal: true, count: xTickCount(plotArea.width) }),
     yTicks: yTickValues.map((v) => ({ value: v, label: formatTick(v), pos: y(v) })),
     paths,
     toScreen: (px, py) => [x(px), y(py)],

@@ -3,6 +3,7 @@ import { StyleSheet, View, type LayoutChangeEvent, type StyleProp, type ViewStyl
 import Svg, { G, Line, Path, Rect, Text as SvgText } from 'react-native-svg';
 import { Text } from '@/components/ui/text';
 import { fonts, plotColors, space } from '@/themes/tokens';
+import { AxisTicks } from './axis-ticks';
 import { buildQuickPlot, describePlot, type PlotCurve, type PlotTheory } from './quick-plot-geometry';
 
 export type QuickPlotProps = {
@@ -13,8 +14,6 @@ export type QuickPlotProps = {
   yLabel: string;
   height?: number;
 };
-
-const TICK = 4;
 
 /**
  * A quick look at a limit curve: ±2σ and ±1σ bands under the expected median (dashed) and the
@@ -59,22 +58,8 @@ export function QuickPlot({ curve, theory, xLabel, yLabel, height = 280 }: Quick
             {geom.paths.expected ? <Path d={geom.paths.expected} fill="none" stroke={plotColors.expected} strokeWidth={2} strokeDasharray="7 4" /> : null}
             {geom.paths.observed ? <Path d={geom.paths.observed} fill="none" stroke={plotColors.observed} strokeWidth={2} /> : null}
             <Rect x={geom.area.x} y={geom.area.y} width={geom.area.width} height={geom.area.height} fill="none" stroke={plotColors.axis} strokeWidth={1} />
-            {geom.xTicks.map((t) => (
-              <G key={`tx${t.value}`}>
-                <Line x1={t.pos} x2={t.pos} y1={geom.area.y + geom.area.height} y2={geom.area.y + geom.area.height + TICK} stroke={plotColors.axis} />
-                <SvgText x={t.pos} y={geom.area.y + geom.area.height + TICK + 12} fontSize={11} fontFamily={fonts.regular} fill={plotColors.axis} textAnchor="middle">
-                  {t.label}
-                </SvgText>
-              </G>
-            ))}
-            {geom.yTicks.map((t) => (
-              <G key={`ty${t.value}`}>
-                <Line x1={geom.area.x - TICK} x2={geom.area.x} y1={t.pos} y2={t.pos} stroke={plotColors.axis} />
-                <SvgText x={geom.area.x - TICK - 3} y={t.pos + 4} fontSize={11} fontFamily={fonts.regular} fill={plotColors.axis} textAnchor="end">
-                  {t.label}
-                </SvgText>
-              </G>
-            ))}
+            <AxisTicks ticks={geom.xTicks} side="bottom" at={geom.area.y + geom.area.height} />
+            <AxisTicks ticks={geom.yTicks} side="left" at={geom.area.x} />
             <SvgText x={geom.area.x + geom.area.width / 2} y={geom.height - 6} fontSize={12} fontFamily={fonts.medium} fill={plotColors.observed} textAnchor="middle">
               {xLabel}
             </SvgText>

@@ -1,10 +1,10 @@
 import { useMemo, useState } from 'react';
 import { StyleSheet, View, type LayoutChangeEvent } from 'react-native';
-import Svg, { G, Path, Rect, Text as SvgText } from 'react-native-svg';
 import { contourGroups } from '@/shared/curves/plane';
 import type { Plane, PlaneContours } from '@/shared/schemas/plane';
-import { fonts, planeRamp, plotColors, space } from '@/themes/tokens';
+import { planeRamp, space } from '@/themes/tokens';
 import { buildPlanePreview } from '../plot/plane-preview-geometry';
+import { PlaneSvg } from '../plot/plane-svg';
 import { Anchor } from '../ui/anchor';
 import { Button } from '../ui/button';
 import { Text } from '../ui/text';
@@ -13,15 +13,6 @@ import { NumberTable } from './points-table';
 
 /** Rows per page of the points table (a plane has up to 40,000 points). */
 export const PLANE_PAGE_ROWS = 50;
-
-const LINE_STYLE: Record<string, { stroke: string; dash?: string; width: number }> = {
-  observed: { stroke: plotColors.observed, width: 2 },
-  observed_theory_lower: { stroke: plotColors.observed, dash: '2 3', width: 1.2 },
-  observed_theory_upper: { stroke: plotColors.observed, dash: '2 3', width: 1.2 },
-  expected: { stroke: plotColors.expected, dash: '7 4', width: 2 },
-  expected_minus_1sigma: { stroke: plotColors.expected, dash: '2 3', width: 1.2 },
-  expected_plus_1sigma: { stroke: plotColors.expected, dash: '2 3', width: 1.2 },
-};
 
 /** The second parameter's axis title: "m(χ) [GeV]". */
 export const secondParameterLabel = (plane: Pick<Plane, 'yName' | 'yUnit'>) => (plane.yUnit ? `${plane.yName} [${plane.yUnit}]` : plane.yName);
@@ -43,39 +34,7 @@ export function PlanePreview({ plane, contours, xLabel, height = 300 }: { plane:
   return (
     <View style={styles.gap}>
       <View role="img" aria-label={summary} onLayout={onLayout} style={{ height }}>
-        {geom ? (
-          <Svg width={geom.width} height={geom.height}>
-            <Rect x={geom.area.x} y={geom.area.y} width={geom.area.width} height={geom.area.height} fill={plotColors.background} />
-            <G>
-              {geom.cells.map((c) => (
-                <Rect key={c.key} x={c.x} y={c.y} width={c.w} height={c.h} fill={c.fill} />
-              ))}
-            </G>
-            {geom.lines.map((l) => {
-              const s = LINE_STYLE[l.which] ?? LINE_STYLE.observed!;
-              return <Path key={l.key} d={l.d} fill="none" stroke={s.stroke} strokeWidth={s.width} strokeDasharray={s.dash} />;
-            })}
-            <Rect x={geom.area.x} y={geom.area.y} width={geom.area.width} height={geom.area.height} fill="none" stroke={plotColors.axis} strokeWidth={1} />
-            <SvgText x={geom.area.x} y={geom.area.y + geom.area.height + 14} fontSize={11} fontFamily={fonts.regular} fill={plotColors.axis} textAnchor="start">
-              {formatValue(geom.xRange[0])}
-            </SvgText>
-            <SvgText x={geom.area.x + geom.area.width} y={geom.area.y + geom.area.height + 14} fontSize={11} fontFamily={fonts.regular} fill={plotColors.axis} textAnchor="end">
-              {formatValue(geom.xRange[1])}
-            </SvgText>
-            <SvgText x={geom.area.x - 4} y={geom.area.y + geom.area.height} fontSize={11} fontFamily={fonts.regular} fill={plotColors.axis} textAnchor="end">
-              {formatValue(geom.yRange[0])}
-            </SvgText>
-            <SvgText x={geom.area.x - 4} y={geom.area.y + 10} fontSize={11} fontFamily={fonts.regular} fill={plotColors.axis} textAnchor="end">
-              {formatValue(geom.yRange[1])}
-            </SvgText>
-            <SvgText x={geom.area.x + geom.area.width / 2} y={geom.height - 6} fontSize={12} fontFamily={fonts.medium} fill={plotColors.observed} textAnchor="middle">
-              {xLabel}
-            </SvgText>
-            <SvgText x={12} y={geom.area.y + geom.area.height / 2} fontSize={12} fontFamily={fonts.medium} fill={plotColors.observed} textAnchor="middle" transform={`rotate(-90 12 ${geom.area.y + geom.area.height / 2})`}>
-              {yLabel}
-            </SvgText>
-          </Svg>
-        ) : null}
+        {geom ? <PlaneSvg geom={geom} xLabel={xLabel} yLabel={yLabel} /> : null}
       </View>
       {geom?.colourRange ? (
         <Text variant="caption">

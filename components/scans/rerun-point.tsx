@@ -9,6 +9,9 @@ import { TextField } from '../ui/text-field';
 
 const n = (v: number) => v.toLocaleString('en');
 
+/** "x = 700", or "(x, y) = (1000, 100)" for a point of a two-parameter scan. */
+export const pointName = (x: string, y?: string) => (y === undefined ? `x = ${x}` : `(x, y) = (${x}, ${y})`);
+
 /** The count a rerun offers first: four times the point's current one (half the Monte-Carlo error), within the bound. */
 export function defaultRerunToys(current: number, max: number): number {
   return Math.max(current + 1, Math.min(4 * current, max));
@@ -29,13 +32,15 @@ export function rerunToysProblem(text: string, current: number, max: number): st
  * the bound the server gives. Starting it makes a new scan (`onRerun` resolves once it is queued);
  * a refusal naming `toys` is shown by the field, any other above the button.
  */
-export function RerunPoint({ x, current, max, pending, error, onRerun }: { x: string; current: number; max: number; pending: boolean; error: unknown; onRerun: (toys: number) => void }) {
+export function RerunPoint({ x, y, current, max, pending, error, onRerun }: { x: string; y?: string; current: number; max: number; pending: boolean; error: unknown; onRerun: (toys: number) => void }) {
+  // A point of a two-parameter scan is named by both coordinates everywhere.
+  const at = pointName(x, y);
   const [text, setText] = useState(() => String(defaultRerunToys(current, max)));
   const [problem, setProblem] = useState<string | undefined>();
   const fromServer = serverFieldErrors(error).toys;
   const other = error && !fromServer ? errorMessage(error) : undefined;
   if (max <= current) {
-    return <Text variant="caption">This point already has {n(current)} pseudo-experiments per hypothesis, the most this scan and plan allow.</Text>;
+    return <Text variant="caption">{`The point ${at} already has ${n(current)} pseudo-experiments per hypothesis, the most this scan and plan allow.`}</Text>;
   }
   const submit = () => {
     const p = rerunToysProblem(text, current, max);
@@ -43,11 +48,10 @@ export function RerunPoint({ x, current, max, pending, error, onRerun }: { x: st
     if (!p) onRerun(Number(text.replace(/[,\s]/g, '')));
   };
   return (
-    <View role="group" aria-label="Rerun this point with more pseudo-experiments" style={styles.box}>
+    <View role="group" aria-label={`Rerun the point ${at} with more pseudo-experiments`} style={styles.box}>
       <Text variant="label">Rerun this point with more pseudo-experiments</Text>
       <Text variant="caption">
-        A new scan of the same inputs: the other points are copied as computed, only x = {x} is computed again. Its draft becomes a new version of the same result; the
-        current version stays.
+        {`A new scan of the same inputs: the other points are copied as computed, only ${at} is computed again. Its draft becomes a new version of the same result; the current version stays.`}
       </Text>
       <TextField
         label="Pseudo-experiments per hypothesis"

@@ -13,6 +13,7 @@ import { ClsPlot } from '../compute/cls-plot';
 import { fmt, fmtFitted, LimitSummary } from '../compute/limit-summary';
 import { PullsTable } from '../compute/pulls-table';
 import { RerunPoint } from '../scans/rerun-point';
+import { ScanPlane } from '../scans/scan-plane';
 import { QuickPlot } from '../plot/quick-plot';
 import { Anchor } from '../ui/anchor';
 import { Hatted } from '../ui/hatted';
@@ -55,12 +56,13 @@ function pointState(p: ScanPointSummary): string {
 }
 
 /** The rerun control of a point, wired to the API: on success the new scan's progress page opens. */
-function RerunControl({ groupId, scanId, index, x, current, max }: { groupId: string; scanId: string; index: number; x: string; current: number; max: number }) {
+function RerunControl({ groupId, scanId, index, x, y, current, max }: { groupId: string; scanId: string; index: number; x: string; y?: string; current: number; max: number }) {
   const rerun = useRerunPoint(groupId, scanId, index);
   const router = useRouter();
   return (
     <RerunPoint
       x={x}
+      y={y}
       current={current}
       max={max}
       pending={rerun.isPending}
@@ -103,7 +105,7 @@ function Diagnostics({ groupId, scanId, index, unit, canRerun }: { groupId: stri
         {d.computeMs !== null ? ` · computed in ${fmt(d.computeMs, 3)} ms` : ''}
         {d.rerun ? ` · ${d.rerun.toys.toLocaleString('en')} pseudo-experiments per hypothesis` : ''}
       </Text>
-      {canRerun && d.rerun ? <RerunControl key={`${scanId}-${index}`} groupId={groupId} scanId={scanId} index={index} x={fmt(d.x, 6)} current={d.rerun.toys} max={d.rerun.maxToys} /> : null}
+      {canRerun && d.rerun ? <RerunControl key={`${scanId}-${index}`} groupId={groupId} scanId={scanId} index={index} x={fmt(d.x, 6)} y={d.y !== null ? fmt(d.y, 6) : undefined} current={d.rerun.toys} max={d.rerun.maxToys} /> : null}
     </Card>
   );
 }
@@ -113,16 +115,20 @@ function Diagnostics({ groupId, scanId, index, unit, canRerun }: { groupId: stri
  * hidden horizontal scroll); on a phone the table scrolls sideways.
  */
 function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointSummary[]; onPick: (i: number) => void; picked: number | null; xsec: boolean; fit: boolean }) {
-  const cols = ['x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${Number(k) > 0 ? '+' : '−'}${Math.abs(Number(k))}σ`))];
+  // A two-parameter scan's points are (x, y): the column says so and, scrolling sideways on a phone, is wide enough for both
+  // (sharing a wide card's width it stays as wide as the others, which "observed" and "expected" need).
+  const plane = points.some((p) => p.y !== null);
+  const cols = [plane ? 'x, y' : 'x', 'state', 'observed', ...EXPECTED_KEYS.map((k) => (k === '0' ? 'expected' : `${Number(k) > 0 ? '+' : '−'}${Math.abs(Number(k))}σ`))];
   const Wrap = fit ? View : ScrollView;
   const td = fit ? [styles.td, styles.tdFit] : styles.td;
   const stateTd = fit ? styles.stateFit : styles.stateTd;
+  const atTd = plane && !fit ? [td, styles.atTd] : td;
   return (
     <Wrap {...(fit ? {} : { horizontal: true })}>
       <View role="table" aria-label="Grid points" style={fit ? styles.tableFit : undefined}>
         <View role="row" style={[styles.tr, styles.th]}>
-          {cols.map((c) => (
-            <Text key={c} variant="label" style={[td, fit && styles.thFit, c === 'state' && stateTd]}>
+          {cols.map((c, i) => (
+            <Text key={c} variant="label" style={[td, fit && styles.thFit, c === 'state' && stateTd, i === 0 && atTd]}>
               {c}
             </Text>
           ))}
@@ -131,7 +137,7 @@ function PointsTable({ points, onPick, picked, xsec, fit }: { points: ScanPointS
           const v = xsec && p.sigmaB ? p.sigmaB : p.observed !== null ? { observed: p.observed, expected: p.expected } : null;
           return (
             <Pressable key={p.index} role="row" aria-label={`Show diagnostics of ${p.y !== null ? `(x, y) = (${p.x}, ${p.y})` : `x = ${p.x}`}`} onPress={() => onPick(p.index)} style={[styles.tr, picked === p.index && styles.picked]}>
-              <Text style={td}>{p.y !== null ? `${fmt(p.x, 6)}, ${fmt(p.y, 6)}` : fmt(p.x, 6)}</Text>
+              <Text style={atTd}>{p.y !== null ? `${fmt(p.x, 6)}, ${fmt(p.y, 6)}` : fmt(p.x, 6)}</Text>
               <Text style={[td, stateTd, p.state === 'failed' && styles.failed]}>{pointState(p)}</Text>
               <Text style={td}>{fmt(v?.observed)}</Text>
               {EXPECTED_KEYS.map((k) => (
@@ -197,8 +203,8 @@ export function ScanScreen() {
           <Card>
             <Text variant="title">Limits so far</Text>
             {s.points.some((p) => p.y !== null) ? (
-              // Over two parameters a curve against x alone would stack points: the plane is drawn on the draft's page.
-              <Text variant="muted">This scan is over two parameters: the draft result's page draws its plane and contour lines when the scan ends. The table below lists each point as it finishes.</Text>
+              // Over two parameters a curve against x alone would stack points: the grid fills in instead.
+              <ScanPlane points={s.points} xsec={xsec} active={running} xLabel={xLabel} yLabel={`${s.meta.yName ?? 'y'}${s.meta.yUnit ? ` [${s.meta.yUnit}]` : ''}`} />
             ) : curve.x.length >= 2 ? (
               <QuickPlot curve={curve} xLabel={xLabel} yLabel={yLabel} />
             ) : (
@@ -236,6 +242,7 @@ const styles = StyleSheet.create({
   tableFit: { width: '100%' },
   tdFit: { width: undefined, flex: 1, minWidth: 0 },
   stateFit: { flex: 1.2 },
+  atTd: { width: 110 },
   thFit: { fontSize: 13 },
   picked: { backgroundColor: colors.primarySoft },
   failed: { color: colors.danger },

@@ -478,7 +478,7 @@ export async function saveDraft(ctx: Ctx, scanId: string, why: 'done' | 'cancell
   }
   const opts = scan.options;
   // Points rerun with more pseudo-experiments (here or in the scans this one was copied from).
-  const own = points.filter((p) => p.toys !== null && p.toys !== opts.toys).map((p) => `x = ${p.x} with ${p.toys}`);
+  const own = points.filter((p) => p.toys !== null && p.toys !== opts.toys).map((p) => `${p.y !== null ? `(x, y) = (${p.x}, ${p.y})` : `x = ${p.x}`} with ${p.toys}`);
   const toys = `${opts.toys} per hypothesis${own.length ? ` (${own.join(', ')})` : ''}, seed ${opts.seed}`;
   const how = `Computed by Bandwright from event counts: ${opts.method === 'toys' ? `pseudo-experiment CLs (${toys})` : `asymptotic CLs (${opts.asimov} Asimov dataset)`}, ${Math.round(opts.cl * 100)}% CL, scan ${scan.id}.`;
   const notes = [scan.meta.notes, how, failed ? `${failed} grid point(s) failed and are not in the ${plane ? 'plane (holes)' : 'curve'}.` : '', why === 'cancelled' ? `The scan was cancelled after ${points.length} of ${scan.totalPoints} points.` : '']

@@ -44,11 +44,13 @@ export function duration(seconds: number): string {
  * What the points waiting for a retry mean for the reader, or null when none waits: when the
  * retry is due (and in how long), or that it is due and waits for a free worker.
  */
-export function retryNotice(points: ReadonlyArray<{ x: number; retryAt: string | null }>, now: Date): string | null {
+export function retryNotice(points: ReadonlyArray<{ x: number; y?: number | null; retryAt: string | null }>, now: Date): string | null {
   const waiting = points.filter((p) => p.retryAt !== null);
   if (waiting.length === 0) return null;
   const last = new Date(Math.max(...waiting.map((p) => Date.parse(p.retryAt!))));
-  const who = waiting.length === 1 ? `The point at x = ${waiting[0]!.x} waits` : `${waiting.length} points wait`;
+  const one = waiting[0]!;
+  // A point of a two-parameter scan is named by both coordinates.
+  const who = waiting.length === 1 ? `The point at ${one.y !== undefined && one.y !== null ? `(x, y) = (${one.x}, ${one.y})` : `x = ${one.x}`} waits` : `${waiting.length} points wait`;
   const wait = (last.getTime() - now.getTime()) / 1000;
   if (wait <= 0) return `${who} for a retry that is due now (its last attempt failed or its worker stopped); it runs when a worker is free.`;
   return `${who} for a retry (the last attempt failed or its worker stopped), due at ${clockTime(last)}, in ${duration(wait)}. The time left counts that wait.`;

@@ -189,6 +189,19 @@ describe('scans over two parameters', () => {
     expect(await countScans()).toBe(before);
   });
 
+  test('a rerun point of a two-parameter scan is named (x, y) in the change note and the notes', async () => {
+    const points = plane([1000, 1100], [100, 200]);
+    const res = await crew.analyst.agent.post(scansUrl()).send({ points, options: { method: 'toys', toys: 100, seed: 3 }, meta: { ...META, method: 'toys' } });
+    expect(res.status).toBe(201);
+    const first = await waitFor(crew.analyst.agent, groupId, res.body.id, (s) => s.state === 'done');
+    const again = await crew.analyst.agent.post(`${scansUrl()}/${first.id}/points/1/rerun`).send({ toys: 300 });
+    expect(again.status).toBe(201);
+    const second = await waitFor(crew.analyst.agent, groupId, again.body.id, (s) => s.state === 'done' && s.resultVersion === first.resultVersion! + 1);
+    const version = (await crew.analyst.agent.get(`/api/groups/${groupId}/results/${second.resultId}/versions/${second.resultVersion}`)).body;
+    expect(version.changeNote).toBe('Point (x, y) = (1000, 200) rerun with 300 pseudo-experiments');
+    expect(version.meta.notes).toContain('100 per hypothesis ((x, y) = (1000, 200) with 300)');
+  });
+
   test('a joint combination of two-parameter scans is refused, naming the input', async () => {
     expect(drafts.length).toBe(2);
     const r = await crew.analyst.agent.post(`/api/groups/${groupId}/combinations`).send({ inputs: drafts });

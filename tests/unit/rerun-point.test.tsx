@@ -50,3 +50,18 @@ test('a point already at the bound offers no rerun', () => {
   render(<RerunPoint x="700" current={6000} max={6000} pending={false} error={null} onRerun={jest.fn()} />);
   expect(screen.queryByRole('button', { name: 'Rerun this point' })).toBeNull();
 });
+
+test('a point of a two-parameter scan is named by (x, y) in the text and the group\'s name', () => {
+  render(<RerunPoint x="1000" y="150" current={500} max={100_000} pending={false} error={null} onRerun={jest.fn()} />);
+  expect(screen.getByLabelText('Rerun the point (x, y) = (1000, 150) with more pseudo-experiments')).toBeTruthy();
+  expect(screen.getByText(/only \(x, y\) = \(1000, 150\) is computed again/)).toBeTruthy();
+  expect(screen.queryByText(/only x = 1000 /)).toBeNull();
+  render(<RerunPoint x="1000" y="150" current={6000} max={6000} pending={false} error={null} onRerun={jest.fn()} />);
+  expect(screen.getByText(/^The point \(x, y\) = \(1000, 150\) already has 6,000/)).toBeTruthy();
+});
+
+test('a one-parameter point is named by x', () => {
+  render(<RerunPoint x="700" current={500} max={100_000} pending={false} error={null} onRerun={jest.fn()} />);
+  expect(screen.getByLabelText('Rerun the point x = 700 with more pseudo-experiments')).toBeTruthy();
+  expect(screen.getByText(/only x = 700 is computed again/)).toBeTruthy();
+});

@@ -41,6 +41,8 @@ describe('retryNotice', () => {
     expect(retryNotice([{ x: 1, retryAt: a }, { x: 2, retryAt: b }], now)).toMatch(/^2 points wait for a retry .* in 3 min 20 s\./);
     expect(retryNotice([{ x: 1, retryAt: new Date(now.getTime() - 1000).toISOString() }], now)).toMatch(/due now .* when a worker is free/);
     expect(retryNotice([{ x: 1, retryAt: null }], now)).toBeNull();
+    // A point of a two-parameter scan is named by both coordinates.
+    expect(retryNotice([{ x: 1000, y: 150, retryAt: a }], now)).toMatch(/^The point at \(x, y\) = \(1000, 150\) waits for a retry/);
   });
 
   test('durations read as people say them', () => {
