@@ -355,24 +355,44 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
       if (!(v > 0) || !Number.isFinite(v)) return -2;
       return Math.max(0, Math.min(PLANE_COLOR_LEVELS - 1, Math.round(((Math.log(v) - lo) / span) * (PLANE_COLOR_LEVELS - 1))));
     };
-    for (let j = 0; j < grid.ys.length; j++) {
+    // Each row's runs of equal cells; a run with the same ends and colour as one in the row below
+    // continues it upwards, so a smooth map is drawn with about a third fewer rectangles.
+    type Run = { i: number; e: number; level: number; j0: number; j1: number; right: number };
+    const ny = grid.ys.length;
+    const emit = (r: Run) => {
+      // Runs reach a hair into a drawn neighbour on the right and above, so no seam of the page
+      // colour shows between abutting anti-aliased edges; never into a hole or past the grid.
+      const up = r.j1 + 1 < ny && grid.index[(r.j1 + 1) * nx + r.i]! >= 0 && grid.index[(r.j1 + 1) * nx + r.e - 1]! >= 0 ? CELL_OVERLAP : 0;
+      const top = ey[r.j1 + 1]! - up;
+      const bottom = ey[r.j0]!;
+      // Only cells that reach the plot (a fixed axis range may leave some wholly outside it).
+      if (ex[r.e]! < plot.x || ex[r.i]! > plotRight || bottom < plot.y || ey[r.j1 + 1]! > plotBottom) return;
+      const d = rectPath(ex[r.i]!, top, ex[r.e]! - ex[r.i]! + r.right, bottom - top);
+      if (r.level >= 0) levels[r.level] += d;
+      else if (r.level === -1) holes += d;
+    };
+    let open = new Map<number, Run>();
+    for (let j = 0; j < ny; j++) {
+      const next = new Map<number, Run>();
       let i = 0;
       while (i < nx) {
         const level = levelOf(j * nx + i);
         let e = i + 1;
         while (e < nx && levelOf(j * nx + e) === level) e++;
-        // Runs reach a hair into a drawn neighbour on the right and above, so no seam of the page
-        // colour shows between abutting anti-aliased edges; never into a hole or past the grid.
         const right = e < nx && grid.index[j * nx + e]! >= 0 ? CELL_OVERLAP : 0;
-        const up = j + 1 < grid.ys.length && grid.index[(j + 1) * nx + i]! >= 0 && grid.index[(j + 1) * nx + e - 1]! >= 0 ? CELL_OVERLAP : 0;
-        const d = rectPath(ex[i]!, ey[j + 1]! - up, ex[e]! - ex[i]! + right, ey[j]! - ey[j + 1]! + up);
-        // Only cells that reach the plot (a fixed axis range may leave some wholly outside it).
-        const reaches = !(ex[e]! < plot.x || ex[i]! > plotRight || ey[j]! < plot.y || ey[j + 1]! > plotBottom);
-        if (reaches && level >= 0) levels[level] += d;
-        else if (reaches && level === -1) holes += d;
+        const key = i * (nx + 1) + e;
+        const below = open.get(key);
+        if (below && below.level === level && below.right === right) {
+          below.j1 = j;
+          open.delete(key);
+          next.set(key, below);
+        } else next.set(key, { i, e, level, j0: j, j1: j, right });
         i = e;
       }
+      for (const r of open.values()) emit(r);
+      open = next;
     }
+    for (const r of open.values()) emit(r);
     levels.forEach((d, k) => path(d, { fill: rampColor(PLANE_SEQUENTIAL, k / (PLANE_COLOR_LEVELS - 1)) }, 'color-map', plan.layers[0]!.index));
   }
 

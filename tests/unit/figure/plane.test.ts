@@ -4,13 +4,13 @@
  * one-parameter layers, the contour CSV, and the sequential palette.
  */
 import { buildScene, collectLabels, figureCsv, captionDraft, labelKey, resolveFigureTheme, type FigureLayerData, type Scene } from '@/shared/figure';
-import { hatchTicks, planPlane, PLANE_BAND_OVER_MAP } from '@/shared/figure/plane';
+import { hatchTicks, planPlane, PLANE_BAND_OVER_MAP, PLANE_COLOR_LEVELS } from '@/shared/figure/plane';
 import { bandColors } from '@/shared/figure/plan';
 import { greyLightness, rampColor, simulateVision } from '@/shared/figure/color';
 import { planeContours } from '@/shared/plane/contours';
 import type { Plane } from '@/shared/schemas/plane';
 import { figureSpecSchema, type FigureSpec, type FigureSpecInput } from '@/shared/schemas/figures';
-import { PLANE_SEQUENTIAL } from '@/themes/figure/palette';
+import { PLANE_FORBIDDEN_FILL, PLANE_SEQUENTIAL } from '@/themes/figure/palette';
 import { dijet, ID, meta, stubMeasure } from './fixtures';
 import { allNumbers, pathPoints, paths, texts } from './helpers';
 
@@ -159,6 +159,40 @@ describe('plane figure scene', () => {
     const drawnScene = buildScene(spec(data, { plane: { forbidden: 'drawn' } }), data, theme, stubMeasure);
     expect(paths(drawnScene, 'forbidden')).toHaveLength(1);
     expect(texts(drawnScene, 'legend').map((t) => t.label)).toContain('No points');
+  });
+
+  test('every grid point lies in exactly one cell rectangle, of its own limit\'s colour; the missing one in the grey', () => {
+    const drawnScene = buildScene(spec(data, { plane: { forbidden: 'drawn' } }), data, theme, stubMeasure);
+    const plan = planPlane(spec(data, { plane: { forbidden: 'drawn' } }), data, theme);
+    const { plot } = drawnScene;
+    const X = (v: number) => plot.x + ((v - plan.x.domain[0]) / (plan.x.domain[1] - plan.x.domain[0])) * plot.width;
+    const Y = (v: number) => plot.y + plot.height - ((v - plan.y.domain[0]) / (plan.y.domain[1] - plan.y.domain[0])) * plot.height;
+    // Rectangles "M x,y H x2 V y2 H x Z" of every cell path, with the path's fill.
+    const rects = [...paths(drawnScene, 'color-map'), ...paths(drawnScene, 'forbidden')].flatMap((p) =>
+      [...p.d.matchAll(/M([-\d.]+),([-\d.]+)H([-\d.]+)V([-\d.]+)H[-\d.]+Z/g)].map((m) => ({ x0: +m[1]!, y0: +m[2]!, x1: +m[3]!, y1: +m[4]!, fill: p.fill })),
+    );
+    const plane = circlePlane();
+    const [lo, hi] = plan.map!.domain.map(Math.log) as [number, number];
+    const wrong: string[] = [];
+    const levelOf = (k: number) => Math.round(((Math.log(plane.observed![k]!) - lo) / (hi - lo)) * (PLANE_COLOR_LEVELS - 1));
+    const at = (px: number, py: number) => rects.filter((r) => px > r.x0 && px < r.x1 && py > r.y0 && py < r.y1);
+    // Outer cells end on their grid point (no drawing past the grid): look a hair inside there.
+    const inward = (v: number, all: number[]) => (v === Math.min(...all) ? 0.05 : v === Math.max(...all) ? -0.05 : 0);
+    plane.x.forEach((x, k) => {
+      const covering = at(X(x) + inward(x, plane.x), Y(plane.y[k]!) - inward(plane.y[k]!, plane.y));
+      const want = rampColor(PLANE_SEQUENTIAL, levelOf(k) / (PLANE_COLOR_LEVELS - 1));
+      if (covering.length !== 1 || covering[0]!.fill !== want) wrong.push(`${x},${plane.y[k]}`);
+    });
+    expect(wrong).toEqual([]);
+    // The corner with no point (m_X = 1600, m_Y = 900) is covered by the grey only.
+    expect(at(X(1600) - 0.05, Y(900) + 0.05).map((r) => r.fill)).toEqual([PLANE_FORBIDDEN_FILL]);
+    // Runs of equal colour in a row are one rectangle, and equal runs are merged across rows too:
+    // fewer rectangles than the rows' runs (+1 for the hole).
+    const rowRuns = [...new Set(plane.y)].reduce((sum, yv) => {
+      const row = plane.x.map((_, k) => k).filter((k) => plane.y[k] === yv).sort((a, b) => plane.x[a]! - plane.x[b]!);
+      return sum + row.filter((k, n) => n === 0 || levelOf(k) !== levelOf(row[n - 1]!)).length;
+    }, 0);
+    expect(rects.length).toBeLessThan(rowRuns + 1);
   });
 
   test('log axes on x and y', () => {
