@@ -36,8 +36,10 @@ export function ExclusionSummary({ version }: { version: ResultVersion }) {
         </View>
       ))}
       <Text variant="caption">
-        Where the limit lies below the {version.theory?.label ? `theory curve (${version.theory.label})` : 'theory curve'}, interpolated linearly in the parameter and in log σ. “Below” and “above” mark a range that
-        runs into the edge of the computed curves.
+        {!version.theory && version.meta.quantity === 'mu'
+          ? 'Where the limit on the signal strength lies below μ = 1, the signal as predicted, interpolated linearly in the parameter and in log μ.'
+          : `Where the limit lies below the ${version.theory?.label ? `theory curve (${version.theory.label})` : 'theory curve'}, interpolated linearly in the parameter and in log σ.`}{' '}
+        “Below” and “above” mark a range that runs into the edge of the computed curves.
       </Text>
     </View>
   );

@@ -90,7 +90,7 @@ export const DEMO_FIGURES: DemoFigure[] = [
   },
   {
     // The combination board's summary of excluded masses: one bar per analysis, grouped by model
-    // (the portal scalar's summary has no theory curve and says so), on a log mass axis that
+    // (the portal scalar's summary, limits on μ without a theory curve, excludes where μ < 1), on a log mass axis that
     // takes the GeV result and the TeV ones alike.
     group: 'Lanternfish Combination Board',
     author: 'cyrus@lanternfish.example',

@@ -89,9 +89,9 @@ const metaOf = (row: q.VersionRow): VersionMeta => canonicalMeta({ ...row, quant
  * Excluded ranges against the stored theory curve (which is in the version's own unit), or why
  * there are none.
  */
-export function exclusionOf(curve: NormalizedVersion['curve'], theory: Theory | null): ResultVersion['exclusion'] {
+export function exclusionOf(curve: NormalizedVersion['curve'], theory: Theory | null, quantity: VersionMeta['quantity']): ResultVersion['exclusion'] {
   if (!curve) return { ranges: null, problem: 'This result is over two parameters: its excluded region is bounded by its contour lines' };
-  return exclusionOrProblem(curve, theory);
+  return exclusionOrProblem(curve, theory, quantity);
 }
 
 function toVersion(ctx: Ctx, row: q.VersionRow): ResultVersion {
@@ -115,7 +115,7 @@ function toVersion(ctx: Ctx, row: q.VersionRow): ResultVersion {
     theory,
     plane: row.plane ?? null,
     planeContours: row.planeContours ?? null,
-    exclusion: exclusionOf(curve, theory),
+    exclusion: exclusionOf(curve, theory, row.quantity as VersionMeta['quantity']),
     permalink: row.state === 'draft' ? null : `${ctx.env.PUBLIC_URL}/r/${row.slug}/v${row.version}`,
     sourceFile: row.sourceName !== null && row.sourceBytes !== null ? { name: row.sourceName, bytes: row.sourceBytes } : null,
     fromScan: null,

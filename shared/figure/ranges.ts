@@ -64,7 +64,7 @@ function barOf(l: DrawnLayer, spec: FigureSpec, theme: ResolvedTheme): RangeBar 
   const c = l.data.curve;
   const xs = c.x.filter(Number.isFinite);
   const span: [number, number] = xs.length ? [Math.min(...xs), Math.max(...xs)] : [NaN, NaN];
-  const ex = exclusionOrProblem(c, l.data.theory);
+  const ex = exclusionOrProblem(c, l.data.theory, l.data.meta.quantity);
   const observed = ex.ranges && l.spec.show.observed && c.observed ? (ex.ranges.observed ?? []) : null;
   const expected = ex.ranges && l.spec.show.expected && spec.ranges.expected !== 'none' && c.expected?.['0'] ? (ex.ranges.expected['0'] ?? []) : null;
   const any = (observed?.length ?? 0) + (expected?.length ?? 0) > 0;

@@ -200,9 +200,13 @@ export type Exclusion = { ranges: ExclusionRanges | null; problem: string | null
 /**
  * The registry's excluded ranges of a version (its curve against its stored theory, both in the
  * version's own units), or why there are none: no theory curve, or curves that cannot be compared.
+ * A limit on the signal strength μ without a theory curve is read against μ = 1, the signal as
+ * predicted: excluded where the limit is below 1 (common practice).
  * The one derivation the result pages, the API and the summary figures show.
  */
-export function exclusionOrProblem(curve: LimitCurve, theory: TheoryCurve | null | undefined): Exclusion {
+export function exclusionOrProblem(curve: LimitCurve, theory: TheoryCurve | null | undefined, quantity: 'mu' | 'xsec'): Exclusion {
+  // μ = 1 on the limit's own grid (a grid that is not one is refused naming curve.x, checked first).
+  if (!theory && quantity === 'mu' && Array.isArray(curve?.x)) theory = { x: curve.x, central: curve.x.map(() => 1) };
   if (!theory) return { ranges: null, problem: 'No theory curve is stored with this version, so no excluded range can be derived' };
   try {
     return { ranges: exclusionRanges(curve, theory), problem: null };

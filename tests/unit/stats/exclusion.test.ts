@@ -4,6 +4,7 @@
  * closed form whatever the grids.
  */
 import { exclusionRanges, StatsInputError } from '@/shared/stats';
+import { exclusionOrProblem } from '@/shared/stats/exclusion';
 
 const xs = (from: number, to: number, step: number) => Array.from({ length: Math.round((to - from) / step) + 1 }, (_, i) => from + i * step);
 
@@ -101,5 +102,26 @@ describe('touching is not crossing', () => {
     expect(split[1]?.from).toBeCloseTo(2.5, 12);
     // limit = theory from x = 2 to 3, then above: the range ends where the equality starts
     expect(exclusionRanges({ x, observed: [0.5, 1, 1, 2, 2] }, theory).observed).toEqual([{ from: 1, to: 2, fromOpen: true }]);
+  });
+});
+
+describe('a limit on μ without a theory curve is read against μ = 1', () => {
+  // μ_up(m) = 0.25·e^{m/2}: below 1 up to m = 2 ln 4 = 2.7726 (closed form; log-linear
+  // interpolation follows an exponential exactly). Common practice: the signal as predicted is
+  // excluded where the upper limit on its strength is below 1.
+  const x = [1, 2, 3, 4];
+  const mu = x.map((m) => 0.25 * Math.exp(m / 2));
+  test('excluded where the limit is below 1, the crossing in closed form', () => {
+    const ex = exclusionOrProblem({ x, observed: mu, expected: { '0': mu.map((v) => v * 2) } }, null, 'mu');
+    expect(ex.problem).toBeNull();
+    expect(ex.ranges!.observed).toHaveLength(1);
+    expect(ex.ranges!.observed![0]).toMatchObject({ from: 1, fromOpen: true });
+    expect(ex.ranges!.observed![0]!.to).toBeCloseTo(2 * Math.log(4), 10);
+    // Twice the limit: below 1 up to m = 2 ln 2.
+    expect(ex.ranges!.expected['0']![0]!.to).toBeCloseTo(2 * Math.log(2), 10);
+  });
+  test('σ×B without theory still has no range, and a bad μ grid is named', () => {
+    expect(exclusionOrProblem({ x, observed: mu }, null, 'xsec')).toEqual({ ranges: null, problem: expect.stringMatching(/No theory curve/) });
+    expect(exclusionOrProblem({ x: [2, 1], observed: [0.5, 0.5] }, null, 'mu').problem).toMatch(/curve\.x/);
   });
 });
