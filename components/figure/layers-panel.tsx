@@ -189,6 +189,7 @@ export function LayersPanel({
         groupId={groupId}
         parameters={layerParameters(spec.kind)}
         hiddenNote={(n) => layerPickerNote(spec.kind, n)}
+        isAdded={(id, version) => spec.layers.some((l) => l.resultId === id && l.version === version)}
         onAdd={(r) => onChange(addLayer(spec, r.id, r.version))}
       />
     </View>

@@ -42,7 +42,7 @@ describe.each(Object.keys(VIEWPORTS) as ViewportName[])('at %s size', (vp) => {
     await apiFromPage(page, 'POST', `/api/groups/${group.id}/results`, curveBody(curveTitle));
 
     // The results list marks the result over two parameters, in words and in its link's name.
-    await page.goto('/results');
+    await page.goto('/');
     await page.getByRole('link', { name: new RegExp(`^${planeTitle.replace(/[<>/]/g, '.')}, draft, version 1, over two parameters: m_X \\(GeV\\) and m_chi \\(GeV\\)$`) }).waitFor();
     await page.getByText('2 parameters: m_X × m_chi', { exact: true }).waitFor();
     expect(await page.getByText('2 parameters: m_X × m_chi', { exact: true }).count()).toBe(1);
