@@ -3,6 +3,7 @@ import { Pressable, StyleSheet, View } from 'react-native';
 import type { FigureLayerInfo } from '@/shared/schemas/figure-views';
 import type { FigureLayerData } from '@/shared/figure/types';
 import { hueColor, resolveFigureTheme } from '@/shared/figure';
+import { layerKindProblem, layerParameters, layerPickerNote } from '@/shared/figure/plan';
 import { bandsLayersOf, LINE_STYLES, type FigureSpec, type LayerParts, type LayerSpec, type LineStyle } from '@/shared/schemas/figures';
 import { colors, radii, space } from '@/themes/tokens';
 import { Banner } from '../ui/banner';
@@ -109,12 +110,15 @@ export function LayersPanel({
         const d = data?.[i]?.resultId === layer.resultId && data[i]?.version === layer.version ? data[i] : undefined;
         const title = d && d.available ? d.title : d ? 'A result you may not see' : 'Loading…';
         const latest = info.find((x) => x.resultId === layer.resultId)?.latestPublished ?? null;
+        // The same rule saving applies (spec.layers.N): after a change of kind a layer may no longer fit.
+        const kindProblem = d && d.available ? layerKindProblem(spec.kind, !!d.plane) : null;
         return (
           <View key={`${layer.resultId}@${layer.version}`} style={styles.layer} role="group" aria-label={`Layer ${i + 1}: ${title}`}>
             <Text variant="label">
               {i + 1}. {title} <Text variant="caption">v{layer.version}</Text>
             </Text>
             {d && !d.available ? <Banner tone="warning" message="This result is not visible to your group any more; it is left out of the figure." /> : null}
+            {kindProblem ? <Banner tone="warning" message={`${kindProblem.charAt(0).toUpperCase()}${kindProblem.slice(1)}. Remove this layer or choose another kind of figure; saving refuses it.`} /> : null}
             <TextField
               label={ranges ? `Bar label of layer ${i + 1}` : `Legend label of layer ${i + 1}`}
               value={layer.label}
@@ -181,7 +185,13 @@ export function LayersPanel({
           </View>
         );
       })}
-      <ResultPicker groupId={groupId} onAdd={(r) => onChange(addLayer(spec, r.id, r.version))} />
+      <ResultPicker
+        groupId={groupId}
+        parameters={layerParameters(spec.kind)}
+        hiddenNote={(n) => layerPickerNote(spec.kind, n)}
+        isAdded={(id, version) => spec.layers.some((l) => l.resultId === id && l.version === version)}
+        onAdd={(r) => onChange(addLayer(spec, r.id, r.version))}
+      />
     </View>
   );
 }

@@ -32,6 +32,22 @@ export function parameterLabel(meta: Pick<VersionMeta, 'parameterName' | 'parame
   return `${meta.parameterName}${meta.parameterUnit ? ` [${meta.parameterUnit}]` : ''}`;
 }
 
+type ParameterCount = { parameterName: string; parameterUnit: string; parameters: 1 | 2; secondParameter: { name: string; unit: string } | null };
+
+/**
+ * The badge of a two-parameter result in lists and pickers: its text ("2 parameters: m_X × m_chi")
+ * and its spoken name with the units; null for a result over one parameter (no badge).
+ */
+export function parametersBadge(r: ParameterCount): { text: string; label: string } | null {
+  if (r.parameters !== 2) return null;
+  const second = r.secondParameter ?? { name: 'a second parameter', unit: '' };
+  const spoken = (name: string, unit: string) => (unit ? `${name} (${unit})` : name);
+  return {
+    text: `2 parameters: ${r.parameterName} × ${second.name}`,
+    label: `Over two parameters: ${spoken(r.parameterName, r.parameterUnit)} and ${spoken(second.name, second.unit)}`,
+  };
+}
+
 /** Axis titles of the quick plot. */
 export function axisLabels(meta: MetaForLabels): { x: string; y: string } {
   return { x: parameterLabel(meta), y: `Upper limit on ${quantityLabel(meta)}` };

@@ -4,8 +4,8 @@ import { METHOD_LABELS, type ResultSummary } from '@/shared/schemas/results';
 import { colors, fonts, radii, space } from '@/themes/tokens';
 import { Card } from '../ui/card';
 import { Text } from '../ui/text';
-import { formatDate, formatValue, parameterLabel, STATE_LABELS } from './format';
-import { PublicBadge, StateBadge } from './state-badge';
+import { formatDate, formatValue, parameterLabel, parametersBadge, STATE_LABELS } from './format';
+import { ParametersBadge, PublicBadge, StateBadge } from './state-badge';
 
 type Props = { items: ResultSummary[]; hrefFor: (item: ResultSummary) => Href; wide: boolean; showGroup?: boolean };
 
@@ -16,7 +16,11 @@ const rowStyle = StyleSheet.flatten([
   { minHeight: 56, paddingVertical: space.sm, borderTopWidth: 1, borderTopColor: colors.border },
 ] as const);
 
-const linkName = (r: ResultSummary) => `${r.title}, ${STATE_LABELS[r.state].toLowerCase()}, version ${r.version}`;
+// The row's link name is all a screen reader hears of the row: a plane says so at the end.
+const linkName = (r: ResultSummary) => {
+  const plane = parametersBadge(r);
+  return `${r.title}, ${STATE_LABELS[r.state].toLowerCase()}, version ${r.version}${plane ? `, ${plane.label.charAt(0).toLowerCase()}${plane.label.slice(1)}` : ''}`;
+};
 
 /** Results as a table on wide screens and as cards on phones; each row opens its result. */
 export function ResultList(props: Props) {
@@ -50,6 +54,7 @@ function ResultTable({ items, hrefFor, showGroup = true }: Props) {
                 {r.model}
               </Text>
             ) : null}
+            <ParametersBadge result={r} />
           </View>
         );
       case 'group':
@@ -114,6 +119,7 @@ function ResultCards({ items, hrefFor, showGroup = true }: Props) {
                 </View>
               </View>
               {r.model ? <Text variant="muted">{r.model}</Text> : null}
+              <ParametersBadge result={r} />
               <Text variant="caption">
                 {parameterLabel(r)} · √s = {formatValue(r.sqrtS)} TeV · L = {formatValue(r.luminosity)} fb⁻¹ · {METHOD_LABELS[r.method]}
               </Text>

@@ -2,7 +2,7 @@ import { StyleSheet, View } from 'react-native';
 import type { ResultState } from '@/shared/schemas/results';
 import { colors, fonts, radii, space } from '@/themes/tokens';
 import { Text } from '../ui/text';
-import { STATE_LABELS } from './format';
+import { parametersBadge, STATE_LABELS } from './format';
 
 const tones: Record<ResultState, { bg: string; fg: string }> = {
   draft: { bg: colors.surfaceAlt, fg: colors.textMuted },
@@ -28,7 +28,21 @@ export function PublicBadge({ isPublic }: { isPublic: boolean }) {
   );
 }
 
+/** Marks a result over two parameters (a plane); nothing for a curve. Plain text, no colour meaning. */
+export function ParametersBadge({ result }: { result: Parameters<typeof parametersBadge>[0] }) {
+  const b = parametersBadge(result);
+  if (!b) return null;
+  return (
+    <View style={[styles.badge, styles.plain]} role="img" aria-label={b.label}>
+      <Text style={[styles.text, { color: colors.text }]} numberOfLines={1}>
+        {b.text}
+      </Text>
+    </View>
+  );
+}
+
 const styles = StyleSheet.create({
   badge: { alignSelf: 'flex-start', borderRadius: radii.pill, paddingHorizontal: space.sm, paddingVertical: 2 },
+  plain: { backgroundColor: colors.surface, borderWidth: 1, borderColor: colors.border, maxWidth: '100%' },
   text: { fontFamily: fonts.semibold, fontSize: 12, lineHeight: 16 },
 });

@@ -1,4 +1,4 @@
-import { and, asc, count, desc, eq, getTableColumns, gt, ilike, inArray, isNull, like, max, or, sql, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, getTableColumns, gt, ilike, inArray, isNotNull, isNull, like, max, or, sql, type SQL } from 'drizzle-orm';
 import type { EnvelopeSources } from '../../shared/schemas/combine';
 import type { ResultListQuery } from '../../shared/schemas/results';
 import { normaliseSearchText } from '../../shared/search';
@@ -266,6 +266,9 @@ export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) 
   if (f.sqrtS !== undefined) conditions.push(eq(resultVersions.sqrtS, f.sqrtS));
   if (f.method) conditions.push(eq(resultVersions.method, f.method));
   if (f.state) conditions.push(eq(resultVersions.state, f.state));
+  // Over one parameter or two (a figure's layer picker asks for the sort its kind draws).
+  if (f.parameters === 1) conditions.push(isNull(resultVersions.plane));
+  if (f.parameters === 2) conditions.push(isNotNull(resultVersions.plane));
   const where = and(...conditions);
   // Newest first; by title A–Z; by energy, highest first. The id makes pages stable.
   const order =
@@ -295,6 +298,9 @@ export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) 
       method: resultVersions.method,
       reference: resultVersions.reference,
       updatedAt: resultVersions.updatedAt,
+      // One parameter or two, from the null test alone: the plane itself is not read here.
+      parameters: sql<1 | 2>`case when ${resultVersions.plane} is null then 1 else 2 end`.mapWith((v) => (Number(v) === 2 ? 2 : 1)),
+      versionId: resultVersions.id,
       // The size of the whole filtered list, counted with the page (one query instead of two).
       total: sql<number>`count(*) over ()`.mapWith(Number),
     })
@@ -306,7 +312,16 @@ export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) 
     .orderBy(...order)
     .limit(f.pageSize)
     .offset((f.page - 1) * f.pageSize);
-  if (items.length > 0 || f.page === 1) return { items: items.map(({ total: _, ...item }) => item), total: items[0]?.total ?? 0 };
+  if (items.length > 0 || f.page === 1) {
+    const second = await secondParameters(
+      db,
+      items.filter((i) => i.parameters === 2).map((i) => i.versionId),
+    );
+    return {
+      items: items.map(({ total: _, versionId, ...item }) => ({ ...item, secondParameter: second.get(versionId) ?? null })),
+      total: items[0]?.total ?? 0,
+    };
+  }
   // A page past the end has no row to carry the count.
   const [total] = await db
     .select({ n: count() })
@@ -315,6 +330,24 @@ export async function listResults(db: Executor, viewer: Viewer, f: ListFilters) 
     .innerJoin(resultVersions, and(eq(resultVersions.resultId, latest.resultId), eq(resultVersions.version, latest.version)))
     .where(where);
   return { items: [], total: total?.n ?? 0 };
+}
+
+/**
+ * The second parameter's name and unit of these two-parameter versions, read from their planes
+ * in SQL (two keys each; only the page's plane rows, after the list has been cut to a page, so a
+ * list never takes apart every plane it filters).
+ */
+async function secondParameters(db: Executor, versionIds: string[]): Promise<Map<string, { name: string; unit: string }>> {
+  if (versionIds.length === 0) return new Map();
+  const rows = await db
+    .select({
+      id: resultVersions.id,
+      name: sql<string>`coalesce(${resultVersions.plane}->>'yName', '')`,
+      unit: sql<string>`coalesce(${resultVersions.plane}->>'yUnit', '')`,
+    })
+    .from(resultVersions)
+    .where(inArray(resultVersions.id, versionIds));
+  return new Map(rows.map((r) => [r.id, { name: r.name, unit: r.unit }]));
 }
 
 // ---------------------------------------------------------------------------------------------

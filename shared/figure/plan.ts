@@ -3,7 +3,7 @@
  * the axis ranges and ticks, and every label's text. `collectLabels` lists these labels for batch
  * typesetting; `buildScene` lays them out with the measured sizes.
  */
-import { bandsLayersOf, figureSizeCm, type FigureKind, type FigureSpec, type LayerSpec } from '../schemas/figures';
+import { bandsLayersOf, figureSizeCm, isPlaneKind, type FigureKind, type FigureSpec, type LayerSpec } from '../schemas/figures';
 import type { EnvelopeSources } from '../schemas/combine';
 import type { Curve, Theory, VersionMeta } from '../schemas/results';
 import { tint } from './color';
@@ -130,13 +130,35 @@ export function layerConversion(kind: FigureKind, from: LimitUnits & { yUnit?: s
 }
 
 /**
+ * How many parameters the results a figure of this kind draws are over: a plane figure two, the
+ * other kinds one. The one rule behind `layerKindProblem` (saving, drawing) and the composer's
+ * layer picker (which lists only results of this sort, `?parameters=`).
+ */
+export function layerParameters(kind: FigureKind): 1 | 2 {
+  return isPlaneKind(kind) ? 2 : 1;
+}
+
+/**
  * Why a layer cannot go on a figure of this kind, or null: a plane figure draws results over two
  * parameters only, the other kinds one-parameter results only. The one rule for saving
- * (`spec.layers.N`) and for drawing stored figures (the layer is left out with a note).
+ * (`spec.layers.N`), for drawing stored figures (the layer is left out with a note) and for the
+ * composer (beside a layer that no longer fits after the kind changed).
  */
 export function layerKindProblem(kind: FigureKind, twoParameter: boolean): string | null {
-  if (kind === 'plane') return twoParameter ? null : 'it is a result over one parameter: a figure of a two-parameter plane draws results over two parameters only';
-  return twoParameter ? `it is a result over two parameters: a ${kind === 'ranges' ? 'summary of excluded ranges' : 'figure of limit curves'} cannot draw it` : null;
+  if (layerParameters(kind) === (twoParameter ? 2 : 1)) return null;
+  if (kind === 'plane') return 'it is a result over one parameter: a figure of a two-parameter plane draws results over two parameters only';
+  return `it is a result over two parameters: a ${kind === 'ranges' ? 'summary of excluded ranges' : 'figure of limit curves'} cannot draw it`;
+}
+
+/**
+ * What the layer picker says of the results it leaves out for this kind (`count` of them, of the
+ * other sort than `layerParameters(kind)`), or null when none is left out.
+ */
+export function layerPickerNote(kind: FigureKind, count: number): string | null {
+  if (count <= 0) return null;
+  const what = layerParameters(kind) === 2 ? (count === 1 ? 'one-parameter result is' : 'one-parameter results are') : count === 1 ? 'two-parameter result is' : 'two-parameter results are';
+  const why = kind === 'plane' ? 'a plane figure draws results over two parameters' : kind === 'ranges' ? 'a summary of excluded ranges draws curves' : 'a limit plot draws curves';
+  return `${count} ${what} not shown: ${why}.`;
 }
 
 /** A layer left out because its units cannot go on the figure's axes, or drawn after converting them. */

@@ -141,6 +141,8 @@ export const resultListQuery = z.object({
   sqrtS: z.coerce.number({ error: 'must be a number (TeV)' }).positive('must be positive').max(10_000, 'must be at most 10000 TeV').optional(),
   method: z.enum(RESULT_METHODS).optional(),
   state: z.enum(RESULT_STATES).optional(),
+  /** Only results over one parameter (curves) or two (planes), as their listed version is. */
+  parameters: z.coerce.number({ error: 'must be 1 or 2' }).int('must be 1 or 2').min(1, 'must be 1 or 2').max(2, 'must be 1 or 2').optional(),
   sort: z.enum(RESULT_SORTS).default('updated'),
   ...pageParams,
 });
@@ -169,6 +171,10 @@ export type ResultSummary = {
   method: ResultMethod;
   reference: string;
   updatedAt: string;
+  /** Over one parameter (a curve against `parameterName`) or two (a plane; the first is `parameterName`). */
+  parameters: 1 | 2;
+  /** The second parameter of a two-parameter result (null for one parameter). */
+  secondParameter: { name: string; unit: string } | null;
 };
 export type ResultPage = { items: ResultSummary[]; total: number; page: number; pageSize: number };
 

@@ -53,6 +53,7 @@ const QUERY_BAD: Record<string, string[]> = {
   pageSize: ['99999999999', '-1', 'abc'],
   dpi: ['99999999999', '1.5', 'abc'],
   sqrtS: ['-1', 'abc', '1e400'],
+  parameters: ['3', '0', '1.5', 'abc'],
   // Not numbers, but values of a closed list: the SVG render's label mode and the download flag.
   text: ['bold', 'EDITABLE'],
   download: ['yes', '2'],

@@ -1,13 +1,17 @@
 import { JSDOM } from 'jsdom';
+import request from 'supertest';
+import type { FigureDetail } from '@/shared/schemas/figure-views';
 import type { FigureSpecInput } from '@/shared/schemas/figures';
 import { startTestApp, type TestApp } from '../helpers/app';
 import { binary, buffer, makeFigure, svgGet } from '../helpers/figures';
-import { makeGroupWithRoles, makePlaneResult, makeResult, type Crew } from '../helpers/factories';
+import { makeGroupWithRoles, makePlaneResult, makeResult, publishVersion, samplePlane, type Crew } from '../helpers/factories';
 
 /**
  * The two-parameter plane figure through the API: a plane result uploaded as JSON, a plane figure
  * saved and drawn (SVG, PDF, PNG), its contours as CSV; a limit plot or a summary refuses a plane
- * layer and a plane figure a one-parameter one, naming `spec.layers.N`; bad options are named.
+ * layer and a plane figure a one-parameter one, naming `spec.layers.N`; bad options are named;
+ * the public copy of a public plane figure leaves out layers the public may not see, and its
+ * plain-words (outreach) copy speaks plainly; user text stays text.
  */
 
 let t: TestApp;
@@ -72,4 +76,91 @@ test('kinds refuse the other sort of layer, naming spec.layers.N; bad options ar
     expect(r.status).toBe(400);
     expect(r.body.error.details.map((d: { field: string }) => d.field)).toContain(field);
   }
+});
+
+describe('public and plain-words copies of a plane figure', () => {
+  let openId = '';
+  const hostile = 'Open <b>X</b> & "chi" <script>alert(1)</script>';
+  const secret = 'Draft <i>secret</i> plane layer';
+  const twoLayers = (over: Partial<FigureSpecInput> = {}) => spec({
+    title: 'Open and draft planes',
+    layers: [
+      { resultId: openId, version: 1, label: hostile },
+      { resultId: planeId, version: 1, label: secret },
+    ],
+    ...over,
+  });
+  const allText = (svg: string) => texts(svg).join('\n');
+
+  beforeAll(async () => {
+    // A published public plane on the same grid (same units) beside the group's draft one.
+    const open = await makePlaneResult(crew.analyst, groupId, { meta: { title: 'Open heavy X to chi pairs' }, plane: samplePlane() });
+    openId = open.resultId;
+    await publishVersion(crew.curator, groupId, openId, 1, true);
+  });
+
+  test("a public plane figure's public copy draws the open layer only, says one is left out, and keeps user text as text", async () => {
+    const fig = await makeFigure(crew.editor, groupId, twoLayers(), true);
+    // Members see both layers.
+    const member = await svgGet(crew.viewer.agent.get(`/api/figures/${fig.id}/render.svg?text=editable`));
+    expect(member.status).toBe(200);
+    expect(allText(member.svg)).toContain(secret);
+    expect(allText(member.svg)).toContain(hostile);
+    expect(member.svg).toContain('Open &lt;b&gt;X&lt;/b&gt; &amp; &quot;chi&quot; &lt;script&gt;');
+    expect(member.svg).not.toContain('<script');
+
+    for (const url of [`/api/public/figures/${fig.id}/render.svg?text=editable`, `/api/figures/${fig.id}/render.svg?text=editable`]) {
+      const pub = await svgGet(request(t.app).get(url));
+      expect(pub.status).toBe(200);
+      expect(pub.headers['content-type']).toContain('image/svg+xml');
+      const words = allText(pub.svg);
+      // The draft layer, its label and its result's title do not leak into the public copy.
+      expect(words).not.toContain('secret');
+      expect(pub.svg).not.toContain('secret');
+      expect(pub.svg).not.toContain('Heavy X to chi pairs');
+      expect(words).toContain('1 layer is not shown: you may not see its result');
+      expect(texts(pub.svg)).toEqual(expect.arrayContaining(['m_X [GeV]', 'm_chi [GeV]', 'Observed', 'Expected']));
+      // The hostile label is the one layer drawn alone: its legend rows are the parts' words; the
+      // label is not markup anywhere in the SVG.
+      expect(pub.svg).not.toContain('<script');
+      expect(pub.svg).not.toContain('<b>');
+    }
+    // The outline render (labels as paths) of the public copy is drawn too.
+    const outline = await svgGet(request(t.app).get(`/api/public/figures/${fig.id}/render.svg`));
+    expect(outline.status).toBe(200);
+    expect(outline.svg).toContain('<path');
+    expect(outline.svg).not.toContain('secret');
+    // The public page lists only the open pin.
+    const page = await request(t.app).get(`/api/public/figures/${fig.id}`);
+    expect(page.status).toBe(200);
+    expect(JSON.stringify(page.body)).not.toContain('secret');
+    expect(JSON.stringify(page.body)).not.toContain(planeId);
+  });
+
+  test('the plain-words copy keeps the kind and says "ruled out" and "expected reach", escaping the layer names', async () => {
+    const fig = await makeFigure(crew.editor, groupId, twoLayers(), false);
+    const res = await crew.editor.agent.post(`/api/groups/${groupId}/figures/${fig.id}/outreach`).send({});
+    expect(res.status).toBe(201);
+    const copy = res.body as FigureDetail;
+    expect(copy.latest.spec).toMatchObject({ kind: 'plane', theme: 'outreach', plane: { colorMap: true } });
+    const svg = await svgGet(crew.viewer.agent.get(`/api/figures/${copy.id}/render.svg?text=editable`));
+    expect(svg.status).toBe(200);
+    const labels = texts(svg.svg);
+    // Two layers: each legend row names its layer before the plain words (then in lower case).
+    expect(labels).toEqual(expect.arrayContaining([`${hostile}: ruled out`, `${hostile}: expected reach`, `${secret}: ruled out`, 'Smallest rate ruled out [fb]', 'Ruled-out side']));
+    expect(labels.join('\n')).not.toMatch(/\bObserved\b|95% CL/);
+    expect(svg.svg).toContain('Open &lt;b&gt;X&lt;/b&gt; &amp; &quot;chi&quot; &lt;script&gt;alert(1)&lt;/script&gt;: ruled out');
+    expect(svg.svg).not.toContain('<script');
+    expect(svg.svg).not.toContain('<b>');
+
+    // Made public, its public copy speaks as plainly and leaves the draft layer out.
+    const shared = await crew.editor.agent.patch(`/api/groups/${groupId}/figures/${copy.id}`).send({ public: true });
+    expect(shared.status).toBe(200);
+    const pub = await svgGet(request(t.app).get(`/api/public/figures/${copy.id}/render.svg?text=editable`));
+    expect(pub.status).toBe(200);
+    const pubLabels = texts(pub.svg);
+    expect(pubLabels).toEqual(expect.arrayContaining(['Ruled out', 'Expected reach', '1 result is not shown: you may not see it']));
+    expect(pub.svg).not.toContain('secret');
+    expect(pub.svg).not.toContain('<script');
+  });
 });

@@ -296,3 +296,55 @@ describe('bad plane files are refused by line and column, storing nothing', () =
     expect(details(res.body)).toEqual([expect.objectContaining({ field: 'plane.observed.2' })]);
   });
 });
+
+describe('lists say how many parameters a result is over', () => {
+  type Row = { id: string; title: string; parameters: number; secondParameter: { name: string; unit: string } | null };
+  const rowsOf = (body: { items: Row[] }) => Object.fromEntries(body.items.map((r) => [r.id, { parameters: r.parameters, secondParameter: r.secondParameter }]));
+
+  test('a plane lists as 2 with its second parameter and a curve as 1, in the group, pinnable, signed-in and public lists; ?parameters keeps one sort', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    const word = `Quillfeather${Date.now()}`;
+    const plane = await makePlaneResult(crew.analyst, groupId, { meta: { title: `${word} scalar plane` } });
+    const curve = await makeResult(crew.analyst, groupId, { meta: { title: `${word} dijet curve` } });
+    const both = {
+      [plane.resultId]: { parameters: 2, secondParameter: { name: 'm_chi', unit: 'GeV' } },
+      [curve.resultId]: { parameters: 1, secondParameter: null },
+    };
+    const group = await crew.viewer.agent.get(`/api/groups/${groupId}/results`);
+    expect(group.status).toBe(200);
+    expect(rowsOf(group.body)).toEqual(both);
+    const pinnable = await crew.viewer.agent.get(`/api/groups/${groupId}/pinnable-results?q=${word}`);
+    expect(rowsOf(pinnable.body)).toEqual(both);
+    const signedIn = await crew.viewer.agent.get(`/api/results?q=${word}`);
+    expect(rowsOf(signedIn.body)).toEqual(both);
+
+    // One sort only: what a figure's layer picker asks for.
+    const planes = await crew.viewer.agent.get(`/api/groups/${groupId}/pinnable-results?q=${word}&parameters=2`);
+    expect(planes.body).toMatchObject({ total: 1, items: [{ id: plane.resultId, parameters: 2 }] });
+    const curves = await crew.viewer.agent.get(`/api/groups/${groupId}/results?parameters=1`);
+    expect(curves.body).toMatchObject({ total: 1, items: [{ id: curve.resultId, parameters: 1 }] });
+
+    // Drafts are not public; once published as public both show in the public list with their sort.
+    expect((await anon().get(`/api/public/results?q=${word}`)).body.total).toBe(0);
+    await publishVersion(crew.curator, groupId, plane.resultId, 1, true);
+    await publishVersion(crew.curator, groupId, curve.resultId, 1, true);
+    const open = await anon().get(`/api/public/results?q=${word}`);
+    expect(open.status).toBe(200);
+    expect(rowsOf(open.body)).toEqual(both);
+    const openPlanes = await anon().get(`/api/public/results?q=${word}&parameters=2`);
+    expect(openPlanes.body).toMatchObject({ total: 1, items: [{ id: plane.resultId, parameters: 2, secondParameter: { name: 'm_chi', unit: 'GeV' } }] });
+    const signedOut = await anon().get(`/api/results?q=${word}&parameters=1`);
+    expect(signedOut.body).toMatchObject({ total: 1, items: [{ id: curve.resultId, parameters: 1, secondParameter: null }] });
+  });
+
+  test('?parameters other than 1 or 2 is refused naming query.parameters', async () => {
+    const { groupId } = await makeGroupWithRoles(t, { crew });
+    for (const [path, who] of [[`/api/groups/${groupId}/results`, crew.viewer.agent], [`/api/groups/${groupId}/pinnable-results`, crew.viewer.agent], ['/api/results', anon()], ['/api/public/results', anon()]] as const) {
+      for (const bad of ['3', '0', '1.5', 'two']) {
+        const res = await who.get(`${path}?parameters=${bad}`);
+        expect(res.status).toBe(400);
+        expect(details(res.body)).toEqual([expect.objectContaining({ field: 'query.parameters', message: 'must be 1 or 2' })]);
+      }
+    }
+  });
+});
