@@ -137,7 +137,7 @@ export function LayersPanel({
             </View>
             {ranges ? (
               <>
-                {d && d.available && !d.theory ? <Text variant="muted">No theory curve is stored with this result: its bar says “no theory curve, no range”.</Text> : null}
+                {d && d.available && !d.theory && d.meta.quantity !== 'mu' ? <Text variant="muted">No theory curve is stored with this result: its bar says “no theory curve, no range”.</Text> : null}
                 <TextField
                   label={`Note beside the bar of layer ${i + 1}`}
                   value={layer.note}
