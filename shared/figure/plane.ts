@@ -49,6 +49,9 @@ export type PlaneLineKind = 'observed' | 'expected' | 'expected_minus_1sigma' | 
  */
 export type PlaneLayer = DrawnLayer & { plane: PlaneLayerData; lines: { kind: PlaneLineKind; lines: ContourLine[] }[]; band?: { rings: [number, number][][]; fill: string } | null };
 
+/** Opacity of the page-colour veil that shades excluded cells over a colour map. */
+export const PLANE_SHADE_OVER_MAP = 0.45;
+
 /** Opacity of a filled ±1σ band over the colour map (opaque without one), so the map shows through. */
 export const PLANE_BAND_OVER_MAP = 0.55;
 
@@ -415,7 +418,9 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
           if (ratio < 1 && !(ex[i + 1]! < plot.x || ex[i]! > plotRight || ey[j]! < plot.y || ey[j + 1]! > plotBottom)) d += rectPath(ex[i]!, ey[j + 1]!, ex[i + 1]! - ex[i]!, ey[j]! - ey[j + 1]!);
         }
       }
-      path(d, { fill: l.color, opacity: 0.18 }, 'excluded', l.index);
+      // Over a colour map a tint of the layer's colour would vanish in the map's own: a veil of the
+      // page colour lightens the excluded cells instead.
+      path(d, map ? { fill: theme.colors.background, opacity: PLANE_SHADE_OVER_MAP } : { fill: l.color, opacity: 0.18 }, 'excluded', l.index);
     }
   }
 
@@ -531,6 +536,10 @@ export function buildPlaneScene(spec: FigureSpec, plan: PlanePlan, measure: Meas
     else if (e.key === 'excluded-hatch') {
       key(lineD, { stroke: e.color, width: theme.lines.observed });
       key(hatchTicks([[x + keyW, cy], [x, cy]], false, hatchGap / 2, kh / 2), { stroke: e.color, width: 0.6 * theme.lines.observed });
+    } else if (e.key === 'excluded-shade' && map) {
+      // A sample of the map, its right half under the veil: "lighter here".
+      key(rectPath(x, cy - kh / 2, keyW, kh), { fill: rampColor(PLANE_SEQUENTIAL, 0.3) });
+      key(rectPath(x + keyW / 2, cy - kh / 2, keyW / 2, kh), { fill: theme.colors.background, opacity: PLANE_SHADE_OVER_MAP });
     } else if (e.key === 'excluded-shade') key(rectPath(x, cy - kh / 2, keyW, kh), { fill: e.color, opacity: 0.18 });
     else key(rectPath(x, cy - kh / 2, keyW, kh), { fill: e.color });
   }

@@ -4,7 +4,7 @@
  * one-parameter layers, the contour CSV, and the sequential palette.
  */
 import { buildScene, collectLabels, figureCsv, captionDraft, labelKey, resolveFigureTheme, type FigureLayerData, type Scene } from '@/shared/figure';
-import { hatchTicks, planPlane, PLANE_BAND_OVER_MAP, PLANE_COLOR_LEVELS } from '@/shared/figure/plane';
+import { hatchTicks, planPlane, PLANE_BAND_OVER_MAP, PLANE_COLOR_LEVELS, PLANE_SHADE_OVER_MAP } from '@/shared/figure/plane';
 import { bandColors } from '@/shared/figure/plan';
 import { greyLightness, rampColor, simulateVision } from '@/shared/figure/color';
 import { planeContours } from '@/shared/plane/contours';
@@ -193,6 +193,21 @@ describe('plane figure scene', () => {
       return sum + row.filter((k, n) => n === 0 || levelOf(k) !== levelOf(row[n - 1]!)).length;
     }, 0);
     expect(rects.length).toBeLessThan(rowRuns + 1);
+  });
+
+  test('shading marks the excluded cells: a tint of the layer without a map, a page-colour veil over one', () => {
+    const overMap = buildScene(spec(data, { plane: { excludedMark: 'shade' } }), data, theme, stubMeasure);
+    const bare = buildScene(spec(data, { plane: { excludedMark: 'shade', colorMap: false } }), data, theme, stubMeasure);
+    const veil = paths(overMap, 'excluded');
+    expect(veil).toHaveLength(1);
+    expect(veil[0]).toMatchObject({ fill: theme.colors.background, opacity: PLANE_SHADE_OVER_MAP });
+    const tinted = paths(bare, 'excluded');
+    expect(tinted[0]).toMatchObject({ fill: planPlane(s, data, theme).layers[0]!.color, opacity: 0.18 });
+    // The cells shaded are those inside the μ = 1 circle (radius 400 GeV around (1000, 500)):
+    // as many rectangles as grid points with μ < 1.
+    const inside = circlePlane().observed!.filter((v) => v < 1).length;
+    expect((tinted[0]!.d.match(/M/g) ?? []).length).toBe(inside);
+    expect(paths(overMap, 'hatch')).toHaveLength(0);
   });
 
   test('log axes on x and y', () => {
