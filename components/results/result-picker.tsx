@@ -19,6 +19,12 @@ import { ParametersBadge } from './state-badge';
  * figure composer (layers: only the sort its kind draws, `parameters`, saying how many others
  * match) and the envelope builder (inputs).
  */
+/** The picker's note for a builder that takes curves only: "2 two-parameter results are not shown: an envelope takes curves." */
+export const curvesOnlyNote =
+  (why: string) =>
+  (count: number): string | null =>
+    count > 0 ? `${count} two-parameter ${count === 1 ? 'result is' : 'results are'} not shown: ${why}.` : null;
+
 export function ResultPicker({
   groupId,
   onAdd,

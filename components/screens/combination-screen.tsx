@@ -7,7 +7,7 @@ import { useCurrentGroup } from '@/hooks/use-current-group';
 import { useCombinationPlan, useStartCombination } from '@/hooks/use-results';
 import { colors, radii, space } from '@/themes/tokens';
 import { inputRefusals } from '../results/input-refusals';
-import { ResultPicker } from '../results/result-picker';
+import { curvesOnlyNote, ResultPicker } from '../results/result-picker';
 import { writerGate } from '../results/writer-gate';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
@@ -102,6 +102,8 @@ export function NewCombinationScreen() {
           <ResultPicker
             groupId={group.id}
             label="Find results to combine"
+            parameters={1}
+            hiddenNote={curvesOnlyNote('a joint combination takes curves')}
             isAdded={(resultId, version) => picks.some((x) => x.resultId === resultId && x.version === version)}
             actionLabel={(r) => `Add ${r.title} v${r.version} to the combination`}
             onAdd={(r) => {

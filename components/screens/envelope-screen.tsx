@@ -10,7 +10,7 @@ import { colors, radii, space } from '@/themes/tokens';
 import { QuickPlot } from '../plot/quick-plot';
 import { axisLabels } from '../results/format';
 import { inputRefusals } from '../results/input-refusals';
-import { ResultPicker } from '../results/result-picker';
+import { curvesOnlyNote, ResultPicker } from '../results/result-picker';
 import { writerGate } from '../results/writer-gate';
 import { Banner } from '../ui/banner';
 import { Button } from '../ui/button';
@@ -88,6 +88,8 @@ export function NewEnvelopeScreen() {
           <ResultPicker
             groupId={group.id}
             label="Find results to use as inputs"
+            parameters={1}
+            hiddenNote={curvesOnlyNote('an envelope takes curves')}
             isAdded={(resultId, version) => picks.some((p) => p.resultId === resultId && p.version === version)}
             actionLabel={(r) => `Add ${r.title} v${r.version} as an input`}
             onAdd={(r) => {
