@@ -92,10 +92,21 @@ test('the demo results cover every state, with bands, theory and derived exclusi
   expect(end(v2)).toBeLessThan(6.8);
   expect(v2.sourceFile?.name).toBe('vprime-dijet-18tev-lf7q2-v2.csv');
 
-  // The μ result without theory says why there is no exclusion.
+  // The μ result without theory is read against μ = 1: excluded where its limit is below 1
+  // (common practice), here from the grid's lower edge up.
   const scalar = mine.items.find((i) => i.quantity === 'mu' && !i.isPublic)!;
   const s1 = (await analyst.get(`/api/groups/${scalar.groupId}/results/${scalar.id}/versions/1`)).body as ResultVersion;
-  expect(s1.exclusion).toEqual({ ranges: null, problem: expect.stringContaining('No theory curve') });
+  expect(s1.theory).toBeNull();
+  expect(s1.exclusion.problem).toBeNull();
+  const observed = s1.exclusion.ranges!.observed!;
+  expect(observed).toHaveLength(1);
+  const x = s1.curve!.x;
+  const mu = s1.curve!.observed!;
+  const k = mu.findIndex((v) => v >= 1);
+  expect(observed[0]).toMatchObject({ from: x[0], fromOpen: true });
+  // The crossing lies between the last grid point below 1 and the first at or above it.
+  expect(observed[0]!.to).toBeGreaterThanOrEqual(x[k - 1]!);
+  expect(observed[0]!.to).toBeLessThanOrEqual(x[k]!);
 
   // Anyone sees the public ones, with the retraction reason; never the draft or the group-only result.
   const open = (await request(t.app).get('/api/public/results')).body as ResultPage;
