@@ -38,11 +38,13 @@ test('the public demo figures render whole for anyone; the group-only one is not
     const notes = JSON.parse((res.headers['x-figure-notes'] as string | undefined) ?? '[]') as string[];
     expect(notes.filter((n) => !n.includes('converted to the axis units'))).toEqual([]);
   }
-  // The summary of excluded ranges lists the result without theory rather than leaving it out.
+  // The summary of excluded ranges has a bar for the μ result without theory (read against μ = 1,
+  // from the grid's lower edge at 0.3 TeV up to where its limit reaches 1).
   const summary = page.items.find((i) => i.title === 'Excluded masses of the Lanternfish searches, 2031 data')!;
   const csv = await request(t.app).get(`/api/figures/${summary.id}/export.csv`);
   expect(csv.status).toBe(200);
-  expect(csv.text).toContain('"Portal scalar, best channel","Heron portal scalar, mixing angle sin θ = 0.1",no theory curve,');
+  expect(csv.text).toMatch(/\r\n"Portal scalar, best channel","Heron portal scalar, mixing angle sin θ = 0\.1",observed,0\.3,0\.9\d*,yes,no,TeV,/);
+  expect(csv.text).not.toContain('no theory curve');
   expect(csv.text).toMatch(/\r\nDijet search,Sequential V\S* benchmark[^,]*,observed,/);
   const internal = (await t.ctx.db.select().from(figures)).find((f) => !f.isPublic)!;
   expect((await request(t.app).get(`/api/public/figures/${internal.id}/render.svg`)).status).toBe(404);
